@@ -1,0 +1,15 @@
+# Fails the build when engine/ includes a header of the I/O libraries: the engine is pure
+# computation (no ZeroMQ, Asio/Beast, FlatBuffers, logging or JSON).
+file(GLOB_RECURSE _sources "${ENGINE_DIR}/*.hpp" "${ENGINE_DIR}/*.cpp" "${ENGINE_DIR}/*.h")
+set(_bad "")
+foreach(_f IN LISTS _sources)
+  file(STRINGS "${_f}" _lines REGEX "^[ \t]*#[ \t]*include[ \t]*[<\"](zmq|flatbuffers/|boost/asio|boost/beast|asio|spdlog/|simdjson|liveprob/protocol/|liveprob/adapters/)")
+  foreach(_l IN LISTS _lines)
+    list(APPEND _bad "${_f}: ${_l}")
+  endforeach()
+endforeach()
+if(_bad)
+  string(REPLACE ";" "\n" _msg "${_bad}")
+  message(FATAL_ERROR "engine/ must stay pure computation; forbidden includes:\n${_msg}")
+endif()
+file(WRITE "${STAMP}" "ok\n")

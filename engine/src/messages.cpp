@@ -1,0 +1,43 @@
+#include "liveprob/engine/messages.hpp"
+
+namespace liveprob {
+
+namespace {
+template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
+}  // namespace
+
+const char* kind_name(const MessageBody& body) noexcept {
+    return std::visit(overloaded{
+        [](const MatchSetup&) { return "setup"; },
+        [](const PeriodStart&) { return "period_start"; },
+        [](const PeriodEnd&) { return "period_end"; },
+        [](const Goal&) { return "goal"; },
+        [](const GoalCancelled&) { return "goal_cancelled"; },
+        [](const RedCard&) { return "red_card"; },
+        [](const CardRescinded&) { return "card_rescinded"; },
+        [](const StoppageAnnounced&) { return "stoppage"; },
+        [](const ScoreCorrection&) { return "score_correction"; },
+        [](const ShootoutKick&) { return "shootout_kick"; },
+        [](const ShotXg&) { return "shot_xg"; },
+        [](const MatchAbandoned&) { return "abandoned"; },
+        [](const FinalWhistle&) { return "final_whistle"; },
+        [](const ClockSync&) { return "clock"; },
+    }, body);
+}
+
+const char* period_name(Period p) noexcept {
+    switch (p) {
+        case Period::pre_match: return "pre_match";
+        case Period::first_half: return "first_half";
+        case Period::second_half: return "second_half";
+        case Period::extra_first: return "extra_first";
+        case Period::extra_second: return "extra_second";
+        case Period::shootout: return "shootout";
+        case Period::finished: return "finished";
+    }
+    return "unknown";
+}
+
+const char* side_name(Side s) noexcept { return s == Side::home ? "home" : "away"; }
+
+}  // namespace liveprob

@@ -1,0 +1,48 @@
+#include "test_env.hpp"
+
+#include <array>
+#include <cstdio>
+#include <cstdlib>
+#include <stdexcept>
+#include <sys/wait.h>
+#include <unistd.h>
+
+namespace liveprob::test {
+
+std::filesystem::path open_data_dir() {
+    const char* env = std::getenv("LIVEPROB_OPEN_DATA");
+    std::filesystem::path dir = env && *env ? std::filesystem::path(env)
+                                            : std::filesystem::path(LIVEPROB_OPEN_DATA_DEFAULT);
+    if (!std::filesystem::is_directory(dir / "international")) {
+        throw std::runtime_error("open datasets not found at " + dir.string() +
+                                 " (set LIVEPROB_OPEN_DATA)");
+    }
+    return dir;
+}
+
+std::filesystem::path source_dir() { return LIVEPROB_SOURCE_DIR; }
+std::filesystem::path liveprob_binary() { return LIVEPROB_BINARY_PATH; }
+
+std::string system_python() { return "/usr/bin/python3"; }
+
+CommandResult run_command(const std::string& command) {
+    CommandResult result;
+    FILE* pipe = ::popen(command.c_str(), "r");
+    if (!pipe) throw std::runtime_error("cannot run: " + command);
+    std::array<char, 4096> buffer{};
+    size_t n = 0;
+    while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0) result.out.append(buffer.data(), n);
+    const int status = ::pclose(pipe);
+    result.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+    return result;
+}
+
+std::filesystem::path scratch_dir(const std::string& name) {
+    auto dir = std::filesystem::temp_directory_path() /
+               ("liveprob-test-" + name + "-" + std::to_string(::getpid()));
+    std::filesystem::remove_all(dir);
+    std::filesystem::create_directories(dir);
+    return dir;
+}
+
+}  // namespace liveprob::test

@@ -1,0 +1,30 @@
+// Where tests find things outside themselves: the open datasets, the built program, Debian's
+// Python (for SciPy/statsmodels reference checks), and a way to run a command.
+#pragma once
+
+#include <filesystem>
+#include <string>
+
+namespace liveprob::test {
+
+// The open datasets: $LIVEPROB_OPEN_DATA, else ../shared/data/open beside the source tree.
+// Throws (so the test fails, never skips) when the folder is missing.
+std::filesystem::path open_data_dir();
+
+std::filesystem::path source_dir();
+std::filesystem::path liveprob_binary();
+
+// Debian's interpreter, which sees Debian's python3-scipy / python3-statsmodels.
+std::string system_python();
+
+struct CommandResult {
+    int exit_code = -1;
+    std::string out;  // standard output
+};
+// Runs `command` through /bin/sh, capturing standard output (standard error passes through).
+CommandResult run_command(const std::string& command);
+
+// A fresh, empty directory for one test (under the build tree's temporary folder).
+std::filesystem::path scratch_dir(const std::string& name);
+
+}  // namespace liveprob::test
