@@ -7,3 +7,8 @@ if(LIVEPROB_SANITIZE)
   add_link_options("-fsanitize=${LIVEPROB_SANITIZE}")
   message(STATUS "liveprob: building with sanitizers ${LIVEPROB_SANITIZE}")
 endif()
+
+# Fuzz builds instrument every library for coverage; only the fuzz binaries link libFuzzer.
+if(LIVEPROB_FUZZ)
+  add_compile_options(-fsanitize=fuzzer-no-link)
+endif()
