@@ -26,6 +26,10 @@ struct TimingProfile {
     // Extra time: rate per minute relative to the end of the second half (from memory).
     double extra_time_factor = 0.85;
     double expected_stoppage_extra = 1.0;  // per extra-time half (from memory)
+    // Once the clock has passed the announced (or expected) stoppage, the rest of the period
+    // still counts this many minutes at the stoppage rate: play runs on to finish a move
+    // (the project's choice, common practice that the whistle comes within about a minute).
+    double overrun_minutes = 0.5;
 };
 
 // Score-state multipliers on a side's rate, by that side's own situation (from memory:
