@@ -2,6 +2,7 @@
 
 #include <cmath>
 #include <variant>
+#include <vector>
 
 #include "liveprob/engine/intensity.hpp"
 
@@ -15,6 +16,15 @@ constexpr bool valid_period(Period p) noexcept { return p <= Period::finished; }
 constexpr int kMaxAnnouncedStoppage = 30;  // minutes; common practice: no board shows more
 constexpr int kMaxCorrectedGoals = 99;
 constexpr std::size_t kReservedRecords = 64;
+
+// The record a correction names by its source sequence number, if the log holds it.
+template <class Record>
+Record* find_record(std::vector<Record>& records, std::uint64_t seq) noexcept {
+    for (auto& r : records) {
+        if (r.seq == seq) return &r;
+    }
+    return nullptr;
+}
 
 }  // namespace
 
@@ -109,7 +119,7 @@ struct StateFold::Step {
         return RejectReason::none;
     }
 
-    RejectReason operator()(const Goal& m) noexcept {
+    RejectReason operator()(const Goal& m) {  // may grow the goal records
         if (state.status == MatchStatus::shootout) return RejectReason::goal_in_shootout;
         if (const auto why = check_open_play(); why != RejectReason::none) return why;
         advance_clock();
@@ -121,10 +131,7 @@ struct StateFold::Step {
 
     RejectReason operator()(const GoalCancelled& m) noexcept {
         if (state.status == MatchStatus::not_started) return RejectReason::before_kickoff;
-        GoalRecord* goal = nullptr;
-        for (auto& g : state.goals_log) {
-            if (g.seq == m.goal_seq) goal = &g;
-        }
+        GoalRecord* goal = find_record(state.goals_log, m.goal_seq);
         if (!goal) return RejectReason::unknown_goal;
         if (goal->cancelled) return RejectReason::goal_already_cancelled;
         auto& count = (goal->extra_time ? state.extra_time_goals : state.regulation_goals)[at(goal->side)];
@@ -137,7 +144,7 @@ struct StateFold::Step {
         return RejectReason::none;
     }
 
-    RejectReason operator()(const RedCard& m) noexcept {
+    RejectReason operator()(const RedCard& m) {  // may grow the card records
         if (state.status == MatchStatus::not_started) return RejectReason::before_kickoff;
         if (state.status == MatchStatus::in_play) {
             if (const auto why = check_clock(); why != RejectReason::none) return why;
@@ -150,10 +157,7 @@ struct StateFold::Step {
 
     RejectReason operator()(const CardRescinded& m) noexcept {
         if (state.status == MatchStatus::not_started) return RejectReason::before_kickoff;
-        CardRecord* card = nullptr;
-        for (auto& c : state.cards_log) {
-            if (c.seq == m.card_seq) card = &c;
-        }
+        CardRecord* card = find_record(state.cards_log, m.card_seq);
         if (!card) return RejectReason::unknown_card;
         if (card->rescinded) return RejectReason::card_already_rescinded;
         advance_clock();
