@@ -2,6 +2,8 @@
 // Bayesian strength posterior θ_X ~ Gamma(shape, rate) that the match state carries.
 #pragma once
 
+#include <optional>
+
 #include "liveprob/engine/messages.hpp"
 #include "liveprob/engine/params.hpp"
 
@@ -23,10 +25,11 @@ struct StrengthPosterior {
 StrengthPosterior strength_prior(const ModelParams& params);
 
 // After `goals` by the side over `expected_so_far` = λ_X · ∫ r(t) m_X(state(t)) dt, the
-// expected goals so far under the prior and the states actually passed through; `xg_so_far`
-// (optional evidence) counts `xg_weight` of a goal and adds the same weight of exposure:
-// Gamma(κ + g + w·xG, κ + E + w·E).
+// expected goals so far under the prior and the states actually passed through. When the
+// match carries xG evidence, `xg_so_far` (the side's summed shot xG) counts `xg_weight` of a
+// goal per unit and adds the same weight of exposure: Gamma(κ + g + w·xG, κ + E + w·E).
 StrengthPosterior strength_posterior(const ModelParams& params, double goals,
-                                     double expected_so_far, double xg_so_far = 0.0);
+                                     double expected_so_far,
+                                     std::optional<double> xg_so_far = std::nullopt);
 
 }  // namespace liveprob
