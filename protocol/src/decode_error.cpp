@@ -1,4 +1,4 @@
-#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
 

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "liveprob/engine/messages.hpp"
+#include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
 
@@ -20,26 +21,17 @@ inline constexpr std::uint16_t kSchemaMinor = 0;
 // Largest inbound buffer accepted; anything bigger is rejected before verification.
 inline constexpr std::size_t kMaxFeedMessageBytes = 64 * 1024;
 
-// Why a buffer was rejected. Stable names (decode_error_name) feed the service's counters.
-enum class DecodeError : std::uint8_t {
-    none = 0,
-    too_small,             // shorter than a FlatBuffers header
-    oversize,              // longer than the size limit
-    wrong_identifier,      // not this message type's file identifier
-    malformed,             // the FlatBuffers Verifier refused it
-    wrong_schema_version,  // major version differs from ours
-    missing_field,         // a required part is absent
-    bad_value,             // a field is out of its range (unknown enum, NaN, negative, ...)
-};
-const char* decode_error_name(DecodeError e) noexcept;
-
 struct FeedDecodeResult {
     std::optional<InboundMessage> message;  // set exactly when error == none
     DecodeError error = DecodeError::none;
     std::string detail;                      // one line, for logs
 };
 
+// Verifies `bytes` (size limit, identifier, FlatBuffers Verifier, schema major version, then the
+// semantic checks of message_checks.hpp) and decodes it. Never reads outside `bytes`.
 FeedDecodeResult decode_feed_message(std::span<const std::uint8_t> bytes);
+
+// Encodes `message` as it is (no checks, so tests can build bad messages on purpose).
 std::vector<std::uint8_t> encode_feed_message(const InboundMessage& message);
 
 }  // namespace liveprob::protocol

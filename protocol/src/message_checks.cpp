@@ -1,0 +1,165 @@
+#include "liveprob/protocol/message_checks.hpp"
+
+#include <cmath>
+#include <fmt/format.h>
+
+namespace liveprob::protocol {
+
+namespace {
+
+template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
+
+using Problem = std::optional<MessageProblem>;
+
+Problem bad(std::string field, std::string reason) {
+    return MessageProblem{DecodeError::bad_value, std::move(field), std::move(reason)};
+}
+
+Problem missing(std::string field, std::string reason) {
+    return MessageProblem{DecodeError::missing_field, std::move(field), std::move(reason)};
+}
+
+bool is_playing_period(Period p) noexcept {
+    return p >= Period::first_half && p <= Period::extra_second;
+}
+
+// Periods that can start or end: the four of open play plus the shoot-out.
+bool can_start_or_end(Period p) noexcept {
+    return p >= Period::first_half && p <= Period::shootout;
+}
+
+Problem check_side(Side side) {
+    if (!is_known_side(static_cast<std::uint8_t>(side))) {
+        return bad("side", fmt::format("unknown side {}", static_cast<int>(side)));
+    }
+    return std::nullopt;
+}
+
+Problem check_name(const std::string& value, const std::string& field) {
+    if (value.empty()) return bad(field, "must not be empty");
+    if (value.size() > kMaxNameBytes) {
+        return bad(field, fmt::format("longer than {} bytes", kMaxNameBytes));
+    }
+    return std::nullopt;
+}
+
+Problem check_prior_goals(double value, const std::string& field) {
+    if (!std::isfinite(value)) return bad(field, fmt::format("must be finite, got {}", value));
+    if (value <= 0.0 || value > kMaxPriorGoals) {
+        return bad(field, fmt::format("must be in (0, {}], got {}", kMaxPriorGoals, value));
+    }
+    return std::nullopt;
+}
+
+Problem check_format(const CompetitionFormat& format) {
+    if (format.half_minutes == 0 || format.half_minutes > kMaxHalfMinutes) {
+        return bad("half_minutes",
+                   fmt::format("must be 1..{}, got {}", kMaxHalfMinutes, format.half_minutes));
+    }
+    if (format.extra_time &&
+        (format.extra_half_minutes == 0 || format.extra_half_minutes > kMaxHalfMinutes)) {
+        return bad("extra_half_minutes", fmt::format("must be 1..{}, got {}", kMaxHalfMinutes,
+                                                     format.extra_half_minutes));
+    }
+    return std::nullopt;
+}
+
+Problem check_setup(const MatchSetup& setup) {
+    if (auto p = check_name(setup.home_name, "home")) return p;
+    if (auto p = check_name(setup.away_name, "away")) return p;
+    if (!setup.prior && !setup.ratings) {
+        return missing("prior", "a setup needs 'prior' or 'ratings'");
+    }
+    if (setup.prior && setup.ratings) {
+        return bad("ratings", "give 'prior' or 'ratings', not both");
+    }
+    if (setup.prior) {
+        if (auto p = check_prior_goals(setup.prior->home_goals, "prior.home")) return p;
+        if (auto p = check_prior_goals(setup.prior->away_goals, "prior.away")) return p;
+    }
+    if (setup.ratings) {
+        if (auto p = check_name(setup.ratings->home_key, "ratings.home")) return p;
+        if (auto p = check_name(setup.ratings->away_key, "ratings.away")) return p;
+    }
+    return check_format(setup.format);
+}
+
+Problem check_body(const MessageBody& body) {
+    return std::visit(
+        overloaded{
+            [](const MatchSetup& m) { return check_setup(m); },
+            [](const PeriodStart& m) -> Problem {
+                if (!can_start_or_end(m.period)) {
+                    return bad("starts", fmt::format("'{}' is not a period that starts",
+                                                     period_name(m.period)));
+                }
+                return std::nullopt;
+            },
+            [](const PeriodEnd& m) -> Problem {
+                if (!can_start_or_end(m.period)) {
+                    return bad("ends", fmt::format("'{}' is not a period that ends",
+                                                   period_name(m.period)));
+                }
+                return std::nullopt;
+            },
+            [](const StoppageAnnounced& m) -> Problem {
+                if (!is_playing_period(m.period)) {
+                    return bad("for_period", fmt::format("'{}' has no stoppage time",
+                                                         period_name(m.period)));
+                }
+                if (m.minutes > kMaxStoppageMinutes) {
+                    return bad("minutes", fmt::format("must be 0..{}, got {}",
+                                                      kMaxStoppageMinutes, m.minutes));
+                }
+                return std::nullopt;
+            },
+            [](const Goal& m) { return check_side(m.side); },
+            [](const RedCard& m) { return check_side(m.side); },
+            [](const ShootoutKick& m) { return check_side(m.side); },
+            [](const ShotXg& m) -> Problem {
+                if (auto p = check_side(m.side)) return p;
+                if (!std::isfinite(m.xg) || m.xg < 0.0 || m.xg > 1.0) {
+                    return bad("xg", fmt::format("must be in [0, 1], got {}", m.xg));
+                }
+                return std::nullopt;
+            },
+            [](const MatchAbandoned& m) -> Problem {
+                if (m.reason.size() > kMaxReasonBytes) {
+                    return bad("reason", fmt::format("longer than {} bytes", kMaxReasonBytes));
+                }
+                return std::nullopt;
+            },
+            // Sequence numbers, score corrections and flags take any value of their type.
+            [](const auto&) -> Problem { return std::nullopt; },
+        },
+        body);
+}
+
+}  // namespace
+
+std::string MessageProblem::describe() const {
+    return fmt::format("field '{}': {}", field, reason);
+}
+
+bool is_known_period(std::uint8_t raw) noexcept {
+    return raw <= static_cast<std::uint8_t>(Period::finished);
+}
+
+bool is_known_side(std::uint8_t raw) noexcept {
+    return raw <= static_cast<std::uint8_t>(Side::away);
+}
+
+std::optional<MessageProblem> check_message(const InboundMessage& message) {
+    const MessageHeader& h = message.header;
+    if (h.match_id == 0) return bad("match", "must not be 0 (0 means 'every match' in requests)");
+    if (!is_known_period(static_cast<std::uint8_t>(h.clock.period))) {
+        return bad("period", fmt::format("unknown period {}", static_cast<int>(h.clock.period)));
+    }
+    if (h.clock.clock_ms > kMaxClockMs) {
+        return bad("clock", fmt::format("{} ms is beyond {} minutes", h.clock.clock_ms,
+                                        kMaxClockMs / 60000u));
+    }
+    return check_body(message.body);
+}
+
+}  // namespace liveprob::protocol
