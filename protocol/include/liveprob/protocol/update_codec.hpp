@@ -1,0 +1,75 @@
+// Outbound codecs: probability updates (published per match), snapshot request/reply (for a
+// subscriber that joins late) and service counters. Every decoder verifies before it reads.
+#pragma once
+
+#include <cstdint>
+#include <span>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <flatbuffers/flatbuffers.h>
+
+#include "liveprob/engine/outputs.hpp"
+#include "liveprob/protocol/decode_error.hpp"
+
+namespace liveprob::protocol {
+
+inline constexpr std::size_t kMaxUpdateBytes = 16 * 1024;
+inline constexpr std::size_t kMaxSnapshotRequestBytes = 1024;
+inline constexpr std::size_t kMaxSnapshotReplyBytes = 16 * 1024 * 1024;
+inline constexpr std::size_t kMaxCountersBytes = 64 * 1024;
+
+// What an update carries beside the outputs: which match, where it sits in the match's output
+// sequence, which input it reflects, and the timestamps that let anyone measure latency.
+struct UpdateMeta {
+    std::uint64_t match_id = 0;
+    std::uint64_t output_seq = 0;
+    std::uint64_t input_seq = 0;
+    std::int64_t receive_time_us = 0;   // 0 for updates driven by the clock alone
+    std::int64_t publish_time_us = 0;
+    std::uint32_t compute_ns = 0;
+    friend bool operator==(const UpdateMeta&, const UpdateMeta&) = default;
+};
+
+struct DecodedUpdate {
+    UpdateMeta meta;
+    Outputs outputs;
+};
+
+// Reusable update encoder. It keeps its builder between calls, so once the builder has grown
+// to an update's size, encoding allocates nothing. The score grid is cut to the smallest
+// square that holds every non-zero cell.
+class UpdateEncoder {
+public:
+    UpdateEncoder();
+    // The bytes stay valid until the next call on this encoder.
+    std::span<const std::uint8_t> encode(const UpdateMeta& meta, const Outputs& outputs);
+
+private:
+    flatbuffers::FlatBufferBuilder builder_;
+};
+
+// Verifies and decodes one update; cells beyond the sent grid are zero.
+Decoded<DecodedUpdate> decode_update(std::span<const std::uint8_t> bytes);
+
+// match_id 0 asks for every live match.
+std::vector<std::uint8_t> encode_snapshot_request(std::uint64_t match_id);
+Decoded<std::uint64_t> decode_snapshot_request(std::span<const std::uint8_t> bytes);
+
+struct SnapshotReplyContents {
+    std::string error;                   // empty on success
+    std::vector<DecodedUpdate> updates;  // latest update of each match asked for
+};
+std::vector<std::uint8_t> encode_snapshot_reply(const SnapshotReplyContents& reply);
+Decoded<SnapshotReplyContents> decode_snapshot_reply(std::span<const std::uint8_t> bytes);
+
+struct CounterSet {
+    std::int64_t publish_time_us = 0;
+    std::vector<std::pair<std::string, std::uint64_t>> values;  // name, value
+    friend bool operator==(const CounterSet&, const CounterSet&) = default;
+};
+std::vector<std::uint8_t> encode_counters(const CounterSet& counters);
+Decoded<CounterSet> decode_counters(std::span<const std::uint8_t> bytes);
+
+}  // namespace liveprob::protocol

@@ -1,0 +1,41 @@
+// Update encoder (allocation-free once warm) and the verifying update decoder.
+#include "liveprob/protocol/update_codec.hpp"
+
+#include "update_table.hpp"
+#include "verified_root.hpp"
+
+namespace liveprob::protocol {
+
+namespace {
+constexpr detail::EnvelopeLimits kUpdateLimits{kMaxUpdateBytes, "LPU1", 4, 4};
+// Room for a full 16 x 16 grid and every other field, so the first encode already fits.
+constexpr std::size_t kInitialUpdateBytes = 4096;
+}  // namespace
+
+UpdateEncoder::UpdateEncoder() : builder_(kInitialUpdateBytes) {}
+
+std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta, const Outputs& outputs) {
+    builder_.Clear();  // keeps the buffer it has grown
+    builder_.Finish(detail::write_update(builder_, meta, outputs), wire::UpdateIdentifier());
+    return {builder_.GetBufferPointer(), builder_.GetSize()};
+}
+
+Decoded<DecodedUpdate> decode_update(std::span<const std::uint8_t> bytes) {
+    const auto verified = detail::verify_root<wire::Update>(bytes, kUpdateLimits);
+    Decoded<DecodedUpdate> out;
+    if (!verified.root) {
+        out.error = verified.error;
+        out.detail = verified.detail;
+        return out;
+    }
+    DecodedUpdate update;
+    if (auto problem = detail::read_update(*verified.root, update)) {
+        out.error = problem->error;
+        out.detail = detail::error_detail(problem->error, problem->describe());
+        return out;
+    }
+    out.value = update;
+    return out;
+}
+
+}  // namespace liveprob::protocol

@@ -1,0 +1,20 @@
+// Writing and reading one Update table, shared by the update codec and the snapshot reply
+// (which nests updates). Private to the protocol library.
+#pragma once
+
+#include <optional>
+
+#include "liveprob/protocol/message_checks.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/wire/update_generated.h"
+
+namespace liveprob::protocol::detail {
+
+flatbuffers::Offset<wire::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
+                                               const UpdateMeta& meta, const Outputs& outputs);
+
+// Range checks every field (enums known, numbers finite, probabilities in [0, 1], vectors of
+// the right length) and fills `out`; the problem names the field by its schema name.
+std::optional<MessageProblem> read_update(const wire::Update& in, DecodedUpdate& out);
+
+}  // namespace liveprob::protocol::detail

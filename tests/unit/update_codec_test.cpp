@@ -1,0 +1,162 @@
+// Outbound codecs: updates, snapshot request/reply and counters round-trip; the update
+// encoder allocates nothing once warm; decoders name what they refuse.
+#include <catch2/catch.hpp>
+
+#include <atomic>
+#include <cstdlib>
+#include <cstring>
+#include <limits>
+#include <new>
+
+#include "liveprob/protocol/update_codec.hpp"
+#include "sample_messages.hpp"
+
+// Counts every heap allocation of this test program, to prove steady-state encoding makes none.
+namespace {
+std::atomic<std::size_t> g_allocations{0};
+}
+void* operator new(std::size_t size) {
+    g_allocations.fetch_add(1, std::memory_order_relaxed);
+    if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
+    throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+
+using namespace liveprob;
+using namespace liveprob::protocol;
+
+namespace {
+
+const UpdateMeta kMeta{4242, 17, 93, 1'790'000'000'000'000, 1'790'000'000'000'150, 48'000};
+
+void check_same(const Outputs& a, const Outputs& b) {
+    CHECK(a.status == b.status);
+    CHECK(a.clock == b.clock);
+    CHECK(a.home_goals == b.home_goals);
+    CHECK(a.away_goals == b.away_goals);
+    CHECK(a.home_reds == b.home_reds);
+    CHECK(a.away_reds == b.away_reds);
+    CHECK(a.p_home == b.p_home);
+    CHECK(a.p_draw == b.p_draw);
+    CHECK(a.p_away == b.p_away);
+    CHECK(a.has_advance == b.has_advance);
+    CHECK(a.p_advance_home == b.p_advance_home);
+    CHECK(a.p_advance_away == b.p_advance_away);
+    CHECK(a.expected_home_goals == b.expected_home_goals);
+    CHECK(a.expected_away_goals == b.expected_away_goals);
+    CHECK(a.next_goal_home == b.next_goal_home);
+    CHECK(a.next_goal_away == b.next_goal_away);
+    CHECK(a.next_goal_none == b.next_goal_none);
+    CHECK(a.p_over == b.p_over);
+    CHECK(a.p_both_score == b.p_both_score);
+    CHECK(a.goals_added == b.goals_added);
+    CHECK(a.tail_mass == b.tail_mass);
+    CHECK(a.events_applied == b.events_applied);
+}
+
+std::vector<std::uint8_t> copy(std::span<const std::uint8_t> s) { return {s.begin(), s.end()}; }
+
+}  // namespace
+
+TEST_CASE("an update round-trips with its meta and every output", "[update_codec]") {
+    UpdateEncoder encoder;
+    const Outputs outputs = test::sample_outputs();
+    const auto bytes = copy(encoder.encode(kMeta, outputs));
+    const auto decoded = decode_update(bytes);
+    REQUIRE(decoded.ok());
+    CHECK(decoded.value->meta == kMeta);
+    check_same(decoded.value->outputs, outputs);
+}
+
+TEST_CASE("the grid is cut to its non-zero square, and a full grid still fits", "[update_codec]") {
+    UpdateEncoder encoder;
+    Outputs sparse = test::sample_outputs();  // non-zero cells within 5 x 4
+    const auto small = encoder.encode(kMeta, sparse).size();
+    Outputs full = sparse;
+    for (auto& row : full.goals_added) row.fill(1.0 / (kGrid * kGrid));
+    const auto full_bytes = copy(encoder.encode(kMeta, full));
+    CHECK(small + (kGrid * kGrid - 25) * sizeof(double) <= full_bytes.size());
+    CHECK(full_bytes.size() <= kMaxUpdateBytes);
+    const auto decoded = decode_update(full_bytes);
+    REQUIRE(decoded.ok());
+    CHECK(decoded.value->outputs.goals_added == full.goals_added);
+}
+
+TEST_CASE("encoding an update allocates nothing once the encoder is warm", "[update_codec]") {
+    UpdateEncoder encoder;
+    Outputs outputs = test::sample_outputs();
+    for (auto& row : outputs.goals_added) row.fill(0.001);
+    (void)encoder.encode(kMeta, outputs);  // warm-up: the builder grows to size here
+    const std::size_t before = g_allocations.load();
+    std::size_t total = 0;
+    for (int i = 0; i < 1000; ++i) {
+        outputs.p_home = 0.001 * i;
+        total += encoder.encode(kMeta, outputs).size();
+    }
+    const std::size_t after = g_allocations.load();
+    CHECK(total > 0);
+    CHECK(after - before == 0);
+}
+
+TEST_CASE("the update decoder names what it refuses", "[update_codec]") {
+    UpdateEncoder encoder;
+    Outputs outputs = test::sample_outputs();
+    outputs.p_draw = std::numeric_limits<double>::infinity();
+    auto r = decode_update(copy(encoder.encode(kMeta, outputs)));
+    CHECK(r.error == DecodeError::bad_value);
+    CHECK(r.detail == "bad_value: field 'p_draw': must be a probability, got inf");
+
+    outputs = test::sample_outputs();
+    outputs.status = static_cast<MatchStatus>(9);
+    r = decode_update(copy(encoder.encode(kMeta, outputs)));
+    CHECK(r.detail == "bad_value: field 'status': 9 is not a match status");
+
+    const auto feed_like = encode_snapshot_request(3);
+    CHECK(decode_update(feed_like).error == DecodeError::wrong_identifier);
+}
+
+TEST_CASE("snapshot requests and replies round-trip", "[snapshot_codec]") {
+    const auto request = decode_snapshot_request(encode_snapshot_request(4242));
+    REQUIRE(request.ok());
+    CHECK(*request.value == 4242);
+    CHECK(*decode_snapshot_request(encode_snapshot_request(0)).value == 0);
+
+    SnapshotReplyContents reply;
+    reply.updates.push_back({kMeta, test::sample_outputs()});
+    UpdateMeta second = kMeta;
+    second.match_id = 77;
+    Outputs finished = test::sample_outputs();
+    finished.status = MatchStatus::finished;
+    reply.updates.push_back({second, finished});
+    const auto decoded = decode_snapshot_reply(encode_snapshot_reply(reply));
+    REQUIRE(decoded.ok());
+    REQUIRE(decoded.value->updates.size() == 2);
+    CHECK(decoded.value->error.empty());
+    CHECK(decoded.value->updates[1].meta == second);
+    check_same(decoded.value->updates[1].outputs, finished);
+
+    const auto refused = decode_snapshot_reply(encode_snapshot_reply({"unknown match 42", {}}));
+    REQUIRE(refused.ok());
+    CHECK(refused.value->error == "unknown match 42");
+    CHECK(refused.value->updates.empty());
+}
+
+TEST_CASE("a snapshot reply with a bad nested update is refused with its index", "[snapshot_codec]") {
+    SnapshotReplyContents reply;
+    reply.updates.push_back({kMeta, test::sample_outputs()});
+    reply.updates.push_back({kMeta, test::sample_outputs()});
+    reply.updates[1].outputs.tail_mass = -0.5;
+    const auto decoded = decode_snapshot_reply(encode_snapshot_reply(reply));
+    CHECK(decoded.error == DecodeError::bad_value);
+    CHECK(decoded.detail == "bad_value: update 1: field 'tail_mass': must be a probability, got -0.5");
+}
+
+TEST_CASE("counters round-trip in order", "[counters_codec]") {
+    const CounterSet counters{1'790'000'000'000'000, {{"inbound_accepted", 1200}, {"inbound_malformed", 3}, {"late", 0}}};
+    const auto decoded = decode_counters(encode_counters(counters));
+    REQUIRE(decoded.ok());
+    CHECK(*decoded.value == counters);
+    const CounterSet empty{5, {}};
+    CHECK(*decode_counters(encode_counters(empty)).value == empty);
+}
