@@ -1,5 +1,3 @@
-#include "asio_warnings.hpp"
-
 #include "liveprob/adapters/reactor_socket.hpp"
 
 #include <boost/asio/post.hpp>

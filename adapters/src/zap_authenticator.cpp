@@ -1,5 +1,3 @@
-#include "asio_warnings.hpp"
-
 #include "liveprob/adapters/zap_authenticator.hpp"
 
 #include <spdlog/spdlog.h>

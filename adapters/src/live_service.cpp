@@ -1,0 +1,391 @@
+#include "liveprob/adapters/live_service.hpp"
+
+#include <boost/asio/signal_set.hpp>
+#include <boost/asio/steady_timer.hpp>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <chrono>
+#include <csignal>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+
+#include "liveprob/adapters/curve_keys.hpp"
+#include "liveprob/adapters/journal.hpp"
+#include "liveprob/adapters/match_book.hpp"
+#include "liveprob/adapters/reactor_socket.hpp"
+#include "liveprob/adapters/service_counters.hpp"
+#include "liveprob/adapters/service_wire.hpp"
+#include "liveprob/adapters/topics.hpp"
+#include "liveprob/adapters/zap_authenticator.hpp"
+#include "liveprob/protocol/feed_codec.hpp"
+
+namespace liveprob::adapters {
+
+namespace {
+
+using SteadyClock = std::chrono::steady_clock;
+
+// Messages drained from one socket per turn of the loop, so ticks and snapshots stay timely
+// under a flood.
+constexpr int kDrainBatch = 512;
+// Largest inbound message ZeroMQ accepts at all (bigger: the peer is disconnected). Buffers
+// between the decoder's own limit and this are received, counted as oversize and dropped.
+constexpr std::int64_t kMaxIngestMessageBytes = 1 << 20;
+
+std::int64_t wall_time_us() {
+    return std::chrono::duration_cast<std::chrono::microseconds>(
+               std::chrono::system_clock::now().time_since_epoch())
+        .count();
+}
+
+void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, const char* domain) {
+    socket.set(zmq::sockopt::zap_domain, domain);
+    socket.set(zmq::sockopt::curve_server, 1);
+    socket.set(zmq::sockopt::curve_secretkey, secret_z85);
+}
+
+// Written atomically (temporary file, then rename) so a reader never sees half of it.
+void write_endpoints_file(const std::string& path, const std::string& ingest, const std::string& publish,
+                          const std::string& snapshot) {
+    const std::string temporary = path + ".partial";
+    {
+        std::ofstream out(temporary);
+        out << "ingest=" << ingest << "\npublish=" << publish << "\nsnapshot=" << snapshot << "\n";
+        if (!out) throw std::runtime_error("cannot write the endpoints file " + path);
+    }
+    std::filesystem::rename(temporary, path);
+}
+
+}  // namespace
+
+struct LiveService::Impl {
+    Impl(const ServiceConfig& config, const ModelParams& params);
+
+    void start();
+    void stop(const char* why);
+
+    // Ingest: one buffer from the socket or the journal.
+    void drain_ingest(zmq::socket_t& socket);
+    void handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal);
+    void replay();
+
+    // Outbound.
+    void publish(LiveMatch& m, bool tick, std::uint32_t compute_ns);
+    void fill_update(const LiveMatch& m, PublishedUpdate& u) const;
+    void answer_snapshots(zmq::socket_t& socket);
+    void publish_counters();
+
+    // Timers.
+    void schedule_tick();
+    void schedule_counters();
+    void schedule_journal_sync();
+
+    ServiceConfig config;
+    boost::asio::io_context io;
+    zmq::context_t context{1};
+    std::unique_ptr<ZapAuthenticator> zap;
+    std::optional<ReactorSocket> ingest;
+    zmq::socket_t publisher;
+    std::optional<ReactorSocket> snapshot;
+    std::unique_ptr<JournalWriter> journal;
+    MatchBook book;
+    ServiceCounters counters;
+    WireEncoder encoder;
+    WireEncoder counters_encoder;
+    PublishedUpdate scratch_update;
+    std::vector<std::uint64_t> touched;
+    std::vector<NamedCounter> counter_list;
+    std::vector<PublishedUpdate> snapshot_updates;
+    std::vector<zmq::message_t> request_frames;
+    boost::asio::steady_timer tick_timer{io};
+    boost::asio::steady_timer counters_timer{io};
+    boost::asio::steady_timer sync_timer{io};
+    boost::asio::signal_set signals{io, SIGINT, SIGTERM};
+    bool replaying = false;
+    bool stopping = false;
+};
+
+LiveService::Impl::Impl(const ServiceConfig& cfg, const ModelParams& params)
+    : config(cfg), publisher(context, zmq::socket_type::pub), book(params) {
+    validate_service_config(config);
+    std::string secret;
+    if (config.curve_enabled()) {
+        secret = read_key_file(config.curve_secret_key_file);
+        // The ZAP handler must be bound before any CURVE server socket exists.
+        zap = std::make_unique<ZapAuthenticator>(io, context, read_allow_list(config.curve_allowed_keys_file));
+    }
+
+    if (!config.journal_path.empty()) {
+        replay();
+        journal = std::make_unique<JournalWriter>(config.journal_path, config.journal_sync,
+                                                  std::chrono::milliseconds(config.journal_sync_interval_ms));
+    }
+
+    zmq::socket_t pull(context, zmq::socket_type::pull);
+    pull.set(zmq::sockopt::rcvhwm, config.ingest_high_water_mark);
+    pull.set(zmq::sockopt::maxmsgsize, kMaxIngestMessageBytes);
+    pull.set(zmq::sockopt::linger, 0);
+    if (config.curve_enabled()) make_curve_server(pull, secret, kIngestZapDomain);
+    pull.bind(config.ingest_endpoint);
+
+    publisher.set(zmq::sockopt::sndhwm, config.publish_high_water_mark);
+    publisher.set(zmq::sockopt::linger, 200);
+    zmq::socket_t router(context, zmq::socket_type::router);
+    router.set(zmq::sockopt::sndhwm, 1000);
+    router.set(zmq::sockopt::maxmsgsize, std::int64_t{4096});
+    router.set(zmq::sockopt::linger, 0);
+    if (config.curve_publish) {
+        make_curve_server(publisher, secret, kPublishZapDomain);
+        make_curve_server(router, secret, kPublishZapDomain);
+    }
+    publisher.bind(config.publish_endpoint);
+    router.bind(config.snapshot_endpoint);
+
+    const std::string ingest_at = pull.get(zmq::sockopt::last_endpoint);
+    const std::string publish_at = publisher.get(zmq::sockopt::last_endpoint);
+    const std::string snapshot_at = router.get(zmq::sockopt::last_endpoint);
+    ingest.emplace(io, std::move(pull));
+    snapshot.emplace(io, std::move(router));
+    if (!config.endpoints_file.empty()) write_endpoints_file(config.endpoints_file, ingest_at, publish_at, snapshot_at);
+    spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at, publish_at,
+                 snapshot_at, config.curve_enabled() ? "on" : "off",
+                 config.curve_publish ? ", publish encrypted" : "",
+                 config.journal_path.empty() ? "off" : config.journal_path);
+}
+
+void LiveService::Impl::replay() {
+    replaying = true;
+    const JournalReplayReport report = replay_journal(
+        config.journal_path, [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
+    replaying = false;
+    counters.journal_replayed = report.frames;
+    counters.journal_torn_bytes = report.torn_bytes;
+    if (!report.torn_detail.empty()) {
+        spdlog::warn("journal {}: {}; cut {} bytes, {} whole frames kept", config.journal_path, report.torn_detail,
+                     report.torn_bytes, report.frames);
+    }
+    spdlog::info("journal {}: replayed {} frames into {} matches", config.journal_path, report.frames,
+                 book.matches().size());
+}
+
+void LiveService::Impl::start() {
+    signals.async_wait([this](const boost::system::error_code& ec, int signal) {
+        if (!ec) stop(signal == SIGINT ? "SIGINT" : "SIGTERM");
+    });
+    if (zap) zap->start();
+    ingest->start([this](zmq::socket_t& s) { drain_ingest(s); });
+    snapshot->start([this](zmq::socket_t& s) { answer_snapshots(s); });
+    // The states rebuilt from the journal, republished for subscribers already listening.
+    for (auto& [id, m] : book.matches()) publish(m, false, 0);
+    schedule_tick();
+    schedule_counters();
+    if (journal && config.journal_sync == JournalSync::interval) schedule_journal_sync();
+}
+
+void LiveService::Impl::stop(const char* why) {
+    if (stopping) return;
+    stopping = true;
+    spdlog::info("{}: stopping", why);
+    tick_timer.cancel();
+    counters_timer.cancel();
+    sync_timer.cancel();
+    signals.cancel();
+    ingest->stop();
+    snapshot->stop();
+    if (zap) zap->stop();
+    if (journal) journal->sync();
+    publish_counters();  // the final figures, on the topic and in the log
+    io.stop();
+}
+
+void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
+    for (int i = 0; i < kDrainBatch; ++i) {
+        zmq::message_t frame;
+        if (!socket.recv(frame, zmq::recv_flags::dontwait)) return;
+        ++counters.frames_received;
+        if (frame.more()) {
+            // A feed message is one frame: drop the whole multipart message.
+            ++counters.multipart_dropped;
+            while (frame.more() && socket.recv(frame, zmq::recv_flags::dontwait)) {}
+            continue;
+        }
+        handle_buffer({frame.data<std::uint8_t>(), frame.size()}, false);
+    }
+}
+
+void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal) {
+    const auto received_at = SteadyClock::now();
+    const std::int64_t receive_us = wall_time_us();
+    protocol::FeedDecodeResult decoded = protocol::decode_feed_message(bytes);
+    if (!decoded.message) {
+        const auto kind = static_cast<std::size_t>(decoded.error);
+        const std::uint64_t seen = ++counters.decode_rejected[kind < kDecodeErrorKinds ? kind : 0];
+        if (seen <= 10 || seen % 1000 == 0) {
+            spdlog::warn("dropped an inbound buffer of {} bytes{}: {} ({} so far)", bytes.size(),
+                         from_journal ? " from the journal" : "", decoded.detail, seen);
+        }
+        return;
+    }
+    // Written before it is applied: what the engine has seen, the journal has.
+    if (!from_journal && journal) {
+        journal->append(bytes);
+        ++counters.journal_frames;
+    }
+    touched.clear();
+    const BookOutcome outcome = book.handle(*decoded.message, receive_us, received_at, touched);
+    switch (outcome) {
+        case BookOutcome::bad_setup:
+            ++counters.bad_setup;
+            spdlog::warn("match {}: setup refused: {}", decoded.message->header.match_id, book.last_setup_error());
+            break;
+        case BookOutcome::waiting: ++counters.waiting; break;
+        case BookOutcome::waiting_overflow: ++counters.waiting_overflow; break;
+        case BookOutcome::created:
+            spdlog::info("match {}: created", decoded.message->header.match_id);
+            break;
+        case BookOutcome::applied:
+        case BookOutcome::duplicate:
+        case BookOutcome::rejected: break;
+    }
+    const auto compute_ns = static_cast<std::uint32_t>(
+        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - received_at).count());
+    for (const std::uint64_t id : touched) {
+        if (LiveMatch* m = book.find(id)) publish(*m, false, compute_ns);
+    }
+}
+
+void LiveService::Impl::fill_update(const LiveMatch& m, PublishedUpdate& u) const {
+    u.match_id = m.match.match_id();
+    u.output_seq = m.output_seq;
+    u.input_seq = m.input_seq;
+    u.receive_time_us = m.receive_time_us;
+    u.outputs = m.match.outputs();
+}
+
+void LiveService::Impl::publish(LiveMatch& m, bool tick, std::uint32_t compute_ns) {
+    if (replaying) return;  // replayed states are published once, after the replay
+    ++m.output_seq;
+    fill_update(m, scratch_update);
+    if (tick) scratch_update.receive_time_us = 0;
+    scratch_update.compute_ns = compute_ns;
+    scratch_update.publish_time_us = wall_time_us();
+    const auto bytes = encoder.update(scratch_update);
+    const MatchTopic topic = match_topic(scratch_update.match_id);
+    // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
+    publisher.send(zmq::const_buffer(topic.data(), topic.size()), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
+    ++(tick ? counters.ticks_published : counters.updates_published);
+}
+
+void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
+    for (int i = 0; i < kDrainBatch; ++i) {
+        request_frames.clear();
+        zmq::message_t frame;
+        if (!socket.recv(frame, zmq::recv_flags::dontwait)) return;
+        request_frames.push_back(std::move(frame));
+        while (request_frames.back().more()) {
+            zmq::message_t next;
+            if (!socket.recv(next, zmq::recv_flags::dontwait)) break;
+            request_frames.push_back(std::move(next));
+        }
+        ++counters.snapshot_requests;
+        // Envelope: [peer id] [empty delimiter, from REQ peers] payload.
+        if (request_frames.size() < 2 || request_frames.size() > 3) {
+            ++counters.snapshot_bad_requests;
+            continue;
+        }
+        const bool delimited = request_frames.size() == 3;
+        const zmq::message_t& payload = request_frames.back();
+        std::string why;
+        const auto wanted = decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()}, why);
+        snapshot_updates.clear();
+        std::string error;
+        if (!wanted) {
+            ++counters.snapshot_bad_requests;
+            error = "bad request: " + why;
+        } else if (*wanted == 0) {
+            for (const auto& [id, m] : book.matches()) {
+                if (!m.live()) continue;
+                fill_update(m, snapshot_updates.emplace_back());
+            }
+        } else if (const LiveMatch* m = book.find(*wanted)) {
+            fill_update(*m, snapshot_updates.emplace_back());
+        } else {
+            error = fmt::format("unknown match {}", *wanted);
+        }
+        const std::int64_t now_us = wall_time_us();
+        for (auto& u : snapshot_updates) u.publish_time_us = now_us;
+        const auto reply = encoder.snapshot_reply(snapshot_updates, error);
+        socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+        if (delimited) socket.send(zmq::const_buffer(nullptr, 0), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+        socket.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
+    }
+}
+
+void LiveService::Impl::schedule_tick() {
+    tick_timer.expires_after(std::chrono::milliseconds(config.tick_interval_ms));
+    tick_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        for (auto& [id, m] : book.matches()) {
+            if (!m.live()) continue;
+            const auto started = SteadyClock::now();
+            book.advance(m, started);
+            const auto compute_ns = static_cast<std::uint32_t>(
+                std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count());
+            publish(m, true, compute_ns);
+        }
+        schedule_tick();
+    });
+}
+
+void LiveService::Impl::publish_counters() {
+    counters.matches = book.matches().size();
+    counters.live_matches = 0;
+    for (const auto& [id, m] : book.matches()) counters.live_matches += m.live() ? 1u : 0u;
+    if (zap) {
+        counters.curve_accepted = zap->accepted();
+        counters.curve_refused = zap->refused();
+    }
+    list_counters(counters, book.totals(), counter_list);
+    const auto bytes = counters_encoder.counters(wall_time_us(), counter_list);
+    publisher.send(zmq::const_buffer(kCountersTopic.data(), kCountersTopic.size()),
+                   zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
+    std::string line;
+    for (const auto& c : counter_list) {
+        if (c.value != 0) line += fmt::format(" {}={}", c.name, c.value);
+    }
+    spdlog::info("counters:{}", line);
+}
+
+void LiveService::Impl::schedule_counters() {
+    counters_timer.expires_after(std::chrono::milliseconds(config.counters_interval_ms));
+    counters_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        publish_counters();
+        schedule_counters();
+    });
+}
+
+void LiveService::Impl::schedule_journal_sync() {
+    sync_timer.expires_after(std::chrono::milliseconds(config.journal_sync_interval_ms));
+    sync_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        journal->sync_if_due(SteadyClock::now());
+        schedule_journal_sync();
+    });
+}
+
+LiveService::LiveService(const ServiceConfig& config, const ModelParams& params)
+    : impl_(std::make_unique<Impl>(config, params)) {}
+
+LiveService::~LiveService() = default;
+
+void LiveService::run() {
+    impl_->start();
+    impl_->io.run();
+}
+
+}  // namespace liveprob::adapters
