@@ -1,0 +1,157 @@
+// InboundMessage -> one JSON line, and the match clock's text form.
+#include <charconv>
+
+#include <fmt/format.h>
+
+#include "liveprob/protocol/json_feed.hpp"
+
+namespace liveprob::protocol {
+
+namespace {
+
+template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
+
+// JSON string escaping: quote, backslash and control characters.
+std::string quoted(std::string_view text) {
+    std::string out = "\"";
+    for (char c : text) {
+        const auto u = static_cast<unsigned char>(c);
+        if (c == '"' || c == '\\') {
+            out.push_back('\\');
+            out.push_back(c);
+        } else if (u < 0x20) {
+            out += fmt::format("\\u{:04x}", u);
+        } else {
+            out.push_back(c);
+        }
+    }
+    out.push_back('"');
+    return out;
+}
+
+// Appends `, "name": value` pieces to a line under construction.
+class LineWriter {
+public:
+    explicit LineWriter(std::string& out) : out_(out) {}
+    void raw(std::string_view name, std::string_view json) { out_ += fmt::format(", \"{}\": {}", name, json); }
+    void text(std::string_view name, std::string_view value) { raw(name, quoted(value)); }
+    void flag(std::string_view name, bool value) { raw(name, value ? "true" : "false"); }
+    void flag_if(std::string_view name, bool value) { if (value) flag(name, true); }
+    template <class N>
+    void number(std::string_view name, N value) { raw(name, fmt::format("{}", value)); }
+    void pair(std::string_view name, const std::string& home, const std::string& away) {
+        raw(name, fmt::format("{{\"home\": {}, \"away\": {}}}", home, away));
+    }
+
+private:
+    std::string& out_;
+};
+
+void write_setup(LineWriter& w, const MatchSetup& s) {
+    const CompetitionFormat defaults;
+    w.text("home", s.home_name);
+    w.text("away", s.away_name);
+    w.flag_if("neutral", s.neutral_venue);
+    if (s.prior) w.pair("prior", fmt::format("{}", s.prior->home_goals), fmt::format("{}", s.prior->away_goals));
+    if (s.ratings) w.pair("ratings", quoted(s.ratings->home_key), quoted(s.ratings->away_key));
+    if (s.scheduled_kickoff_us != 0) w.number("kickoff_us", s.scheduled_kickoff_us);
+    if (s.format.half_minutes != defaults.half_minutes) w.number("half_minutes", s.format.half_minutes);
+    w.flag_if("extra_time", s.format.extra_time);
+    if (s.format.extra_half_minutes != defaults.extra_half_minutes) {
+        w.number("extra_half_minutes", s.format.extra_half_minutes);
+    }
+    w.flag_if("shootout", s.format.shootout);
+    if (s.format.first_leg) {
+        w.pair("first_leg", fmt::format("{}", s.format.first_leg->home_goals),
+               fmt::format("{}", s.format.first_leg->away_goals));
+    }
+}
+
+// A period field that defaults to the clock's period is written only when it differs.
+void period_unless(LineWriter& w, std::string_view name, Period value, Period clock_period) {
+    if (value != clock_period) w.text(name, period_name(value));
+}
+
+}  // namespace
+
+std::string format_match_clock(std::uint32_t clock_ms) {
+    const std::uint32_t minutes = clock_ms / 60000;
+    const std::uint32_t seconds = clock_ms / 1000 % 60;
+    const std::uint32_t millis = clock_ms % 1000;
+    return millis == 0 ? fmt::format("{:02}:{:02}", minutes, seconds)
+                       : fmt::format("{:02}:{:02}.{:03}", minutes, seconds, millis);
+}
+
+std::optional<std::uint32_t> parse_match_clock(std::string_view text) {
+    const auto colon = text.find(':');
+    if (colon == std::string_view::npos || colon == 0 || colon > 4) return std::nullopt;
+    auto digits = [](std::string_view part, std::uint32_t& value) {
+        if (part.empty()) return false;
+        const auto [end, ec] = std::from_chars(part.data(), part.data() + part.size(), value);
+        return ec == std::errc() && end == part.data() + part.size() && part.front() != '+';
+    };
+    std::uint32_t minutes = 0;
+    std::uint32_t seconds = 0;
+    std::uint32_t millis = 0;
+    if (!digits(text.substr(0, colon), minutes)) return std::nullopt;
+    std::string_view rest = text.substr(colon + 1);
+    const auto dot = rest.find('.');
+    const std::string_view sec_part = rest.substr(0, dot);
+    if (sec_part.size() != 2 || !digits(sec_part, seconds) || seconds >= 60) return std::nullopt;
+    if (dot != std::string_view::npos) {
+        std::string_view frac = rest.substr(dot + 1);
+        if (frac.empty() || frac.size() > 3 || !digits(frac, millis)) return std::nullopt;
+        for (std::size_t i = frac.size(); i < 3; ++i) millis *= 10;  // ".5" is 500 ms
+    }
+    return (minutes * 60 + seconds) * 1000 + millis;
+}
+
+std::string to_json_line(const InboundMessage& message) {
+    const MessageHeader& h = message.header;
+    std::string out = fmt::format("{{\"match\": {}, \"seq\": {}, \"time_us\": {}, \"period\": \"{}\", "
+                                  "\"clock\": \"{}\", \"type\": \"{}\"",
+                                  h.match_id, h.source_seq, h.source_time_us, period_name(h.clock.period),
+                                  format_match_clock(h.clock.clock_ms), kind_name(message.body));
+    LineWriter w(out);
+    const Period clock_period = h.clock.period;
+    std::visit(overloaded{
+                   [&](const MatchSetup& m) { write_setup(w, m); },
+                   [&](const PeriodStart& m) { period_unless(w, "starts", m.period, clock_period); },
+                   [&](const PeriodEnd& m) { period_unless(w, "ends", m.period, clock_period); },
+                   [&](const Goal& m) {
+                       w.text("side", side_name(m.side));
+                       w.flag_if("penalty", m.penalty);
+                       w.flag_if("own_goal", m.own_goal);
+                   },
+                   [&](const GoalCancelled& m) { w.number("goal_seq", m.goal_seq); },
+                   [&](const RedCard& m) {
+                       w.text("side", side_name(m.side));
+                       w.flag_if("second_yellow", m.second_yellow);
+                   },
+                   [&](const CardRescinded& m) { w.number("card_seq", m.card_seq); },
+                   [&](const StoppageAnnounced& m) {
+                       w.number("minutes", m.minutes);
+                       period_unless(w, "for_period", m.period, clock_period);
+                   },
+                   [&](const ScoreCorrection& m) {
+                       w.number("home_goals", m.home_goals);
+                       w.number("away_goals", m.away_goals);
+                   },
+                   [&](const ShootoutKick& m) {
+                       w.text("side", side_name(m.side));
+                       w.flag("scored", m.scored);
+                   },
+                   [&](const ShotXg& m) {
+                       w.text("side", side_name(m.side));
+                       w.number("xg", m.xg);
+                   },
+                   [&](const MatchAbandoned& m) { if (!m.reason.empty()) w.text("reason", m.reason); },
+                   [](const FinalWhistle&) {},
+                   [&](const ClockSync& m) { if (!m.running) w.flag("running", false); },
+               },
+               message.body);
+    out.push_back('}');
+    return out;
+}
+
+}  // namespace liveprob::protocol
