@@ -13,7 +13,7 @@ namespace liveprob {
 namespace {
 
 constexpr std::size_t kReservedLog = 1024;  // a match's messages, clock syncs included
-constexpr double kMaxPriorGoals = 20.0;      // common practice: no fixture expects more
+constexpr double kMaxPriorGoals = 10.0;      // the pricing model's own bound
 
 const PriorMeans& checked_prior(const MatchSetup& setup) {
     if (!setup.prior) {
@@ -22,7 +22,7 @@ const PriorMeans& checked_prior(const MatchSetup& setup) {
     const PriorMeans& p = *setup.prior;
     for (double v : {p.home_goals, p.away_goals}) {
         if (!std::isfinite(v) || v <= 0.0 || v > kMaxPriorGoals) {
-            throw std::invalid_argument("match setup prior must be expected goals in (0, 20], got " +
+            throw std::invalid_argument("match setup prior must be expected goals in (0, 10], got " +
                                         std::to_string(v));
         }
     }
