@@ -1,0 +1,117 @@
+#include "liveprob/protocol/feed_check.hpp"
+
+#include <set>
+#include <string_view>
+
+#include <fmt/format.h>
+
+#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/json_feed.hpp"
+
+namespace liveprob::protocol {
+
+namespace {
+
+// Counts repeated and backwards sequence numbers per match.
+class SequenceWatch {
+public:
+    void see(const MessageHeader& h, FeedCheckSummary& summary) {
+        if (!seen_.insert({h.match_id, h.source_seq}).second) {
+            ++summary.repeated_seq;
+            return;
+        }
+        auto [it, first] = highest_.try_emplace(h.match_id, h.source_seq);
+        if (first) return;
+        if (h.source_seq < it->second) {
+            ++summary.out_of_order_seq;
+        } else {
+            it->second = h.source_seq;
+        }
+    }
+
+private:
+    std::set<std::pair<std::uint64_t, std::uint64_t>> seen_;
+    std::map<std::uint64_t, std::uint64_t> highest_;
+};
+
+void count_message(const InboundMessage& m, FeedCheckSummary& summary, SequenceWatch& watch) {
+    ++summary.ok;
+    ++summary.kinds[kind_name(m.body)];
+    watch.see(m.header, summary);
+}
+
+void check_lines(std::string_view text, FeedCheckSummary& summary,
+                 const std::function<void(const std::string&)>& report) {
+    JsonFeedReader reader;
+    SequenceWatch watch;
+    std::size_t start = 0;
+    while (start < text.size()) {
+        auto end = text.find('\n', start);
+        if (end == std::string_view::npos) end = text.size();
+        ++summary.units;
+        const auto result = reader.read_line(text.substr(start, end - start), summary.units);
+        switch (result.kind) {
+            case JsonLineKind::message: count_message(*result.message, summary, watch); break;
+            case JsonLineKind::skipped: ++summary.skipped; break;
+            case JsonLineKind::bad:
+                ++summary.bad;
+                report(result.error);
+                break;
+        }
+        start = end + 1;
+    }
+}
+
+void check_frames(std::span<const std::uint8_t> bytes, FeedCheckSummary& summary,
+                  const std::function<void(const std::string&)>& report) {
+    FrameCursor cursor(bytes);
+    SequenceWatch watch;
+    while (auto frame = cursor.next()) {
+        ++summary.units;
+        const auto decoded = decode_feed_message(frame->payload);
+        if (decoded.message) {
+            count_message(*decoded.message, summary, watch);
+        } else {
+            ++summary.bad;
+            report(fmt::format("frame {} at offset {}: {}", summary.units, frame->offset, decoded.detail));
+        }
+    }
+    if (cursor.end() != StreamEnd::clean) {
+        ++summary.units;
+        ++summary.bad;
+        report(fmt::format("after frame {}: {}", summary.units - 1, cursor.end_detail()));
+    }
+}
+
+}  // namespace
+
+const char* feed_form_name(FeedForm form) noexcept {
+    return form == FeedForm::json_lines ? "json_lines" : "frame_stream";
+}
+
+FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
+                            const std::function<void(const std::string&)>& report) {
+    FeedCheckSummary summary;
+    if (looks_like_frame_stream(bytes)) {
+        summary.form = FeedForm::frame_stream;
+        check_frames(bytes, summary, report);
+    } else {
+        check_lines({reinterpret_cast<const char*>(bytes.data()), bytes.size()}, summary, report);
+    }
+    return summary;
+}
+
+std::string summary_json(const FeedCheckSummary& s) {
+    std::string kinds;
+    for (const auto& [kind, count] : s.kinds) {
+        kinds += fmt::format("{}\"{}\": {}", kinds.empty() ? "" : ", ", kind, count);
+    }
+    return fmt::format(
+        "{{\"form\": \"{}\", \"units\": {}, \"ok\": {}, \"skipped\": {}, \"bad\": {}, "
+        "\"kinds\": {{{}}}, \"repeated_seq\": {}, \"out_of_order_seq\": {}}}",
+        feed_form_name(s.form), s.units, s.ok, s.skipped, s.bad, kinds, s.repeated_seq,
+        s.out_of_order_seq);
+}
+
+}  // namespace liveprob::protocol
