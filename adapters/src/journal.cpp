@@ -2,28 +2,19 @@
 
 #include <fmt/format.h>
 
-#include <array>
 #include <cerrno>
 #include <cstring>
 #include <fcntl.h>
 #include <filesystem>
-#include <fstream>
 #include <unistd.h>
 #include <vector>
+
+#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/framing.hpp"
 
 namespace liveprob::adapters {
 
 namespace {
-
-std::array<std::uint8_t, 4> little_endian(std::uint32_t v) {
-    return {static_cast<std::uint8_t>(v), static_cast<std::uint8_t>(v >> 8),
-            static_cast<std::uint8_t>(v >> 16), static_cast<std::uint8_t>(v >> 24)};
-}
-
-std::uint32_t read_little_endian(const std::uint8_t* p) {
-    return static_cast<std::uint32_t>(p[0]) | (static_cast<std::uint32_t>(p[1]) << 8) |
-           (static_cast<std::uint32_t>(p[2]) << 16) | (static_cast<std::uint32_t>(p[3]) << 24);
-}
 
 std::string os_error() { return std::strerror(errno); }
 
@@ -58,19 +49,13 @@ void JournalWriter::write_all(const std::uint8_t* data, std::size_t size) {
 }
 
 void JournalWriter::append(std::span<const std::uint8_t> frame) {
-    if (frame.size() > kMaxJournalFrameBytes) {
-        throw JournalError(fmt::format("journal {}: frame of {} bytes is over the limit", path_, frame.size()));
-    }
     // One buffer, one write: a frame is never split between two write calls, so a kill leaves
     // either the whole frame or a torn one that replay detects.
-    thread_local std::vector<std::uint8_t> buffer;
-    buffer.resize(4 + frame.size());
-    const auto prefix = little_endian(static_cast<std::uint32_t>(frame.size()));
-    std::memcpy(buffer.data(), prefix.data(), 4);
-    if (!frame.empty()) std::memcpy(buffer.data() + 4, frame.data(), frame.size());
-    write_all(buffer.data(), buffer.size());
+    buffer_.clear();
+    protocol::append_frame(buffer_, frame, kMaxJournalFrameBytes);
+    write_all(buffer_.data(), buffer_.size());
     ++frames_;
-    bytes_ += buffer.size();
+    bytes_ += buffer_.size();
     dirty_ = true;
     if (sync_ == JournalSync::every_message) sync();
 }
@@ -92,43 +77,16 @@ JournalReplayReport replay_journal(const std::string& path,
     JournalReplayReport report;
     std::error_code ec;
     if (!std::filesystem::exists(path, ec)) return report;
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw JournalError(fmt::format("journal {}: cannot open for replay", path));
-    const std::uint64_t file_size = std::filesystem::file_size(path);
-
-    std::vector<std::uint8_t> frame;
-    std::array<std::uint8_t, 4> prefix{};
-    std::uint64_t offset = 0;
-    while (offset < file_size) {
-        const std::uint64_t left = file_size - offset;
-        if (left < 4) {
-            report.torn_detail = fmt::format("{} stray bytes after the last frame", left);
-            break;
-        }
-        in.read(reinterpret_cast<char*>(prefix.data()), 4);
-        const std::uint32_t length = read_little_endian(prefix.data());
-        if (length > kMaxJournalFrameBytes) {
-            report.torn_detail = fmt::format("damaged length field ({} bytes) at offset {}", length, offset);
-            break;
-        }
-        if (length > left - 4) {
-            report.torn_detail = fmt::format("last frame cut short: {} of {} bytes at offset {}",
-                                             left - 4, length, offset);
-            break;
-        }
-        frame.resize(length);
-        in.read(reinterpret_cast<char*>(frame.data()), static_cast<std::streamsize>(length));
-        if (!in) throw JournalError(fmt::format("journal {}: read failed at offset {}", path, offset));
-        visit(std::span<const std::uint8_t>(frame.data(), frame.size()));
+    const std::vector<std::uint8_t> bytes = protocol::read_byte_file(path);
+    protocol::FrameCursor cursor(bytes, kMaxJournalFrameBytes);
+    while (const auto frame = cursor.next()) {
+        visit(frame->payload);
         ++report.frames;
-        offset += 4 + length;
     }
-    report.valid_bytes = offset;
-    report.torn_bytes = file_size - offset;
-    if (report.torn_bytes > 0 && truncate_tail) {
-        in.close();
-        std::filesystem::resize_file(path, offset);
-    }
+    report.valid_bytes = cursor.end_offset();
+    report.torn_bytes = bytes.size() - cursor.end_offset();
+    if (cursor.end() != protocol::StreamEnd::clean) report.torn_detail = cursor.end_detail();
+    if (report.torn_bytes > 0 && truncate_tail) std::filesystem::resize_file(path, cursor.end_offset());
     return report;
 }
 

@@ -16,10 +16,11 @@
 #include "liveprob/adapters/match_book.hpp"
 #include "liveprob/adapters/reactor_socket.hpp"
 #include "liveprob/adapters/service_counters.hpp"
-#include "liveprob/adapters/service_wire.hpp"
 #include "liveprob/adapters/topics.hpp"
 #include "liveprob/adapters/zap_authenticator.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/sharding.hpp"
+#include "liveprob/protocol/update_codec.hpp"
 
 namespace liveprob::adapters {
 
@@ -73,7 +74,7 @@ struct LiveService::Impl {
 
     // Outbound.
     void publish(LiveMatch& m, bool tick, std::uint32_t compute_ns);
-    void fill_update(const LiveMatch& m, PublishedUpdate& u) const;
+    static protocol::UpdateMeta meta_of(const LiveMatch& m);
     void answer_snapshots(zmq::socket_t& socket);
     void publish_counters();
 
@@ -83,6 +84,7 @@ struct LiveService::Impl {
     void schedule_journal_sync();
 
     ServiceConfig config;
+    protocol::ShardSpec shard;
     boost::asio::io_context io;
     zmq::context_t context{1};
     std::unique_ptr<ZapAuthenticator> zap;
@@ -92,12 +94,10 @@ struct LiveService::Impl {
     std::unique_ptr<JournalWriter> journal;
     MatchBook book;
     ServiceCounters counters;
-    WireEncoder encoder;
-    WireEncoder counters_encoder;
-    PublishedUpdate scratch_update;
+    protocol::UpdateEncoder encoder;
     std::vector<std::uint64_t> touched;
-    std::vector<NamedCounter> counter_list;
-    std::vector<PublishedUpdate> snapshot_updates;
+    protocol::CounterSet counter_set;
+    protocol::SnapshotReplyContents snapshot_reply;
     std::vector<zmq::message_t> request_frames;
     boost::asio::steady_timer tick_timer{io};
     boost::asio::steady_timer counters_timer{io};
@@ -108,7 +108,8 @@ struct LiveService::Impl {
 };
 
 LiveService::Impl::Impl(const ServiceConfig& cfg, const ModelParams& params)
-    : config(cfg), publisher(context, zmq::socket_type::pub), book(params) {
+    : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)), publisher(context, zmq::socket_type::pub),
+      book(params) {
     validate_service_config(config);
     std::string secret;
     if (config.curve_enabled()) {
@@ -228,6 +229,10 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
         }
         return;
     }
+    if (!protocol::owns(shard, decoded.message->header.match_id)) {
+        ++counters.not_our_shard;
+        return;
+    }
     // Written before it is applied: what the engine has seen, the journal has.
     if (!from_journal && journal) {
         journal->append(bytes);
@@ -256,23 +261,24 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
     }
 }
 
-void LiveService::Impl::fill_update(const LiveMatch& m, PublishedUpdate& u) const {
-    u.match_id = m.match.match_id();
-    u.output_seq = m.output_seq;
-    u.input_seq = m.input_seq;
-    u.receive_time_us = m.receive_time_us;
-    u.outputs = m.match.outputs();
+protocol::UpdateMeta LiveService::Impl::meta_of(const LiveMatch& m) {
+    protocol::UpdateMeta meta;
+    meta.match_id = m.match.match_id();
+    meta.output_seq = m.output_seq;
+    meta.input_seq = m.input_seq;
+    meta.receive_time_us = m.receive_time_us;
+    return meta;
 }
 
 void LiveService::Impl::publish(LiveMatch& m, bool tick, std::uint32_t compute_ns) {
     if (replaying) return;  // replayed states are published once, after the replay
     ++m.output_seq;
-    fill_update(m, scratch_update);
-    if (tick) scratch_update.receive_time_us = 0;
-    scratch_update.compute_ns = compute_ns;
-    scratch_update.publish_time_us = wall_time_us();
-    const auto bytes = encoder.update(scratch_update);
-    const MatchTopic topic = match_topic(scratch_update.match_id);
+    protocol::UpdateMeta meta = meta_of(m);
+    if (tick) meta.receive_time_us = 0;
+    meta.compute_ns = compute_ns;
+    meta.publish_time_us = wall_time_us();
+    const auto bytes = encoder.encode(meta, m.match.outputs());
+    const MatchTopic topic = match_topic(meta.match_id);
     // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
     publisher.send(zmq::const_buffer(topic.data(), topic.size()), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
     publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
@@ -298,26 +304,27 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
         }
         const bool delimited = request_frames.size() == 3;
         const zmq::message_t& payload = request_frames.back();
-        std::string why;
-        const auto wanted = decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()}, why);
-        snapshot_updates.clear();
-        std::string error;
-        if (!wanted) {
+        const auto wanted = protocol::decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()});
+        snapshot_reply.updates.clear();
+        snapshot_reply.error.clear();
+        const auto add = [this](const LiveMatch& m) {
+            snapshot_reply.updates.push_back({meta_of(m), m.match.outputs()});
+        };
+        if (!wanted.ok()) {
             ++counters.snapshot_bad_requests;
-            error = "bad request: " + why;
-        } else if (*wanted == 0) {
+            snapshot_reply.error = "bad request: " + wanted.detail;
+        } else if (*wanted.value == 0) {
             for (const auto& [id, m] : book.matches()) {
-                if (!m.live()) continue;
-                fill_update(m, snapshot_updates.emplace_back());
+                if (m.live()) add(m);
             }
-        } else if (const LiveMatch* m = book.find(*wanted)) {
-            fill_update(*m, snapshot_updates.emplace_back());
+        } else if (const LiveMatch* m = book.find(*wanted.value)) {
+            add(*m);
         } else {
-            error = fmt::format("unknown match {}", *wanted);
+            snapshot_reply.error = fmt::format("unknown match {}", *wanted.value);
         }
         const std::int64_t now_us = wall_time_us();
-        for (auto& u : snapshot_updates) u.publish_time_us = now_us;
-        const auto reply = encoder.snapshot_reply(snapshot_updates, error);
+        for (auto& u : snapshot_reply.updates) u.meta.publish_time_us = now_us;
+        const std::vector<std::uint8_t> reply = protocol::encode_snapshot_reply(snapshot_reply);
         socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
         if (delimited) socket.send(zmq::const_buffer(nullptr, 0), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
         socket.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
@@ -348,14 +355,15 @@ void LiveService::Impl::publish_counters() {
         counters.curve_accepted = zap->accepted();
         counters.curve_refused = zap->refused();
     }
-    list_counters(counters, book.totals(), counter_list);
-    const auto bytes = counters_encoder.counters(wall_time_us(), counter_list);
+    list_counters(counters, book.totals(), counter_set.values);
+    counter_set.publish_time_us = wall_time_us();
+    const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set);
     publisher.send(zmq::const_buffer(kCountersTopic.data(), kCountersTopic.size()),
                    zmq::send_flags::sndmore | zmq::send_flags::dontwait);
     publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
     std::string line;
-    for (const auto& c : counter_list) {
-        if (c.value != 0) line += fmt::format(" {}={}", c.name, c.value);
+    for (const auto& [name, value] : counter_set.values) {
+        if (value != 0) line += fmt::format(" {}={}", name, value);
     }
     spdlog::info("counters:{}", line);
 }

@@ -8,6 +8,8 @@
 #include <sstream>
 #include <string_view>
 
+#include "liveprob/protocol/sharding.hpp"
+
 namespace liveprob::adapters {
 
 const char* journal_sync_name(JournalSync s) noexcept {
@@ -98,6 +100,14 @@ void apply_key(ServiceConfig& c, std::string_view key, const KeyReader& r) {
     else if (key == "publish_high_water_mark") c.publish_high_water_mark = high_water_mark(r);
     else if (key == "ingest_high_water_mark") c.ingest_high_water_mark = high_water_mark(r);
     else if (key == "params_file") c.params_file = r.text();
+    else if (key == "shard") {
+        c.shard = r.text();
+        try {
+            protocol::parse_shard_spec(c.shard);
+        } catch (const std::invalid_argument& e) {
+            r.fail(e.what());
+        }
+    }
     else if (key == "curve_secret_key_file") c.curve_secret_key_file = r.text();
     else if (key == "curve_allowed_keys_file") c.curve_allowed_keys_file = r.text();
     else if (key == "curve_publish") c.curve_publish = r.flag();

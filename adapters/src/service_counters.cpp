@@ -12,9 +12,9 @@ std::uint64_t ServiceCounters::decode_rejected_total() const noexcept {
     return std::accumulate(decode_rejected.begin(), decode_rejected.end(), std::uint64_t{0});
 }
 
-void list_counters(const ServiceCounters& s, const MatchCounters& e, std::vector<NamedCounter>& out) {
+void list_counters(const ServiceCounters& s, const MatchCounters& e, CounterList& out) {
     out.clear();
-    const auto add = [&out](std::string name, std::uint64_t value) { out.push_back({std::move(name), value}); };
+    const auto add = [&out](std::string name, std::uint64_t value) { out.emplace_back(std::move(name), value); };
     add("ingest.frames", s.frames_received);
     add("ingest.multipart_dropped", s.multipart_dropped);
     add("ingest.rejected", s.decode_rejected_total());

@@ -8,6 +8,7 @@
 #include "liveprob/adapters/live_service.hpp"
 #include "liveprob/adapters/params_file.hpp"
 #include "liveprob/adapters/service_config.hpp"
+#include "liveprob/protocol/sharding.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -15,7 +16,7 @@ namespace {
 struct ServeFlags {
     std::string config_file;
     std::optional<std::string> ingest, publish, snapshot, endpoints_file, journal, journal_sync, params,
-        secret_key, allowed_keys, log_level;
+        secret_key, allowed_keys, log_level, shard;
     std::optional<std::uint32_t> tick_ms, counters_ms, journal_sync_ms;
     std::optional<std::int32_t> publish_hwm, ingest_hwm;
     std::optional<bool> encrypt_publish;
@@ -41,12 +42,16 @@ int run_serve(const ServeFlags& f) {
     override_with(config.publish_high_water_mark, f.publish_hwm);
     override_with(config.ingest_high_water_mark, f.ingest_hwm);
     override_with(config.params_file, f.params);
+    override_with(config.shard, f.shard);
     override_with(config.curve_secret_key_file, f.secret_key);
     override_with(config.curve_allowed_keys_file, f.allowed_keys);
     override_with(config.curve_publish, f.encrypt_publish);
     override_with(config.log_level, f.log_level);
     try {
         adapters::validate_service_config(config);
+        protocol::parse_shard_spec(config.shard);
+    } catch (const std::invalid_argument& e) {
+        throw UsageError(std::string("--shard: ") + e.what());
     } catch (const adapters::ConfigError& e) {
         throw UsageError(e.what());
     }
@@ -79,6 +84,7 @@ const Registration registration{{
             ->check(CLI::Range(1, 10000000));
         sub.add_option("--ingest-hwm", f->ingest_hwm, "inbound messages queued")->check(CLI::Range(1, 10000000));
         sub.add_option("--params", f->params, "model parameter file");
+        sub.add_option("--shard", f->shard, "own only the match ids of shard K/N (default 0/1: all)");
         sub.add_option("--server-secret-key", f->secret_key, "CURVE: the server's .secret file (turns CURVE on)");
         sub.add_option("--allowed-feed-keys", f->allowed_keys, "CURVE: file of feed public keys allowed in");
         sub.add_flag("--encrypt-publish{true}", f->encrypt_publish, "CURVE on the publish and snapshot sockets too");

@@ -1,6 +1,5 @@
 // The service's journal: every accepted inbound message, appended before it is applied, as one
-// size-prefixed frame (4-byte little-endian length, then the FeedMessage buffer: the
-// FlatBuffers size-prefix convention, the same layout as recorded streams). State is a fold of
+// size-prefixed frame (protocol/framing.hpp: the same layout as recorded streams). State is a fold of
 // these frames, so replaying the file rebuilds every match exactly.
 #pragma once
 
@@ -10,6 +9,7 @@
 #include <span>
 #include <stdexcept>
 #include <string>
+#include <vector>
 
 #include "liveprob/adapters/service_config.hpp"
 
@@ -20,7 +20,7 @@ struct JournalError : std::runtime_error {
 };
 
 // A frame longer than this is not a frame: the length field itself is damaged.
-inline constexpr std::uint32_t kMaxJournalFrameBytes = 1u << 20;
+inline constexpr std::size_t kMaxJournalFrameBytes = 64 * 1024;  // protocol::kMaxFeedMessageBytes
 
 // Appends frames with a plain write(2) per frame (no user-space buffer, so a kill -9 after
 // append() returns loses nothing; only a machine crash can, and the sync policy bounds that).
@@ -52,6 +52,7 @@ private:
     bool dirty_ = false;
     std::uint64_t frames_ = 0;
     std::uint64_t bytes_ = 0;
+    std::vector<std::uint8_t> buffer_;  // one frame, reused
 };
 
 struct JournalReplayReport {

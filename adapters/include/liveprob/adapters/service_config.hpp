@@ -46,6 +46,10 @@ struct ServiceConfig {
 
     std::string params_file;  // model parameters; empty: the built-in defaults
 
+    // Scale-out: this process owns the match ids of shard "K/N" (protocol/sharding.hpp) and
+    // counts and drops the others.
+    std::string shard = "0/1";
+
     // CURVE: the server's secret key file (written by `liveprob keys`) switches CURVE on for
     // ingest; the allow-list names the feeds' public keys. `curve_publish` also encrypts the
     // publish and snapshot sockets (any subscriber key is accepted there).

@@ -4,9 +4,10 @@
 
 #include <array>
 #include <cstdint>
+#include <string>
+#include <utility>
 #include <vector>
 
-#include "liveprob/adapters/service_wire.hpp"
 #include "liveprob/engine/match.hpp"
 
 namespace liveprob::adapters {
@@ -37,6 +38,7 @@ struct ServiceCounters {
 };
 
 // Flattens the service's and the engine's counters into (name, value) pairs, reusing `out`.
-void list_counters(const ServiceCounters& service, const MatchCounters& engine, std::vector<NamedCounter>& out);
+using CounterList = std::vector<std::pair<std::string, std::uint64_t>>;
+void list_counters(const ServiceCounters& service, const MatchCounters& engine, CounterList& out);
 
 }  // namespace liveprob::adapters
