@@ -1,0 +1,45 @@
+// Fuzz the two configuration readers (service settings and model parameters): any text is
+// either read or refused with one line naming the file and the problem (ConfigError,
+// ParamsFileError) — never a crash, a hang or another kind of exception — and model parameters that were read write back
+// to a file that reads back to the same parameters.
+#include <cstddef>
+#include <cstdint>
+#include <cstdlib>
+#include <stdexcept>
+#include <string>
+
+#include "liveprob/adapters/params_file.hpp"
+#include "liveprob/adapters/service_config.hpp"
+
+namespace {
+// A refusal is one non-empty line.
+void require_one_line(const std::exception& e) {
+    const std::string what = e.what();
+    if (what.empty() || what.find('\n') != std::string::npos) std::abort();
+}
+}  // namespace
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+    using namespace liveprob::adapters;
+    const std::string text(reinterpret_cast<const char*>(data), size);
+    try {
+        const ServiceConfig config = parse_service_config(text, "fuzz.json");
+        try {
+            validate_service_config(config);
+        } catch (const ConfigError& e) {
+            require_one_line(e);
+        }
+    } catch (const ConfigError& e) {
+        require_one_line(e);
+        if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();  // names the file
+    }
+    try {
+        const liveprob::ModelParams params = liveprob::parse_params_json(text, "fuzz.json");
+        const liveprob::ModelParams again = liveprob::parse_params_json(liveprob::params_to_json(params), "again.json");
+        if (liveprob::params_to_json(again) != liveprob::params_to_json(params)) std::abort();
+    } catch (const liveprob::ParamsFileError& e) {
+        require_one_line(e);
+        if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();
+    }
+    return 0;
+}
