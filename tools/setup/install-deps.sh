@@ -11,6 +11,7 @@ packages=(
   libeigen3-dev libboost-dev libboost-system-dev
   catch2 libbenchmark-dev libcli11-dev libfmt-dev libspdlog-dev libsimdjson-dev
   python3 python3-scipy python3-statsmodels python3-numpy python3-zmq   # reference checks, Python client
+  chromium fonts-dejavu-core                    # the gateway page's browser test (headless)
 )
 
 missing=()
