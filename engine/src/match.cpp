@@ -58,7 +58,7 @@ Match::Match(std::uint64_t match_id, const MatchSetup& setup, const ModelParams&
       model_(params),
       state_(fold_.initial_state()) {
     log_.reserve(kReservedLog);
-    anchor_and_reprice();
+    anchor_clock();
 }
 
 void Match::count_rejection(RejectReason reason) noexcept {
@@ -90,7 +90,7 @@ ApplyResult Match::apply(const InboundMessage& message) {
         }
         state_.applied += 1;
         counters_.accepted += 1;
-        anchor_and_reprice();
+        anchor_clock();
         return {Verdict::accepted, RejectReason::none};
     }
 
@@ -116,7 +116,7 @@ void Match::refold() {
             state_.skipped += 1;
         }
     }
-    anchor_and_reprice();
+    anchor_clock();
 }
 
 bool Match::advance_to(MatchClock now) {
@@ -126,7 +126,7 @@ bool Match::advance_to(MatchClock now) {
     }
     now.clock_ms = std::min(now.clock_ms, period_latest_ms(fold_.format(), now.period));
     priced_clock_ = now;
-    reprice();
+    outputs_stale_ = true;
     return true;
 }
 
@@ -181,12 +181,13 @@ PricingState Match::pricing_state() const {
     return ps;
 }
 
-void Match::anchor_and_reprice() {
+void Match::anchor_clock() noexcept {
     priced_clock_ = state_.clock;  // every change of the fold re-anchors to the feed's clock
-    reprice();
+    outputs_stale_ = true;
 }
 
-void Match::reprice() {
+const Outputs& Match::outputs() const {
+    if (!outputs_stale_) return outputs_;
     const PricingState ps = pricing_state();
     model_.price(ps, outputs_);
     outputs_.status = state_.status;
@@ -196,6 +197,8 @@ void Match::reprice() {
     outputs_.home_reds = static_cast<std::uint8_t>(std::min(ps.reds[0], 255));
     outputs_.away_reds = static_cast<std::uint8_t>(std::min(ps.reds[1], 255));
     outputs_.events_applied = state_.applied;
+    outputs_stale_ = false;
+    return outputs_;
 }
 
 }  // namespace liveprob

@@ -77,7 +77,9 @@ public:
     // feed's last reading. Clocks far beyond the period's end are held at its latest point.
     bool advance_to(MatchClock now);
 
-    const Outputs& outputs() const noexcept { return outputs_; }
+    // Priced on demand: the first read after a change prices the state (allocation-free), so
+    // a burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
+    const Outputs& outputs() const;
     const MatchState& state() const noexcept { return state_; }
     const MatchCounters& counters() const noexcept { return counters_; }
     MatchClock priced_clock() const noexcept { return priced_clock_; }
@@ -96,18 +98,18 @@ private:
     };
 
     void refold();
-    void anchor_and_reprice();
-    void reprice();
+    void anchor_clock() noexcept;
     void count_rejection(RejectReason reason) noexcept;
 
     MatchSetup setup_;
     StateFold fold_;
-    PricingModel model_;
+    mutable PricingModel model_;
     std::vector<LoggedMessage> log_;  // sorted by source_seq
     MatchState state_;
     MatchClock priced_clock_;
     MatchCounters counters_;
-    Outputs outputs_;
+    mutable Outputs outputs_;
+    mutable bool outputs_stale_ = true;
 };
 
 }  // namespace liveprob
