@@ -29,19 +29,28 @@ using Pmf = std::array<double, kPmfLength>;
 
 std::size_t at(int k) { return static_cast<std::size_t>(k); }
 
+// Below this a pmf term past the mode is dropped with everything after it (the terms fall
+// geometrically there, so the dropped mass is of the same order).
+constexpr double kNegligible = 1e-20;
+
 // Goals to come: Poisson(mean) when shape is infinite, else the Gamma(shape, rate) mixture of
 // Poisson(θ · mean), i.e. negative binomial with success probability rate / (rate + mean).
 void goals_pmf(double mean, double shape, double rate, Pmf& pmf, Pmf& cdf) {
-    if (std::isinf(shape)) {
-        pmf[0] = std::exp(-mean);
-        for (int k = 1; k < kPmfLength; ++k) pmf[at(k)] = pmf[at(k - 1)] * mean / k;
-    } else {
-        const double p = rate / (rate + mean);
-        pmf[0] = std::pow(p, shape);
-        for (int k = 1; k < kPmfLength; ++k) pmf[at(k)] = pmf[at(k - 1)] * (k - 1 + shape) / k * (1.0 - p);
+    const bool poisson = std::isinf(shape);
+    const double p = poisson ? 0.0 : rate / (rate + mean);
+    pmf[0] = poisson ? std::exp(-mean) : std::pow(p, shape);
+    double c = cdf[0] = pmf[0];
+    int k = 1;
+    for (; k < kPmfLength; ++k) {
+        const double ratio = poisson ? mean / k : (k - 1 + shape) / k * (1.0 - p);
+        pmf[at(k)] = pmf[at(k - 1)] * ratio;
+        cdf[at(k)] = c += pmf[at(k)];
+        if (ratio < 1.0 && pmf[at(k)] < kNegligible) break;
     }
-    double c = 0.0;
-    for (int k = 0; k < kPmfLength; ++k) cdf[at(k)] = c += pmf[at(k)];
+    for (++k; k < kPmfLength; ++k) {
+        pmf[at(k)] = 0.0;
+        cdf[at(k)] = c;
+    }
 }
 
 double cdf_at(const Pmf& cdf, int k) { return k < 0 ? 0.0 : cdf[at(std::min(k, kPmfLength - 1))]; }
@@ -58,7 +67,7 @@ SignSplit sign_split(const Pmf& px, const Pmf& py, const Pmf& cy, int offset) {
     SignSplit s;
     for (int x = 0; x < kPmfLength; ++x) {
         const double p = px[at(x)];
-        if (p == 0.0) continue;
+        if (p == 0.0) break;  // the rest of the pmf was dropped as negligible
         const int level_y = x + offset;  // Y equal to this gives a level result
         s.home += p * cdf_at(cy, level_y - 1);
         s.level += p * pmf_at(py, level_y);

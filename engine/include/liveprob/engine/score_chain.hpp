@@ -2,7 +2,7 @@
 // in operational time (exposure): with r(t) common to both sides, the rates per unit exposure
 // are constant between events, so one transient solution covers the rest of a period range.
 // Solved by uniformization (Jensen's method): P(τ) = Σ_n Pois(n; Λτ) (I + Q/Λ)^n, truncated
-// where the Poisson remainder is below 1e-17. Mass that would leave the grid is kept in
+// where the Poisson remainder is below 1e-16. Mass that would leave the grid is kept in
 // overflow buckets, so grid + overflow sums to 1.
 #pragma once
 
