@@ -1,0 +1,17 @@
+// One finished match as the rating fit sees it.
+#pragma once
+
+#include <string>
+
+namespace liveprob::fit {
+
+struct MatchResult {
+    int day = 0;  // day number (see calendar.hpp)
+    std::string home;
+    std::string away;
+    int home_goals = 0;
+    int away_goals = 0;
+    bool neutral = false;  // neutral venue: no home advantage term
+};
+
+}  // namespace liveprob::fit

@@ -1,0 +1,108 @@
+// The rating fit with ρ = 0 is a Poisson GLM: checked against statsmodels' GLM (Debian's
+// python3-statsmodels, run here through /usr/bin/python3) on a real league season from the
+// open data, coefficients, standard errors and log-likelihood within 1e-6.
+#include <catch2/catch.hpp>
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <fstream>
+#include <map>
+#include <sstream>
+
+#include "liveprob/adapters/results_readers.hpp"
+#include "liveprob/engine/fit/calendar.hpp"
+#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "test_env.hpp"
+
+namespace fit = liveprob::fit;
+namespace test = liveprob::test;
+
+namespace {
+
+struct Reference {
+    double value, se;
+};
+
+// Writes the games as team indices (sorted names, as the fit orders them), runs statsmodels.
+std::map<std::string, Reference> statsmodels_fit(const std::vector<fit::MatchResult>& games,
+                                                 const fit::Ratings& ratings, double xi, int reference_day,
+                                                 const std::string& scratch_name) {
+    const auto dir = test::scratch_dir(scratch_name);
+    const auto csv = dir / "games.csv";
+    std::ofstream out(csv);
+    auto index_of = [&](const std::string& name) {
+        const auto it = std::find_if(ratings.teams.begin(), ratings.teams.end(),
+                                     [&](const auto& t) { return t.name == name; });
+        return it - ratings.teams.begin();
+    };
+    for (const auto& g : games)
+        out << fmt::format("{},{},{},{},{},{:.17g}\n", index_of(g.home), index_of(g.away), g.home_goals,
+                           g.away_goals, g.neutral ? 1 : 0, std::exp(-xi * (reference_day - g.day)));
+    out.close();
+    const auto script = test::source_dir() / "tests/reference/poisson_glm_reference.py";
+    const auto result = test::run_command(fmt::format("{} {} {} {}", test::system_python(), script.string(),
+                                                      csv.string(), ratings.teams.size()));
+    REQUIRE(result.exit_code == 0);
+    std::map<std::string, Reference> ref;
+    std::istringstream lines(result.out);
+    std::string name;
+    double value = 0.0, se = 0.0;
+    std::string se_text;
+    while (lines >> name >> value >> se_text) {
+        se = se_text == "nan" ? std::nan("") : std::stod(se_text);
+        ref[name] = {value, se};
+    }
+    return ref;
+}
+
+void check_against_reference(const fit::Ratings& r, const std::map<std::string, Reference>& ref) {
+    REQUIRE(ref.size() == 2 * r.teams.size() + 3);
+    CHECK(r.intercept == Approx(ref.at("intercept").value).margin(1e-6));
+    CHECK(r.home_advantage == Approx(ref.at("home").value).margin(1e-6));
+    CHECK(r.intercept_se == Approx(ref.at("intercept").se).margin(1e-6));
+    CHECK(r.home_advantage_se == Approx(ref.at("home").se).margin(1e-6));
+    CHECK(r.diagnostics.log_likelihood == Approx(ref.at("loglik").value).margin(1e-6));
+    for (std::size_t i = 0; i < r.teams.size(); ++i) {
+        const auto& a = ref.at(fmt::format("attack{}", i));
+        const auto& d = ref.at(fmt::format("defence{}", i));
+        CHECK(r.teams[i].attack == Approx(a.value).margin(1e-6));
+        CHECK(r.teams[i].defence == Approx(d.value).margin(1e-6));
+        if (!std::isnan(a.se)) {
+            CHECK(r.teams[i].attack_se == Approx(a.se).margin(1e-6));
+            CHECK(r.teams[i].defence_se == Approx(d.se).margin(1e-6));
+        }
+    }
+}
+
+std::vector<fit::MatchResult> league_season() {
+    const auto path = test::open_data_dir() / "leagues/2015-16/de.1.json";
+    auto read = liveprob::read_league_json(path.string());
+    REQUIRE(read.matches.size() == 306);  // 18 teams, every pair twice
+    return read.matches;
+}
+
+}  // namespace
+
+TEST_CASE("with xi = 0 and rho = 0 the rating fit equals statsmodels' Poisson GLM") {
+    const auto games = league_season();
+    fit::RatingsFitOptions options;
+    const fit::Ratings r = fit::fit_ratings(games, options);
+    REQUIRE(r.diagnostics.converged);
+    REQUIRE(r.teams.size() == 18);
+    const int reference_day = games.back().day + 1;
+    check_against_reference(r, statsmodels_fit(games, r, 0.0, reference_day, "ratings_glm_plain"));
+}
+
+TEST_CASE("with time decay the rating fit equals statsmodels' GLM with the same frequency weights") {
+    const auto games = league_season();
+    fit::RatingsFitOptions options;
+    options.xi = 0.004;  // per day: a half-life of about 173 days
+    options.min_weight = 0.0;
+    const int reference_day = *fit::parse_iso_date("2016-06-01");
+    options.as_of_day = reference_day;
+    const fit::Ratings r = fit::fit_ratings(games, options);
+    REQUIRE(r.diagnostics.converged);
+    check_against_reference(r, statsmodels_fit(games, r, options.xi, reference_day, "ratings_glm_decay"));
+}
