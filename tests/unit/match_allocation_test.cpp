@@ -1,0 +1,61 @@
+// Folding a message in feed order and pricing the result allocate nothing in steady state
+// (DESIGN.md, "Runtime": no allocation per event). Counted by replacing the global operator
+// new in this test executable only.
+#include <catch2/catch.hpp>
+
+#include <atomic>
+#include <cstdlib>
+#include <new>
+
+#include "feed_builder.hpp"
+#include "liveprob/engine/match.hpp"
+
+namespace {
+std::atomic<long> allocations{0};
+}  // namespace
+
+// GCC sees malloc/free inside the replaced operators as a mismatch; they are the pair here.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wmismatched-new-delete"
+void* operator new(std::size_t size) {
+    allocations.fetch_add(1, std::memory_order_relaxed);
+    if (void* p = std::malloc(size ? size : 1)) return p;
+    throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+#pragma GCC diagnostic pop
+
+using namespace liveprob;
+using liveprob::test::at_minute;
+
+TEST_CASE("applying messages in feed order and reading the outputs allocates nothing", "[match][allocation]") {
+    MatchSetup setup;
+    setup.prior = PriorMeans{1.5, 1.2};
+    setup.format.extra_time = true;
+    setup.format.shootout = true;
+    Match match(3, setup, ModelParams{});  // full model: score effects, reds, Gamma mixture, knock-out
+    test::FeedBuilder feed(3);
+    const std::vector<InboundMessage> stream = {
+        feed.start(Period::first_half, 0), feed.goal(Side::home, Period::first_half, 10),
+        feed.shot(Side::away, 0.2, Period::first_half, 12), feed.red(Side::away, Period::first_half, 20),
+        feed.next(ClockSync{true}, at_minute(Period::first_half, 25)),
+        feed.goal(Side::away, Period::first_half, 30),
+        feed.next(StoppageAnnounced{Period::first_half, 2}, at_minute(Period::first_half, 45)),
+        feed.end(Period::first_half, 47), feed.start(Period::second_half, 45),
+        feed.goal(Side::home, Period::second_half, 60)};
+    // Warm up: the first pricing of each kind of state may size caches.
+    (void)match.outputs();
+
+    const long before = allocations.load();
+    double sum = 0.0;
+    for (const auto& m : stream) {
+        REQUIRE(match.apply(m).verdict == Verdict::accepted);
+        sum += match.outputs().p_home;
+        match.advance_to(MatchClock{m.header.clock.period, m.header.clock.clock_ms + 30'000});
+        sum += match.outputs().p_draw;
+    }
+    const long during = allocations.load() - before;
+    CHECK(sum > 0.0);
+    CHECK(during == 0);
+}
