@@ -1,0 +1,215 @@
+// `liveprob tap`: subscribes to a service's publish socket and prints updates as a live table
+// or as JSON lines, for one match or all; optionally starts from a snapshot (a late joiner),
+// and with --latency reports percentiles of the delays the timestamps show.
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <atomic>
+#include <chrono>
+#include <csignal>
+#include <iostream>
+#include <optional>
+#include <vector>
+#include <zmq.hpp>
+
+#include "command_registry.hpp"
+#include "liveprob/adapters/snapshot_client.hpp"
+#include "liveprob/adapters/topics.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+
+namespace liveprob::cli {
+namespace {
+
+std::atomic<bool> interrupted{false};
+extern "C" void on_interrupt(int) { interrupted = true; }
+
+struct TapFlags {
+    std::string from;
+    std::optional<std::uint64_t> match;
+    std::string snapshot;
+    bool snapshot_only = false;
+    std::string format = "table";
+    std::uint64_t count = 0;
+    bool events_only = false;
+    bool latency = false;
+    bool counters = false;
+    int timeout_ms = 0;
+    std::string server_key;
+    std::string client_key;
+};
+
+std::int64_t now_us() {
+    return std::chrono::duration_cast<std::chrono::microseconds>(std::chrono::system_clock::now().time_since_epoch())
+        .count();
+}
+
+const char* status_name(MatchStatus s) {
+    switch (s) {
+        case MatchStatus::not_started: return "not_started";
+        case MatchStatus::in_play: return "in_play";
+        case MatchStatus::interval: return "interval";
+        case MatchStatus::shootout: return "shootout";
+        case MatchStatus::finished: return "finished";
+        case MatchStatus::abandoned: return "abandoned";
+    }
+    return "unknown";
+}
+
+// Doubles with 17 significant digits: the text gives back the exact published value.
+std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
+    const Outputs& o = u.outputs;
+    std::string over;
+    for (std::size_t i = 0; i < o.p_over.size(); ++i) over += fmt::format("{}{:.17g}", i ? "," : "", o.p_over[i]);
+    return fmt::format(
+        "{{\"source\":\"{}\",\"match\":{},\"output_seq\":{},\"input_seq\":{},\"tick\":{},\"status\":\"{}\","
+        "\"period\":\"{}\",\"clock_ms\":{},\"home_goals\":{},\"away_goals\":{},\"home_reds\":{},\"away_reds\":{},"
+        "\"p_home\":{:.17g},\"p_draw\":{:.17g},\"p_away\":{:.17g},\"has_advance\":{},\"p_advance_home\":{:.17g},"
+        "\"p_advance_away\":{:.17g},\"expected_home_goals\":{:.17g},\"expected_away_goals\":{:.17g},"
+        "\"next_goal_home\":{:.17g},\"next_goal_away\":{:.17g},\"next_goal_none\":{:.17g},\"p_over\":[{}],"
+        "\"p_both_score\":{:.17g},\"events_applied\":{},\"receive_time_us\":{},\"publish_time_us\":{},"
+        "\"compute_ns\":{}}}",
+        source, u.meta.match_id, u.meta.output_seq, u.meta.input_seq, u.meta.receive_time_us == 0 ? "true" : "false",
+        status_name(o.status), period_name(o.clock.period), o.clock.clock_ms, o.home_goals, o.away_goals, o.home_reds,
+        o.away_reds, o.p_home, o.p_draw, o.p_away, o.has_advance ? "true" : "false", o.p_advance_home,
+        o.p_advance_away, o.expected_home_goals, o.expected_away_goals, o.next_goal_home, o.next_goal_away,
+        o.next_goal_none, over, o.p_both_score, o.events_applied, u.meta.receive_time_us, u.meta.publish_time_us,
+        u.meta.compute_ns);
+}
+
+std::string table_row(const protocol::DecodedUpdate& u) {
+    const Outputs& o = u.outputs;
+    const std::uint32_t seconds = o.clock.clock_ms / 1000;
+    return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}", u.meta.match_id,
+                       u.meta.output_seq, status_name(o.status), seconds / 60, seconds % 60, o.home_goals,
+                       o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw, 100.0 * o.p_away,
+                       u.meta.receive_time_us == 0 ? "tick" : "event");
+}
+
+void print_update(const TapFlags& f, const protocol::DecodedUpdate& u, const char* source) {
+    if (f.format == "jsonl") {
+        std::cout << json_line(u, source) << '\n';
+    } else {
+        std::cout << table_row(u) << '\n';
+    }
+    std::cout.flush();
+}
+
+double percentile(std::vector<std::int64_t>& v, double q) {
+    if (v.empty()) return 0.0;
+    std::sort(v.begin(), v.end());
+    const auto rank = static_cast<std::size_t>(q * static_cast<double>(v.size() - 1) + 0.5);
+    return static_cast<double>(v[std::min(rank, v.size() - 1)]);
+}
+
+void report_latency(std::vector<std::int64_t>& end_to_end, std::vector<std::int64_t>& in_service) {
+    const auto line = [](const char* what, std::vector<std::int64_t>& v) {
+        std::cerr << fmt::format("latency {} (us, n={}): p50 {:.0f} p99 {:.0f} p99.9 {:.0f} max {:.0f}\n", what,
+                                 v.size(), percentile(v, 0.5), percentile(v, 0.99), percentile(v, 0.999),
+                                 percentile(v, 1.0));
+    };
+    line("receive-to-tap", end_to_end);
+    line("receive-to-publish", in_service);
+}
+
+int run_tap(const TapFlags& f) {
+    if (f.format != "table" && f.format != "jsonl") throw UsageError("--format must be table or jsonl");
+    if (f.snapshot_only && f.snapshot.empty()) throw UsageError("--snapshot-only needs --snapshot");
+    const auto keys = adapters::load_curve_client_keys(f.server_key, f.client_key);
+    std::signal(SIGINT, on_interrupt);
+    std::signal(SIGTERM, on_interrupt);
+
+    zmq::context_t context(1);
+    zmq::socket_t sub(context, zmq::socket_type::sub);
+    sub.set(zmq::sockopt::linger, 0);
+    sub.set(zmq::sockopt::rcvtimeo, 100);
+    adapters::apply_curve_client(sub, keys);
+    sub.set(zmq::sockopt::subscribe, f.match ? adapters::match_topic_string(*f.match)
+                                             : std::string(adapters::kMatchTopicPrefix));
+    if (f.counters) sub.set(zmq::sockopt::subscribe, std::string(adapters::kCountersTopic));
+    sub.connect(f.from);
+
+    if (f.format == "table") {
+        std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match", "seq", "status",
+                                 "clock", "score", "home", "draw", "away", "cause");
+    }
+    // Subscribed first, then the snapshot: nothing published in between is missed (it may
+    // arrive twice; the output sequence tells).
+    if (!f.snapshot.empty()) {
+        const auto reply = adapters::request_snapshot(context, f.snapshot, f.match.value_or(0),
+                                                      std::chrono::milliseconds(5000), keys);
+        if (!reply.error.empty()) std::cerr << "liveprob tap: snapshot: " << reply.error << "\n";
+        for (const auto& u : reply.updates) print_update(f, u, "snapshot");
+        if (f.snapshot_only) return reply.error.empty() ? kExitOk : kExitFailure;
+    }
+
+    std::vector<std::int64_t> end_to_end;
+    std::vector<std::int64_t> in_service;
+    std::uint64_t printed = 0;
+    auto last_message = std::chrono::steady_clock::now();
+    while (!interrupted && (f.count == 0 || printed < f.count)) {
+        zmq::message_t topic;
+        if (!sub.recv(topic, zmq::recv_flags::none)) {
+            if (f.timeout_ms > 0 &&
+                std::chrono::steady_clock::now() - last_message > std::chrono::milliseconds(f.timeout_ms)) {
+                std::cerr << fmt::format("liveprob tap: error: nothing received for {} ms\n", f.timeout_ms);
+                if (f.latency) report_latency(end_to_end, in_service);
+                return kExitFailure;
+            }
+            continue;
+        }
+        last_message = std::chrono::steady_clock::now();
+        const std::int64_t arrived_us = now_us();
+        zmq::message_t body;
+        if (!topic.more() || !sub.recv(body, zmq::recv_flags::none)) continue;
+        const std::span<const std::uint8_t> bytes(body.data<std::uint8_t>(), body.size());
+        if (topic.to_string_view() == adapters::kCountersTopic) {
+            const auto counters = protocol::decode_counters(bytes);
+            if (!counters.ok()) continue;
+            std::string line;
+            for (const auto& [name, value] : counters.value->values) line += fmt::format(" {}={}", name, value);
+            std::cout << "counters:" << line << '\n' << std::flush;
+            continue;
+        }
+        const auto decoded = protocol::decode_update(bytes);
+        if (!decoded.ok()) {
+            std::cerr << "liveprob tap: dropped an update that does not decode: " << decoded.detail << "\n";
+            continue;
+        }
+        const protocol::DecodedUpdate& u = *decoded.value;
+        const bool tick = u.meta.receive_time_us == 0;
+        if (f.events_only && tick) continue;
+        if (f.latency && !tick) {
+            end_to_end.push_back(arrived_us - u.meta.receive_time_us);
+            in_service.push_back(u.meta.publish_time_us - u.meta.receive_time_us);
+        }
+        print_update(f, u, "live");
+        ++printed;
+    }
+    if (f.latency) report_latency(end_to_end, in_service);
+    return kExitOk;
+}
+
+const Registration registration{{
+    "tap",
+    "Subscribe to a service and print its updates (table or JSON lines), optionally with latency",
+    [](CLI::App& sub) -> std::function<int()> {
+        auto f = std::make_shared<TapFlags>();
+        sub.add_option("--from", f->from, "publish endpoint of serve (or relay)")->required();
+        sub.add_option("--match", f->match, "only this match id");
+        sub.add_option("--snapshot", f->snapshot, "snapshot endpoint: print the current state first");
+        sub.add_flag("--snapshot-only", f->snapshot_only, "print the snapshot and exit");
+        sub.add_option("--format", f->format, "table | jsonl");
+        sub.add_option("--count", f->count, "exit after this many live updates (0: until interrupted)");
+        sub.add_flag("--events-only", f->events_only, "skip the timer's republications");
+        sub.add_flag("--latency", f->latency, "at exit, print delay percentiles from the timestamps");
+        sub.add_flag("--counters", f->counters, "also print the service's counters");
+        sub.add_option("--timeout-ms", f->timeout_ms, "fail when nothing arrives for this long (0: wait)")
+            ->check(CLI::Range(0, 3600000));
+        sub.add_option("--server-key", f->server_key, "CURVE: the service's .public key file");
+        sub.add_option("--client-key", f->client_key, "CURVE: this subscriber's .secret key file");
+        return [f] { return run_tap(*f); };
+    },
+}};
+
+}  // namespace
+}  // namespace liveprob::cli
