@@ -1,6 +1,7 @@
 // `liveprob fit`: team ratings (Dixon–Coles) from past results, written to a ratings file.
 #include <fmt/format.h>
 
+#include <cmath>
 #include <iostream>
 #include <memory>
 #include <string>

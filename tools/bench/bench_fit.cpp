@@ -1,0 +1,75 @@
+// Rating-fit speed: one league season with decay and ρ, and the walk-forward refit of the whole
+// international results file at monthly steps (warm-started). Needs the open data
+// ($LIVEPROB_OPEN_DATA or ../shared/data/open beside the source tree).
+#include <benchmark/benchmark.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <string>
+
+#include "liveprob/adapters/results_readers.hpp"
+#include "liveprob/engine/fit/calendar.hpp"
+#include "liveprob/engine/fit/dixon_coles.hpp"
+
+namespace fit = liveprob::fit;
+
+namespace {
+
+std::filesystem::path open_data() {
+    if (const char* env = std::getenv("LIVEPROB_OPEN_DATA")) return env;
+    return std::filesystem::path(__FILE__).parent_path() / "../../../shared/data/open";
+}
+
+fit::RatingsFitOptions decayed() {
+    fit::RatingsFitOptions o;
+    o.xi = std::log(2.0) / 240.0;
+    o.fit_rho = true;
+    o.min_matches = 6.0;
+    return o;
+}
+
+// Baseline in the same run: the plain Poisson fit (no decay, no ρ) of the same season.
+void BM_LeagueSeasonPlain(benchmark::State& state) {
+    const auto games = liveprob::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    fit::RatingsFitOptions o;
+    for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
+}
+
+void BM_LeagueSeasonDecayRho(benchmark::State& state) {
+    const auto games = liveprob::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    const auto o = decayed();
+    for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
+    state.counters["matches"] = static_cast<double>(games.size());
+}
+
+// Every month from the first to the last match: fit on everything before the month's first day.
+void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
+    const auto games = liveprob::read_international_results((open_data() / "international/results.csv").string()).matches;
+    for (auto _ : state) {
+        fit::RatingsFitOptions o;
+        o.xi = std::log(2.0) / (2.0 * 365.0);
+        o.min_matches = 6.0;
+        o.min_weight = 0.01;
+        o.standard_errors = false;
+        std::optional<fit::Ratings> previous;
+        int refits = 0;
+        for (int year = 1873; year <= 2015; ++year)
+            for (int month = 1; month <= 12; ++month) {
+                o.as_of_day = fit::day_number(year, month, 1);
+                o.start = previous ? &*previous : nullptr;
+                previous = fit::fit_ratings(games, o);
+                ++refits;
+            }
+        state.counters["refits"] = refits;
+    }
+}
+
+}  // namespace
+
+BENCHMARK(BM_LeagueSeasonPlain)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_LeagueSeasonDecayRho)->Unit(benchmark::kMillisecond);
+BENCHMARK(BM_InternationalMonthlyWalkForward)->Unit(benchmark::kSecond)->Iterations(1)->Repetitions(3)
+    ->ReportAggregatesOnly(true);
+
+BENCHMARK_MAIN();
