@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 #include <simdjson.h>
 
+#include <algorithm>
 #include <charconv>
 #include <set>
 #include <stdexcept>
