@@ -1,0 +1,334 @@
+// The live service end to end: real `liveprob serve`, `send` and `tap` processes, real ZeroMQ
+// sockets on loopback, ephemeral ports. What the service publishes is checked against the
+// engine run in this process on the same messages.
+#include <catch2/catch.hpp>
+
+#include <random>
+
+#include "live_service_harness.hpp"
+
+using namespace liveprob;
+using namespace liveprob::test;
+
+namespace {
+
+// The value of "key": in one JSON line printed by tap (17 significant digits: exact).
+double json_number(const std::string& line, const std::string& key) {
+    const auto at = line.find("\"" + key + "\":");
+    if (at == std::string::npos) throw std::runtime_error("no " + key + " in " + line);
+    return std::strtod(line.c_str() + at + key.size() + 3, nullptr);
+}
+
+std::vector<std::string> update_lines(const std::string& text) {
+    std::vector<std::string> lines;
+    std::istringstream in(text);
+    std::string line;
+    while (std::getline(in, line)) {
+        if (!line.empty() && line.front() == '{') lines.push_back(line);
+    }
+    return lines;
+}
+
+std::string bin() { return liveprob_binary().string(); }
+
+// Sends a feed file through `liveprob send` and waits for it to finish.
+void send_file(const std::filesystem::path& dir, const std::string& endpoint, const std::filesystem::path& feed,
+               std::vector<std::string> extra = {}) {
+    std::vector<std::string> args = {bin(), "send", "--to", endpoint, feed.string()};
+    args.insert(args.end(), extra.begin(), extra.end());
+    ChildProcess send(args, dir / "send.out", dir / "send.err");
+    const auto code = send.wait(30s);
+    REQUIRE(code.has_value());
+    REQUIRE(*code == 0);
+}
+
+protocol::SnapshotReplyContents snapshot(const ServeProcess& serve, std::uint64_t match_id) {
+    zmq::context_t context(1);
+    zmq::socket_t dealer(context, zmq::socket_type::dealer);
+    dealer.set(zmq::sockopt::linger, 0);
+    dealer.set(zmq::sockopt::rcvtimeo, 5000);
+    dealer.connect(serve.snapshot());
+    const auto request = protocol::encode_snapshot_request(match_id);
+    dealer.send(zmq::buffer(request));
+    zmq::message_t reply;
+    REQUIRE(dealer.recv(reply));
+    auto decoded = protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
+    REQUIRE(decoded.ok());
+    return *decoded.value;
+}
+
+// Polls the snapshot until the match has folded `events` messages (serve works asynchronously).
+protocol::DecodedUpdate wait_for_events(const ServeProcess& serve, std::uint64_t match_id, std::uint64_t events) {
+    const auto deadline = std::chrono::steady_clock::now() + 20s;
+    for (;;) {
+        const auto reply = snapshot(serve, match_id);
+        if (reply.error.empty() && reply.updates.size() == 1 && reply.updates[0].outputs.events_applied >= events) {
+            return reply.updates[0];
+        }
+        if (std::chrono::steady_clock::now() > deadline) FAIL("match " << match_id << " never reached " << events);
+        std::this_thread::sleep_for(50ms);
+    }
+}
+
+}  // namespace
+
+TEST_CASE("a whole match sent through send and serve reaches tap exactly as the engine computes it",
+          "[integration][serve]") {
+    const auto dir = scratch_dir("serve-whole-match");
+    const auto feed = invented_match(101);
+    write_frames(dir / "feed.lpf", feed);
+    const auto expected = engine_outputs(feed);
+    REQUIRE(expected.size() > 20);
+
+    ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
+    ChildProcess tap({bin(), "tap", "--from", serve.publish(), "--match", "101", "--format", "jsonl",
+                      "--events-only", "--counters", "--count", std::to_string(expected.size())},
+                     dir / "tap.out", dir / "tap.err");
+    // Counters reaching tap prove its subscription is live before anything is sent.
+    const auto ready_by = std::chrono::steady_clock::now() + 20s;
+    while (tap.output().find("counters:") == std::string::npos) {
+        REQUIRE(std::chrono::steady_clock::now() < ready_by);
+        std::this_thread::sleep_for(20ms);
+    }
+    send_file(dir, serve.ingest(), dir / "feed.lpf");
+    const auto code = tap.wait(30s);
+    REQUIRE(code.has_value());
+    CHECK(*code == 0);
+
+    const auto lines = update_lines(tap.output());
+    REQUIRE(lines.size() == expected.size());
+    for (std::size_t i = 0; i < lines.size(); ++i) {
+        INFO("update " << i << ": " << lines[i]);
+        const Outputs& want = expected[i].outputs;
+        CHECK(json_number(lines[i], "input_seq") == static_cast<double>(expected[i].input_seq));
+        CHECK(json_number(lines[i], "output_seq") == static_cast<double>(i + 1));
+        CHECK(json_number(lines[i], "p_home") == want.p_home);
+        CHECK(json_number(lines[i], "p_draw") == want.p_draw);
+        CHECK(json_number(lines[i], "p_away") == want.p_away);
+        CHECK(json_number(lines[i], "expected_home_goals") == want.expected_home_goals);
+        CHECK(json_number(lines[i], "next_goal_none") == want.next_goal_none);
+        CHECK(json_number(lines[i], "home_goals") == want.home_goals);
+        CHECK(json_number(lines[i], "away_goals") == want.away_goals);
+        CHECK(json_number(lines[i], "clock_ms") == want.clock.clock_ms);
+    }
+    // The last update is the result: the final score with certainty.
+    CHECK(json_number(lines.back(), "home_goals") == 2);
+    CHECK(json_number(lines.back(), "away_goals") == 1);
+}
+
+TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket", "[integration][serve]") {
+    const auto dir = scratch_dir("serve-late-joiner");
+    const auto feed = invented_match(202);
+    const std::vector<InboundMessage> first_half(feed.begin(), feed.begin() + 14);
+    write_frames(dir / "first.lpf", first_half);
+    const auto expected = engine_outputs(first_half);
+
+    ServeProcess serve(dir, "serve", {"--tick-ms", "600000"});
+    send_file(dir, serve.ingest(), dir / "first.lpf");
+    wait_for_events(serve, 202, expected.back().outputs.events_applied);
+
+    // The late joiner: `tap --snapshot` prints the state it has missed, then exits.
+    ChildProcess tap({bin(), "tap", "--from", serve.publish(), "--snapshot", serve.snapshot(), "--match", "202",
+                      "--format", "jsonl", "--snapshot-only"},
+                     dir / "tap.out", dir / "tap.err");
+    REQUIRE(tap.wait(20s) == std::optional<int>(0));
+    const auto lines = update_lines(tap.output());
+    REQUIRE(lines.size() == 1);
+    CHECK(json_number(lines[0], "input_seq") == static_cast<double>(expected.back().input_seq));
+    CHECK(json_number(lines[0], "p_home") == expected.back().outputs.p_home);
+    CHECK(json_number(lines[0], "p_away") == expected.back().outputs.p_away);
+    CHECK(json_number(lines[0], "home_goals") == 1);
+
+    // An unknown match gets an error, not a hang.
+    const auto none = snapshot(serve, 999);
+    CHECK(none.updates.empty());
+    CHECK(none.error.find("999") != std::string::npos);
+}
+
+TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed key's are", "[integration][serve]") {
+    const auto dir = scratch_dir("serve-curve");
+    for (const char* name : {"server", "listed", "unlisted"}) {
+        ChildProcess keys({bin(), "keys", "--dir", dir.string(), "--name", name}, dir / "keys.out", dir / "keys.err");
+        REQUIRE(keys.wait(10s) == std::optional<int>(0));
+    }
+    {
+        std::ofstream allow(dir / "allowed.keys");
+        allow << "# feeds allowed in\n" << read_text(dir / "listed.public");
+    }
+    ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100", "--server-secret-key",
+                                      (dir / "server.secret").string(), "--allowed-feed-keys",
+                                      (dir / "allowed.keys").string()});
+    const auto listed_feed = invented_match(301);
+    const auto unlisted_feed = invented_match(302);
+    write_frames(dir / "listed.lpf", listed_feed);
+    write_frames(dir / "unlisted.lpf", unlisted_feed);
+    const std::string server_key = (dir / "server.public").string();
+    send_file(dir, serve.ingest(), dir / "listed.lpf", {"--server-key", server_key, "--client-key",
+                                                         (dir / "listed.secret").string()});
+    // The unlisted feed's handshake is refused: its messages never leave its own queue.
+    send_file(dir, serve.ingest(), dir / "unlisted.lpf", {"--server-key", server_key, "--client-key",
+                                                           (dir / "unlisted.secret").string(), "--linger-ms", "1500"});
+    const auto listed = wait_for_events(serve, 301, engine_outputs(listed_feed).back().outputs.events_applied);
+    CHECK(listed.outputs.home_goals == 2);
+    CHECK(listed.outputs.away_goals == 1);
+    const auto refused = snapshot(serve, 302);
+    CHECK(refused.updates.empty());
+
+    zmq::context_t context(1);
+    TestSubscriber sub(context, serve.publish(), "match.");
+    const auto counters = sub.next_counters(10s);
+    REQUIRE(counters.has_value());
+    CHECK(counter(*counters, "curve.refused") >= 1);
+    CHECK(counter(*counters, "curve.accepted") >= 1);
+    CHECK(counter(*counters, "matches") == 1);
+}
+
+TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupted run's", "[integration][serve]") {
+    const auto dir = scratch_dir("serve-crash");
+    const auto feed = invented_match(404);
+    const std::size_t split = 20;
+    const std::vector<InboundMessage> before(feed.begin(), feed.begin() + split);
+    const std::vector<InboundMessage> after(feed.begin() + split, feed.end());
+    write_frames(dir / "before.lpf", before);
+    write_frames(dir / "after.lpf", after);
+    const auto uninterrupted = engine_outputs(feed);
+    const auto before_outputs = engine_outputs(before);
+    const std::vector<std::string> journal = {"--journal", (dir / "journal.lpf").string(), "--journal-sync",
+                                              "every_message", "--tick-ms", "600000"};
+
+    std::map<std::string, std::string> endpoints;
+    {
+        ServeProcess first(dir, "first", journal);
+        endpoints = first.endpoints();
+        send_file(dir, first.ingest(), dir / "before.lpf");
+        wait_for_events(first, 404, before_outputs.back().outputs.events_applied);
+        first.process().signal(SIGKILL);
+        REQUIRE(first.process().wait(10s) == std::optional<int>(-SIGKILL));
+    }
+    // A torn frame at the end, as a crash in the middle of a write leaves it.
+    {
+        std::ofstream torn(dir / "journal.lpf", std::ios::binary | std::ios::app);
+        const char partial[] = {static_cast<char>(200), 0, 0, 0, 'L', 'P'};
+        torn.write(partial, sizeof partial);
+    }
+    // Restart on the same endpoints, so the subscriber below reconnects by itself.
+    ServeProcess second(dir, "second", journal, endpoints);
+    CHECK(second.log().find("cut 6 bytes") != std::string::npos);
+    const auto restored = snapshot(second, 404);
+    REQUIRE(restored.updates.size() == 1);
+    CHECK(same_outputs(restored.updates[0].outputs, before_outputs.back().outputs));
+    CHECK(restored.updates[0].meta.input_seq == before_outputs.back().input_seq);
+
+    zmq::context_t context(1);
+    TestSubscriber sub(context, second.publish(), adapters::match_topic_string(404));
+    REQUIRE(sub.next_counters(20s).has_value());
+    send_file(dir, second.ingest(), dir / "after.lpf");
+    const std::size_t remaining = uninterrupted.size() - before_outputs.size();
+    const auto next = sub.updates(remaining, 20s);
+    REQUIRE(next.size() == remaining);
+    for (std::size_t i = 0; i < remaining; ++i) {
+        const auto& want = uninterrupted[before_outputs.size() + i];
+        INFO("update after restart " << i);
+        CHECK(next[i].meta.input_seq == want.input_seq);
+        CHECK(same_outputs(next[i].outputs, want.outputs));
+    }
+}
+
+TEST_CASE("garbage frames are counted and dropped and the service keeps serving", "[integration][serve]") {
+    const auto dir = scratch_dir("serve-garbage");
+    ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
+    zmq::context_t context(1);
+    TestSubscriber sub(context, serve.publish(), "match.");
+    REQUIRE(sub.next_counters(20s).has_value());
+
+    zmq::socket_t push(context, zmq::socket_type::push);
+    push.set(zmq::sockopt::linger, 2000);
+    push.connect(serve.ingest());
+    std::mt19937 random(20261201);  // fixed seed: the same garbage every run
+    std::vector<std::uint8_t> noise(300);
+    for (int i = 0; i < 20; ++i) {
+        for (auto& b : noise) b = static_cast<std::uint8_t>(random());
+        push.send(zmq::buffer(noise));
+    }
+    const auto valid = protocol::encode_feed_message(invented_match(505).front());
+    push.send(zmq::buffer(valid.data(), valid.size() / 2));   // truncated
+    push.send(zmq::buffer(valid.data(), 3));                  // too small
+    std::vector<std::uint8_t> wrong_id = valid;
+    for (std::size_t k = 4; k < 8; ++k) wrong_id.at(k) = 'X';   // the file identifier's place
+    push.send(zmq::buffer(wrong_id));
+    std::vector<std::uint8_t> oversize(protocol::kMaxFeedMessageBytes + 100, 0);
+    std::copy(valid.begin(), valid.end(), oversize.begin());
+    push.send(zmq::buffer(oversize));
+    // Another kind of buffer entirely: an update sent to the ingest socket.
+    protocol::UpdateEncoder update_encoder;
+    const auto update = update_encoder.encode({}, Outputs{});
+    push.send(zmq::buffer(update.data(), update.size()));
+    push.send(zmq::buffer(valid), zmq::send_flags::sndmore);  // multipart: not a feed message
+    push.send(zmq::buffer(valid));
+
+    // Still serving: a valid match goes through.
+    const auto feed = invented_match(505);
+    for (const auto& m : feed) push.send(zmq::buffer(protocol::encode_feed_message(m)));
+    const auto expected = engine_outputs(feed);
+    const auto got = sub.updates(expected.size(), 20s);
+    REQUIRE(got.size() == expected.size());
+    CHECK(same_outputs(got.back().outputs, expected.back().outputs));
+
+    std::optional<protocol::CounterSet> counters;
+    const auto deadline = std::chrono::steady_clock::now() + 10s;
+    do {
+        counters = sub.next_counters(5s);
+        REQUIRE(counters.has_value());
+    } while (counter(*counters, "engine.accepted") < expected.size() - 1 && std::chrono::steady_clock::now() < deadline);
+    CHECK(counter(*counters, "ingest.rejected") >= 25);
+    CHECK(counter(*counters, "ingest.rejected.oversize") == 1);
+    CHECK(counter(*counters, "ingest.rejected.too_small") >= 1);
+    CHECK(counter(*counters, "ingest.rejected.wrong_identifier") >= 2);
+    CHECK(counter(*counters, "ingest.multipart_dropped") == 1);
+    CHECK(serve.process().wait(0ms) == std::nullopt);  // still running
+}
+
+TEST_CASE("a subscriber that never reads does not hold up others, and serve's memory stays bounded",
+          "[integration][serve]") {
+    const auto dir = scratch_dir("serve-stalled");
+    // Ticks every 10 ms over 50 live matches: about 5,000 updates a second with no new state,
+    // so serve's memory can only grow through what it queues for subscribers.
+    ServeProcess serve(dir, "serve", {"--tick-ms", "10", "--counters-ms", "200", "--publish-hwm", "500"});
+    zmq::context_t context(1);
+    zmq::socket_t stalled(context, zmq::socket_type::sub);  // never reads
+    stalled.set(zmq::sockopt::rcvhwm, 10);
+    stalled.set(zmq::sockopt::rcvbuf, 4096);
+    stalled.set(zmq::sockopt::subscribe, "");
+    stalled.connect(serve.publish());
+    TestSubscriber reader(context, serve.publish(), "match.", 100000);
+    REQUIRE(reader.next_counters(20s).has_value());
+
+    zmq::socket_t push(context, zmq::socket_type::push);
+    push.set(zmq::sockopt::linger, 5000);
+    push.connect(serve.ingest());
+    constexpr std::uint64_t kMatches = 50;
+    for (std::uint64_t id = 1; id <= kMatches; ++id) {
+        const auto feed = invented_match(id);
+        for (std::size_t i = 0; i < 10; ++i) push.send(zmq::buffer(protocol::encode_feed_message(feed[i])));
+    }
+    const auto rss_kib = [&] {
+        std::ifstream status("/proc/" + std::to_string(serve.process().pid()) + "/status");
+        std::string line;
+        while (std::getline(status, line)) {
+            if (line.rfind("VmRSS:", 0) == 0) return std::stol(line.substr(6));
+        }
+        return 0L;
+    };
+    // Warm up (every match created, queues to the stalled subscriber full), then measure.
+    REQUIRE(reader.updates(2000, 30s, false).size() == 2000);
+    const long rss_before = rss_kib();
+    const auto received = reader.updates(15000, 60s, false);
+    const long rss_after = rss_kib();
+
+    INFO("RSS " << rss_before << " -> " << rss_after << " KiB over " << received.size() << " updates");
+    // The reading subscriber keeps receiving while the stalled one's queue is full.
+    REQUIRE(received.size() == 15000);
+    // Memory: bounded by the high-water mark, far below the updates the stalled one never read.
+    CHECK(rss_after - rss_before < 8 * 1024);
+    CHECK(serve.process().wait(0ms) == std::nullopt);
+}

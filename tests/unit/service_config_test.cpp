@@ -1,0 +1,100 @@
+// The service's configuration file and the journal's crash-tail handling.
+#include <catch2/catch.hpp>
+
+#include <filesystem>
+#include <fstream>
+
+#include "liveprob/adapters/journal.hpp"
+#include "liveprob/adapters/service_config.hpp"
+#include "test_env.hpp"
+
+using namespace liveprob::adapters;
+
+namespace {
+std::string error_of(const std::string& json) {
+    try {
+        parse_service_config(json, "svc.json");
+    } catch (const ConfigError& e) {
+        return e.what();
+    }
+    return "";
+}
+}  // namespace
+
+TEST_CASE("configuration: keys override defaults, endpoints default to loopback", "[unit][serve]") {
+    const ServiceConfig defaults;
+    CHECK(defaults.ingest_endpoint.rfind("tcp://127.0.0.1:", 0) == 0);
+    CHECK(defaults.publish_endpoint.rfind("tcp://127.0.0.1:", 0) == 0);
+    CHECK(defaults.snapshot_endpoint.rfind("tcp://127.0.0.1:", 0) == 0);
+    CHECK(defaults.tick_interval_ms == 1000);
+
+    const auto c = parse_service_config(
+        R"({"tick_interval_ms": 250, "journal_path": "j.lpf", "journal_sync": "every_message",
+            "publish_high_water_mark": 77, "curve_publish": false, "log_level": "warn"})",
+        "svc.json");
+    CHECK(c.tick_interval_ms == 250);
+    CHECK(c.journal_path == "j.lpf");
+    CHECK(c.journal_sync == JournalSync::every_message);
+    CHECK(c.publish_high_water_mark == 77);
+    CHECK(c.log_level == "warn");
+}
+
+TEST_CASE("configuration: every error names the key and the reason", "[unit][serve]") {
+    CHECK(error_of(R"({"tick_interval_ms": 0})") ==
+          "svc.json: tick_interval_ms: must be between 10 and 3600000, got 0");
+    CHECK(error_of(R"({"tick_interval_ms": "fast"})") == "svc.json: tick_interval_ms: must be a whole number");
+    CHECK(error_of(R"({"tick_intervall_ms": 5})") == "svc.json: tick_intervall_ms: unknown key");
+    CHECK(error_of(R"({"journal_sync": "sometimes"})").find("svc.json: journal_sync: must be one of") == 0);
+    CHECK(error_of(R"({"ingest_endpoint": "localhost"})").find("svc.json: ingest_endpoint: must be an endpoint") == 0);
+    CHECK(error_of(R"({"curve_publish": 1})") == "svc.json: curve_publish: must be true or false");
+    CHECK(error_of("[1, 2]") == "svc.json: must hold one JSON object");
+    CHECK(error_of("{").find("svc.json: not valid JSON") == 0);
+
+    ServiceConfig c;
+    c.curve_secret_key_file = "server.secret";
+    CHECK_THROWS_WITH(validate_service_config(c), Catch::Contains("curve_allowed_keys_file"));
+    ServiceConfig same;
+    same.publish_endpoint = same.ingest_endpoint;
+    CHECK_THROWS_AS(validate_service_config(same), ConfigError);
+}
+
+TEST_CASE("journal: frames replay in order; a torn tail is reported and cut, nothing earlier lost", "[unit][serve]") {
+    const auto dir = liveprob::test::scratch_dir("journal-tail");
+    const std::string path = (dir / "journal.lpf").string();
+    const std::vector<std::vector<std::uint8_t>> frames = {{1, 2, 3}, {4}, std::vector<std::uint8_t>(1000, 7)};
+    {
+        JournalWriter writer(path, JournalSync::every_message, std::chrono::milliseconds(10));
+        for (const auto& f : frames) writer.append(f);
+        CHECK(writer.frames_written() == 3);
+    }
+    const auto whole_size = std::filesystem::file_size(path);
+    {
+        // A crash mid-write: a length prefix promising 50 bytes, and 2 of them.
+        std::ofstream out(path, std::ios::binary | std::ios::app);
+        const char torn[] = {50, 0, 0, 0, 9, 9};
+        out.write(torn, sizeof torn);
+    }
+    std::vector<std::vector<std::uint8_t>> seen;
+    const auto report = replay_journal(
+        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); }, true);
+    CHECK(seen == frames);
+    CHECK(report.frames == 3);
+    CHECK(report.torn_bytes == 6);
+    CHECK_FALSE(report.torn_detail.empty());
+    CHECK(std::filesystem::file_size(path) == whole_size);
+
+    // Appending after the cut continues a clean journal.
+    {
+        JournalWriter writer(path, JournalSync::none, std::chrono::milliseconds(10));
+        writer.append(std::vector<std::uint8_t>{5, 5});
+    }
+    seen.clear();
+    const auto again = replay_journal(
+        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); }, true);
+    CHECK(again.frames == 4);
+    CHECK(again.torn_bytes == 0);
+    CHECK(seen.back() == std::vector<std::uint8_t>{5, 5});
+
+    // A missing journal is an empty one.
+    CHECK(replay_journal((dir / "none.lpf").string(), [](std::span<const std::uint8_t>) {}, true).frames == 0);
+}
