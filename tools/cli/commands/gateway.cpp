@@ -1,0 +1,105 @@
+// `liveprob gateway`: the feed for browsers and other languages (WebSocket + HTTP).
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <filesystem>
+#include <fstream>
+#include <string>
+#include <memory>
+
+#include "command_registry.hpp"
+#include "liveprob/adapters/gateway/gateway.hpp"
+
+namespace {
+
+using liveprob::gateway::GatewayConfig;
+
+struct GatewayOptions {
+    GatewayConfig config;
+    std::string port_file;
+    std::string serve_endpoints;
+    std::uint64_t idle_timeout_ms = 60'000;
+    std::uint64_t handshake_timeout_ms = 10'000;
+};
+
+// serve's endpoints file: "name=endpoint" lines; we want publish= and snapshot=.
+void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
+    std::ifstream in(path);
+    if (!in) throw std::runtime_error("cannot read " + path);
+    for (std::string line; std::getline(in, line);) {
+        const auto eq = line.find('=');
+        if (eq == std::string::npos) continue;
+        const std::string key = line.substr(0, eq);
+        if (key == "publish" && config.feed_endpoint.empty()) config.feed_endpoint = line.substr(eq + 1);
+        if (key == "snapshot" && config.snapshot_endpoint.empty()) config.snapshot_endpoint = line.substr(eq + 1);
+    }
+    if (config.feed_endpoint.empty()) throw std::runtime_error(path + " names no publish endpoint");
+}
+
+int run_gateway(GatewayOptions& options) {
+    GatewayConfig& config = options.config;
+    if (!options.serve_endpoints.empty()) read_serve_endpoints(options.serve_endpoints, config);
+    if (config.feed_endpoint.empty()) throw liveprob::cli::UsageError("give --feed or --serve-endpoints");
+    if (config.web_dir.empty()) config.web_dir = liveprob::gateway::default_web_dir();
+    if (config.send_queue_cap == 0) throw liveprob::cli::UsageError("--queue-cap must be at least 1");
+    if (options.idle_timeout_ms == 0) throw liveprob::cli::UsageError("--idle-timeout-ms must be positive");
+    config.idle_timeout = std::chrono::milliseconds(options.idle_timeout_ms);
+    config.handshake_timeout = std::chrono::milliseconds(options.handshake_timeout_ms);
+
+    liveprob::gateway::Gateway gateway(config);
+    if (!options.port_file.empty()) {
+        // Written whole, then renamed, so a reader never sees half a number.
+        const std::string partial = options.port_file + ".partial";
+        {
+            std::ofstream out(partial);
+            out << gateway.port() << "\n";
+            if (!out) throw std::runtime_error("cannot write " + partial);
+        }
+        std::filesystem::rename(partial, options.port_file);
+    }
+    spdlog::info("gateway: http://{}:{}/ (WebSocket on /feed), subscribed to {}",
+                 config.listen_address, gateway.port(), config.feed_endpoint);
+    gateway.run(/*handle_signals=*/true);
+    return liveprob::cli::kExitOk;
+}
+
+const liveprob::cli::Registration registration{{
+    "gateway", "serve the feed to browsers and other languages over WebSocket and HTTP",
+    [](CLI::App& app) {
+        auto options = std::make_shared<GatewayOptions>();
+        GatewayConfig& c = options->config;
+        app.add_option("--feed", c.feed_endpoint, "publish endpoint of `serve` (or `relay`)");
+        app.add_option("--snapshot", c.snapshot_endpoint,
+                       "snapshot endpoint: ask it for every live match at start");
+        app.add_option("--serve-endpoints", options->serve_endpoints,
+                       "serve's endpoints file (publish= and snapshot= lines)");
+        app.add_option("--address", c.listen_address, "address to listen on")
+            ->capture_default_str();
+        app.add_option("--port", c.listen_port, "port to listen on (0: any free port)")
+            ->capture_default_str();
+        app.add_option("--port-file", options->port_file,
+                       "write the bound port to this file once listening");
+        app.add_option("--page-dir", c.web_dir, "folder with the page (default: installed page)");
+        app.add_option("--allow-origin", c.allowed_origins,
+                       "browser origin allowed besides the gateway's own (repeatable)");
+        app.add_option("--max-message-bytes", c.max_client_message_bytes,
+                       "largest message a client may send")
+            ->capture_default_str();
+        app.add_option("--queue-cap", c.send_queue_cap,
+                       "frames waiting for one client before it is dropped")
+            ->capture_default_str();
+        app.add_option("--idle-timeout-ms", options->idle_timeout_ms,
+                       "cut off a client silent (no pong) for this long")
+            ->capture_default_str();
+        app.add_option("--handshake-timeout-ms", options->handshake_timeout_ms,
+                       "limit for HTTP requests, WebSocket handshakes and closes")
+            ->capture_default_str();
+        app.add_option("--client-send-buffer", c.client_send_buffer_bytes,
+                       "kernel send buffer per client in bytes (0: system default)")
+            ->capture_default_str();
+        app.add_option("--timeline-points", c.timeline_points, "chart points kept per match")
+            ->capture_default_str();
+        return [options] { return run_gateway(*options); };
+    }}};
+
+}  // namespace
