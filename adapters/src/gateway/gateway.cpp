@@ -154,10 +154,6 @@ void Gateway::Impl::drain_feed(zmq::socket_t& socket) {
 
 void Gateway::Impl::take(std::span<const std::uint8_t> payload) {
     Intake intake = take_in(payload, wall_clock_us());
-    if (intake.kind == Intake::Kind::other_message) {
-        ++hub.counters.other_messages;
-        return;
-    }
     if (intake.kind == Intake::Kind::rejected) {
         if (hub.counters.updates_rejected++ < 10) {
             spdlog::warn("gateway: rejected a feed message: {}", intake.detail);

@@ -19,7 +19,6 @@ struct GatewayCounters {
     std::uint64_t updates_rejected = 0;  // failed verification (counted, never forwarded)
     std::uint64_t updates_stale = 0;     // duplicate or older than what we hold
     std::uint64_t update_gaps = 0;       // update_seq jumped: something was missed upstream
-    std::uint64_t other_messages = 0;    // other topics on the feed (counters and the like)
     std::uint64_t snapshot_requests = 0;
     std::uint64_t snapshot_failures = 0;
     std::uint64_t clients_opened = 0;

@@ -8,10 +8,8 @@ Intake take_in(std::span<const std::uint8_t> payload, std::int64_t received_us) 
     Intake intake;
     auto decoded = protocol::decode_update(payload);
     if (!decoded.ok()) {
-        // Another message type on the feed (the service's counters) carries another file
-        // identifier; anything else that fails is a damaged update.
-        const bool other_type = decoded.error == protocol::DecodeError::wrong_identifier;
-        intake.kind = other_type ? Intake::Kind::other_message : Intake::Kind::rejected;
+        // Only updates travel on match topics, so whatever fails to decode is damaged.
+        intake.kind = Intake::Kind::rejected;
         intake.detail = decoded.detail;
         return intake;
     }

@@ -1,6 +1,5 @@
-// Private to the gateway: one message read off the feed, verified and decoded into what the
-// gateway keeps. Other message types on the feed (the service's counters) are told apart from
-// damaged updates so that only the latter count as rejected.
+// Private to the gateway: one message read off a match topic of the feed, verified and decoded
+// into what the gateway keeps.
 #pragma once
 
 #include <cstdint>
@@ -13,7 +12,7 @@
 namespace liveprob::gateway {
 
 struct Intake {
-    enum class Kind : std::uint8_t { update, other_message, rejected } kind = Kind::rejected;
+    enum class Kind : std::uint8_t { update, rejected } kind = Kind::rejected;
     GatewayUpdate update;  // when kind == update
     std::string detail;    // when rejected: one line, for the log
 };

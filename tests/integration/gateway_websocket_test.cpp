@@ -1,0 +1,418 @@
+// The gateway over real sockets: a ZeroMQ publisher in the test plays `serve`, the gateway runs
+// on its own thread, and Beast WebSocket / HTTP clients talk to it over loopback. Each case
+// provokes one behaviour of issue 7: match subscription, late joiners, conflation for a slow
+// reader, the send-queue cap and its close code, origin rejection, the message size limit, the
+// idle time-out, and rejected feed input.
+#include <catch2/catch.hpp>
+
+#include <boost/asio/connect.hpp>
+#include <boost/asio/io_context.hpp>
+#include <boost/asio/ip/tcp.hpp>
+#include <boost/beast/core.hpp>
+#include <boost/beast/http.hpp>
+#include <boost/beast/websocket.hpp>
+#include <fmt/format.h>
+#include <zmq.hpp>
+
+#include <chrono>
+#include <functional>
+#include <optional>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "liveprob/adapters/gateway/gateway.hpp"
+#include "liveprob/adapters/topics.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+#include "test_env.hpp"
+
+namespace {
+
+namespace asio = boost::asio;
+namespace beast = boost::beast;
+namespace http = beast::http;
+namespace websocket = beast::websocket;
+using asio::ip::tcp;
+using namespace std::chrono_literals;
+
+// Plays the engine's publish socket.
+class FakeServe {
+public:
+    FakeServe() : socket_(context_, zmq::socket_type::pub) {
+        socket_.set(zmq::sockopt::linger, 0);
+        socket_.set(zmq::sockopt::sndhwm, 0);  // never drop in the test itself
+        socket_.bind("tcp://127.0.0.1:*");
+        endpoint_ = socket_.get(zmq::sockopt::last_endpoint);
+    }
+    const std::string& endpoint() const { return endpoint_; }
+
+    void publish(std::uint64_t match_id, std::uint64_t seq, double p_home, std::uint16_t home_goals = 0) {
+        liveprob::protocol::UpdateMeta meta;
+        meta.match_id = match_id;
+        meta.output_seq = seq;
+        meta.input_seq = seq;
+        meta.publish_time_us = 1'700'000'000'000'000;
+        liveprob::Outputs o;
+        o.status = liveprob::MatchStatus::in_play;
+        o.clock = {liveprob::Period::second_half, static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
+        o.home_goals = home_goals;
+        o.p_home = p_home;
+        o.p_draw = (1.0 - p_home) * 0.5;
+        o.p_away = 1.0 - p_home - o.p_draw;
+        o.next_goal_home = 0.4;
+        o.next_goal_away = 0.3;
+        o.next_goal_none = 0.3;
+        o.goals_added[0][0] = 1.0;
+        publish_raw(match_id, encoder_.encode(meta, o));
+    }
+    void publish_raw(std::uint64_t match_id, std::span<const std::uint8_t> bytes) {
+        const std::string topic = liveprob::adapters::match_topic_string(match_id);
+        socket_.send(zmq::buffer(topic), zmq::send_flags::sndmore);
+        socket_.send(zmq::buffer(bytes.data(), bytes.size()), zmq::send_flags::none);
+    }
+
+private:
+    zmq::context_t context_{1};
+    zmq::socket_t socket_;
+    std::string endpoint_;
+    liveprob::protocol::UpdateEncoder encoder_;
+};
+
+// A gateway on its own thread, stopped and joined on scope exit.
+class RunningGateway {
+public:
+    explicit RunningGateway(liveprob::gateway::GatewayConfig config)
+        : gateway_(std::move(config)), thread_([this] { gateway_.run(); }) {}
+    ~RunningGateway() {
+        gateway_.stop();
+        thread_.join();
+    }
+    std::uint16_t port() const { return gateway_.port(); }
+
+private:
+    liveprob::gateway::Gateway gateway_;
+    std::thread thread_;
+};
+
+liveprob::gateway::GatewayConfig test_config(const FakeServe& serve) {
+    liveprob::gateway::GatewayConfig c;
+    c.feed_endpoint = serve.endpoint();
+    c.web_dir = liveprob::test::source_dir() / "adapters" / "web";
+    c.idle_timeout = 5s;
+    c.handshake_timeout = 2s;
+    return c;
+}
+
+struct HttpAnswer {
+    unsigned status = 0;
+    std::string body;
+};
+
+HttpAnswer http_get(std::uint16_t port, const std::string& target, http::verb verb = http::verb::get) {
+    asio::io_context io;
+    beast::tcp_stream stream(io);
+    stream.expires_after(5s);
+    stream.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
+    http::request<http::string_body> request{verb, target, 11};
+    request.set(http::field::host, fmt::format("127.0.0.1:{}", port));
+    request.keep_alive(false);
+    http::write(stream, request);
+    beast::flat_buffer buffer;
+    http::response<http::string_body> response;
+    http::read(stream, buffer, response);
+    return {response.result_int(), response.body()};
+}
+
+// The counter `name` from GET /api/gateway (its JSON is flat: "name":number).
+std::uint64_t counter(std::uint16_t port, const std::string& name) {
+    const std::string body = http_get(port, "/api/gateway").body;
+    const auto at = body.find("\"" + name + "\":");
+    if (at == std::string::npos) throw std::runtime_error("no counter " + name + " in " + body);
+    return std::stoull(body.substr(at + name.size() + 3));
+}
+
+bool eventually(const std::function<bool()>& condition, std::chrono::milliseconds limit = 5000ms) {
+    const auto deadline = std::chrono::steady_clock::now() + limit;
+    while (std::chrono::steady_clock::now() < deadline) {
+        if (condition()) return true;
+        std::this_thread::sleep_for(20ms);
+    }
+    return condition();
+}
+
+// ZeroMQ subscriptions take a moment to reach the publisher: publish a first update of match
+// `match_id` until the gateway has it.
+void wait_for_feed(FakeServe& serve, std::uint16_t port, std::uint64_t match_id) {
+    REQUIRE(eventually([&] {
+        serve.publish(match_id, 1, 0.5);
+        return http_get(port, "/api/matches").body.find(fmt::format("\"match_id\":{},", match_id)) !=
+               std::string::npos;
+    }));
+}
+
+// A WebSocket client whose every operation has a deadline (run_for), so a broken gateway fails
+// the test instead of hanging it.
+class TestClient {
+public:
+    explicit TestClient(std::uint16_t port, std::optional<std::string> origin = std::nullopt,
+                        int receive_buffer = 0)
+        : ws_(io_) {
+        auto& socket = beast::get_lowest_layer(ws_).socket();
+        socket.open(tcp::v4());
+        if (receive_buffer > 0) socket.set_option(asio::socket_base::receive_buffer_size(receive_buffer));
+        socket.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
+        ws_.set_option(websocket::stream_base::decorator([origin](websocket::request_type& r) {
+            if (origin) r.set(http::field::origin, *origin);
+        }));
+        handshake_error_ = run([&](auto done) {
+            ws_.async_handshake(response_, fmt::format("127.0.0.1:{}", port), "/feed", done);
+        });
+    }
+    beast::error_code handshake_error() const { return handshake_error_; }
+    unsigned handshake_status() const { return response_.result_int(); }
+
+    void send(const std::string& text) {
+        const auto ec = run([&](auto done) { ws_.async_write(asio::buffer(text), [done](beast::error_code e, std::size_t) { done(e); }); });
+        REQUIRE_FALSE(ec);
+    }
+    // The next text message, or nothing when the connection ends (see error()) or time runs out.
+    std::optional<std::string> receive(std::chrono::milliseconds limit = 5000ms) {
+        beast::flat_buffer buffer;
+        error_ = run([&](auto done) { ws_.async_read(buffer, [done](beast::error_code e, std::size_t) { done(e); }); }, limit);
+        if (error_) return std::nullopt;
+        return beast::buffers_to_string(buffer.data());
+    }
+    // The next update frame, skipping replies.
+    std::optional<std::string> receive_update(std::chrono::milliseconds limit = 5000ms) {
+        while (auto message = receive(limit)) {
+            if (message->find(R"("kind":"update")") != std::string::npos) return message;
+        }
+        return std::nullopt;
+    }
+    beast::error_code error() const { return error_; }
+    std::uint16_t close_code() const { return static_cast<std::uint16_t>(ws_.reason().code); }
+
+private:
+    template <class Start>
+    beast::error_code run(Start start, std::chrono::milliseconds limit = 5000ms) {
+        std::optional<beast::error_code> result;
+        start([&result](beast::error_code ec) { result = ec; });
+        io_.restart();
+        const auto deadline = std::chrono::steady_clock::now() + limit;
+        while (!result && std::chrono::steady_clock::now() < deadline) io_.run_for(20ms);
+        if (!result) {
+            beast::get_lowest_layer(ws_).close();  // abandons the operation
+            io_.restart();
+            io_.run_for(1s);
+            return asio::error::timed_out;
+        }
+        return *result;
+    }
+
+    asio::io_context io_;
+    websocket::stream<beast::tcp_stream> ws_;
+    websocket::response_type response_;
+    beast::error_code handshake_error_;
+    beast::error_code error_;
+};
+
+bool has(const std::string& frame, const std::string& part) { return frame.find(part) != std::string::npos; }
+
+}  // namespace
+
+TEST_CASE("a client receives the matches it watches and no others", "[gateway]") {
+    FakeServe serve;
+    RunningGateway gateway(test_config(serve));
+    wait_for_feed(serve, gateway.port(), 7);
+
+    TestClient client(gateway.port());
+    REQUIRE_FALSE(client.handshake_error());
+    client.send(R"({"watch":[7]})");
+    const auto reply = client.receive();
+    REQUIRE(reply);
+    CHECK(has(*reply, R"("kind":"watching","all":false,"match_ids":[7])"));
+    // A late joiner gets the latest state straight away.
+    const auto first = client.receive_update();
+    REQUIRE(first);
+    CHECK(has(*first, R"("match_id":7,"update_seq":1,)"));
+
+    serve.publish(8, 1, 0.25);  // not watched
+    serve.publish(7, 2, 0.625);
+    const auto next = client.receive_update();
+    REQUIRE(next);
+    CHECK(has(*next, R"("match_id":7,"update_seq":2,)"));
+    // Exactly the published double: 0.625, (1 - 0.625) / 2 = 0.1875 and the remainder.
+    CHECK(has(*next, fmt::format(R"("full_time":{{"home":{},"draw":{},"away":{}}})", 0.625, 0.1875, 1.0 - 0.625 - 0.1875)));
+    CHECK(has(*next, R"("period":"second_half","clock_ms":2702000,)"));
+    CHECK_FALSE(client.receive_update(300ms));  // nothing of match 8 came through
+}
+
+TEST_CASE("watching all delivers every match, including ones that start later", "[gateway]") {
+    FakeServe serve;
+    RunningGateway gateway(test_config(serve));
+    wait_for_feed(serve, gateway.port(), 1);
+    TestClient client(gateway.port());
+    client.send(R"({"watch":"all"})");
+    REQUIRE(client.receive_update());  // match 1, already known
+    serve.publish(2, 1, 0.4);
+    const auto later = client.receive_update();
+    REQUIRE(later);
+    CHECK(has(*later, R"("match_id":2,)"));
+
+    client.send(R"({"unwatch":"all"})");
+    REQUIRE(client.receive());  // the reply
+    serve.publish(2, 2, 0.4);
+    CHECK_FALSE(client.receive_update(300ms));
+}
+
+TEST_CASE("a bad request gets an error reply and the connection stays usable", "[gateway]") {
+    FakeServe serve;
+    RunningGateway gateway(test_config(serve));
+    wait_for_feed(serve, gateway.port(), 3);
+    TestClient client(gateway.port());
+    client.send(R"({"watch":"some"})");
+    const auto reply = client.receive();
+    REQUIRE(reply);
+    CHECK(has(*reply, R"("kind":"error","reason":"a string value must be \"all\"")"));
+    client.send("not json at all");
+    REQUIRE(client.receive());
+    client.send(R"({"watch":[3]})");
+    REQUIRE(client.receive_update());
+    CHECK(counter(gateway.port(), "bad_requests") == 2);
+}
+
+TEST_CASE("a slow reader gets the latest value of each match, not every value", "[gateway]") {
+    FakeServe serve;
+    auto config = test_config(serve);
+    config.client_send_buffer_bytes = 4096;
+    RunningGateway gateway(config);
+    wait_for_feed(serve, gateway.port(), 5);
+
+    TestClient client(gateway.port(), std::nullopt, 4096);
+    client.send(R"({"watch":[5]})");
+    REQUIRE(client.receive());
+    REQUIRE(client.receive_update());
+    // The client stops reading while 3,000 updates of match 5 go out: far more than the
+    // socket buffers hold, so the gateway must conflate.
+    constexpr std::uint64_t kLast = 3001;
+    for (std::uint64_t seq = 2; seq <= kLast; ++seq) serve.publish(5, seq, 0.5);
+    REQUIRE(eventually([&] { return http_get(gateway.port(), "/api/matches").body.find(
+                                        fmt::format("\"update_seq\":{},", kLast)) != std::string::npos; }));
+    std::uint64_t received = 0;
+    std::string last;
+    while (auto frame = client.receive_update(500ms)) {
+        ++received;
+        last = *frame;
+    }
+    CHECK(received < kLast - 1);
+    CHECK(has(last, fmt::format(R"("update_seq":{},)", kLast)));  // the latest always arrives
+    CHECK(counter(gateway.port(), "frames_conflated") > 0);
+}
+
+TEST_CASE("a client past the send-queue cap is closed with code 4001; others carry on", "[gateway]") {
+    FakeServe serve;
+    auto config = test_config(serve);
+    config.client_send_buffer_bytes = 4096;
+    config.send_queue_cap = 3;
+    RunningGateway gateway(config);
+    wait_for_feed(serve, gateway.port(), 1);
+
+    TestClient stalled(gateway.port(), std::nullopt, 4096);
+    stalled.send(R"({"watch":"all"})");
+    TestClient healthy(gateway.port());
+    healthy.send(R"({"watch":[1]})");
+    REQUIRE(healthy.receive());
+    REQUIRE(healthy.receive_update());
+
+    // Twenty matches, many updates each: the stalled client's buffers fill, then more than three
+    // matches wait for it.
+    for (std::uint64_t seq = 2; seq <= 200; ++seq) {
+        for (std::uint64_t match = 1; match <= 20; ++match) serve.publish(match, seq, 0.5);
+    }
+    REQUIRE(eventually([&] { return counter(gateway.port(), "clients_dropped_slow") == 1; }));
+    // The healthy client, which reads, sees the last update of its match.
+    std::string last;
+    while (auto frame = healthy.receive_update(300ms)) last = *frame;
+    CHECK(has(last, R"("match_id":1,"update_seq":200,)"));
+
+    // The stalled client reads what was already on its way, then the close frame.
+    while (stalled.receive(2000ms)) {
+    }
+    CHECK(stalled.error() == websocket::error::closed);
+    CHECK(stalled.close_code() == liveprob::gateway::kCloseSendQueueFull);
+}
+
+TEST_CASE("an origin outside the allow-list cannot open the feed", "[gateway]") {
+    FakeServe serve;
+    auto config = test_config(serve);
+    config.allowed_origins = {"http://screens.example"};
+    RunningGateway gateway(config);
+
+    TestClient refused(gateway.port(), std::string("http://elsewhere.example"));
+    CHECK(refused.handshake_error() == websocket::error::upgrade_declined);
+    CHECK(refused.handshake_status() == 403);
+    TestClient listed(gateway.port(), std::string("http://screens.example"));
+    CHECK_FALSE(listed.handshake_error());
+    // The page the gateway serves itself is always allowed.
+    TestClient own(gateway.port(), fmt::format("http://127.0.0.1:{}", gateway.port()));
+    CHECK_FALSE(own.handshake_error());
+    CHECK(counter(gateway.port(), "origins_rejected") == 1);
+}
+
+TEST_CASE("a client message over the size limit closes the client with code 1009", "[gateway]") {
+    FakeServe serve;
+    auto config = test_config(serve);
+    config.max_client_message_bytes = 256;
+    RunningGateway gateway(config);
+    TestClient client(gateway.port());
+    client.send(R"({"watch":[)" + std::string(300, '1') + "]}");
+    CHECK_FALSE(client.receive());
+    CHECK(client.error() == websocket::error::closed);
+    CHECK(client.close_code() == liveprob::gateway::kCloseTooBig);
+    CHECK(counter(gateway.port(), "clients_closed_oversize") == 1);
+}
+
+TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[gateway]") {
+    FakeServe serve;
+    auto config = test_config(serve);
+    config.idle_timeout = 400ms;
+    RunningGateway gateway(config);
+    TestClient silent(gateway.port());  // never reads, so never answers the gateway's pings
+    REQUIRE_FALSE(silent.handshake_error());
+    REQUIRE(eventually([&] { return counter(gateway.port(), "clients_idle_timeout") == 1; }));
+    CHECK(counter(gateway.port(), "clients_open") == 0);
+    CHECK_FALSE(silent.receive(1000ms));
+}
+
+TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded", "[gateway]") {
+    FakeServe serve;
+    RunningGateway gateway(test_config(serve));
+    wait_for_feed(serve, gateway.port(), 9);
+    const std::vector<std::uint8_t> garbage{1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12};
+    serve.publish_raw(9, garbage);
+    serve.publish(9, 2, 0.5);
+    serve.publish(9, 5, 0.5);  // 3 and 4 never came: a gap
+    serve.publish(9, 4, 0.5);  // late: older than what the gateway holds
+    REQUIRE(eventually([&] { return counter(gateway.port(), "updates_stale") == 1; }));
+    CHECK(counter(gateway.port(), "updates_rejected") == 1);
+    CHECK(counter(gateway.port(), "update_gaps") == 1);
+    CHECK(has(http_get(gateway.port(), "/api/matches").body, R"("match_id":9,"update_seq":5,)"));
+}
+
+TEST_CASE("plain HTTP serves the page, the match state and the timeline", "[gateway]") {
+    FakeServe serve;
+    RunningGateway gateway(test_config(serve));
+    wait_for_feed(serve, gateway.port(), 4);
+    serve.publish(4, 2, 0.5, 1);  // a goal
+
+    const auto page = http_get(gateway.port(), "/");
+    CHECK(page.status == 200);
+    CHECK(has(page.body, "not advice"));
+    CHECK(http_get(gateway.port(), "/app.js").status == 200);
+    REQUIRE(eventually([&] { return has(http_get(gateway.port(), "/api/timeline?match=4").body, "],[2,2702000,0.5,"); }));
+    CHECK(has(http_get(gateway.port(), "/api/timeline?match=4").body, R"({"kind":"timeline","match_id":4,"points":[[2,2701000,0.5,0.25,0.25,0,0,0,0],[2,2702000,0.5,0.25,0.25,1,0,0,0]]})"));
+    CHECK(http_get(gateway.port(), "/api/timeline?match=99").status == 404);
+    CHECK(http_get(gateway.port(), "/../CMakeLists.txt").status == 404);
+    CHECK(http_get(gateway.port(), "/api/matches", http::verb::post).status == 405);
+    CHECK(http_get(gateway.port(), "/feed").status == 426);
+}
