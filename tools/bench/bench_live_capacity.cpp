@@ -1,0 +1,86 @@
+// Capacity of the live service's tick: how much of one core it takes to republish N live
+// matches once (advance each match's clock, reprice, encode its update) and the heap each live
+// match holds. At 1 Hz ticks, the share of a core is the time of one pass over all matches.
+//   liveprob_bench_live_capacity --benchmark_repetitions=3 --benchmark_report_aggregates_only=true
+#include <benchmark/benchmark.h>
+#include <malloc.h>
+
+#include <chrono>
+#include <vector>
+
+#include "liveprob/adapters/match_book.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+
+namespace {
+
+using namespace liveprob;
+using SteadyClock = std::chrono::steady_clock;
+
+InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period, std::uint32_t clock_ms,
+                       MessageBody body) {
+    InboundMessage m;
+    m.header = {match_id, seq, 1'800'000'000'000'000, {period, clock_ms}};
+    m.body = std::move(body);
+    return m;
+}
+
+// N matches in the first half, as a service holds them mid-afternoon.
+void fill_book(adapters::MatchBook& book, std::uint64_t matches, SteadyClock::time_point now) {
+    std::vector<std::uint64_t> touched;
+    for (std::uint64_t id = 1; id <= matches; ++id) {
+        MatchSetup setup;
+        setup.home_name = "Home side";
+        setup.away_name = "Away side";
+        setup.prior = PriorMeans{1.2 + 0.001 * static_cast<double>(id % 500), 1.1};
+        book.handle(message(id, 1, Period::pre_match, 0, setup), 0, now, touched);
+        book.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0, now, touched);
+        book.handle(message(id, 3, Period::first_half, 600'000, ClockSync{true}), 0, now, touched);
+    }
+}
+
+void BM_TickPass(benchmark::State& state) {
+    const auto matches = static_cast<std::uint64_t>(state.range(0));
+    adapters::MatchBook book{ModelParams{}};
+    auto now = SteadyClock::now();
+    fill_book(book, matches, now);
+    protocol::UpdateEncoder encoder;
+    std::size_t bytes = 0;
+    for (auto _ : state) {
+        now += std::chrono::seconds(1);  // one tick of a 1 Hz timer
+        for (auto& [id, m] : book.matches()) {
+            book.advance(m, now);
+            protocol::UpdateMeta meta{id, ++m.output_seq, m.input_seq, 0, 0, 0};
+            bytes += encoder.encode(meta, m.match.outputs()).size();
+        }
+    }
+    benchmark::DoNotOptimize(bytes);
+    state.counters["matches"] = static_cast<double>(matches);
+    // Seconds per pass = share of one core at one pass per second.
+    state.counters["core_share_at_1Hz"] =
+        benchmark::Counter(static_cast<double>(state.iterations()), benchmark::Counter::kIsRate |
+                                                                        benchmark::Counter::kInvert);
+    state.counters["us_per_match"] = benchmark::Counter(
+        static_cast<double>(state.iterations()) * static_cast<double>(matches),
+        benchmark::Counter::kIsRate | benchmark::Counter::kInvert, benchmark::Counter::OneK::kIs1000);
+}
+BENCHMARK(BM_TickPass)->Arg(1000)->Arg(5000)->Arg(20000)->Unit(benchmark::kMillisecond)->MinTime(2.0);
+
+// Heap per live match: the allocator's in-use bytes before and after creating N matches.
+void BM_MemoryPerMatch(benchmark::State& state) {
+    const auto matches = static_cast<std::uint64_t>(state.range(0));
+    double per_match = 0;
+    for (auto _ : state) {
+        const std::size_t before = mallinfo2().uordblks;
+        {
+            adapters::MatchBook book{ModelParams{}};
+            fill_book(book, matches, SteadyClock::now());
+            per_match = static_cast<double>(mallinfo2().uordblks - before) / static_cast<double>(matches);
+        }
+    }
+    state.counters["bytes_per_match"] = per_match;
+}
+BENCHMARK(BM_MemoryPerMatch)->Arg(1000)->Arg(20000)->Iterations(1)->Unit(benchmark::kMillisecond);
+
+}  // namespace
+
+BENCHMARK_MAIN();
