@@ -51,7 +51,11 @@ public:
                                       (source_dir() / "adapters" / "web").string()};
         argv.insert(argv.end(), extra.begin(), extra.end());
         gateway_ = std::make_unique<ChildProcess>(argv, dir_ / "gateway.log");
-        return static_cast<std::uint16_t>(std::stoi(wait_for_file(dir_ / "gateway.port")));
+        const auto port = static_cast<std::uint16_t>(std::stoi(wait_for_file(dir_ / "gateway.port")));
+        // The gateway's subscription needs a moment to reach serve; updates published before
+        // that would only reach it through its start-up snapshot.
+        std::this_thread::sleep_for(std::chrono::milliseconds(500));
+        return port;
     }
 
     void send(const InboundMessage& message) {
