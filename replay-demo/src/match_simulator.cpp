@@ -159,8 +159,9 @@ private:
                 pending_rescind_seq_ = 0;
             }
         }
-        if (pending_review_seq_) cancel_reviewed_goal(last_clock_);
-        emit(PeriodEnd{period}, last_clock_);
+        const MatchClock final_clock{period, to_ms(end + stoppage)};
+        if (pending_review_seq_) cancel_reviewed_goal(final_clock);
+        emit(PeriodEnd{period}, final_clock);
         wall_offset_us_ += period == Period::first_half ? kHalfTimeUs : 5LL * 60 * 1'000'000;
         return true;
     }

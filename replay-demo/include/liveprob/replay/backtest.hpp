@@ -1,0 +1,45 @@
+// Replays many matches on all cores and adds up their scores. The result does not depend on
+// the number of threads: matches are scored into their own slots, then added in stream order.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "liveprob/engine/messages.hpp"
+#include "liveprob/engine/params.hpp"
+#include "liveprob/replay/bucket_scores.hpp"
+#include "liveprob/replay/match_replay.hpp"
+#include "liveprob/replay/recorded_stream.hpp"
+
+namespace liveprob::replay {
+
+// One match's messages, its setup moved first; matches in order of first appearance.
+using MatchMessages = std::vector<InboundMessage>;
+std::vector<MatchMessages> group_by_match(const std::vector<InboundMessage>& messages);
+
+struct BacktestOptions {
+    ModelParams params;
+    unsigned threads = 1;
+    std::size_t timelines = 12;  // keep the timelines of this many scored matches (the first)
+    // Called from the calling thread about ten times a second, and once at the end.
+    std::function<void(std::size_t done, std::size_t total)> progress;
+};
+
+struct BacktestResult {
+    std::array<std::array<ScoreAccumulator, kForecasters>, kBuckets> scores{};
+    std::uint64_t matches = 0, scored = 0, abandoned = 0, unfinished = 0, unusable = 0;
+    std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
+    std::vector<Timeline> timelines;
+    std::vector<std::string> problems;  // one line per unusable match (the first few)
+
+    const ScoreAccumulator& at(int bucket, Forecaster f) const {
+        return scores[static_cast<std::size_t>(bucket)][static_cast<std::size_t>(f)];
+    }
+};
+
+BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options);
+
+}  // namespace liveprob::replay

@@ -1,0 +1,72 @@
+// Replays one match's messages through the engine and collects what the scores need: the
+// forecast of each forecaster at each bucket minute, the regulation result, and (on request)
+// the probability timeline.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "liveprob/engine/messages.hpp"
+#include "liveprob/engine/params.hpp"
+#include "liveprob/replay/bucket_scores.hpp"
+#include "liveprob/replay/scoring_rules.hpp"
+
+namespace liveprob::replay {
+
+// The forecasters scored side by side in one run.
+enum class Forecaster : std::uint8_t {
+    model = 0,                    // the full engine with the given parameters
+    fixed_prior = 1,              // the pre-match forecast, never updated
+    uniform_timing_no_state = 2,  // the engine with a flat goal-timing profile and no
+                                  // score-state or red-card effects
+};
+inline constexpr int kForecasters = 3;
+const char* forecaster_name(Forecaster f) noexcept;
+
+// The baseline's parameters: `params` with a uniform timing profile and every state effect 1.
+ModelParams uniform_timing_no_state(const ModelParams& params);
+
+struct TimelinePoint {
+    double minute = 0.0;  // running match clock in minutes
+    Forecast forecast{};  // full model
+};
+
+struct TimelineMark {
+    double minute = 0.0;
+    enum class Kind : std::uint8_t { goal, goal_cancelled, red_card } kind = Kind::goal;
+    Side side = Side::home;
+};
+
+struct Timeline {
+    std::string home_name, away_name;
+    std::vector<TimelinePoint> points;
+    std::vector<TimelineMark> marks;
+};
+
+enum class ReplayFate : std::uint8_t {
+    scored = 0,     // finished: scored
+    abandoned = 1,  // not scored
+    unfinished = 2, // the stream stops before the final whistle: not scored
+    unusable = 3,   // no setup, or the engine refused the setup
+};
+
+struct MatchReplay {
+    std::uint64_t match_id = 0;
+    ReplayFate fate = ReplayFate::unusable;
+    std::string problem;                   // why unusable
+    Outcome result = Outcome::draw;        // regulation result, when scored
+    std::array<int, 2> regulation_goals{};
+    // Forecast per bucket and forecaster; empty where the match never reached the minute.
+    std::array<std::array<std::optional<Forecast>, kForecasters>, kBuckets> forecasts{};
+    std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
+    std::optional<Timeline> timeline;
+};
+
+// `messages`: the match's setup first, then its feed in arrival order.
+MatchReplay replay_match(const std::vector<InboundMessage>& messages, const ModelParams& params,
+                         const ModelParams& baseline_params, bool keep_timeline);
+
+}  // namespace liveprob::replay

@@ -1,0 +1,129 @@
+#include "liveprob/replay/match_replay.hpp"
+
+#include <exception>
+#include <optional>
+
+#include "liveprob/engine/match.hpp"
+
+namespace liveprob::replay {
+
+const char* forecaster_name(Forecaster f) noexcept {
+    switch (f) {
+        case Forecaster::model: return "model";
+        case Forecaster::fixed_prior: return "fixed_prior";
+        case Forecaster::uniform_timing_no_state: return "uniform_timing_no_state";
+    }
+    return "unknown";
+}
+
+ModelParams uniform_timing_no_state(const ModelParams& params) {
+    ModelParams flat = params;
+    flat.timing.first_half_start = flat.timing.first_half_end = 1.0;
+    flat.timing.second_half_start = flat.timing.second_half_end = 1.0;
+    flat.timing.stoppage_factor = 1.0;
+    flat.timing.extra_time_factor = 1.0;
+    flat.score_state = {1.0, 1.0, 1.0};
+    flat.red_cards = {1.0, 1.0, 0};
+    return flat;
+}
+
+namespace {
+
+Forecast forecast_of(const Outputs& out) { return {out.p_home, out.p_draw, out.p_away}; }
+
+// The clock at which a bucket's forecast is read: its minute of the running clock, in the
+// half that minute belongs to (45:00 is the end of the first half's nominal time).
+MatchClock bucket_clock(const CompetitionFormat& format, int minute) {
+    const auto ms = static_cast<std::uint32_t>(minute) * 60'000U;
+    return {minute <= format.half_minutes ? Period::first_half : Period::second_half, ms};
+}
+
+double minutes_of(const MatchClock& clock) { return static_cast<double>(clock.clock_ms) / 60'000.0; }
+
+void mark(Timeline& timeline, const InboundMessage& m) {
+    const double minute = minutes_of(m.header.clock);
+    if (const auto* goal = std::get_if<Goal>(&m.body)) {
+        timeline.marks.push_back({minute, TimelineMark::Kind::goal, goal->side});
+    } else if (const auto* red = std::get_if<RedCard>(&m.body)) {
+        timeline.marks.push_back({minute, TimelineMark::Kind::red_card, red->side});
+    } else if (std::holds_alternative<GoalCancelled>(m.body)) {
+        timeline.marks.push_back({minute, TimelineMark::Kind::goal_cancelled, Side::home});
+    }
+}
+
+}  // namespace
+
+MatchReplay replay_match(const std::vector<InboundMessage>& messages, const ModelParams& params,
+                         const ModelParams& baseline_params, bool keep_timeline) {
+    MatchReplay out;
+    if (messages.empty() || !std::holds_alternative<MatchSetup>(messages.front().body)) {
+        out.problem = "no match setup before the feed";
+        if (!messages.empty()) out.match_id = messages.front().header.match_id;
+        return out;
+    }
+    out.match_id = messages.front().header.match_id;
+    const auto& setup = std::get<MatchSetup>(messages.front().body);
+    std::optional<Match> model, baseline;
+    try {
+        model.emplace(out.match_id, setup, params);
+        baseline.emplace(out.match_id, setup, baseline_params);
+    } catch (const std::exception& e) {
+        out.problem = e.what();
+        return out;
+    }
+    if (keep_timeline) out.timeline = Timeline{setup.home_name, setup.away_name, {}, {}};
+
+    auto record_bucket = [&](int bucket) {
+        auto& slot = out.forecasts[static_cast<std::size_t>(bucket)];
+        slot[static_cast<std::size_t>(Forecaster::model)] = forecast_of(model->outputs());
+        slot[static_cast<std::size_t>(Forecaster::uniform_timing_no_state)] = forecast_of(baseline->outputs());
+    };
+    // Kick-off: the pre-match forecast, which the fixed-prior baseline keeps for every bucket.
+    record_bucket(0);
+    const Forecast prior = forecast_of(model->outputs());
+    if (out.timeline) out.timeline->points.push_back({0.0, prior});
+
+    int next_bucket = 1;
+    for (std::size_t i = 1; i < messages.size(); ++i) {
+        const auto& m = messages[i];
+        while (next_bucket < kBuckets) {
+            const auto at = bucket_clock(setup.format, kBucketMinutes[static_cast<std::size_t>(next_bucket)]);
+            // A bucket is read before the first message after its minute, or before the end
+            // of play that comes exactly at it.
+            const bool ends_play = std::holds_alternative<PeriodEnd>(m.body) || std::holds_alternative<FinalWhistle>(m.body);
+            const bool reached = clock_before(at, m.header.clock) || (ends_play && !clock_before(m.header.clock, at));
+            if (!reached || model->outputs().status == MatchStatus::finished ||
+                model->outputs().status == MatchStatus::abandoned) {
+                break;
+            }
+            model->advance_to(at);
+            baseline->advance_to(at);
+            record_bucket(next_bucket++);
+            if (out.timeline) out.timeline->points.push_back({minutes_of(model->priced_clock()), forecast_of(model->outputs())});
+        }
+        const auto verdict = model->apply(m).verdict;
+        baseline->apply(m);
+        ++out.messages;
+        if (verdict == Verdict::rejected) ++out.rejected;
+        if (verdict == Verdict::duplicate) ++out.duplicates;
+        if (verdict == Verdict::late) ++out.late;
+        if (out.timeline && (verdict == Verdict::accepted || verdict == Verdict::late)) {
+            mark(*out.timeline, m);
+            if (model->outputs().status != MatchStatus::finished && model->outputs().status != MatchStatus::shootout) {
+                out.timeline->points.push_back({minutes_of(m.header.clock), forecast_of(model->outputs())});
+            }
+        }
+    }
+    for (auto& slot : out.forecasts) slot[static_cast<std::size_t>(Forecaster::fixed_prior)] =
+        slot[static_cast<std::size_t>(Forecaster::model)] ? std::optional<Forecast>(prior) : std::nullopt;
+
+    const auto status = model->outputs().status;
+    out.fate = status == MatchStatus::finished    ? ReplayFate::scored
+               : status == MatchStatus::abandoned ? ReplayFate::abandoned
+                                                  : ReplayFate::unfinished;
+    out.regulation_goals = model->state().regulation_goals;
+    out.result = outcome_of(out.regulation_goals[0], out.regulation_goals[1]);
+    return out;
+}
+
+}  // namespace liveprob::replay
