@@ -309,7 +309,7 @@ TEST_CASE("a slow reader gets the latest value of each match, not every value", 
     CHECK(counter(gateway.port(), "frames_conflated") > 0);
 }
 
-TEST_CASE("a client past the send-queue cap is closed with code 4001; others carry on", "[gateway]") {
+TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on", "[gateway]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
