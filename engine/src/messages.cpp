@@ -1,11 +1,7 @@
 #include "liveprob/engine/messages.hpp"
+#include "liveprob/engine/overloaded.hpp"
 
 namespace liveprob {
-
-namespace {
-template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
-template <class... Fs> overloaded(Fs...) -> overloaded<Fs...>;  // clang 14 needs the guide
-}  // namespace
 
 const char* kind_name(const MessageBody& body) noexcept {
     return std::visit(overloaded{

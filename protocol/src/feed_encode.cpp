@@ -1,5 +1,6 @@
 // InboundMessage -> FeedMessage buffer, written as it is: checks belong to the reader.
 #include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/engine/overloaded.hpp"
 #include "liveprob/wire/feed_generated.h"
 
 namespace liveprob::protocol {
@@ -8,8 +9,6 @@ namespace {
 
 namespace w = liveprob::wire;
 using BodyRef = std::pair<w::Body, flatbuffers::Offset<void>>;
-
-template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
 
 w::Side wire_side(Side s) { return static_cast<w::Side>(static_cast<std::uint8_t>(s)); }
 w::Period wire_period(Period p) { return static_cast<w::Period>(static_cast<std::uint8_t>(p)); }

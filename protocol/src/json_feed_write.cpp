@@ -1,5 +1,6 @@
 // InboundMessage -> one JSON line, and the match clock's text form.
 #include <charconv>
+#include "liveprob/engine/overloaded.hpp"
 
 #include <fmt/format.h>
 
@@ -8,8 +9,6 @@
 namespace liveprob::protocol {
 
 namespace {
-
-template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
 
 // JSON string escaping: quote, backslash and control characters.
 std::string quoted(std::string_view text) {

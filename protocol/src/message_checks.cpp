@@ -1,4 +1,5 @@
 #include "liveprob/protocol/message_checks.hpp"
+#include "liveprob/engine/overloaded.hpp"
 
 #include <cmath>
 #include <fmt/format.h>
@@ -6,8 +7,6 @@
 namespace liveprob::protocol {
 
 namespace {
-
-template <class... Fs> struct overloaded : Fs... { using Fs::operator()...; };
 
 using Problem = std::optional<MessageProblem>;
 
