@@ -25,6 +25,8 @@ JournalWriter::JournalWriter(const std::string& path, JournalSync sync,
     : path_(path), sync_(sync), sync_interval_(sync_interval), last_sync_(std::chrono::steady_clock::now()) {
     fd_ = ::open(path.c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
     if (fd_ < 0) throw JournalError(fmt::format("journal {}: cannot open for append: {}", path, os_error()));
+    end_offset_ = ::lseek(fd_, 0, SEEK_END);
+    if (end_offset_ < 0) end_offset_ = 0;  // a device (tests use /dev/full) has no end
 }
 
 JournalWriter::~JournalWriter() {
@@ -53,11 +55,24 @@ void JournalWriter::append(std::span<const std::uint8_t> frame) {
     // either the whole frame or a torn one that replay detects.
     buffer_.clear();
     protocol::append_frame(buffer_, frame, kMaxJournalFrameBytes);
-    write_all(buffer_.data(), buffer_.size());
+    try {
+        write_all(buffer_.data(), buffer_.size());
+        if (sync_ == JournalSync::every_message) {
+            dirty_ = true;
+            sync();
+        }
+    } catch (const JournalError&) {
+        // Disk full or an I/O error part-way through: cut the frame off again, so the journal
+        // holds exactly the messages the service applied, and a later frame (once space
+        // returns) does not follow a torn one that replay stops at. If the cut fails too,
+        // replay stops at the torn frame and says so.
+        if (::ftruncate(fd_, end_offset_) != 0) { /* the write error below says enough */ }
+        throw;
+    }
+    end_offset_ += static_cast<off_t>(buffer_.size());
     ++frames_;
     bytes_ += buffer_.size();
-    dirty_ = true;
-    if (sync_ == JournalSync::every_message) sync();
+    dirty_ = sync_ != JournalSync::every_message;
 }
 
 void JournalWriter::sync() {
@@ -76,7 +91,8 @@ JournalReplayReport replay_journal(const std::string& path,
                                    bool truncate_tail) {
     JournalReplayReport report;
     std::error_code ec;
-    if (!std::filesystem::exists(path, ec)) return report;
+    // Nothing to replay from a missing file, nor from a device or pipe (which has no history).
+    if (!std::filesystem::is_regular_file(path, ec)) return report;
     const std::vector<std::uint8_t> bytes = protocol::read_byte_file(path);
     protocol::FrameCursor cursor(bytes, kMaxJournalFrameBytes);
     while (const auto frame = cursor.next()) {

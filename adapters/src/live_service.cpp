@@ -196,7 +196,13 @@ void LiveService::Impl::stop(const char* why) {
     ingest->stop();
     snapshot->stop();
     if (zap) zap->stop();
-    if (journal) journal->sync();
+    if (journal) {
+        try {
+            journal->sync();
+        } catch (const JournalError& e) {
+            spdlog::error("{}", e.what());
+        }
+    }
     publish_counters();  // the final figures, on the topic and in the log
     io.stop();
 }
@@ -234,8 +240,18 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
         return;
     }
     // Written before it is applied: what the engine has seen, the journal has.
+    // A message that cannot be journalled (disk full) is not applied either: the state stays
+    // one that a restart can rebuild. It is counted and logged; the feed's resend, or the next
+    // message once space returns, goes on from there.
     if (!from_journal && journal) {
-        journal->append(bytes);
+        try {
+            journal->append(bytes);
+        } catch (const JournalError& e) {
+            const std::uint64_t failed = ++counters.journal_write_failed;
+            if (failed <= 10 || failed % 1000 == 0)
+                spdlog::error("{}; message not applied ({} so far)", e.what(), failed);
+            return;
+        }
         ++counters.journal_frames;
     }
     touched.clear();
@@ -381,7 +397,11 @@ void LiveService::Impl::schedule_journal_sync() {
     sync_timer.expires_after(std::chrono::milliseconds(config.journal_sync_interval_ms));
     sync_timer.async_wait([this](const boost::system::error_code& ec) {
         if (ec || stopping) return;
-        journal->sync_if_due(SteadyClock::now());
+        try {
+            journal->sync_if_due(SteadyClock::now());
+        } catch (const JournalError& e) {  // the frames are written; only durability is late
+            spdlog::error("{}", e.what());
+        }
         schedule_journal_sync();
     });
 }

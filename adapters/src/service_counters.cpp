@@ -43,6 +43,7 @@ void list_counters(const ServiceCounters& s, const MatchCounters& e, CounterList
     add("journal.frames", s.journal_frames);
     add("journal.replayed", s.journal_replayed);
     add("journal.torn_bytes", s.journal_torn_bytes);
+    add("journal.write_failed", s.journal_write_failed);
     add("curve.accepted", s.curve_accepted);
     add("curve.refused", s.curve_refused);
     add("matches", s.matches);

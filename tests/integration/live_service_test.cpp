@@ -332,3 +332,33 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
     CHECK(rss_after - rss_before < 8 * 1024);
     CHECK(serve.process().wait(0ms) == std::nullopt);
 }
+
+TEST_CASE("disk full for the journal: messages are counted and not applied, and serve keeps serving",
+          "[integration][serve]") {
+    // /dev/full accepts the open and fails every write with ENOSPC, as a full disk does.
+    const auto dir = scratch_dir("serve-disk-full");
+    ServeProcess serve(dir, "serve", {"--journal", "/dev/full", "--journal-sync", "every_message",
+                                      "--tick-ms", "600000", "--counters-ms", "100"});
+    zmq::context_t context(1);
+    TestSubscriber sub(context, serve.publish(), "match.");
+    REQUIRE(sub.next_counters(20s).has_value());
+
+    zmq::socket_t push(context, zmq::socket_type::push);
+    push.set(zmq::sockopt::linger, 2000);
+    push.connect(serve.ingest());
+    const auto feed = invented_match(606);
+    for (const auto& m : feed) push.send(zmq::buffer(protocol::encode_feed_message(m)));
+
+    std::optional<protocol::CounterSet> counters;
+    const auto deadline = std::chrono::steady_clock::now() + 20s;
+    do {
+        counters = sub.next_counters(5s);
+        REQUIRE(counters.has_value());
+    } while (counter(*counters, "journal.write_failed") < feed.size() && std::chrono::steady_clock::now() < deadline);
+    CHECK(counter(*counters, "journal.write_failed") == feed.size());
+    CHECK(counter(*counters, "journal.frames") == 0);
+    CHECK(counter(*counters, "engine.accepted") == 0);  // nothing applied that a restart could not rebuild
+    CHECK(sub.updates(1, 500ms).empty());                // so nothing was published for the match
+    CHECK(serve.process().wait(0ms) == std::nullopt);   // still running
+    CHECK(serve.log().find("No space left on device") != std::string::npos);
+}

@@ -3,6 +3,8 @@
 // these frames, so replaying the file rebuilds every match exactly.
 #pragma once
 
+#include <sys/types.h>
+
 #include <chrono>
 #include <cstdint>
 #include <functional>
@@ -53,6 +55,7 @@ private:
     std::uint64_t frames_ = 0;
     std::uint64_t bytes_ = 0;
     std::vector<std::uint8_t> buffer_;  // one frame, reused
+    off_t end_offset_ = 0;  // where the next frame starts: a failed write is cut back to it
 };
 
 struct JournalReplayReport {

@@ -29,6 +29,7 @@ struct ServiceCounters {
     std::uint64_t journal_frames = 0;      // appended this run
     std::uint64_t journal_replayed = 0;    // replayed at start
     std::uint64_t journal_torn_bytes = 0;  // cut from the tail at start
+    std::uint64_t journal_write_failed = 0; // not journalled (disk full, I/O error), so not applied
     std::uint64_t curve_refused = 0;
     std::uint64_t curve_accepted = 0;
     std::uint64_t live_matches = 0;
