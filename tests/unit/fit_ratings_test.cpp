@@ -57,7 +57,7 @@ TEST_CASE("many simulated seasons recover the home advantage and the intercept")
     CHECK(r.home_advantage_se < 0.05);
 }
 
-TEST_CASE("--as-of never uses a match on or after the date") {
+TEST_CASE("fitting as of a date never uses a match on or after it") {
     auto games = simulated(8, 2, 3);
     const int cut = games[60].day;
     fit::RatingsFitOptions options;
