@@ -25,7 +25,7 @@ ingest=$(sed -n 's/^ingest=//p' "$out/endpoints")
 publish=$(sed -n 's/^publish=//p' "$out/endpoints")
 snapshot=$(sed -n 's/^snapshot=//p' "$out/endpoints")
 
-"$LIVEPROB" tap --from "$publish" --events-only --format table --timeout-ms 3000 > "$out/tap.txt" 2>&1 &
+"$LIVEPROB" tap --from "$publish" --events-only --format table --timeout-ms 3000 > "$out/tap.txt" 2>"$out/tap.err" &
 tap_pid=$!
 sleep 0.5  # let the subscription reach serve before the first message
 first_round=$(ls "$out/streams/league" | head -n 10)
@@ -35,8 +35,9 @@ done
 wait "$tap_pid" || true  # tap stops once the feed has been quiet for 3 s
 echo "tap received $(grep -c . "$out/tap.txt") lines; the last few:"
 tail -n 8 "$out/tap.txt"
-echo "== late joiner: the snapshot of every live match"
-"$LIVEPROB" tap --from "$publish" --snapshot "$snapshot" --snapshot-only --format table | tail -n 5 || true
+last_match=$(tail -n 1 "$out/tap.txt" | awk '{print $1}')
+echo "== late joiner: the snapshot socket's latest state of match $last_match"
+"$LIVEPROB" tap --from "$publish" --snapshot "$snapshot" --snapshot-only --match "$last_match" --format table || true
 kill "$serve_pid"; wait "$serve_pid" 2>/dev/null || true
 trap - EXIT
 
