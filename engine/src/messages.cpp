@@ -1,4 +1,5 @@
 #include "liveprob/engine/messages.hpp"
+#include "liveprob/engine/outputs.hpp"
 #include "liveprob/engine/overloaded.hpp"
 
 namespace liveprob {
@@ -31,6 +32,18 @@ const char* period_name(Period p) noexcept {
         case Period::extra_second: return "extra_second";
         case Period::shootout: return "shootout";
         case Period::finished: return "finished";
+    }
+    return "unknown";
+}
+
+const char* status_name(MatchStatus status) noexcept {
+    switch (status) {
+        case MatchStatus::not_started: return "not_started";
+        case MatchStatus::in_play: return "in_play";
+        case MatchStatus::interval: return "interval";
+        case MatchStatus::shootout: return "shootout";
+        case MatchStatus::finished: return "finished";
+        case MatchStatus::abandoned: return "abandoned";
     }
     return "unknown";
 }

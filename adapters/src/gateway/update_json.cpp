@@ -6,18 +6,6 @@
 
 namespace liveprob::gateway {
 
-const char* status_name(MatchStatus status) noexcept {
-    switch (status) {
-        case MatchStatus::not_started: return "not_started";
-        case MatchStatus::in_play: return "in_play";
-        case MatchStatus::interval: return "interval";
-        case MatchStatus::shootout: return "shootout";
-        case MatchStatus::finished: return "finished";
-        case MatchStatus::abandoned: return "abandoned";
-    }
-    return "unknown";
-}
-
 std::string render_update_json(const GatewayUpdate& update) {
     const Outputs& o = update.outputs;
     std::string out;

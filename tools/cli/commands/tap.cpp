@@ -43,18 +43,6 @@ std::int64_t now_us() {
         .count();
 }
 
-const char* status_name(MatchStatus s) {
-    switch (s) {
-        case MatchStatus::not_started: return "not_started";
-        case MatchStatus::in_play: return "in_play";
-        case MatchStatus::interval: return "interval";
-        case MatchStatus::shootout: return "shootout";
-        case MatchStatus::finished: return "finished";
-        case MatchStatus::abandoned: return "abandoned";
-    }
-    return "unknown";
-}
-
 // Doubles with 17 significant digits: the text gives back the exact published value.
 std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
     const Outputs& o = u.outputs;

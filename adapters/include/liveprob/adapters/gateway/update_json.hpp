@@ -20,8 +20,6 @@ struct GatewayUpdate {
     Outputs outputs;
 };
 
-const char* status_name(MatchStatus status) noexcept;
-
 // {"kind":"update","match_id":7,...}: numbers are printed in their shortest form that reads
 // back to the same double, so a client sees exactly what the engine published.
 std::string render_update_json(const GatewayUpdate& update);
