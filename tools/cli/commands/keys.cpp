@@ -9,7 +9,7 @@ namespace {
 
 const Registration registration{{
     "keys",
-    "Write a CURVE key pair (<name>.public and <name>.secret) for serve, a feed or a subscriber",
+    "write a CURVE key pair (<name>.public and <name>.secret) for serve, a feed or a subscriber",
     [](CLI::App& sub) -> std::function<int()> {
         auto directory = std::make_shared<std::string>(".");
         auto name = std::make_shared<std::string>();

@@ -7,7 +7,7 @@
 namespace {
 
 const liveprob::cli::Registration registration{{
-    "relay", "Forward every shard's updates (and route snapshot requests) through one endpoint",
+    "relay", "forward every shard's updates (and route snapshot requests) through one endpoint",
     [](CLI::App& app) {
         auto config = std::make_shared<liveprob::adapters::RelayConfig>();
         auto timeout_ms = std::make_shared<int>(1000);

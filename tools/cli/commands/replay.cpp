@@ -62,7 +62,7 @@ void draw_progress(std::size_t done, std::size_t total, std::chrono::steady_cloc
 
 const Registration registration{{
     "replay",
-    "Replay recorded streams through the engine and write a calibration report",
+    "replay recorded streams through the engine and write a calibration report",
     [](CLI::App& sub) -> std::function<int()> {
         auto o = std::make_shared<ReplayOptions>();
         sub.add_option("streams", o->streams, "stream files or directories of them")->required();

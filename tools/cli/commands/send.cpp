@@ -120,7 +120,7 @@ int run_send(const SendFlags& f) {
 
 const Registration registration{{
     "send",
-    "Push a feed file (JSON lines or a recorded stream) to a service's ingest endpoint",
+    "push a feed file (JSON lines or a recorded stream) to a service's ingest endpoint",
     [](CLI::App& sub) -> std::function<int()> {
         auto f = std::make_shared<SendFlags>();
         sub.add_option("--to", f->to, "ingest endpoint, e.g. tcp://127.0.0.1:7430")->required();

@@ -64,7 +64,7 @@ int run_serve(const ServeFlags& f) {
 
 const Registration registration{{
     "serve",
-    "Run the live service: ingest feed messages, publish probabilities, answer snapshots",
+    "run the live service: ingest feed messages, publish probabilities, answer snapshots",
     [](CLI::App& sub) -> std::function<int()> {
         auto f = std::make_shared<ServeFlags>();
         sub.add_option("--config", f->config_file, "JSON configuration file (flags override it)")

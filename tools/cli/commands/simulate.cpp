@@ -21,7 +21,7 @@ struct SimulateOptions {
 
 const Registration registration{{
     "simulate",
-    "Write the invented demo league's season and cup as recorded streams (one file per match)",
+    "write the invented demo league's season and cup as recorded streams (one file per match)",
     [](CLI::App& sub) -> std::function<int()> {
         auto o = std::make_shared<SimulateOptions>();
         sub.add_option("--out", o->out_dir, "directory for the streams")->required();

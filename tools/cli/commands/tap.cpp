@@ -179,7 +179,7 @@ int run_tap(const TapFlags& f) {
 
 const Registration registration{{
     "tap",
-    "Subscribe to a service and print its updates (table or JSON lines), optionally with latency",
+    "subscribe to a service and print its updates (table or JSON lines), optionally with latency",
     [](CLI::App& sub) -> std::function<int()> {
         auto f = std::make_shared<TapFlags>();
         sub.add_option("--from", f->from, "publish endpoint of serve (or relay)")->required();
