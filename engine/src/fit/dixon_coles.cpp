@@ -128,15 +128,7 @@ public:
             const double ih = g.w * lh, ia = g.w * la;
             const bool home_term = !g.neutral;
             // η_home = μ + h + a_home − d_away
-            g_x_[g.home] += sh;
-            g_y_[g.away] -= sh;
-            g_y_[mu] += sh;
-            a_diag_[g.home] += ih;
-            b_(g.home, g.away) -= ih;
-            b_(g.home, mu) += ih;
-            k_(g.away, g.away) += ih;
-            k_(g.away, mu) -= ih;
-            k_(mu, mu) += ih;
+            add_score_term(g.home, g.away, mu, sh, ih);
             if (home_term) {
                 g_y_[h] += sh;
                 b_(g.home, h) += ih;
@@ -145,15 +137,7 @@ public:
                 k_(h, h) += ih;
             }
             // η_away = μ + a_away − d_home
-            g_x_[g.away] += sa;
-            g_y_[g.home] -= sa;
-            g_y_[mu] += sa;
-            a_diag_[g.away] += ia;
-            b_(g.away, g.home) -= ia;
-            b_(g.away, mu) += ia;
-            k_(g.home, g.home) += ia;
-            k_(g.home, mu) -= ia;
-            k_(mu, mu) += ia;
+            add_score_term(g.away, g.home, mu, sa, ia);
         }
         // Constraint rows: Σ attack = 0 (ν_attack), Σ defence = 0 (ν_defence).
         b_.col(n_ + 2).setOnes();
@@ -228,6 +212,20 @@ public:
     int teams() const { return n_; }
 
 private:
+    // One side's linear predictor μ + a_attacker − d_defender: its score `score` and
+    // information `info` added to the gradient and to the blocks of the Newton system.
+    void add_score_term(int attacker, int defender, int mu, double score, double info) {
+        g_x_[attacker] += score;
+        g_y_[defender] -= score;
+        g_y_[mu] += score;
+        a_diag_[attacker] += info;
+        b_(attacker, defender) -= info;
+        b_(attacker, mu) += info;
+        k_(defender, defender) += info;
+        k_(defender, mu) -= info;
+        k_(mu, mu) += info;
+    }
+
     std::vector<Game> games_;
     int n_;
     Eigen::VectorXd precision_;
