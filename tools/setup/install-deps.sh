@@ -4,7 +4,7 @@
 set -euo pipefail
 
 packages=(
-  build-essential cmake ninja-build pkg-config git
+  build-essential cmake ninja-build pkg-config git ccache
   clang libclang-rt-14-dev                      # sanitizer and fuzzer runtimes
   libzmq3-dev cppzmq-dev libsodium-dev          # ZeroMQ (with CURVE) and its C++ binding
   flatbuffers-compiler libflatbuffers-dev python3-flatbuffers
