@@ -38,21 +38,6 @@ std::optional<bool> flag(std::string_view s) {
     return std::nullopt;
 }
 
-template <typename Row>
-void for_each_line(const std::string& text, Row&& row) {
-    std::size_t start = 0;
-    int line = 0;
-    while (start < text.size()) {
-        std::size_t end = text.find('\n', start);
-        if (end == std::string::npos) end = text.size();
-        ++line;
-        std::string_view view(text.data() + start, end - start);
-        if (!view.empty() && view.back() == '\r') view.remove_suffix(1);
-        if (!view.empty()) row(line, view);
-        start = end + 1;
-    }
-}
-
 std::string first_line(const std::string& text) {
     const auto end = text.find_first_of("\r\n");
     return text.substr(0, end);
@@ -65,7 +50,7 @@ ResultsRead read_project_results(const std::string& path) {
     ResultsRead out;
     DuplicateFilter filter;
     const std::vector<std::string> expected{"date", "home", "away", "home_goals", "away_goals", "neutral"};
-    for_each_line(text, [&](int line, std::string_view view) {
+    for_each_text_line(text, [&](int line, std::string_view view) {
         auto fail = [&](const std::string& why) {
             throw std::runtime_error(fmt::format("{}:{}: {}", path, line, why));
         };
@@ -109,7 +94,7 @@ ResultsRead read_international_results(const std::string& path) {
     ResultsRead out;
     DuplicateFilter filter;
     int c_date = -1, c_home = -1, c_away = -1, c_hs = -1, c_as = -1, c_neutral = -1;
-    for_each_line(text, [&](int line, std::string_view view) {
+    for_each_text_line(text, [&](int line, std::string_view view) {
         std::vector<std::string> f;
         try {
             f = split_csv_line(view);

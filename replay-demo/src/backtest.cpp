@@ -73,17 +73,19 @@ BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const Bac
     };
     const unsigned threads = std::max(1U, std::min<unsigned>(options.threads, static_cast<unsigned>(std::max<std::size_t>(1, matches.size()))));
     std::vector<std::jthread> pool;
-    for (unsigned t = 1; t < threads; ++t) pool.emplace_back(work);
     if (options.progress) {
-        // The calling thread reports progress while the pool works, then joins in.
-        while (!pool.empty() && done.load() < matches.size() && next.load() < matches.size()) {
+        // Every worker gets a thread of its own; the calling thread only reports (it sleeps).
+        for (unsigned t = 0; t < threads; ++t) pool.emplace_back(work);
+        while (done.load() < matches.size()) {
             options.progress(done.load(), matches.size());
             std::this_thread::sleep_for(std::chrono::milliseconds(100));
         }
+        options.progress(matches.size(), matches.size());
+    } else {
+        for (unsigned t = 1; t < threads; ++t) pool.emplace_back(work);
+        work();
     }
-    work();
     pool.clear();  // joins
-    if (options.progress) options.progress(matches.size(), matches.size());
 
     BacktestResult total;
     for (const auto& replay : replays) add_up(total, replay, options.timelines);

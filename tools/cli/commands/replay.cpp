@@ -1,7 +1,5 @@
 // `liveprob replay STREAMS... --report DIR`: replays recorded streams through the engine in
 // process on all cores and writes the calibration report (index.html and report.json).
-#include <unistd.h>
-
 #include <chrono>
 #include <filesystem>
 #include <iostream>
@@ -14,6 +12,7 @@
 #include "liveprob/adapters/params_file.hpp"
 #include "liveprob/replay/backtest.hpp"
 #include "liveprob/replay/report_html.hpp"
+#include "progress_bar.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -46,20 +45,6 @@ std::vector<std::filesystem::path> stream_files(const std::vector<std::string>& 
     return files;
 }
 
-// "[#####.....]  812/1520  2,034 matches/s  ETA 0:01" on a terminal, redrawn in place.
-void draw_progress(std::size_t done, std::size_t total, std::chrono::steady_clock::time_point start) {
-    const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    const double rate = seconds > 0 ? static_cast<double>(done) / seconds : 0.0;
-    const double eta = rate > 0 ? static_cast<double>(total - done) / rate : 0.0;
-    constexpr std::size_t width = 30;
-    const std::size_t filled = total ? width * done / total : width;
-    std::cerr << fmt::format("\r[{}{}] {}/{}  {:.0f} matches/s  ETA {}:{:02}", std::string(filled, '#'),
-                             std::string(width - filled, '.'), done, total, rate,
-                             static_cast<int>(eta) / 60, static_cast<int>(eta) % 60)
-              << std::flush;
-    if (done == total) std::cerr << "\n";
-}
-
 const Registration registration{{
     "replay",
     "replay recorded streams through the engine and write a calibration report",
@@ -77,9 +62,8 @@ const Registration registration{{
             options.threads = o->threads ? o->threads : std::max(1U, std::thread::hardware_concurrency());
             options.timelines = o->timelines;
             const auto start = std::chrono::steady_clock::now();
-            if (!o->quiet && ::isatty(STDERR_FILENO)) {
-                options.progress = [start](std::size_t done, std::size_t total) { draw_progress(done, total, start); };
-            }
+            ProgressBar bar("replay", "matches", o->quiet);
+            if (bar.drawing()) options.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
             std::vector<InboundMessage> all;
             std::uint64_t bad_records = 0;
             const auto files = stream_files(o->streams);
