@@ -1,0 +1,61 @@
+// `liveprob convert`: a recorded stream (or a journal) from one form to the other: size-prefixed
+// frames <-> JSON lines. The input's form is told by its content. A damaged record stops the
+// conversion before anything is written, unless --skip-bad (then it is counted and left out).
+#include <fmt/format.h>
+
+#include <filesystem>
+#include <iostream>
+#include <memory>
+
+#include "command_registry.hpp"
+#include "liveprob/replay/recorded_stream.hpp"
+
+namespace liveprob::cli {
+namespace {
+
+struct ConvertOptions {
+    std::string in, out, form;
+    bool skip_bad = false;
+};
+
+int run_convert(const ConvertOptions& o) {
+    replay::StreamForm form{};
+    try {
+        form = replay::parse_stream_form(o.form);
+    } catch (const std::invalid_argument& e) {
+        throw UsageError(e.what());
+    }
+    if (std::filesystem::exists(o.out) && std::filesystem::equivalent(o.in, o.out)) {
+        throw UsageError("--out must not be the input file");
+    }
+    const auto contents = replay::read_stream(o.in);
+    if (contents.bad_records && !o.skip_bad) {
+        std::cerr << fmt::format("liveprob convert: {} bad record(s), nothing written (--skip-bad leaves them out); "
+                                 "first: {}\n",
+                                 contents.bad_records, contents.first_problem);
+        return kExitFailure;
+    }
+    replay::write_stream(o.out, contents.messages, form);
+    std::cout << fmt::format("{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
+                             form == replay::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
+                             contents.bad_records ? fmt::format(" ({} bad record(s) left out; first: {})",
+                                                                contents.bad_records, contents.first_problem)
+                                                  : "");
+    return kExitOk;
+}
+
+const Registration registration{{
+    "convert",
+    "convert a recorded stream or journal between size-prefixed frames and JSON lines",
+    [](CLI::App& sub) -> std::function<int()> {
+        auto o = std::make_shared<ConvertOptions>();
+        sub.add_option("input", o->in, "stream or journal file (either form)")->required()->check(CLI::ExistingFile);
+        sub.add_option("--out", o->out, "file to write")->required();
+        sub.add_option("--form", o->form, "form to write: frames or json")->required();
+        sub.add_flag("--skip-bad", o->skip_bad, "leave damaged records out (counted) instead of stopping");
+        return [o] { return run_convert(*o); };
+    },
+}};
+
+}  // namespace
+}  // namespace liveprob::cli
