@@ -2,16 +2,24 @@
 //  - independent: no score-state effect (red cards only scale the rates, which stay constant
 //    until the next event), so each side's goals to come are Poisson (θ known) or negative
 //    binomial (θ Gamma-distributed), in closed form;
-//  - mixture: score-state effects couple the sides; the score chain is solved per pair of
-//    Gauss–Laguerre strength nodes and mixed with the quadrature weights.
+//  - mixture: score-state effects couple the sides, so the score chain is solved and mixed
+//    over the strengths. With θ_H ~ Gamma(α_H, β_H) and θ_A ~ Gamma(α_A, β_A) write
+//    θ_X = φ_X / β_X with φ_X ~ Gamma(α_X, 1): then s = φ_H + φ_A ~ Gamma(α_H + α_A, 1) and
+//    ρ = φ_H / s ~ Beta(α_H, α_A) are independent, and the generator is s · Q(ρ). The factor
+//    s is integrated exactly (the chain's jump count becomes negative binomial,
+//    jump_counts.hpp), and only ρ is left to Gauss–Jacobi quadrature: one chain solve per
+//    node instead of one per pair of nodes. With a known strength (κ = ∞) on either side the
+//    chain is solved per Gauss–Laguerre node of the other.
 #include "liveprob/engine/pricing.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <span>
 #include <stdexcept>
 
 #include "liveprob/engine/intensity.hpp"
+#include "liveprob/engine/jump_counts.hpp"
 #include "liveprob/engine/quadrature.hpp"
 #include "liveprob/engine/score_chain.hpp"
 #include "liveprob/engine/shootout.hpp"
@@ -118,46 +126,215 @@ int tie_offset(const PricingState& st) {
 // overflow bucket counts at the score where it left the grid (a lower bound on later goals);
 // its total is `tail_mass`.
 void summarise(const ScoreGrid& g, const PricingState& st, Outputs& out) {
-    const int gh = st.goals[0];
-    const int ga = st.goals[1];
-    out.p_home = out.p_draw = out.p_away = 0.0;
-    out.p_over.fill(0.0);
-    out.p_both_score = out.expected_home_goals = out.expected_away_goals = 0.0;
-    auto add = [&](int home, int away, double v) {
-        if (home > away) out.p_home += v;
-        else if (home < away) out.p_away += v;
-        else out.p_draw += v;
-        for (int k = 0; k < kTotalsLines; ++k) {
-            if (home + away > totals_line(k)) out.p_over[at(k)] += v;
-        }
-        if (home >= 1 && away >= 1) out.p_both_score += v;
-        out.expected_home_goals += v * home;
-        out.expected_away_goals += v * away;
+    // One pass gathers the mass by goals added per side (rows, columns), by difference and by
+    // total; every output is a sum over one of those.
+    constexpr int kSide = kGrid + 1;  // goals added 0 .. kGrid, kGrid being an overflow bucket
+    std::array<double, kSide> by_home{}, by_away{};
+    std::array<double, 2 * kSide - 1> by_diff{}, by_total{};  // i - j + kGrid, i + j
+    auto add = [&](int i, int j, double v) {
+        by_home[at(i)] += v;
+        by_away[at(j)] += v;
+        by_diff[at(i - j + kGrid)] += v;
+        by_total[at(i + j)] += v;
     };
     for (int i = 0; i < kGrid; ++i) {
-        for (int j = 0; j < kGrid; ++j) add(gh + i, ga + j, g.cell[at(i)][at(j)]);
+        for (int j = 0; j < kGrid; ++j) add(i, j, g.cell[at(i)][at(j)]);
+        add(kGrid, i, g.home_overflow[at(i)]);
+        add(i, kGrid, g.away_overflow[at(i)]);
     }
-    for (int k = 0; k < kGrid; ++k) {
-        add(gh + kGrid, ga + k, g.home_overflow[at(k)]);
-        add(gh + k, ga + kGrid, g.away_overflow[at(k)]);
+    const int gh = st.goals[0];
+    const int ga = st.goals[1];
+    double total = 0.0;
+    out.p_home = out.p_draw = out.p_away = 0.0;
+    for (int d = -kGrid; d <= kGrid; ++d) {
+        const double v = by_diff[at(d + kGrid)];
+        const int final_diff = gh - ga + d;
+        (final_diff > 0 ? out.p_home : final_diff < 0 ? out.p_away : out.p_draw) += v;
+        total += v;
     }
+    out.p_over.fill(0.0);
+    for (int t = 0; t < 2 * kSide - 1; ++t) {
+        for (int k = 0; k < kTotalsLines; ++k) {
+            if (gh + ga + t > totals_line(k)) out.p_over[at(k)] += by_total[at(t)];
+        }
+    }
+    out.expected_home_goals = out.expected_away_goals = 0.0;
+    for (int k = 0; k < kSide; ++k) {
+        out.expected_home_goals += by_home[at(k)] * (gh + k);
+        out.expected_away_goals += by_away[at(k)] * (ga + k);
+    }
+    // Both score: everything but "home ends on 0" and "away ends on 0" (inclusion-exclusion).
+    out.p_both_score = total - (gh == 0 ? by_home[0] : 0.0) - (ga == 0 ? by_away[0] : 0.0) +
+                       (gh == 0 && ga == 0 ? g.cell[0][0] : 0.0);
     out.goals_added = g.cell;
     out.tail_mass = g.overflow_total();
 }
 
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+// The strength mixture as weighted nodes. A node multiplies the home and away rates by its
+// factors; `jump_shape` is the shape of the chain's jump count (infinite: Poisson, the
+// strengths fixed at the node; finite: the common Gamma factor s integrated out).
+class MixtureNodes {
+public:
+    struct Node {
+        double weight = 1.0;
+        double home_factor = 1.0;
+        double away_factor = 1.0;
+        double jump_shape = kInf;
+    };
+    // ρ ~ Beta(α_H, α_A) by `rule`: factors ρ/β_H and (1 − ρ)/β_A per unit of s.
+    static MixtureNodes ratio(const QuadratureRule& rule, const PricingState& st) {
+        MixtureNodes m;
+        m.ratio_ = &rule;
+        m.st_ = &st;
+        return m;
+    }
+    // θ_H and θ_A on their own Gauss–Laguerre rules (one node θ = 1 for a known side).
+    static MixtureNodes product(const QuadratureRule& home, const QuadratureRule& away, const PricingState& st) {
+        MixtureNodes m;
+        m.home_ = &home;
+        m.away_ = &away;
+        m.st_ = &st;
+        return m;
+    }
+    int count() const noexcept { return ratio_ ? ratio_->count : home_->count * away_->count; }
+    Node node(int k) const noexcept {
+        const PricingState& st = *st_;
+        if (ratio_) {
+            const double rho = ratio_->node[at(k)];
+            return {ratio_->weight[at(k)], rho / st.theta_rate[0], (1.0 - rho) / st.theta_rate[1],
+                    st.theta_shape[0] + st.theta_shape[1]};
+        }
+        const int kh = k / away_->count;
+        const int ka = k % away_->count;
+        return {home_->weight[at(kh)] * away_->weight[at(ka)], theta(*home_, kh, 0), theta(*away_, ka, 1), kInf};
+    }
+
+private:
+    double theta(const QuadratureRule& q, int k, int side) const noexcept {
+        const double shape = st_->theta_shape[at(side)];
+        return std::isinf(shape) ? 1.0 : q.node[at(k)] / st_->theta_rate[at(side)];
+    }
+    const QuadratureRule* ratio_ = nullptr;
+    const QuadratureRule* home_ = nullptr;
+    const QuadratureRule* away_ = nullptr;
+    const PricingState* st_ = nullptr;
+};
+
+// Sign of the tie (tie0 + i - j) over a distribution of goals added; overflow buckets count
+// at the score where they left the grid.
+SignSplit tie_split(const ScoreGrid& g, int tie0) {
+    SignSplit tie;
+    auto count = [&tie](int d, double v) {
+        if (d > 0) tie.home += v;
+        else if (d < 0) tie.away += v;
+        else tie.level += v;
+    };
+    for (int i = 0; i < kGrid; ++i) {
+        for (int j = 0; j < kGrid; ++j) count(tie0 + i - j, g.cell[at(i)][at(j)]);
+        count(tie0 + kGrid - i, g.home_overflow[at(i)]);
+        count(tie0 + i - kGrid, g.away_overflow[at(i)]);
+    }
+    return tie;
+}
+
+struct AdvanceSplit {
+    double home = 0.0;
+    double away = 0.0;
+};
+
+// P(advance) contributed by a tie level at the end of regulation, given the score chain's
+// level trace (entry n: the node's weight × P(n regulation jumps) × level mass after them).
+// Extra time runs on the difference chain from level with the same rates; its jump count,
+// given n regulation jumps, is `regulation.after(n, et_scale)` (for a Gamma factor, its
+// posterior after the regulation jumps: the strengths persist into extra time). A tie still
+// level goes to the shoot-out.
+// Scratch for extra_time_after_level, by extra-time jump count k.
+struct ExtraTimeScratch {
+    std::array<double, kMaxJumps> weights{};
+    std::array<double, kMaxJumps> value{};  // P(home advances | k jumps from level), shoot-out included
+    std::array<double, kMaxJumps> counts{};
+};
+
+AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, const ClassRates& rates,
+                                    const JumpCounts& regulation, double et_scale, double shootout_home,
+                                    ExtraTimeScratch& x) {
+    AdvanceSplit out;
+    if (level_by_jumps.empty()) return out;
+    // The count after the most regulation jumps is the widest: its length bounds the extra-time
+    // jumps that matter for every n (the others' tails are lighter).
+    const int most = static_cast<int>(level_by_jumps.size()) - 1;
+    const std::size_t span = jump_weights(regulation.after(most, et_scale), 1.0, x.weights);
+    difference_values(rates, 0, shootout_home, std::span(x.value).first(span));
+    // Every level tie is settled one way or the other: P(away advances) = mass - P(home).
+    auto add = [&](double level_mass, const double* w, std::size_t kn) {
+        double home = 0.0, total = 0.0;
+        for (std::size_t k = 0; k < kn; ++k) {
+            home += w[k] * x.value[k];
+            total += w[k];
+        }
+        out.home += level_mass * home;
+        out.away += level_mass * (total - home);
+    };
+    if (regulation.is_poisson()) {  // extra time's count does not depend on regulation's
+        double level_mass = 0.0;
+        for (double v : level_by_jumps) level_mass += v;
+        add(level_mass, x.weights.data(), jump_weights(regulation.after(0, et_scale), 1.0, x.weights));
+        return out;
+    }
+    // Negative binomial: given n regulation jumps the extra-time count is NB(A + n, c2):
+    // P_n(k) = Γ(A+n+k) / (Γ(A+n) k!) q^k (1-q)^(A+n), q = c2 / (1 + c2). Kept for all k at
+    // once and moved from n to n + 1 by the factor (A+n+k) / (A+n) · (1-q): vector arithmetic,
+    // no transcendental function per term.
+    const JumpCounts first = regulation.after(0, et_scale);
+    const double q = first.scale / (1.0 + first.scale);
+    double* p = x.weights.data();
+    p[0] = std::exp(-first.shape * std::log1p(first.scale));
+    if (p[0] < 1e-280) {  // far outside the model's range: the general (log-space) routine
+        for (std::size_t n = 0; n < level_by_jumps.size(); ++n) {
+            const std::size_t kn = jump_weights(regulation.after(static_cast<int>(n), et_scale), 1.0, x.weights);
+            add(level_by_jumps[n], x.weights.data(), std::min(kn, span));
+        }
+        return out;
+    }
+    double* ks = x.counts.data();  // k as a double, so that the loop below vectorizes
+    for (std::size_t k = 0; k < span; ++k) ks[k] = static_cast<double>(k);
+    for (std::size_t k = 0; k + 1 < span; ++k) p[k + 1] = p[k] * (first.shape + ks[k]) / (ks[k] + 1.0) * q;
+    for (std::size_t n = 0; n < level_by_jumps.size(); ++n) {
+        if (n > 0) {
+            const double shape = first.shape + static_cast<double>(n - 1);  // A + n - 1
+            const double base = (1.0 - q) / shape;
+            for (std::size_t k = 0; k < span; ++k) p[k] *= (shape + ks[k]) * base;
+        }
+        add(level_by_jumps[n], p, span);
+    }
+    return out;
+}
 }  // namespace
 
 struct PricingModel::Workspace {
     ModelParams params;
     double shootout_before_toss = 0.5;
     ScoreChain chain;
-    ScoreGrid node_grid;
     ScoreGrid mix;
     std::array<GammaQuadrature, 2> quad{};
     std::array<double, 2> quad_shape{std::numeric_limits<double>::quiet_NaN(),
                                      std::numeric_limits<double>::quiet_NaN()};
+    QuadratureRule ratio_rule{};  // Beta(α_H, α_A) nodes for the strength ratio ρ
+    std::array<double, 2> ratio_shapes{std::numeric_limits<double>::quiet_NaN(),
+                                       std::numeric_limits<double>::quiet_NaN()};
     std::array<Pmf, 2> pmf{}, cdf{};
     std::array<Pmf, 2> et_pmf{}, et_cdf{};
+    ExtraTimeScratch extra_time;
+
+    const QuadratureRule& ratio_nodes(double home_shape, double away_shape) {
+        if (!(ratio_shapes[0] == home_shape && ratio_shapes[1] == away_shape)) {
+            beta_quadrature(home_shape, away_shape, params.quadrature_nodes, ratio_rule);
+            ratio_shapes = {home_shape, away_shape};
+        }
+        return ratio_rule;
+    }
 
     // Strength nodes θ_k and weights of one side (θ = 1 when the shape is infinite). The
     // Gauss–Laguerre nodes depend on the shape only and are cached: between goals only the
@@ -174,9 +351,6 @@ struct PricingModel::Workspace {
             quad_shape[at(side)] = shape;
         }
         return q;
-    }
-    static double theta(const GammaQuadrature& q, int k, double shape, double rate) {
-        return std::isinf(shape) ? 1.0 : q.node[at(k)] / rate;
     }
 };
 
@@ -252,26 +426,28 @@ void PricingModel::price(const PricingState& st, Outputs& out) {
     const bool independent = base.home[0] == base.home[1] && base.home[1] == base.home[2] &&
                              base.away[0] == base.away[1] && base.away[1] == base.away[2];
 
-    const GammaQuadrature& qh = w.nodes(0, st.theta_shape[0]);
-    const GammaQuadrature& qa = w.nodes(1, st.theta_shape[1]);
+    // Strengths: both Gamma-distributed (the usual case: the ratio rule), or at least one
+    // known (κ = ∞: a product of Gauss–Laguerre rules, one node for a known side).
+    const bool ratio_mixture = !std::isinf(st.theta_shape[0]) && !std::isinf(st.theta_shape[1]);
+    const MixtureNodes nodes = ratio_mixture ? MixtureNodes::ratio(w.ratio_nodes(st.theta_shape[0], st.theta_shape[1]), st)
+                                             : MixtureNodes::product(w.nodes(0, st.theta_shape[0]), w.nodes(1, st.theta_shape[1]), st);
 
-    // Next goal before the end of the current phase: the state holds until then, so per
-    // strength node it is the first of two exponential clocks, mixed over the nodes.
+    // Next goal before the end of the current phase: the state holds until then, so per node
+    // it is the first of two exponential clocks (with the factor s integrated out in closed
+    // form for the ratio rule: P(some goal) = 1 - (1 + qτ)^-(α_H + α_A)).
     {
         const auto c0 = at(diff_class(tie0));
         double home = 0.0, away = 0.0;
-        for (int kh = 0; kh < qh.count; ++kh) {
-            const double th = Workspace::theta(qh, kh, st.theta_shape[0], st.theta_rate[0]);
-            for (int ka = 0; ka < qa.count; ++ka) {
-                const double ta = Workspace::theta(qa, ka, st.theta_shape[1], st.theta_rate[1]);
-                const double a = base.home[c0] * th;
-                const double b = base.away[c0] * ta;
-                const double q = a + b;
-                if (!(q > 0.0)) continue;
-                const double wt = qh.weight[at(kh)] * qa.weight[at(ka)] * -std::expm1(-q * ph.now);
-                home += wt * a / q;
-                away += wt * b / q;
-            }
+        for (int k = 0; k < nodes.count(); ++k) {
+            const MixtureNodes::Node nd = nodes.node(k);
+            const double a = base.home[c0] * nd.home_factor;
+            const double b = base.away[c0] * nd.away_factor;
+            const double q = a + b;
+            if (!(q > 0.0)) continue;
+            const double any = nd.jump_shape == kInf ? -std::expm1(-q * ph.now)
+                                                     : -std::expm1(-nd.jump_shape * std::log1p(q * ph.now));
+            home += nd.weight * any * a / q;
+            away += nd.weight * any * b / q;
         }
         out.next_goal_home = home;
         out.next_goal_away = away;
@@ -338,54 +514,35 @@ void PricingModel::price(const PricingState& st, Outputs& out) {
         return;
     }
 
-    // Score-state effects: solve the chain per pair of strength nodes and mix.
+    // Score-state effects: solve the chain per strength node and mix.
     ScoreGrid& mix = w.mix;
     mix = ScoreGrid{};
-    double adv_home = 0.0, adv_away = 0.0;
-    for (int kh = 0; kh < qh.count; ++kh) {
-        const double th = Workspace::theta(qh, kh, st.theta_shape[0], st.theta_rate[0]);
-        for (int ka = 0; ka < qa.count; ++ka) {
-            const double ta = Workspace::theta(qa, ka, st.theta_shape[1], st.theta_rate[1]);
-            const double wt = qh.weight[at(kh)] * qa.weight[at(ka)];
-            ClassRates r;
-            for (std::size_t c = 0; c < kDiffClasses; ++c) {
-                r.home[c] = base.home[c] * th;
-                r.away[c] = base.away[c] * ta;
-            }
-            ScoreGrid& g = w.node_grid;
-            w.chain.solve(r, tie0, ph.now, g);
-            for (std::size_t i = 0; i < kGrid; ++i) {
-                for (std::size_t j = 0; j < kGrid; ++j) mix.cell[i][j] += wt * g.cell[i][j];
-                mix.home_overflow[i] += wt * g.home_overflow[i];
-                mix.away_overflow[i] += wt * g.away_overflow[i];
-            }
-            if (!out.has_advance) continue;
-            SignSplit tie;
-            auto count = [&tie](int d, double v) {
-                if (d > 0) tie.home += v;
-                else if (d < 0) tie.away += v;
-                else tie.level += v;
-            };
-            for (int i = 0; i < kGrid; ++i) {
-                for (int j = 0; j < kGrid; ++j) count(tie0 + i - j, g.cell[at(i)][at(j)]);
-                count(tie0 + kGrid - i, g.home_overflow[at(i)]);
-                count(tie0 + i - kGrid, g.away_overflow[at(i)]);
-            }
-            double level_home = shootout_home;
-            double level_away = 1.0 - shootout_home;
-            if (ph.extra_time > 0.0) {
-                const DifferenceOutcome et = solve_difference(r, 0, ph.extra_time);
-                level_home = et.home_ahead + et.level * shootout_home;
-                level_away = et.away_ahead + et.level * (1.0 - shootout_home);
-            }
-            adv_home += wt * (tie.home + tie.level * level_home);
-            adv_away += wt * (tie.away + tie.level * level_away);
+    const bool extra_time_follows = out.has_advance && ph.extra_time > 0.0;
+    const int level = 0;  // the tie is level where tie0 + i - j == 0
+    double level_home = 0.0, level_away = 0.0;  // a level tie's share of P(advance)
+    for (int k = 0; k < nodes.count(); ++k) {
+        const MixtureNodes::Node nd = nodes.node(k);
+        ClassRates r;
+        for (std::size_t c = 0; c < kDiffClasses; ++c) {
+            r.home[c] = base.home[c] * nd.home_factor;
+            r.away[c] = base.away[c] * nd.away_factor;
         }
+        const double lam = r.max_total();
+        const JumpCounts counts{nd.jump_shape, lam * ph.now};
+        w.chain.add(r, tie0, counts, nd.weight, mix, extra_time_follows ? &level : nullptr);
+        if (!extra_time_follows) continue;
+        // Level at full time: extra time from level, its jump count conditioned on the
+        // regulation jumps (the strengths persist), then the shoot-out.
+        const AdvanceSplit et = extra_time_after_level(w.chain.level_trace(), r, counts, lam * ph.extra_time,
+                                                       shootout_home, w.extra_time);
+        level_home += et.home;
+        level_away += et.away;
     }
     summarise(mix, st, out);
     if (out.has_advance) {
-        out.p_advance_home = adv_home;
-        out.p_advance_away = adv_away;
+        const SignSplit tie = tie_split(mix, tie0);
+        out.p_advance_home = tie.home + (extra_time_follows ? level_home : tie.level * shootout_home);
+        out.p_advance_away = tie.away + (extra_time_follows ? level_away : tie.level * (1.0 - shootout_home));
     }
 }
 

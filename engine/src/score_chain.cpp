@@ -6,173 +6,247 @@
 namespace liveprob {
 namespace {
 
-// Poisson weights are summed until the remainder is below this; each chunk of uniformization
-// covers at most kMaxChunkMean expected jumps so that exp(-m) never underflows.
-constexpr double kPoissonRemainder = 1e-16;
-constexpr double kMaxChunkMean = 200.0;
+constexpr int kSpan = kGrid;  // largest goal difference added that the grid holds
+constexpr std::size_t kGridSize = static_cast<std::size_t>(kGrid);
 
-// Poisson remainder bound after term n (n + 1 > m): Σ_{k>n} p_k <= p_n q / (1 - q), q = m/(n+2).
-bool remainder_small(double p_n, double m, int n) {
-    const double q = m / (n + 2);
-    return q < 1.0 && p_n * q / (1.0 - q) < kPoissonRemainder;
-}
+std::size_t at(int k) { return static_cast<std::size_t>(k); }
 
-double max_total_rate(const ClassRates& r) {
-    double lam = 0.0;
-    for (int c = 0; c < kDiffClasses; ++c) lam = std::max(lam, r.home[static_cast<std::size_t>(c)] + r.away[static_cast<std::size_t>(c)]);
-    return lam;
+// Per-jump probabilities of a home goal, an away goal and no goal (a self-loop of the
+// uniformized chain) in each difference class.
+struct StepProbabilities {
+    std::array<double, kDiffClasses> home{}, away{}, stay{};
+    StepProbabilities(const ClassRates& rates, double lam) {
+        for (std::size_t c = 0; c < kDiffClasses; ++c) {
+            home[c] = rates.home[c] / lam;
+            away[c] = rates.away[c] / lam;
+            stay[c] = 1.0 - home[c] - away[c];
+        }
+    }
+};
+
+// The chain on the goal difference alone: states -kSpan .. kSpan relative to the start (array
+// index d + kSpan + 1, with an empty state either side), the two ends absorbing. Each state
+// keeps `stay_` of its mass and receives `from_below_` of the state below (a home goal) and
+// `from_above_` of the state above (an away goal), so a step is one branch-free pass.
+class DifferenceChain {
+public:
+    DifferenceChain(const ClassRates& rates, int start_diff) : start_diff_(start_diff) {
+        stay_.fill(1.0);
+        const double lam = rates.max_total();
+        if (lam > 0.0) {
+            const StepProbabilities p(rates, lam);
+            for (int d = -kSpan + 1; d < kSpan; ++d) {  // the ends keep stay = 1
+                const auto c = at(diff_class(start_diff + d));
+                stay_[slot(d)] = p.stay[c];
+                from_below_[slot(d + 1)] = p.home[c];
+                from_above_[slot(d - 1)] = p.away[c];
+            }
+        }
+        now_[slot(0)] = 1.0;
+    }
+    void step() noexcept {
+        std::array<double, kSlots> next{};
+        for (std::size_t x = 1; x + 1 < kSlots; ++x) {
+            next[x] = stay_[x] * now_[x] + from_below_[x] * now_[x - 1] + from_above_[x] * now_[x + 1];
+        }
+        now_ = next;
+    }
+    DifferenceOutcome outcome() const noexcept {
+        // The tie start_diff + d is level at d = -start_diff: above it home is ahead.
+        const int level_d = std::clamp(-start_diff_, -kSpan - 1, kSpan + 1);
+        DifferenceOutcome out;
+        for (int d = -kSpan; d < level_d; ++d) out.away_ahead += now_[slot(d)];
+        for (int d = level_d + 1; d <= kSpan; ++d) out.home_ahead += now_[slot(d)];
+        if (level_d >= -kSpan && level_d <= kSpan) out.level = now_[slot(level_d)];
+        return out;
+    }
+
+private:
+    static constexpr std::size_t kSlots = 2 * kSpan + 3;
+    static std::size_t slot(int d) { return at(d + kSpan + 1); }
+    int start_diff_;
+    std::array<double, kSlots> stay_{}, from_below_{}, from_above_{}, now_{};
+};
+
+constexpr std::size_t kStepWidth = 20;  // ScoreChain's plane width (checked in add())
+
+// One jump (number n >= 1) of the uniformized chain over the plane, accumulating the new
+// distribution with weight w. The hot loop of the whole engine: branch-free inner loops, so
+// that they vectorize; compiled twice (AVX2 and baseline x86-64, picked at load time). No FMA:
+// both versions round identically, so a replay reproduces live figures to the last bit on any
+// machine. Rows past n cannot hold mass yet and are left alone; within a row every cell is
+// computed (a shorter, ragged range would cost more in loop overhead than it saves).
+__attribute__((target_clones("avx2", "default")))
+void uniformized_step(const double* __restrict stay, const double* __restrict from_home,
+                      const double* __restrict from_away, const double* __restrict v,
+                      double* __restrict nv, double* __restrict acc, double w, std::size_t n) {
+    constexpr std::size_t width = kStepWidth;
+    auto cells = [&](std::size_t begin, std::size_t end) {
+        for (std::size_t x = begin; x < end; ++x) {
+            const double y = stay[x] * v[x] + from_home[x] * v[x - width] + from_away[x] * v[x - 1];
+            nv[x] = y;
+            acc[x] += w * y;
+        }
+    };
+    cells(width, (std::min(n, kGridSize) + 2) * width);
 }
 
 }  // namespace
 
+double ClassRates::max_total() const noexcept {
+    double lam = 0.0;
+    for (std::size_t c = 0; c < kDiffClasses; ++c) lam = std::max(lam, home[c] + away[c]);
+    return lam;
+}
+
 double ScoreGrid::overflow_total() const noexcept {
     double t = 0.0;
-    for (int k = 0; k < kGrid; ++k) t += home_overflow[static_cast<std::size_t>(k)] + away_overflow[static_cast<std::size_t>(k)];
+    for (std::size_t k = 0; k < kGridSize; ++k) t += home_overflow[k] + away_overflow[k];
     return t;
 }
 
 void ScoreChain::solve(const ClassRates& rates, int start_diff, double exposure, ScoreGrid& out) {
     out = ScoreGrid{};
-    const double lam = max_total_rate(rates);
-    if (!(exposure > 0.0) || !(lam > 0.0)) {
-        out.cell[0][0] = 1.0;
-        return;
+    add(rates, start_diff, JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0, out);
+}
+
+void ScoreChain::set_step_probabilities(const ClassRates& rates, int start_diff) {
+    const StepProbabilities p(rates, rates.max_total());
+    // By m = j - i + kGrid (0 .. 2 kGrid), the diagonal a cell lies on: the home side's goal
+    // difference there is start_diff + kGrid - m.
+    constexpr std::size_t kDiagonals = 2 * kGridSize + 1;
+    std::array<double, kDiagonals> stay{}, home{}, away{};
+    for (std::size_t m = 0; m < kDiagonals; ++m) {
+        const auto c = at(diff_class(start_diff + kGrid - static_cast<int>(m)));
+        stay[m] = p.stay[c];
+        home[m] = p.home[c];
+        away[m] = p.away[c];
     }
-    for (auto* plane : {&stay_, &home_go_, &away_go_, &now_}) {
-        for (auto& row : *plane) row.fill(0.0);
+    // Row i holds diagonals m = kGrid - i .. 2 kGrid - i, in order: contiguous copies.
+    for (std::size_t i = 0; i <= kGridSize; ++i) {
+        const std::size_t m0 = kGridSize - i;
+        double* s_row = &stay_[(i + 1) * kWidth + 1];
+        double* h_row = &from_home_[(i + 1) * kWidth + 1];
+        double* a_row = &from_away_[(i + 1) * kWidth + 1];
+        std::copy_n(&stay[m0], kGridSize + 1, s_row);
+        // From (i - 1, j) by a home goal (diagonal m + 1), from (i, j - 1) by an away goal
+        // (diagonal m - 1), only from grid cells: overflow buckets send nothing.
+        if (i > 0) std::copy_n(&home[m0 + 1], kGridSize, h_row);
+        if (i < kGridSize) std::copy_n(&away[m0], kGridSize, a_row + 1);
+        s_row[kGridSize] = 1.0;  // column j == kGrid: overflow bucket
     }
-    std::array<double, kDiffClasses> home_step{}, away_step{}, stay_step{};
-    for (std::size_t c = 0; c < kDiffClasses; ++c) {
-        home_step[c] = rates.home[c] / lam;
-        away_step[c] = rates.away[c] / lam;
-        stay_step[c] = 1.0 - home_step[c] - away_step[c];
+    std::fill_n(&stay_[(kGridSize + 1) * kWidth + 1], kGridSize + 1, 1.0);  // row i == kGrid
+}
+
+std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpCounts& counts,
+                            double weight, ScoreGrid& out, const int* level_diff) {
+    const double lam = rates.max_total();
+    // The level diagonal j = i - level_k, if asked for.
+    const int level_k = level_diff ? *level_diff - start_diff : 0;
+    const bool trace = level_diff != nullptr;
+    level_count_ = 0;
+    if (!(lam > 0.0) || !(counts.scale > 0.0)) {  // no goals can come
+        out.cell[0][0] += weight;
+        if (trace) level_[level_count_++] = level_k == 0 ? weight : 0.0;
+        return 1;
     }
-    for (int i = 0; i < kGrid; ++i) {
-        for (int j = 0; j < kGrid; ++j) {
-            const auto c = static_cast<std::size_t>(diff_class(start_diff + i - j));
-            const auto pi = static_cast<std::size_t>(i + 1);
-            const auto pj = static_cast<std::size_t>(j + 1);
-            home_go_[pi][pj] = home_step[c];
-            away_go_[pi][pj] = away_step[c];
-            stay_[pi][pj] = stay_step[c];
+    static_assert(kWidth == kStepWidth);
+    const std::size_t jumps = jump_weights(counts, weight, weights_);
+    set_step_probabilities(rates, start_diff);
+
+    // Cells not yet reachable must read zero: clear the planes (a few kilobytes) rather than
+    // track what an earlier solve left behind.
+    a_.fill(0.0);
+    b_.fill(0.0);
+    sum_.fill(0.0);
+    // Where the level diagonal's cells (j = i - level_k) lie in a plane.
+    std::array<std::size_t, kGridSize + 1> level_at{};
+    std::size_t level_cells = 0;
+    for (int i = 0; trace && i <= kGrid; ++i) {
+        const int j = i - level_k;
+        if (j >= 0 && j <= kGrid) level_at[level_cells++] = (at(i) + 1) * kWidth + at(j) + 1;
+    }
+    Plane* now = &a_;
+    Plane* next = &b_;
+    (*now)[kWidth + 1] = 1.0;  // (0, 0)
+    sum_[kWidth + 1] = weights_[0];
+    if (trace) level_[level_count_++] = level_k == 0 ? weights_[0] : 0.0;
+
+    for (std::size_t n = 1; n < jumps; ++n) {
+        const double w = weights_[n];
+        uniformized_step(stay_.data(), from_home_.data(), from_away_.data(), now->data(), next->data(),
+                         sum_.data(), w, n);
+        if (trace) {
+            const double* nv = next->data();
+            double level_mass = 0.0;
+            for (std::size_t c = 0; c < level_cells; ++c) level_mass += nv[level_at[c]];
+            level_[level_count_++] = w * level_mass;
+        }
+        std::swap(now, next);
+    }
+
+    // Back to the grid and its overflow buckets.
+    for (std::size_t i = 0; i <= kGridSize; ++i) {
+        const double* row = &sum_[(i + 1) * kWidth + 1];
+        if (i == kGridSize) {
+            for (std::size_t j = 0; j < kGridSize; ++j) out.home_overflow[j] += row[j];
+            continue;
+        }
+        for (std::size_t j = 0; j < kGridSize; ++j) out.cell[i][j] += row[j];
+        out.away_overflow[i] += row[kGridSize];
+    }
+    return jumps;
+}
+
+void difference_values(const ClassRates& rates, int start_diff, double level_value, std::span<double> out) {
+    // Backwards: u_0 is the value of each difference, u_{n+1} = M u_n with M the one-jump
+    // transition matrix, and the answer after n jumps is u_n at the start. One pass per n.
+    constexpr int kSlots = 2 * kSpan + 3;  // differences -kSpan .. kSpan, an empty slot either side
+    auto slot = [](int d) { return at(d + kSpan + 1); };
+    std::array<double, kSlots> stay{}, up{}, down{}, u{}, next{};
+    stay.fill(1.0);  // the absorbing ends and the empty slots keep their value
+    const double lam = rates.max_total();
+    if (lam > 0.0) {
+        const StepProbabilities p(rates, lam);
+        for (int d = -kSpan + 1; d < kSpan; ++d) {
+            const auto c = at(diff_class(start_diff + d));
+            stay[slot(d)] = p.stay[c];
+            up[slot(d)] = p.home[c];
+            down[slot(d)] = p.away[c];
         }
     }
-    now_[1][1] = 1.0;
-    std::array<double, kGrid> home_leak{}, away_leak{};  // cumulative overflow, absorbing
-    int reach = 0;  // largest i + j that can hold mass
-    double remaining = lam * exposure;
-    while (remaining > 0.0) {
-        const double m = std::min(remaining, kMaxChunkMean);
-        remaining -= m;
-        Plane& acc = next_;  // accumulates Σ p_n v_n for this chunk
-        std::array<double, kGrid> chunk_home{}, chunk_away{};
-        double p = std::exp(-m);
-        for (auto& row : acc) row.fill(0.0);
-        // Σ p_n v_n: the first term here, later ones inside the step loop.
-        for (std::size_t k = 0; k < kGrid; ++k) {
-            chunk_home[k] = p * home_leak[k];
-            chunk_away[k] = p * away_leak[k];
-        }
-        {
-            const int rows = std::min(reach, kGrid - 1);
-            for (int i = 0; i <= rows; ++i) {
-                const auto pi = static_cast<std::size_t>(i + 1);
-                const int cols = std::min(reach - i, kGrid - 1);
-                for (int j = 0; j <= cols; ++j) acc[pi][static_cast<std::size_t>(j + 1)] = p * now_[pi][static_cast<std::size_t>(j + 1)];
-            }
-        }
-        for (int n = 0;; ++n) {
-            // One uniformized step, v <- v (I + Q/Λ), in place from the far corner back so
-            // every read sees the previous step's values; the new values are accumulated
-            // with their Poisson weight in the same pass.
-            p *= m / (n + 1);
-            const int new_reach = std::min(reach + 1, 2 * (kGrid - 1));
-            for (std::size_t j = 0; j < kGrid; ++j) {
-                home_leak[j] += home_go_[kGrid][j + 1] * now_[kGrid][j + 1];
-                away_leak[j] += away_go_[j + 1][kGrid] * now_[j + 1][kGrid];
-                chunk_home[j] += p * home_leak[j];
-                chunk_away[j] += p * away_leak[j];
-            }
-            const int rows = std::min(new_reach, kGrid - 1);
-            for (int i = rows; i >= 0; --i) {
-                const auto pi = static_cast<std::size_t>(i + 1);
-                const int cols = std::min(new_reach - i, kGrid - 1);
-                auto& row = now_[pi];
-                auto& sum = acc[pi];
-                const auto& up = now_[pi - 1];
-                const auto& s = stay_[pi];
-                const auto& h = home_go_[pi - 1];
-                const auto& a = away_go_[pi];
-                for (int jj = cols; jj >= 0; --jj) {
-                    const auto pj = static_cast<std::size_t>(jj + 1);
-                    const double v = s[pj] * row[pj] + h[pj] * up[pj] + a[pj - 1] * row[pj - 1];
-                    row[pj] = v;
-                    sum[pj] += p * v;
-                }
-            }
-            reach = new_reach;
-            if (n + 1 > m && remainder_small(p, m, n + 1)) break;
-        }
-        now_ = acc;
-        home_leak = chunk_home;
-        away_leak = chunk_away;
-        reach = 2 * (kGrid - 1);
+    for (int d = -kSpan; d <= kSpan; ++d) {
+        const int tie = start_diff + d;
+        u[slot(d)] = tie > 0 ? 1.0 : tie == 0 ? level_value : 0.0;
     }
-    for (std::size_t i = 0; i < kGrid; ++i) {
-        for (std::size_t j = 0; j < kGrid; ++j) out.cell[i][j] = now_[i + 1][j + 1];
+    auto step = [&](const double* __restrict from, double* __restrict to) {
+        for (std::size_t x = 1; x + 1 < at(kSlots); ++x) {
+            to[x] = stay[x] * from[x] + up[x] * from[x + 1] + down[x] * from[x - 1];
+        }
+    };
+    for (std::size_t n = 0; n < out.size(); ++n) {
+        if (n > 0) {
+            if (n % 2 == 1) step(u.data(), next.data());
+            else step(next.data(), u.data());
+        }
+        out[n] = (n % 2 == 1 ? next : u)[slot(0)];
     }
-    out.home_overflow = home_leak;
-    out.away_overflow = away_leak;
 }
 
 DifferenceOutcome solve_difference(const ClassRates& rates, int start_diff, double exposure) {
-    // States: difference -kGrid .. +kGrid relative to the start; the two ends absorb.
-    constexpr int kSpan = kGrid;
-    constexpr int kStates = 2 * kSpan + 1;
-    std::array<double, kStates> now{}, acc{};
-    now[kSpan] = 1.0;
-    DifferenceOutcome out;
-    const double lam = max_total_rate(rates);
-    if (!(exposure > 0.0) || !(lam > 0.0)) {
-        acc = now;
-    } else {
-        std::array<double, kStates> up{}, down{};
-        for (int s = 1; s + 1 < kStates; ++s) {
-            const auto c = static_cast<std::size_t>(diff_class(start_diff + s - kSpan));
-            up[static_cast<std::size_t>(s)] = rates.home[c] / lam;
-            down[static_cast<std::size_t>(s)] = rates.away[c] / lam;
-        }
-        double remaining = lam * exposure;
-        while (remaining > 0.0) {
-            const double m = std::min(remaining, kMaxChunkMean);
-            remaining -= m;
-            double p = std::exp(-m);
-            acc.fill(0.0);
-            for (std::size_t s = 0; s < kStates; ++s) acc[s] += p * now[s];
-            for (int n = 0;; ++n) {
-                std::array<double, kStates> next{};
-                for (std::size_t s = 0; s < kStates; ++s) {
-                    const double v = now[s];
-                    next[s] += v * (1.0 - up[s] - down[s]);  // ends: up = down = 0, absorbing
-                    if (s + 1 < kStates) next[s + 1] += v * up[s];
-                    if (s > 0) next[s - 1] += v * down[s];
-                }
-                now = next;
-                p *= m / (n + 1);
-                for (std::size_t s = 0; s < kStates; ++s) acc[s] += p * now[s];
-                if (n + 1 > m && remainder_small(p, m, n + 1)) break;
-            }
-            now = acc;
-        }
+    std::array<double, kMaxJumps> weights{};
+    const std::size_t jumps =
+        jump_weights(JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0, weights);
+    DifferenceChain chain(rates, start_diff);
+    DifferenceOutcome sum;
+    for (std::size_t n = 0; n < jumps; ++n) {
+        if (n > 0) chain.step();
+        const DifferenceOutcome o = chain.outcome();
+        sum.home_ahead += weights[n] * o.home_ahead;
+        sum.level += weights[n] * o.level;
+        sum.away_ahead += weights[n] * o.away_ahead;
     }
-    for (int s = 0; s < kStates; ++s) {
-        const int d = start_diff + s - kSpan;
-        const double v = acc[static_cast<std::size_t>(s)];
-        if (d > 0) out.home_ahead += v;
-        else if (d < 0) out.away_ahead += v;
-        else out.level += v;
-    }
-    return out;
+    return sum;
 }
 
 }  // namespace liveprob

@@ -1,6 +1,6 @@
 // One pricing update: the plain Poisson path (κ = ∞, no state effects) against the full model
 // (score-state effects, a red card, Gamma strength mixture, knock-out with extra time and
-// shoot-out). Each iteration moves the clock on by one second, as the runtime's timer does.
+// shoot-out; the argument is the number of quadrature nodes, 5 being the default). Each iteration moves the clock on by one second, as the runtime's timer does.
 // Allocations are counted by a replaced global operator new and reported per update.
 // The replaced operator new below hands out malloc() memory and operator delete frees it; at
 // -O3 GCC inlines both into the benchmark registrations and mistakes the pair for a mismatch.
@@ -76,6 +76,19 @@ void full_model(benchmark::State& state) {
     run(state, params, st);
 }
 
+// The same position in a league match: no extra time or shoot-out to price.
+void full_model_league(benchmark::State& state) {
+    ModelParams params;
+    PricingState st = base_state();
+    st.goals = {1, 0};
+    st.reds = {0, 1};
+    const StrengthPosterior h = strength_posterior(params, 1, 0.35);
+    const StrengthPosterior a = strength_posterior(params, 0, 0.25);
+    st.theta_shape = {h.shape, a.shape};
+    st.theta_rate = {h.rate, a.rate};
+    run(state, params, st);
+}
+
 // Score effects and red card on a κ = ∞ strength: the score chain alone, one solve.
 void score_chain_only(benchmark::State& state) {
     ModelParams params;
@@ -90,6 +103,7 @@ void score_chain_only(benchmark::State& state) {
 
 BENCHMARK(plain_poisson);
 BENCHMARK(score_chain_only);
-BENCHMARK(full_model)->Arg(6)->Arg(4)->Arg(3);
+BENCHMARK(full_model)->Arg(5)->Arg(6)->Arg(8)->Arg(4);
+BENCHMARK(full_model_league);
 
 BENCHMARK_MAIN();

@@ -63,9 +63,10 @@ struct ModelParams {
     double kappa = 25.0;  // from memory, until fitted
     // Weight of one unit of xG evidence relative to one goal in the strength update.
     double xg_weight = 0.5;  // the project's starting choice (no data here carries xG)
-    // Gauss quadrature nodes per side for the strength mixture (documented accuracy in
-    // engine/README.md).
-    int quadrature_nodes = 6;
+    // Gauss quadrature nodes for the strength mixture: nodes of the strength ratio when both
+    // strengths are Gamma-distributed, per side when one is known (documented accuracy in
+    // engine/README.md: 5 nodes agree with a converged mixture to about 2e-9 at κ = 25).
+    int quadrature_nodes = 5;
 
     static ModelParams plain_poisson() {
         ModelParams p;
