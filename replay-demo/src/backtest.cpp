@@ -37,6 +37,8 @@ void add_up(BacktestResult& total, const MatchReplay& replay, std::size_t timeli
     total.rejected += replay.rejected;
     total.duplicates += replay.duplicates;
     total.late += replay.late;
+    total.evaluations += replay.evaluations;
+    total.invalid_outputs += replay.invalid_outputs;
     switch (replay.fate) {
         case ReplayFate::abandoned: ++total.abandoned; return;
         case ReplayFate::unfinished: ++total.unfinished; return;
@@ -59,7 +61,7 @@ void add_up(BacktestResult& total, const MatchReplay& replay, std::size_t timeli
 }
 }  // namespace
 
-BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options) {
+std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches, const BacktestOptions& options) {
     const ModelParams baseline = uniform_timing_no_state(options.params);
     std::vector<MatchReplay> replays(matches.size());
     std::atomic<std::size_t> next{0}, done{0};
@@ -67,7 +69,7 @@ BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const Bac
     const std::size_t timeline_matches = options.timelines ? options.timelines * 2 : 0;
     auto work = [&] {
         for (std::size_t i = next.fetch_add(1); i < matches.size(); i = next.fetch_add(1)) {
-            replays[i] = replay_match(matches[i], options.params, baseline, i < timeline_matches);
+            replays[i] = replay_match(matches[i], options.params, baseline, {i < timeline_matches, options.every_event});
             done.fetch_add(1, std::memory_order_relaxed);
         }
     };
@@ -86,10 +88,17 @@ BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const Bac
         work();
     }
     pool.clear();  // joins
+    return replays;
+}
 
+BacktestResult sum_replays(const std::vector<MatchReplay>& replays, std::size_t timelines) {
     BacktestResult total;
-    for (const auto& replay : replays) add_up(total, replay, options.timelines);
+    for (const auto& replay : replays) add_up(total, replay, timelines);
     return total;
+}
+
+BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options) {
+    return sum_replays(replay_matches(matches, options), options.timelines);
 }
 
 }  // namespace liveprob::replay

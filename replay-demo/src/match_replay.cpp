@@ -1,5 +1,7 @@
 #include "liveprob/replay/match_replay.hpp"
 
+#include <algorithm>
+#include <cmath>
 #include <exception>
 #include <optional>
 
@@ -31,11 +33,10 @@ namespace {
 
 Forecast forecast_of(const Outputs& out) { return {out.p_home, out.p_draw, out.p_away}; }
 
-// The clock at which a bucket's forecast is read: its minute of the running clock, in the
-// half that minute belongs to (45:00 is the end of the first half's nominal time).
-MatchClock bucket_clock(const CompetitionFormat& format, int minute) {
-    const auto ms = static_cast<std::uint32_t>(minute) * 60'000U;
-    return {minute <= format.half_minutes ? Period::first_half : Period::second_half, ms};
+// Finite, at least -1e-12 (rounding of 1 - x), summing to 1 within 1e-9.
+bool valid(const Outputs& out) {
+    const double sum = out.p_home + out.p_draw + out.p_away;
+    return std::isfinite(sum) && std::abs(sum - 1.0) < 1e-9 && std::min({out.p_home, out.p_draw, out.p_away}) >= -1e-12;
 }
 
 double minutes_of(const MatchClock& clock) { return static_cast<double>(clock.clock_ms) / 60'000.0; }
@@ -53,8 +54,18 @@ void mark(Timeline& timeline, const InboundMessage& m) {
 
 }  // namespace
 
+MatchClock bucket_clock(const CompetitionFormat& format, int bucket) {
+    const int minute = kBucketMinutes[static_cast<std::size_t>(bucket)];
+    const auto ms = static_cast<std::uint32_t>(minute) * 60'000U;
+    return {minute <= format.half_minutes ? Period::first_half : Period::second_half, ms};
+}
+
+bool bucket_passed(const MatchClock& bucket, const MatchClock& message_clock, bool ends_play) {
+    return clock_before(bucket, message_clock) || (ends_play && !clock_before(message_clock, bucket));
+}
+
 MatchReplay replay_match(const std::vector<InboundMessage>& messages, const ModelParams& params,
-                         const ModelParams& baseline_params, bool keep_timeline) {
+                         const ModelParams& baseline_params, ReplayChoices choices) {
     MatchReplay out;
     if (messages.empty() || !std::holds_alternative<MatchSetup>(messages.front().body)) {
         out.problem = "no match setup before the feed";
@@ -71,11 +82,17 @@ MatchReplay replay_match(const std::vector<InboundMessage>& messages, const Mode
         out.problem = e.what();
         return out;
     }
-    if (keep_timeline) out.timeline = Timeline{setup.home_name, setup.away_name, {}, {}};
+    if (choices.keep_timeline) out.timeline = Timeline{setup.home_name, setup.away_name, {}, {}};
 
+    auto evaluate = [&]() -> const Outputs& {
+        const Outputs& o = model->outputs();
+        ++out.evaluations;
+        if (!valid(o)) ++out.invalid_outputs;
+        return o;
+    };
     auto record_bucket = [&](int bucket) {
         auto& slot = out.forecasts[static_cast<std::size_t>(bucket)];
-        slot[static_cast<std::size_t>(Forecaster::model)] = forecast_of(model->outputs());
+        slot[static_cast<std::size_t>(Forecaster::model)] = forecast_of(evaluate());
         slot[static_cast<std::size_t>(Forecaster::uniform_timing_no_state)] = forecast_of(baseline->outputs());
     };
     // Kick-off: the pre-match forecast, which the fixed-prior baseline keeps for every bucket.
@@ -87,12 +104,11 @@ MatchReplay replay_match(const std::vector<InboundMessage>& messages, const Mode
     for (std::size_t i = 1; i < messages.size(); ++i) {
         const auto& m = messages[i];
         while (next_bucket < kBuckets) {
-            const auto at = bucket_clock(setup.format, kBucketMinutes[static_cast<std::size_t>(next_bucket)]);
+            const auto at = bucket_clock(setup.format, next_bucket);
             // A bucket is read before the first message after its minute, or before the end
             // of play that comes exactly at it.
             const bool ends_play = std::holds_alternative<PeriodEnd>(m.body) || std::holds_alternative<FinalWhistle>(m.body);
-            const bool reached = clock_before(at, m.header.clock) || (ends_play && !clock_before(m.header.clock, at));
-            if (!reached || model->outputs().status == MatchStatus::finished ||
+            if (!bucket_passed(at, m.header.clock, ends_play) || model->outputs().status == MatchStatus::finished ||
                 model->outputs().status == MatchStatus::abandoned) {
                 break;
             }
@@ -107,6 +123,7 @@ MatchReplay replay_match(const std::vector<InboundMessage>& messages, const Mode
         if (verdict == Verdict::rejected) ++out.rejected;
         if (verdict == Verdict::duplicate) ++out.duplicates;
         if (verdict == Verdict::late) ++out.late;
+        if (choices.every_event && (verdict == Verdict::accepted || verdict == Verdict::late)) evaluate();
         if (out.timeline && (verdict == Verdict::accepted || verdict == Verdict::late)) {
             mark(*out.timeline, m);
             if (model->outputs().status != MatchStatus::finished && model->outputs().status != MatchStatus::shootout) {

@@ -15,7 +15,7 @@ namespace {
 // The simulator's own constants (invented for the demo; they only need to be plausible).
 constexpr double kBaseGoalsPerMinute = 0.95 / 100.0;
 constexpr double kStep = 0.1;                 // minutes per simulation step (6 seconds)
-constexpr long kStepsPerClockSync = 150;      // the feed confirms its clock every 15 minutes
+constexpr long kStepsPerClockSync = 50;       // the feed confirms its clock every 5 minutes
 constexpr double kFatigue = 0.35;             // rate x (1 + kFatigue * (t/90)^2)
 constexpr double kMomentum = 0.40;            // scorer's rate x (1 + kMomentum e^{-dt/8})
 constexpr double kMomentumMinutes = 8.0;

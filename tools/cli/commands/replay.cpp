@@ -1,5 +1,6 @@
-// `liveprob replay STREAMS... --report DIR`: replays recorded streams through the engine in
-// process on all cores and writes the calibration report (index.html and report.json).
+// `liveprob replay STREAMS... --report DIR`: replays recorded streams and writes the calibration
+// report (index.html and report.json), printing the score table. It runs the engine in process
+// on all cores.
 #include <chrono>
 #include <filesystem>
 #include <iostream>
@@ -23,6 +24,7 @@ struct ReplayOptions {
     std::string params_file;
     unsigned threads = 0;
     std::size_t timelines = 12;
+    bool every_event = false;
     bool quiet = false;
 };
 
@@ -45,6 +47,78 @@ std::vector<std::filesystem::path> stream_files(const std::vector<std::string>& 
     return files;
 }
 
+struct LoadedStreams {
+    std::vector<replay::MatchMessages> matches;
+    std::size_t files = 0;
+    std::uint64_t bad_records = 0;
+};
+
+LoadedStreams load_streams(const std::vector<std::string>& args) {
+    LoadedStreams out;
+    std::vector<InboundMessage> all;
+    const auto files = stream_files(args);
+    for (const auto& file : files) {
+        auto contents = replay::read_stream(file);
+        if (contents.bad_records) {
+            out.bad_records += contents.bad_records;
+            std::cerr << "liveprob replay: " << contents.bad_records << " bad record(s) skipped; first: " << contents.first_problem << "\n";
+        }
+        all.insert(all.end(), std::make_move_iterator(contents.messages.begin()), std::make_move_iterator(contents.messages.end()));
+    }
+    out.files = files.size();
+    out.matches = replay::group_by_match(all);
+    return out;
+}
+
+void print_table(const replay::BacktestResult& result) {
+    using replay::Forecaster;
+    std::cout << fmt::format("{:>5} {:>6} {:>9} {:>9} {:>9} {:>8}\n", "min", "n", "rps", "fixed", "uniform", "ece");
+    for (int b = 0; b < replay::kBuckets; ++b) {
+        std::cout << fmt::format("{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>8.4f}\n", replay::bucket_label(b),
+                                 result.at(b, Forecaster::model).count(), result.at(b, Forecaster::model).mean_rps(),
+                                 result.at(b, Forecaster::fixed_prior).mean_rps(),
+                                 result.at(b, Forecaster::uniform_timing_no_state).mean_rps(),
+                                 result.at(b, Forecaster::model).calibration().expected_calibration_error());
+    }
+}
+
+int run_replay(const ReplayOptions& o) {
+    replay::BacktestOptions options;
+    if (!o.params_file.empty()) options.params = load_params_file(o.params_file);
+    options.threads = o.threads ? o.threads : std::max(1U, std::thread::hardware_concurrency());
+    options.timelines = o.timelines;
+    options.every_event = o.every_event;
+    const auto start = std::chrono::steady_clock::now();
+    const LoadedStreams loaded = load_streams(o.streams);
+
+    replay::BacktestResult result;
+    std::string how;
+    std::vector<std::string> problems;
+    {
+        ProgressBar bar("replay", "matches", o.quiet);
+        if (bar.drawing()) options.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
+        result = replay::run_backtest(loaded.matches, options);
+        problems = result.problems;
+        how = fmt::format("in process on {} thread(s){}", options.threads,
+                          o.every_event ? fmt::format(", the model priced after every event too ({} evaluations, {} "
+                                                      "invalid)",
+                                                      result.evaluations, result.invalid_outputs)
+                                        : "");
+    }
+    const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    replay::ReportHeading heading;
+    heading.source = fmt::format("{} stream file(s), {} bad record(s) skipped; replayed {} in {:.2f} s.", loaded.files,
+                                 loaded.bad_records, how, seconds);
+    replay::write_report(o.report_dir, result, heading);
+    print_table(result);
+    std::cout << fmt::format("{} matches scored ({} abandoned, {} unfinished, {} unusable), replayed {}, in {:.2f} s; "
+                             "report: {}\n",
+                             result.scored, result.abandoned, result.unfinished, result.unusable, how, seconds,
+                             (std::filesystem::path(o.report_dir) / "index.html").string());
+    for (const auto& problem : problems) std::cerr << "liveprob replay: " << problem << "\n";
+    return kExitOk;
+}
+
 const Registration registration{{
     "replay",
     "replay recorded streams through the engine and write a calibration report",
@@ -55,48 +129,9 @@ const Registration registration{{
         sub.add_option("--params", o->params_file, "model parameter file (default: built-in values)");
         sub.add_option("--threads", o->threads, "worker threads (0: every core)")->capture_default_str();
         sub.add_option("--timelines", o->timelines, "per-match timelines drawn in the report")->capture_default_str();
+        sub.add_flag("--every-event", o->every_event, "also price the model after every event, as serve publishes");
         sub.add_flag("--quiet", o->quiet, "no progress bar");
-        return [o] {
-            replay::BacktestOptions options;
-            if (!o->params_file.empty()) options.params = load_params_file(o->params_file);
-            options.threads = o->threads ? o->threads : std::max(1U, std::thread::hardware_concurrency());
-            options.timelines = o->timelines;
-            const auto start = std::chrono::steady_clock::now();
-            ProgressBar bar("replay", "matches", o->quiet);
-            if (bar.drawing()) options.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
-            std::vector<InboundMessage> all;
-            std::uint64_t bad_records = 0;
-            const auto files = stream_files(o->streams);
-            for (const auto& file : files) {
-                auto contents = replay::read_stream(file);
-                if (contents.bad_records) {
-                    bad_records += contents.bad_records;
-                    std::cerr << "liveprob replay: " << contents.bad_records << " bad record(s) skipped; first: " << contents.first_problem << "\n";
-                }
-                all.insert(all.end(), std::make_move_iterator(contents.messages.begin()), std::make_move_iterator(contents.messages.end()));
-            }
-            const auto matches = replay::group_by_match(all);
-            const auto result = replay::run_backtest(matches, options);
-            const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-            replay::ReportHeading heading;
-            heading.source = fmt::format("{} stream file(s), {} bad record(s) skipped; replayed in {:.2f} s on {} thread(s).",
-                                         files.size(), bad_records, seconds, options.threads);
-            replay::write_report(o->report_dir, result, heading);
-            std::cout << fmt::format("{:>5} {:>6} {:>9} {:>9} {:>9} {:>8}\n", "min", "n", "rps", "fixed", "uniform", "ece");
-            for (int b = 0; b < replay::kBuckets; ++b) {
-                std::cout << fmt::format("{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>8.4f}\n", replay::bucket_label(b),
-                                         result.at(b, replay::Forecaster::model).count(),
-                                         result.at(b, replay::Forecaster::model).mean_rps(),
-                                         result.at(b, replay::Forecaster::fixed_prior).mean_rps(),
-                                         result.at(b, replay::Forecaster::uniform_timing_no_state).mean_rps(),
-                                         result.at(b, replay::Forecaster::model).calibration().expected_calibration_error());
-            }
-            std::cout << fmt::format("{} matches scored ({} abandoned, {} unfinished, {} unusable) in {:.2f} s; report: {}\n",
-                                     result.scored, result.abandoned, result.unfinished, result.unusable, seconds,
-                                     (std::filesystem::path(o->report_dir) / "index.html").string());
-            for (const auto& problem : result.problems) std::cerr << "liveprob replay: " << problem << "\n";
-            return kExitOk;
-        };
+        return [o] { return run_replay(*o); };
     },
 }};
 

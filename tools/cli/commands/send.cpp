@@ -12,6 +12,7 @@
 #include <zmq.hpp>
 
 #include "command_registry.hpp"
+#include "liveprob/adapters/feed_pacing.hpp"
 #include "liveprob/adapters/snapshot_client.hpp"
 #include "liveprob/protocol/byte_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
@@ -71,14 +72,6 @@ std::vector<InboundMessage> read_feed(const SendFlags& f) {
     return read_json_lines(f.file);
 }
 
-// How long after the previous message this one is due, by the match clock.
-std::chrono::microseconds clock_gap(const InboundMessage& previous, const InboundMessage& next, double speed) {
-    const MatchClock& a = previous.header.clock;
-    const MatchClock& b = next.header.clock;
-    if (a.period != b.period || b.clock_ms <= a.clock_ms) return std::chrono::microseconds{0};
-    return std::chrono::microseconds(static_cast<std::int64_t>(1000.0 * (b.clock_ms - a.clock_ms) / speed));
-}
-
 int run_send(const SendFlags& f) {
     if (f.speed < 0.0 || f.rate < 0.0) throw UsageError("--speed and --rate must not be negative");
     if (f.speed > 0.0 && f.rate > 0.0) throw UsageError("--speed and --rate are alternatives");
@@ -95,16 +88,11 @@ int run_send(const SendFlags& f) {
     adapters::apply_curve_client(push, keys);
     push.connect(f.to);
 
-    using Clock = std::chrono::steady_clock;
-    const auto start = Clock::now();
-    auto due = start;
+    adapters::FeedPacer pacer = f.rate > 0.0    ? adapters::FeedPacer::at_rate(f.rate)
+                                : f.speed > 0.0 ? adapters::FeedPacer::by_match_clock(f.speed)
+                                                : adapters::FeedPacer::as_fast_as_possible();
     for (std::size_t i = 0; i < messages.size(); ++i) {
-        if (f.rate > 0.0) {
-            due = start + std::chrono::microseconds(static_cast<std::int64_t>(1e6 * static_cast<double>(i) / f.rate));
-        } else if (f.speed > 0.0 && i > 0) {
-            due += clock_gap(messages[i - 1], messages[i], f.speed);
-        }
-        if (due > Clock::now()) std::this_thread::sleep_until(due);
+        pacer.wait_for(messages[i]);
         InboundMessage& m = messages[i];
         if (f.stamp) {
             m.header.source_time_us = std::chrono::duration_cast<std::chrono::microseconds>(

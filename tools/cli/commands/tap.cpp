@@ -14,7 +14,7 @@
 
 #include "command_registry.hpp"
 #include "liveprob/adapters/snapshot_client.hpp"
-#include "liveprob/adapters/topics.hpp"
+#include "liveprob/adapters/update_subscriber.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
 namespace liveprob::cli {
@@ -37,11 +37,6 @@ struct TapFlags {
     std::string server_key;
     std::string client_key;
 };
-
-std::int64_t now_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(std::chrono::system_clock::now().time_since_epoch())
-        .count();
-}
 
 // Doubles with 17 significant digits: the text gives back the exact published value.
 std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
@@ -107,14 +102,11 @@ int run_tap(const TapFlags& f) {
     std::signal(SIGTERM, on_interrupt);
 
     zmq::context_t context(1);
-    zmq::socket_t sub(context, zmq::socket_type::sub);
-    sub.set(zmq::sockopt::linger, 0);
-    sub.set(zmq::sockopt::rcvtimeo, 100);
-    adapters::apply_curve_client(sub, keys);
-    sub.set(zmq::sockopt::subscribe, f.match ? adapters::match_topic_string(*f.match)
-                                             : std::string(adapters::kMatchTopicPrefix));
-    if (f.counters) sub.set(zmq::sockopt::subscribe, std::string(adapters::kCountersTopic));
-    sub.connect(f.from);
+    adapters::SubscriberOptions subscription;
+    subscription.match = f.match;
+    subscription.counters = f.counters;
+    subscription.keys = keys;
+    adapters::UpdateSubscriber sub(context, f.from, subscription);
 
     if (f.format == "table") {
         std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match", "seq", "status",
@@ -135,8 +127,8 @@ int run_tap(const TapFlags& f) {
     std::uint64_t printed = 0;
     auto last_message = std::chrono::steady_clock::now();
     while (!interrupted && (f.count == 0 || printed < f.count)) {
-        zmq::message_t topic;
-        if (!sub.recv(topic, zmq::recv_flags::none)) {
+        const auto received = sub.receive();
+        if (!received) {
             if (f.timeout_ms > 0 &&
                 std::chrono::steady_clock::now() - last_message > std::chrono::milliseconds(f.timeout_ms)) {
                 std::cerr << fmt::format("liveprob tap: error: nothing received for {} ms\n", f.timeout_ms);
@@ -146,28 +138,21 @@ int run_tap(const TapFlags& f) {
             continue;
         }
         last_message = std::chrono::steady_clock::now();
-        const std::int64_t arrived_us = now_us();
-        zmq::message_t body;
-        if (!topic.more() || !sub.recv(body, zmq::recv_flags::none)) continue;
-        const std::span<const std::uint8_t> bytes(body.data<std::uint8_t>(), body.size());
-        if (topic.to_string_view() == adapters::kCountersTopic) {
-            const auto counters = protocol::decode_counters(bytes);
-            if (!counters.ok()) continue;
+        if (received->kind == adapters::ReceivedMessage::Kind::counters) {
             std::string line;
-            for (const auto& [name, value] : counters.value->values) line += fmt::format(" {}={}", name, value);
+            for (const auto& [name, value] : received->counters.values) line += fmt::format(" {}={}", name, value);
             std::cout << "counters:" << line << '\n' << std::flush;
             continue;
         }
-        const auto decoded = protocol::decode_update(bytes);
-        if (!decoded.ok()) {
-            std::cerr << "liveprob tap: dropped an update that does not decode: " << decoded.detail << "\n";
+        if (received->kind == adapters::ReceivedMessage::Kind::undecodable) {
+            std::cerr << "liveprob tap: dropped an update that does not decode: " << received->problem << "\n";
             continue;
         }
-        const protocol::DecodedUpdate& u = *decoded.value;
+        const protocol::DecodedUpdate& u = received->update;
         const bool tick = u.meta.receive_time_us == 0;
         if (f.events_only && tick) continue;
         if (f.latency && !tick) {
-            end_to_end.push_back(arrived_us - u.meta.receive_time_us);
+            end_to_end.push_back(received->arrived_us - u.meta.receive_time_us);
             in_service.push_back(u.meta.publish_time_us - u.meta.receive_time_us);
         }
         print_update(f, u, "live");

@@ -24,6 +24,9 @@ struct BacktestOptions {
     ModelParams params;
     unsigned threads = 1;
     std::size_t timelines = 12;  // keep the timelines of this many scored matches (the first)
+    // Also price the model after every accepted event, as serve publishes it (the whole live
+    // path's work), and check each of those outputs (finite, summing to 1).
+    bool every_event = false;
     // Called from the calling thread about ten times a second, and once at the end.
     std::function<void(std::size_t done, std::size_t total)> progress;
 };
@@ -32,6 +35,8 @@ struct BacktestResult {
     std::array<std::array<ScoreAccumulator, kForecasters>, kBuckets> scores{};
     std::uint64_t matches = 0, scored = 0, abandoned = 0, unfinished = 0, unusable = 0;
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
+    std::uint64_t evaluations = 0;      // model outputs computed (buckets, and events on request)
+    std::uint64_t invalid_outputs = 0;  // of those, not finite, below -1e-12 or not summing to 1 (1e-9)
     std::vector<Timeline> timelines;
     std::vector<std::string> problems;  // one line per unusable match (the first few)
 
@@ -40,6 +45,14 @@ struct BacktestResult {
     }
 };
 
+// Every match replayed in process on `options.threads` threads, one result per match in stream
+// order (the same whatever the number of threads).
+std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches, const BacktestOptions& options);
+
+// Adds up per-match results in order, keeping the timelines of the first `timelines` scored.
+BacktestResult sum_replays(const std::vector<MatchReplay>& replays, std::size_t timelines);
+
+// replay_matches, then sum_replays.
 BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options);
 
 }  // namespace liveprob::replay

@@ -62,11 +62,25 @@ struct MatchReplay {
     // Forecast per bucket and forecaster; empty where the match never reached the minute.
     std::array<std::array<std::optional<Forecast>, kForecasters>, kBuckets> forecasts{};
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
+    std::uint64_t evaluations = 0, invalid_outputs = 0;  // see BacktestResult
     std::optional<Timeline> timeline;
+};
+
+struct ReplayChoices {
+    bool keep_timeline = false;
+    bool every_event = false;  // price the model after every accepted event too
 };
 
 // `messages`: the match's setup first, then its feed in arrival order.
 MatchReplay replay_match(const std::vector<InboundMessage>& messages, const ModelParams& params,
-                         const ModelParams& baseline_params, bool keep_timeline);
+                         const ModelParams& baseline_params, ReplayChoices choices);
+
+// The clock at which a bucket's forecast is read: its minute of the running clock, in the half
+// that minute belongs to (45:00 is the end of the first half's nominal time).
+MatchClock bucket_clock(const CompetitionFormat& format, int bucket);
+
+// Whether the clock has passed a bucket once a message at `message_clock` arrives: it is later,
+// or it ends play (`ends_play`: the end of a period or the final whistle) exactly at the bucket.
+bool bucket_passed(const MatchClock& bucket, const MatchClock& message_clock, bool ends_play);
 
 }  // namespace liveprob::replay
