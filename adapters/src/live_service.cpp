@@ -73,7 +73,9 @@ struct LiveService::Impl {
     void replay();
 
     // Outbound.
-    void publish(LiveMatch& m, bool tick, std::uint32_t compute_ns);
+    // Prices the match into `outputs` and publishes it; compute_ns runs from `started` (the
+    // message's arrival, or the tick's start) to the priced figures.
+    void publish(LiveMatch& m, bool tick, SteadyClock::time_point started);
     static protocol::UpdateMeta meta_of(const LiveMatch& m);
     void answer_snapshots(zmq::socket_t& socket);
     void publish_counters();
@@ -95,6 +97,7 @@ struct LiveService::Impl {
     MatchBook book;
     ServiceCounters counters;
     protocol::UpdateEncoder encoder;
+    Outputs outputs;  // one buffer for every match: a match holds no outputs of its own
     std::vector<std::uint64_t> touched;
     protocol::CounterSet counter_set;
     protocol::SnapshotReplyContents snapshot_reply;
@@ -179,7 +182,7 @@ void LiveService::Impl::start() {
     ingest->start([this](zmq::socket_t& s) { drain_ingest(s); });
     snapshot->start([this](zmq::socket_t& s) { answer_snapshots(s); });
     // The states rebuilt from the journal, republished for subscribers already listening.
-    for (auto& [id, m] : book.matches()) publish(m, false, 0);
+    for (auto& [id, m] : book.matches()) publish(m, false, SteadyClock::now());
     schedule_tick();
     schedule_counters();
     if (journal && config.journal_sync == JournalSync::interval) schedule_journal_sync();
@@ -270,10 +273,8 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
         case BookOutcome::duplicate:
         case BookOutcome::rejected: break;
     }
-    const auto compute_ns = static_cast<std::uint32_t>(
-        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - received_at).count());
     for (const std::uint64_t id : touched) {
-        if (LiveMatch* m = book.find(id)) publish(*m, false, compute_ns);
+        if (LiveMatch* m = book.find(id)) publish(*m, false, received_at);
     }
 }
 
@@ -286,14 +287,16 @@ protocol::UpdateMeta LiveService::Impl::meta_of(const LiveMatch& m) {
     return meta;
 }
 
-void LiveService::Impl::publish(LiveMatch& m, bool tick, std::uint32_t compute_ns) {
+void LiveService::Impl::publish(LiveMatch& m, bool tick, SteadyClock::time_point started) {
     if (replaying) return;  // replayed states are published once, after the replay
+    m.match.price_into(outputs);
     ++m.output_seq;
     protocol::UpdateMeta meta = meta_of(m);
     if (tick) meta.receive_time_us = 0;
-    meta.compute_ns = compute_ns;
+    meta.compute_ns = static_cast<std::uint32_t>(std::min<std::int64_t>(
+        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count(), 0xFFFF'FFFF));
     meta.publish_time_us = wall_time_us();
-    const auto bytes = encoder.encode(meta, m.match.outputs());
+    const auto bytes = encoder.encode(meta, outputs);
     const MatchTopic topic = match_topic(meta.match_id);
     // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
     publisher.send(zmq::const_buffer(topic.data(), topic.size()), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
@@ -324,7 +327,8 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
         snapshot_reply.updates.clear();
         snapshot_reply.error.clear();
         const auto add = [this](const LiveMatch& m) {
-            snapshot_reply.updates.push_back({meta_of(m), m.match.outputs()});
+            m.match.price_into(outputs);
+            snapshot_reply.updates.push_back({meta_of(m), outputs});
         };
         if (!wanted.ok()) {
             ++counters.snapshot_bad_requests;
@@ -355,9 +359,7 @@ void LiveService::Impl::schedule_tick() {
             if (!m.live()) continue;
             const auto started = SteadyClock::now();
             book.advance(m, started);
-            const auto compute_ns = static_cast<std::uint32_t>(
-                std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count());
-            publish(m, true, compute_ns);
+            publish(m, true, started);
         }
         schedule_tick();
     });

@@ -6,7 +6,7 @@
 namespace liveprob::adapters {
 
 bool LiveMatch::live() const noexcept {
-    const MatchStatus s = match.outputs().status;
+    const MatchStatus s = match.state().status;
     return s != MatchStatus::finished && s != MatchStatus::abandoned;
 }
 

@@ -12,7 +12,7 @@ namespace liveprob {
 
 namespace {
 
-constexpr std::size_t kReservedLog = 1024;  // a match's messages, clock syncs included
+constexpr std::size_t kReservedLog = 16;  // grows (geometrically) past the first messages
 constexpr double kMaxPriorGoals = 10.0;      // the pricing model's own bound
 
 const PriorMeans& checked_prior(const MatchSetup& setup) {
@@ -73,16 +73,17 @@ ApplyResult Match::apply(const InboundMessage& message) {
     }
     const std::uint64_t seq = message.header.source_seq;
     const auto pos = std::lower_bound(log_.begin(), log_.end(), seq,
-        [](const LoggedMessage& entry, std::uint64_t s) { return entry.message.header.source_seq < s; });
-    if (pos != log_.end() && pos->message.header.source_seq == seq) {
+        [](const LoggedMessage& entry, std::uint64_t s) { return entry.header.source_seq < s; });
+    if (pos != log_.end() && pos->header.source_seq == seq) {
         counters_.duplicates += 1;
-        if (!(pos->message == message)) counters_.conflicting_duplicates += 1;
+        if (!(pos->message() == message)) counters_.conflicting_duplicates += 1;
         return {Verdict::duplicate, RejectReason::none};
     }
+    EventBody event = *event_of(message.body);  // screen() refused setups
 
     if (pos == log_.end()) {  // the usual case: newest in feed order, folded in place
         const RejectReason outcome = fold_.apply(state_, message);
-        log_.push_back(LoggedMessage{message, outcome});
+        log_.push_back(LoggedMessage{message.header, std::move(event), outcome});
         if (outcome != RejectReason::none) {
             state_.skipped += 1;
             count_rejection(outcome);
@@ -95,7 +96,7 @@ ApplyResult Match::apply(const InboundMessage& message) {
     }
 
     const auto offset = pos - log_.begin();
-    log_.insert(pos, LoggedMessage{message, RejectReason::none});
+    log_.insert(pos, LoggedMessage{message.header, std::move(event), RejectReason::none});
     refold();
     const RejectReason outcome = log_[static_cast<std::size_t>(offset)].outcome;
     if (outcome != RejectReason::none) {
@@ -109,7 +110,7 @@ ApplyResult Match::apply(const InboundMessage& message) {
 void Match::refold() {
     state_ = fold_.initial_state();
     for (auto& entry : log_) {
-        entry.outcome = fold_.apply(state_, entry.message);
+        entry.outcome = fold_.apply(state_, entry.message());
         if (entry.outcome == RejectReason::none) {
             state_.applied += 1;
         } else {
@@ -186,19 +187,25 @@ void Match::anchor_clock() noexcept {
     outputs_stale_ = true;
 }
 
-const Outputs& Match::outputs() const {
-    if (!outputs_stale_) return outputs_;
+void Match::price_into(Outputs& out) const {
     const PricingState ps = pricing_state();
-    model_.price(ps, outputs_);
-    outputs_.status = state_.status;
-    outputs_.clock = priced_clock_;
-    outputs_.home_goals = static_cast<std::uint16_t>(ps.goals[0]);
-    outputs_.away_goals = static_cast<std::uint16_t>(ps.goals[1]);
-    outputs_.home_reds = static_cast<std::uint8_t>(std::min(ps.reds[0], 255));
-    outputs_.away_reds = static_cast<std::uint8_t>(std::min(ps.reds[1], 255));
-    outputs_.events_applied = state_.applied;
-    outputs_stale_ = false;
-    return outputs_;
+    model_.price(ps, out);
+    out.status = state_.status;
+    out.clock = priced_clock_;
+    out.home_goals = static_cast<std::uint16_t>(ps.goals[0]);
+    out.away_goals = static_cast<std::uint16_t>(ps.goals[1]);
+    out.home_reds = static_cast<std::uint8_t>(std::min(ps.reds[0], 255));
+    out.away_reds = static_cast<std::uint8_t>(std::min(ps.reds[1], 255));
+    out.events_applied = state_.applied;
+}
+
+const Outputs& Match::outputs() const {
+    if (!outputs_) outputs_ = std::make_unique<Outputs>();
+    if (outputs_stale_) {
+        price_into(*outputs_);
+        outputs_stale_ = false;
+    }
+    return *outputs_;
 }
 
 }  // namespace liveprob

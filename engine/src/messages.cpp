@@ -2,6 +2,8 @@
 #include "liveprob/engine/outputs.hpp"
 #include "liveprob/engine/overloaded.hpp"
 
+#include <type_traits>
+
 namespace liveprob {
 
 const char* kind_name(const MessageBody& body) noexcept {
@@ -21,6 +23,22 @@ const char* kind_name(const MessageBody& body) noexcept {
         [](const FinalWhistle&) { return "final_whistle"; },
         [](const ClockSync&) { return "clock"; },
     }, body);
+}
+
+std::optional<EventBody> event_of(const MessageBody& body) {
+    return std::visit(
+        [](const auto& b) -> std::optional<EventBody> {
+            if constexpr (std::is_same_v<std::decay_t<decltype(b)>, MatchSetup>) {
+                return std::nullopt;
+            } else {
+                return EventBody{b};
+            }
+        },
+        body);
+}
+
+MessageBody message_body_of(const EventBody& event) {
+    return std::visit([](const auto& e) { return MessageBody{e}; }, event);
 }
 
 const char* period_name(Period p) noexcept {

@@ -15,6 +15,8 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <memory>
+#include <utility>
 #include <span>
 #include <stdexcept>
 
@@ -311,22 +313,54 @@ AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, cons
     }
     return out;
 }
-}  // namespace
 
-struct PricingModel::Workspace {
-    ModelParams params;
-    double shootout_before_toss = 0.5;
+// Buffers a pricing call works in (a few hundred kilobytes, mostly the chains' jump-count
+// tables). One set per thread, shared by every model the thread prices with: a service holding
+// thousands of matches keeps one set, not one per match. Allocated on a thread's first call.
+struct PricingScratch {
     ScoreChain chain;
     ScoreGrid mix;
-    std::array<GammaQuadrature, 2> quad{};
-    std::array<double, 2> quad_shape{std::numeric_limits<double>::quiet_NaN(),
-                                     std::numeric_limits<double>::quiet_NaN()};
-    QuadratureRule ratio_rule{};  // Beta(α_H, α_A) nodes for the strength ratio ρ
-    std::array<double, 2> ratio_shapes{std::numeric_limits<double>::quiet_NaN(),
-                                       std::numeric_limits<double>::quiet_NaN()};
+    std::array<QuadratureRule, 2> quad{};
+    std::array<std::pair<double, int>, 2> quad_key{std::pair{std::numeric_limits<double>::quiet_NaN(), 0},
+                                                   std::pair{std::numeric_limits<double>::quiet_NaN(), 0}};
     std::array<Pmf, 2> pmf{}, cdf{};
     std::array<Pmf, 2> et_pmf{}, et_cdf{};
     ExtraTimeScratch extra_time;
+
+    // Strength nodes θ_k and weights of one side (θ = 1 when the shape is infinite): the
+    // Gauss–Laguerre nodes depend on the shape only (the rate rescales them), so the last
+    // rule per side is kept.
+    const QuadratureRule& nodes(int side, double shape, int count) {
+        QuadratureRule& q = quad[at(side)];
+        if (std::isinf(shape)) {
+            q.count = 1;
+            q.node[0] = 1.0;
+            q.weight[0] = 1.0;
+            quad_key[at(side)] = {shape, 1};
+        } else if (!(quad_key[at(side)] == std::pair{shape, count})) {
+            gamma_quadrature(shape, count, q);
+            quad_key[at(side)] = {shape, count};
+        }
+        return q;
+    }
+};
+
+PricingScratch& thread_scratch() {
+    thread_local std::unique_ptr<PricingScratch> scratch;
+    if (!scratch) scratch = std::make_unique<PricingScratch>();
+    return *scratch;
+}
+
+}  // namespace
+
+// What one model keeps between calls: its parameters and the strength-ratio rule, which
+// depends on the two shapes only (they change with goals and xG, not with the clock).
+struct PricingModel::Workspace {
+    ModelParams params;
+    double shootout_before_toss = 0.5;
+    QuadratureRule ratio_rule{};  // Beta(α_H, α_A) nodes for the strength ratio ρ
+    std::array<double, 2> ratio_shapes{std::numeric_limits<double>::quiet_NaN(),
+                                       std::numeric_limits<double>::quiet_NaN()};
 
     const QuadratureRule& ratio_nodes(double home_shape, double away_shape) {
         if (!(ratio_shapes[0] == home_shape && ratio_shapes[1] == away_shape)) {
@@ -334,23 +368,6 @@ struct PricingModel::Workspace {
             ratio_shapes = {home_shape, away_shape};
         }
         return ratio_rule;
-    }
-
-    // Strength nodes θ_k and weights of one side (θ = 1 when the shape is infinite). The
-    // Gauss–Laguerre nodes depend on the shape only and are cached: between goals only the
-    // rate changes, which rescales them.
-    const GammaQuadrature& nodes(int side, double shape) {
-        GammaQuadrature& q = quad[at(side)];
-        if (std::isinf(shape)) {
-            q.count = 1;
-            q.node[0] = 1.0;
-            q.weight[0] = 1.0;
-            quad_shape[at(side)] = shape;
-        } else if (!(quad_shape[at(side)] == shape)) {
-            gamma_quadrature(shape, params.quadrature_nodes, q);
-            quad_shape[at(side)] = shape;
-        }
-        return q;
     }
 };
 
@@ -377,8 +394,9 @@ PricingModel& PricingModel::operator=(PricingModel&&) noexcept = default;
 const ModelParams& PricingModel::params() const { return ws_->params; }
 
 void PricingModel::price(const PricingState& st, Outputs& out) {
-    Workspace& w = *ws_;
-    const ModelParams& prm = w.params;
+    Workspace& model = *ws_;
+    PricingScratch& w = thread_scratch();
+    const ModelParams& prm = model.params;
     require(std::isfinite(st.prior.home_goals) && std::isfinite(st.prior.away_goals) &&
                 st.prior.home_goals >= 0.0 && st.prior.away_goals >= 0.0 &&
                 st.prior.home_goals <= kMaxPriorGoals && st.prior.away_goals <= kMaxPriorGoals,
@@ -398,7 +416,7 @@ void PricingModel::price(const PricingState& st, Outputs& out) {
     double shootout_home = 0.5;
     if (st.format.shootout) {
         shootout_home = st.status == MatchStatus::shootout ? shootout_home_win(prm.shootout, st.shootout)
-                                                           : w.shootout_before_toss;
+                                                           : model.shootout_before_toss;
     }
 
     if (settled(st.status)) {
@@ -429,8 +447,9 @@ void PricingModel::price(const PricingState& st, Outputs& out) {
     // Strengths: both Gamma-distributed (the usual case: the ratio rule), or at least one
     // known (κ = ∞: a product of Gauss–Laguerre rules, one node for a known side).
     const bool ratio_mixture = !std::isinf(st.theta_shape[0]) && !std::isinf(st.theta_shape[1]);
-    const MixtureNodes nodes = ratio_mixture ? MixtureNodes::ratio(w.ratio_nodes(st.theta_shape[0], st.theta_shape[1]), st)
-                                             : MixtureNodes::product(w.nodes(0, st.theta_shape[0]), w.nodes(1, st.theta_shape[1]), st);
+    const MixtureNodes nodes = ratio_mixture ? MixtureNodes::ratio(model.ratio_nodes(st.theta_shape[0], st.theta_shape[1]), st)
+                                             : MixtureNodes::product(w.nodes(0, st.theta_shape[0], prm.quadrature_nodes),
+                                                                     w.nodes(1, st.theta_shape[1], prm.quadrature_nodes), st);
 
     // Next goal before the end of the current phase: the state holds until then, so per node
     // it is the first of two exponential clocks (with the factor s integrated out in closed

@@ -15,7 +15,7 @@ constexpr bool valid_side(Side s) noexcept { return s == Side::home || s == Side
 constexpr bool valid_period(Period p) noexcept { return p <= Period::finished; }
 constexpr int kMaxAnnouncedStoppage = 30;  // minutes; common practice: no board shows more
 constexpr int kMaxCorrectedGoals = 99;
-constexpr std::size_t kReservedRecords = 64;
+constexpr std::size_t kReservedRecords = 8;
 
 // The record a correction names by its source sequence number, if the log holds it.
 template <class Record>

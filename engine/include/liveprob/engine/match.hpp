@@ -28,6 +28,7 @@
 
 #include <array>
 #include <cstdint>
+#include <memory>
 #include <vector>
 
 #include "liveprob/engine/match_state.hpp"
@@ -77,8 +78,14 @@ public:
     // feed's last reading. Clocks far beyond the period's end are held at its latest point.
     bool advance_to(MatchClock now);
 
-    // Priced on demand: the first read after a change prices the state (allocation-free), so
-    // a burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
+    // Prices the state at the priced clock into `out` (allocation-free once the thread has
+    // priced once). The same state and clock always give the same figures, to the last bit.
+    // A host pricing many matches (the service) passes one buffer of its own, so a match
+    // holds no outputs: its memory is its setup, state and event log.
+    void price_into(Outputs& out) const;
+
+    // The same, kept in a buffer the match allocates on first use: priced on demand, so a
+    // burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
     const Outputs& outputs() const;
     const MatchState& state() const noexcept { return state_; }
     const MatchCounters& counters() const noexcept { return counters_; }
@@ -93,8 +100,10 @@ public:
 
 private:
     struct LoggedMessage {
-        InboundMessage message;
+        MessageHeader header;
+        EventBody event;
         RejectReason outcome = RejectReason::none;  // none: applied
+        InboundMessage message() const { return {header, message_body_of(event)}; }
     };
 
     void refold();
@@ -108,7 +117,7 @@ private:
     MatchState state_;
     MatchClock priced_clock_;
     MatchCounters counters_;
-    mutable Outputs outputs_;
+    mutable std::unique_ptr<Outputs> outputs_;  // outputs()'s buffer, allocated on first use
     mutable bool outputs_stale_ = true;
 };
 

@@ -156,6 +156,16 @@ struct InboundMessage {
     friend bool operator==(const InboundMessage&, const InboundMessage&) = default;
 };
 
+// Every message body but the setup: what a match's event log holds (a setup never enters it).
+// A fifth of a MessageBody's size, which is most of a live match's memory.
+using EventBody = std::variant<PeriodStart, PeriodEnd, Goal, GoalCancelled, RedCard, CardRescinded,
+                               StoppageAnnounced, ScoreCorrection, ShootoutKick, ShotXg,
+                               MatchAbandoned, FinalWhistle, ClockSync>;
+
+// The event a body carries; nullopt for a setup.
+std::optional<EventBody> event_of(const MessageBody& body);
+MessageBody message_body_of(const EventBody& event);
+
 // Stable short names of message kinds (used by logs, counters and the JSON form).
 const char* kind_name(const MessageBody& body) noexcept;
 const char* period_name(Period p) noexcept;

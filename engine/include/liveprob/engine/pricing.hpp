@@ -1,6 +1,7 @@
 // The pricing model: from the current match state to every published probability.
-// Pure computation; all workspaces are allocated in the constructor, so price() allocates
-// nothing.
+// Pure computation. A model holds only its parameters and a small cache (about half a
+// kilobyte); the buffers a call works in are kept once per thread and shared by all models on
+// it, allocated by the thread's first call, so price() allocates nothing after that.
 #pragma once
 
 #include <array>
@@ -42,7 +43,8 @@ public:
     PricingModel& operator=(const PricingModel&) = delete;
 
     // Fills the probability fields of `out` (p_home .. tail_mass; not status, clock, score or
-    // events_applied, which the caller sets). Allocates nothing after construction.
+    // events_applied, which the caller sets). Allocates nothing once the calling thread has
+    // priced once.
     // status finished or abandoned: the current score is the result (probabilities 0/1).
     void price(const PricingState& state, Outputs& out);
 
