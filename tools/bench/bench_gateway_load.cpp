@@ -1,8 +1,10 @@
-// Load on the gateway: N WebSocket clients on loopback (default 1,000) watching every match of
-// a replayed round while this program publishes the round's updates into `liveprob gateway`
-// (a separate process). Reports delivery latency (gateway in -> client out, from the frame's
-// times_us.gateway_receive to the client's read), the gateway's CPU time and memory, and,
-// in the second benchmark, the same with one client that never reads.
+// Load on the gateway: N WebSocket clients on loopback (default 1,000, on two client threads)
+// watching every match of a replayed round: the invented league's first round (10 matches,
+// from `liveprob simulate`) is sent by `liveprob send` at 300 times real speed into
+// `liveprob serve` (ticking every 200 ms), whose publish socket feeds `liveprob gateway`; all
+// three are separate processes. Reports delivery latency (gateway in -> client out, from the
+// frame's times_us.gateway_receive to the client's read), the gateway's CPU time and memory,
+// and, in the second benchmark, the same with one client that never reads.
 //
 //   liveprob_bench_gateway_load --benchmark_counters_tabular=true
 // Environment: LIVEPROB_BIN (default: ../liveprob beside this program), GATEWAY_CLIENTS.
@@ -13,13 +15,12 @@
 #include <boost/beast/core.hpp>
 #include <boost/beast/websocket.hpp>
 #include <fmt/format.h>
+#include <fcntl.h>
 #include <spawn.h>
 #include <sys/wait.h>
-#include <zmq.hpp>
 
 #include <algorithm>
 #include <chrono>
-#include <cmath>
 #include <cstdlib>
 #include <cstring>
 #include <filesystem>
@@ -29,8 +30,6 @@
 #include <thread>
 #include <vector>
 
-#include "liveprob/adapters/topics.hpp"
-#include "liveprob/protocol/update_codec.hpp"
 
 extern char** environ;
 
@@ -54,27 +53,41 @@ std::string read_file(const std::filesystem::path& p) {
     return s.str();
 }
 
-// The gateway as its own process, so its CPU and memory are its own.
-struct GatewayProcess {
+std::string liveprob_bin() {
+    const char* env = std::getenv("LIVEPROB_BIN");
+    return env ? env : (std::filesystem::canonical("/proc/self/exe").parent_path().parent_path() / "liveprob").string();
+}
+
+// A liveprob subcommand as its own process, so its CPU and memory are its own.
+struct Process {
     pid_t pid = -1;
-    std::uint16_t port = 0;
-    GatewayProcess(const std::string& feed, const std::filesystem::path& dir) {
-        const char* env = std::getenv("LIVEPROB_BIN");
-        const std::string bin = env ? env : (std::filesystem::canonical("/proc/self/exe").parent_path().parent_path() / "liveprob").string();
-        const std::string port_file = (dir / "port").string();
-        std::vector<std::string> argv{bin, "gateway", "--feed", feed, "--port", "0", "--port-file", port_file,
-                                      "--queue-cap", "64", "--client-send-buffer", "16384"};
+    // Standard output goes to /dev/null unless `keep_output`.
+    explicit Process(std::vector<std::string> argv, bool keep_output = false) {
+        const std::string bin = liveprob_bin();
+        argv.insert(argv.begin(), bin);
         std::vector<char*> args;
         for (auto& a : argv) args.push_back(a.data());
         args.push_back(nullptr);
-        if (posix_spawn(&pid, bin.c_str(), nullptr, nullptr, args.data(), environ) != 0) throw std::runtime_error("cannot start " + bin);
-        for (int i = 0; i < 500 && !std::filesystem::exists(port_file); ++i) std::this_thread::sleep_for(20ms);
-        port = static_cast<std::uint16_t>(std::stoi(read_file(port_file)));
+        posix_spawn_file_actions_t actions;
+        posix_spawn_file_actions_init(&actions);
+        if (!keep_output) posix_spawn_file_actions_addopen(&actions, 1, "/dev/null", O_WRONLY, 0);
+        const int rc = posix_spawn(&pid, bin.c_str(), &actions, nullptr, args.data(), environ);
+        posix_spawn_file_actions_destroy(&actions);
+        if (rc != 0) throw std::runtime_error("cannot start " + bin);
     }
-    ~GatewayProcess() {
-        kill(pid, SIGTERM);
+    Process(const Process&) = delete;
+    Process& operator=(const Process&) = delete;
+    ~Process() {
+        if (pid > 0) {
+            kill(pid, SIGTERM);
+            wait();
+        }
+    }
+    int wait() {
         int status = 0;
-        waitpid(pid, &status, 0);
+        if (pid > 0) waitpid(pid, &status, 0);
+        pid = -1;
+        return status;
     }
     // utime + stime in seconds (/proc/<pid>/stat fields 14 and 15).
     double cpu_seconds() const {
@@ -95,6 +108,32 @@ struct GatewayProcess {
         return 0;
     }
 };
+
+void wait_for_file(const std::filesystem::path& p) {
+    for (int i = 0; i < 500 && !(std::filesystem::exists(p) && std::filesystem::file_size(p) > 0); ++i) {
+        std::this_thread::sleep_for(20ms);
+    }
+    if (!std::filesystem::exists(p)) throw std::runtime_error("no " + p.string());
+}
+
+std::string endpoint_of(const std::filesystem::path& endpoints_file, const std::string& key) {
+    std::istringstream in(read_file(endpoints_file));
+    for (std::string line; std::getline(in, line);) {
+        if (line.rfind(key + "=", 0) == 0) return line.substr(key.size() + 1);
+    }
+    throw std::runtime_error("no " + key + " in " + endpoints_file.string());
+}
+
+// The first round of the invented league: the first ten match streams in name order.
+std::vector<std::filesystem::path> first_round(const std::filesystem::path& dir) {
+    Process simulate({"simulate", "--out", (dir / "streams").string(), "--seed", "2031"});
+    if (simulate.wait() != 0) throw std::runtime_error("liveprob simulate failed");
+    std::vector<std::filesystem::path> files;
+    for (const auto& e : std::filesystem::directory_iterator(dir / "streams" / "league")) files.push_back(e.path());
+    std::sort(files.begin(), files.end());
+    files.resize(std::min<std::size_t>(files.size(), 10));
+    return files;
+}
 
 struct Client {
     explicit Client(asio::io_context& io) : ws(io) {}
@@ -126,89 +165,89 @@ double percentile(std::vector<std::int64_t>& v, double q) {
     return static_cast<double>(v[k]);
 }
 
-// One replayed round: `matches` matches, each publishing an update every `period` for the
-// run's length; probabilities drift as a match would (the gateway never looks at them).
+// One replayed round through serve and the gateway, N clients watching every match.
 void run_load(benchmark::State& state, bool with_stalled_client) {
     const int clients = std::getenv("GATEWAY_CLIENTS") ? std::atoi(std::getenv("GATEWAY_CLIENTS")) : 1000;
-    constexpr int kMatches = 10;
-    constexpr auto kPeriod = 200ms;       // 5 updates per second per match
-    constexpr auto kRunLength = 15s;
+    constexpr int kClientThreads = 2;
     const auto dir = std::filesystem::temp_directory_path() / fmt::format("liveprob-gateway-load-{}", getpid());
+    std::filesystem::remove_all(dir);
     std::filesystem::create_directories(dir);
+    const std::vector<std::filesystem::path> round = first_round(dir);
 
-    zmq::context_t context(1);
-    zmq::socket_t pub(context, zmq::socket_type::pub);
-    pub.bind("tcp://127.0.0.1:*");
-    GatewayProcess gateway(pub.get(zmq::sockopt::last_endpoint), dir);
+    const auto endpoints = dir / "endpoints";
+    Process serve({"serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*", "--snapshot",
+                   "tcp://127.0.0.1:*", "--endpoints-file", endpoints.string(), "--tick-ms", "200",
+                   "--log-level", "warn"});
+    wait_for_file(endpoints);
+    const auto port_file = dir / "port";
+    Process gateway({"gateway", "--serve-endpoints", endpoints.string(), "--port", "0", "--port-file",
+                     port_file.string(), "--queue-cap", "64", "--client-send-buffer", "16384"});
+    wait_for_file(port_file);
+    const auto port = static_cast<std::uint16_t>(std::stoi(read_file(port_file)));
 
-    asio::io_context io(1);
+    std::vector<std::unique_ptr<asio::io_context>> ios;
+    std::vector<std::vector<std::int64_t>> latencies(kClientThreads);
+    for (int t = 0; t < kClientThreads; ++t) {
+        ios.push_back(std::make_unique<asio::io_context>(1));
+        latencies[static_cast<std::size_t>(t)].reserve(1'000'000);
+    }
     std::vector<std::unique_ptr<Client>> pool;
-    std::vector<std::int64_t> latencies;
-    latencies.reserve(2'000'000);
     for (int i = 0; i < clients; ++i) {
-        auto c = std::make_unique<Client>(io);
-        beast::get_lowest_layer(c->ws).connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), gateway.port));
-        c->ws.handshake(fmt::format("127.0.0.1:{}", gateway.port), "/feed");
+        const auto t = static_cast<std::size_t>(i % kClientThreads);
+        auto c = std::make_unique<Client>(*ios[t]);
+        beast::get_lowest_layer(c->ws).connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
+        c->ws.handshake(fmt::format("127.0.0.1:{}", port), "/feed");
         c->ws.write(asio::buffer(std::string(R"({"watch":"all"})")));
-        read_loop(*c, latencies);
+        read_loop(*c, latencies[t]);
         pool.push_back(std::move(c));
     }
     std::unique_ptr<Client> stalled;
     if (with_stalled_client) {  // small receive buffer, never reads
-        stalled = std::make_unique<Client>(io);
+        stalled = std::make_unique<Client>(*ios[0]);
         auto& s = beast::get_lowest_layer(stalled->ws).socket();
         s.open(tcp::v4());
         s.set_option(asio::socket_base::receive_buffer_size(4096));
-        s.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), gateway.port));
-        stalled->ws.handshake(fmt::format("127.0.0.1:{}", gateway.port), "/feed");
+        s.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
+        stalled->ws.handshake(fmt::format("127.0.0.1:{}", port), "/feed");
         stalled->ws.write(asio::buffer(std::string(R"({"watch":"all"})")));
     }
-    std::thread client_thread([&io] { io.run(); });
-    std::this_thread::sleep_for(500ms);  // subscription settles
+    std::vector<std::thread> client_threads;
+    for (auto& io : ios) client_threads.emplace_back([&io] { io->run(); });
+    std::this_thread::sleep_for(500ms);  // subscriptions settle
 
     const double cpu_before = gateway.cpu_seconds();
-    liveprob::protocol::UpdateEncoder encoder;
-    std::uint64_t published = 0;
+    const double serve_cpu_before = serve.cpu_seconds();
+    const std::string ingest = endpoint_of(endpoints, "ingest");
+    double seconds = 0;
     for (auto _ : state) {
         const auto start = std::chrono::steady_clock::now();
-        auto next = start;
-        for (std::uint64_t seq = 1; std::chrono::steady_clock::now() - start < kRunLength; ++seq) {
-            for (std::uint64_t m = 1; m <= kMatches; ++m) {
-                liveprob::protocol::UpdateMeta meta{m, seq, seq, 0, now_us(), 0};
-                liveprob::Outputs o;
-                o.status = liveprob::MatchStatus::in_play;
-                o.clock = {liveprob::Period::second_half, static_cast<std::uint32_t>(seq * 1000)};
-                o.p_home = 0.4 + 0.2 * std::sin(static_cast<double>(seq + m) / 50.0);
-                o.p_draw = 0.3;
-                o.p_away = 1.0 - o.p_home - o.p_draw;
-                o.next_goal_none = 1.0;
-                o.goals_added[0][0] = 1.0;
-                const auto bytes = encoder.encode(meta, o);
-                const std::string topic = liveprob::adapters::match_topic_string(m);
-                pub.send(zmq::buffer(topic), zmq::send_flags::sndmore);
-                pub.send(zmq::buffer(bytes.data(), bytes.size()), zmq::send_flags::none);
-                ++published;
-            }
-            next += kPeriod;
-            std::this_thread::sleep_until(next);
+        std::vector<std::unique_ptr<Process>> senders;
+        for (const auto& file : round) {
+            senders.push_back(std::make_unique<Process>(
+                std::vector<std::string>{"send", "--to", ingest, "--speed", "300", "--stamp", file.string()}));
         }
+        for (auto& s : senders) s->wait();
         std::this_thread::sleep_for(1s);  // the last frames arrive
-        state.SetIterationTime(std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count());
+        seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+        state.SetIterationTime(seconds);
     }
     const double cpu = gateway.cpu_seconds() - cpu_before;
     state.counters["clients"] = clients;
-    state.counters["updates_in"] = static_cast<double>(published);
-    state.counters["frames_out"] = static_cast<double>(latencies.size());
-    state.counters["gw_cpu_pct"] = 100.0 * cpu / (std::chrono::duration<double>(kRunLength).count() + 1.0);
+    state.counters["seconds"] = seconds;
+    state.counters["serve_cpu_pct"] = 100.0 * (serve.cpu_seconds() - serve_cpu_before) / seconds;
+    state.counters["gw_cpu_pct"] = 100.0 * cpu / seconds;
     state.counters["gw_rss_MiB"] = gateway.memory_mib("VmRSS:");
     state.counters["gw_peak_MiB"] = gateway.memory_mib("VmHWM:");
-    io.stop();
-    client_thread.join();
-    state.counters["p50_us"] = percentile(latencies, 0.50);
-    state.counters["p90_us"] = percentile(latencies, 0.90);
-    state.counters["p99_us"] = percentile(latencies, 0.99);
-    state.counters["p999_us"] = percentile(latencies, 0.999);
-    state.counters["max_us"] = percentile(latencies, 1.0);
+    for (auto& io : ios) io->stop();
+    for (auto& t : client_threads) t.join();
+    std::vector<std::int64_t> all;
+    for (auto& l : latencies) all.insert(all.end(), l.begin(), l.end());
+    state.counters["frames_out"] = static_cast<double>(all.size());
+    state.counters["p50_us"] = percentile(all, 0.50);
+    state.counters["p90_us"] = percentile(all, 0.90);
+    state.counters["p99_us"] = percentile(all, 0.99);
+    state.counters["p999_us"] = percentile(all, 0.999);
+    state.counters["max_us"] = percentile(all, 1.0);
     std::filesystem::remove_all(dir);
 }
 
