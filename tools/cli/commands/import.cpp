@@ -4,6 +4,7 @@
 // day. Streams are written one file per year (international) or per championship file.
 #include <fmt/format.h>
 
+#include <chrono>
 #include <cmath>
 #include <filesystem>
 #include <iostream>
@@ -80,6 +81,9 @@ int run_import(const ImportOptions& o) {
     }
     const auto from = date_option(o.from, "--from"), to = date_option(o.to, "--to");
     const char* ext = form == replay::StreamForm::frames ? "stream" : "jsonl";
+    using Clock = std::chrono::steady_clock;
+    auto since = [](Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); };
+    const auto start = Clock::now();
 
     std::vector<ImportedMatch> matches;
     std::vector<fit::MatchResult> history;
@@ -120,6 +124,8 @@ int run_import(const ImportOptions& o) {
         if (!ids.insert(m.match_id).second) throw std::runtime_error(fmt::format("{}: match id {} used twice", m.timeline.origin, m.match_id));
     }
 
+    const double read_seconds = since(start);
+    const auto fit_start = Clock::now();
     std::vector<replay::FixtureToPrice> fixtures;
     for (const auto& m : matches) fixtures.push_back({m.timeline.day, m.timeline.home, m.timeline.away, m.timeline.neutral});
     replay::WalkForwardOptions wf;
@@ -132,6 +138,8 @@ int run_import(const ImportOptions& o) {
     ProgressBar bar("import: walk-forward fits", "fits", o.quiet);
     wf.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
     const auto priors = replay::walk_forward_priors(history, fixtures, wf);
+    const double fit_seconds = since(fit_start);
+    const auto write_start = Clock::now();
 
     std::map<fs::path, std::vector<InboundMessage>> files;
     std::size_t written = 0, shootouts = 0, extra_time = 0;
@@ -157,6 +165,8 @@ int run_import(const ImportOptions& o) {
     std::cout << fmt::format("wrote {} matches ({} with extra time, {} shoot-outs with reconstructed kicks) in {} "
                              "stream files under {}\n",
                              written, extra_time, shootouts, files.size(), o.out);
+    std::cout << fmt::format("{:.2f} s in all: files read {:.2f} s, walk-forward fits {:.2f} s, streams written {:.2f} s\n",
+                             since(start), read_seconds, fit_seconds, since(write_start));
     return kExitOk;
 }
 
