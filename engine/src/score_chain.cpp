@@ -68,7 +68,7 @@ private:
     std::array<double, kSlots> stay_{}, from_below_{}, from_above_{}, now_{};
 };
 
-constexpr std::size_t kStepWidth = 20;  // ScoreChain's plane width (checked in add())
+constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (checked in add())
 
 // One jump (number n >= 1) of the uniformized chain over the plane, accumulating the new
 // distribution with weight w. The hot loop of the whole engine: branch-free inner loops, so

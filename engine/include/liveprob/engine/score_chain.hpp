@@ -65,13 +65,13 @@ public:
 
 private:
     // Cells by rows of home goals added: cell (i, j) at row i + 1, column j + 1 of a plane;
-    // row 0 and column 0 stay empty so that the first row's and column's neighbours read zero,
-    // and the columns after j == kGrid pad each row to whole vectors. Row i == kGrid and
+    // row 0 and column 0 stay empty so that the first row's and column's neighbours read zero
+    // (a row's column 0 also follows the previous row's last cell). Row i == kGrid and
     // column j == kGrid are the overflow buckets (absorbing). Per cell, the step keeps
     // `stay_` of its own mass and receives `from_home_` of the cell above (a home goal) and
     // `from_away_` of the cell to its left (an away goal); so one step is a single
     // branch-free pass over the plane.
-    static constexpr std::size_t kWidth = 20;
+    static constexpr std::size_t kWidth = kGrid + 2;  // column 0 empty, then j = 0 .. kGrid
     static constexpr std::size_t kRows = kGrid + 2;
     using Plane = std::array<double, kRows * kWidth>;
     void set_step_probabilities(const ClassRates& rates, int start_diff);
