@@ -147,6 +147,48 @@ TEST_CASE("no usable match is a clear error") {
     CHECK_THROWS_WITH(fit::fit_ratings(games, options), Catch::Contains("as-of"));
 }
 
+TEST_CASE("two groups of teams that never met: a warning, and each group rated as if fitted alone") {
+    // Neutral venues: the home advantage, shared by both groups, would otherwise tie them.
+    auto east = simulated(6, 2, 21);
+    auto west = simulated(5, 2, 22);
+    for (auto& g : east) g.neutral = true;
+    for (auto& g : west) {
+        g.home = "west " + g.home;
+        g.away = "west " + g.away;
+        g.neutral = true;
+    }
+    std::vector<fit::MatchResult> both = east;
+    both.insert(both.end(), west.begin(), west.end());
+    const fit::Ratings joint = fit::fit_ratings(both, {});
+    REQUIRE(joint.diagnostics.converged);
+    REQUIRE_FALSE(joint.diagnostics.warnings.empty());
+    CHECK_THAT(joint.diagnostics.warnings.back(), Catch::Contains("2 groups"));
+    // Within a group the expected goals are identified: they equal the group's own fit.
+    const fit::Ratings alone = fit::fit_ratings(west, {});
+    for (const auto& h : alone.teams)
+        for (const auto& a : alone.teams) {
+            if (h.name == a.name) continue;
+            const auto e_alone = fit::expected_goals(alone, h, a, true);
+            const auto e_joint = fit::expected_goals(joint, *joint.find(h.name), *joint.find(a.name), true);
+            CHECK(e_joint.home == Approx(e_alone.home).epsilon(1e-5));
+            CHECK(e_joint.away == Approx(e_alone.away).epsilon(1e-5));
+        }
+}
+
+TEST_CASE("a warm start from a fit that could not converge falls back to a cold start") {
+    // One goalless match: no finite maximum, the fit runs off toward zero goals.
+    std::vector<fit::MatchResult> games = {{fit::day_number(2001, 1, 1), "side 0", "side 1", 0, 0, false}};
+    const fit::Ratings diverged = fit::fit_ratings(games, {});
+    CHECK_FALSE(diverged.diagnostics.converged);
+    auto more = simulated(6, 1, 31);
+    games.insert(games.end(), more.begin(), more.end());
+    fit::RatingsFitOptions options;
+    options.start = &diverged;
+    const fit::Ratings warm = fit::fit_ratings(games, options);
+    CHECK(warm.diagnostics.converged);
+    CHECK(warm.diagnostics.log_likelihood == Approx(fit::fit_ratings(games, {}).diagnostics.log_likelihood).epsilon(1e-10));
+}
+
 TEST_CASE("dates round-trip through day numbers and bad dates are refused") {
     CHECK(fit::day_number(1970, 1, 1) == 0);
     CHECK(fit::parse_iso_date("2000-03-01") == fit::day_number(2000, 3, 1));

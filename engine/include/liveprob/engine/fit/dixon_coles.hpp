@@ -6,9 +6,14 @@
 // with the attack a and defence d of every team summing to zero (the identifiability
 // constraint), an optional low-score correction τ(x, y; λ, ν, ρ) and time-decayed likelihood
 // weights exp(−ξ·(as_of − day)). Fitted by Newton's method on the Poisson information
-// (= iteratively reweighted least squares for this log-link model), solved with Eigen by
-// eliminating the diagonal attack block; ρ is fitted by alternating with a one-dimensional
-// Newton/bisection on the concave τ log-likelihood.
+// (= iteratively reweighted least squares for this log-link model): the diagonal attack block
+// is eliminated, the rest is built from the pairs of teams that met and factored by Cholesky
+// (engine/src/fit/rating_newton.hpp); ρ is fitted by alternating with a one-dimensional
+// bisection on the concave τ log-likelihood.
+//
+// Teams in groups that never met (directly or through common opponents) cannot be compared:
+// the fit warns, and centres each group other than the largest on the average. A warm start
+// (`start`) is a hint only: when the fit from it does not converge, it starts again from cold.
 #pragma once
 
 #include <optional>
