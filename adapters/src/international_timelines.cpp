@@ -99,15 +99,9 @@ std::map<MatchKey, GoalRecords> read_goal_records(const std::string& path) {
 }
 
 std::map<MatchKey, ShootoutRecord> read_shootouts(const std::string& path) {
-    enum { date, home, away, winner, first_shooter };
-    CsvReader csv(path, "the shoot-outs file", {"date", "home_team", "away_team", "winner", "first_shooter"});
     std::map<MatchKey, ShootoutRecord> out;
-    csv.for_each_row([&](int, auto field) {
-        if (const auto day = fit::parse_iso_date(field(date))) {
-            out[{*day, std::string(field(home)), std::string(field(away))}] =
-                ShootoutRecord{std::string(field(winner)), std::string(field(first_shooter))};
-        }
-    });
+    for (auto& row : read_shootout_rows(path))
+        out[{row.day, row.home, row.away}] = ShootoutRecord{std::move(row.winner), std::move(row.first_shooter)};
     return out;
 }
 
@@ -124,6 +118,19 @@ std::optional<Side> side_named(const std::string& name, const MatchTimeline& m) 
 }
 
 }  // namespace
+
+std::vector<ShootoutRow> read_shootout_rows(const std::string& path) {
+    enum { date, home, away, winner, first_shooter };
+    CsvReader csv(path, "the shoot-outs file", {"date", "home_team", "away_team", "winner", "first_shooter"});
+    std::vector<ShootoutRow> out;
+    csv.for_each_row([&](int, auto field) {
+        if (const auto day = fit::parse_iso_date(field(date))) {
+            out.push_back({*day, std::string(field(home)), std::string(field(away)), std::string(field(winner)),
+                           std::string(field(first_shooter))});
+        }
+    });
+    return out;
+}
 
 TimelinesRead read_international_timelines(const std::string& dir, const InternationalSelection& selection) {
     const std::string results_path = dir + "/results.csv";

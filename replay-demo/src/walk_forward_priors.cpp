@@ -24,6 +24,7 @@ WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
                                       std::span<const FixtureToPrice> fixtures, const WalkForwardOptions& options) {
     WalkForwardPriors out;
     out.priors.resize(fixtures.size());
+    out.both_sides_rated.assign(fixtures.size(), false);
     std::map<int, std::vector<std::size_t>> by_as_of;  // as-of day -> fixtures it prices
     for (std::size_t i = 0; i < fixtures.size(); ++i) by_as_of[as_of_day(fixtures[i].day, options.schedule)].push_back(i);
     int first_result = std::numeric_limits<int>::max();
@@ -57,6 +58,7 @@ WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
             const fit::TeamRating* home = previous->find(f.home);
             const fit::TeamRating* away = previous->find(f.away);
             out.unrated_sides += (home ? 0 : 1) + (away ? 0 : 1);
+            out.both_sides_rated[i] = home && away && !home->shrunk && !away->shrunk;
             const auto goals = fit::expected_goals(*previous, home ? *home : average, away ? *away : average, f.neutral);
             auto hold = [&](double g) {
                 if (g <= options.max_expected_goals) return g;

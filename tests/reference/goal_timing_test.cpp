@@ -1,21 +1,26 @@
 // The goal-timing profile fitted to the open international goal minutes: the second half
 // holds more goals than the first (a fact of the trade, common practice), and the fitted
-// profile reproduces the data's second-half share within its standard error.
+// profile reproduces the data's second-half share within its standard error. The stoppage
+// factor from the championship files, which give stoppage minutes: the closed form against
+// the multinomial maximum, and the trade's expectation that stoppage runs at about the end rate.
 #include <catch2/catch.hpp>
 
+#include <cmath>
 #include <iostream>
 
-#include "liveprob/adapters/goal_minutes_reader.hpp"
+#include "liveprob/adapters/inplay_records.hpp"
+#include "liveprob/adapters/match_timelines.hpp"
 #include "liveprob/engine/fit/goal_timing.hpp"
 #include "test_env.hpp"
 
 TEST_CASE("the fitted timing profile reproduces the second-half share of the goal minutes") {
     const auto dir = liveprob::test::open_data_dir() / "international";
-    const auto read = liveprob::read_regulation_goal_minutes((dir / "results.csv").string(),
-                                                             (dir / "goalscorers.csv").string());
-    REQUIRE(read.matches_used > 5000);
-    const auto fit = liveprob::fit::fit_goal_timing(read.counts, liveprob::TimingProfile{});
-    std::cout << "matches " << read.matches_used << " (skipped " << read.matches_skipped << "), goals " << fit.goals
+    // Every match with complete goal records (no coverage filter: goalless ones add no minute).
+    const auto read = liveprob::adapters::read_international_timelines(dir.string(), {0.0});
+    REQUIRE(read.matches.size() > 5000);
+    const auto counts = liveprob::adapters::regulation_minute_counts(read.matches);
+    const auto fit = liveprob::fit::fit_goal_timing(counts, liveprob::TimingProfile{});
+    std::cout << "matches " << read.matches.size() << " (left out " << read.skipped.total() << "), goals " << fit.goals
               << ", data second-half share " << fit.data_second_half_share << ", fitted " << fit.second_half_share
               << " (se " << fit.second_half_share_se << "), profile " << fit.profile.first_half_start << " "
               << fit.profile.first_half_end << " " << fit.profile.second_half_start << " "
@@ -27,4 +32,45 @@ TEST_CASE("the fitted timing profile reproduces the second-half share of the goa
     CHECK(fit.second_half_share_se > 0.0);
     // The rate rises through the match.
     CHECK(fit.profile.second_half_end > fit.profile.first_half_start);
+}
+
+TEST_CASE("the stoppage factor from the championship files: the multinomial maximum, near the half's end rate") {
+    const auto dir = liveprob::test::open_data_dir() / "euro";
+    liveprob::adapters::StoppageCounts counts;
+    for (const char* year : {"2020", "2024"}) {
+        const auto read = liveprob::adapters::read_championship_timelines((dir / year / "euro.json").string());
+        const auto more = liveprob::adapters::stoppage_counts(read.matches);
+        counts.regulation_goals += more.regulation_goals;
+        counts.stoppage_goals += more.stoppage_goals;
+    }
+    REQUIRE(counts.stoppage_goals > 10);
+    const liveprob::TimingProfile shape;
+    const auto fit = liveprob::fit::fit_stoppage_factor(counts.regulation_goals, counts.stoppage_goals, shape);
+    std::cout << counts.stoppage_goals << " of " << counts.regulation_goals << " goals in stoppage: factor "
+              << fit.factor << " (se " << fit.factor_se << ")\n";
+    // The closed form is the maximum of the multinomial likelihood of the engine's minute shares,
+    // with the stoppage goals in their own two cells (found here by golden-section search).
+    auto log_likelihood = [&](double factor) {
+        liveprob::TimingProfile p = shape;
+        p.stoppage_factor = factor;
+        const auto with = liveprob::fit::minute_shares(p);
+        p.stoppage_factor = 0.0;
+        const auto without = liveprob::fit::minute_shares(p);  // the 90 minutes alone, normalised
+        // Share of all goals in the two stoppages, and of the rest spread as the minutes are.
+        const double regular_total = with[0] / without[0];
+        const double stoppage_share = 1.0 - regular_total;
+        return counts.stoppage_goals * std::log(stoppage_share) +
+               (counts.regulation_goals - counts.stoppage_goals) * std::log(regular_total);
+    };
+    double a = 0.01, b = 10.0;
+    const double g = (std::sqrt(5.0) - 1.0) / 2.0;
+    while (b - a > 1e-12) {
+        const double c = b - g * (b - a), d = a + g * (b - a);
+        if (log_likelihood(c) > log_likelihood(d)) b = d;
+        else a = c;
+    }
+    // (A flat maximum: the search resolves it to about 1e-7.)
+    CHECK(fit.factor == Approx(0.5 * (a + b)).epsilon(1e-6));
+    // Common practice: stoppage time is played at about the rate of the end of its half.
+    CHECK(std::abs(fit.factor - 1.0) < 2.0 * fit.factor_se);
 }

@@ -9,11 +9,11 @@
 #include <cmath>
 #include <fstream>
 #include <map>
-#include <sstream>
 
 #include "liveprob/adapters/results_readers.hpp"
 #include "liveprob/engine/fit/calendar.hpp"
 #include "liveprob/engine/fit/dixon_coles.hpp"
+#include "reference_lines.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;
@@ -21,11 +21,9 @@ namespace test = liveprob::test;
 
 namespace {
 
-struct Reference {
-    double value, se;
-};
-
 // Writes the games as team indices (sorted names, as the fit orders them), runs statsmodels.
+using Reference = test::ReferenceValue;
+
 std::map<std::string, Reference> statsmodels_fit(const std::vector<fit::MatchResult>& games,
                                                  const fit::Ratings& ratings, double xi, int reference_day,
                                                  const std::string& scratch_name) {
@@ -45,16 +43,7 @@ std::map<std::string, Reference> statsmodels_fit(const std::vector<fit::MatchRes
     const auto result = test::run_command(fmt::format("{} {} {} {}", test::system_python(), script.string(),
                                                       csv.string(), ratings.teams.size()));
     REQUIRE(result.exit_code == 0);
-    std::map<std::string, Reference> ref;
-    std::istringstream lines(result.out);
-    std::string name;
-    double value = 0.0, se = 0.0;
-    std::string se_text;
-    while (lines >> name >> value >> se_text) {
-        se = se_text == "nan" ? std::nan("") : std::stod(se_text);
-        ref[name] = {value, se};
-    }
-    return ref;
+    return test::parse_reference_lines(result.out);
 }
 
 void check_against_reference(const fit::Ratings& r, const std::map<std::string, Reference>& ref) {

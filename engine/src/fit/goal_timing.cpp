@@ -55,6 +55,25 @@ MinuteCounts minute_shares(const TimingProfile& p) {
     return s;
 }
 
+StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals, const TimingProfile& shape) {
+    if (!(stoppage_goals > 0 && stoppage_goals < regulation_goals))
+        throw std::invalid_argument("stoppage fit: needs some stoppage-time goals and some others");
+    double minutes = 0.0;
+    for (int m = 1; m <= 45; ++m)
+        minutes += bucket(shape.first_half_start, shape.first_half_end, m) +
+                   bucket(shape.second_half_start, shape.second_half_end, m);
+    const double stoppage = shape.expected_stoppage_first * shape.first_half_end +
+                            shape.expected_stoppage_second * shape.second_half_end;
+    const double n = regulation_goals, s = stoppage_goals, share = s / n;
+    StoppageFit out;
+    out.regulation_goals = regulation_goals;
+    out.stoppage_goals = stoppage_goals;
+    out.factor = s / (n - s) * minutes / stoppage;
+    // d f / d share = A / (B (1 − share)²); var(share) = share (1 − share) / N.
+    out.factor_se = minutes / (stoppage * (1.0 - share) * (1.0 - share)) * std::sqrt(share * (1.0 - share) / n);
+    return out;
+}
+
 TimingFit fit_goal_timing(const MinuteCounts& counts, const TimingProfile& start) {
     TimingFit out;
     for (std::size_t i = 0; i < counts.size(); ++i) {

@@ -1,70 +1,305 @@
-// `liveprob fit-inplay`: in-play model parameters from goal-minute data, written as the model
-// parameter file that calc, serve and replay read. Fitted now: the goal-timing profile r(t)
-// (with stoppage exposure). Everything else keeps its built-in value and is marked so in the
-// file's notes.
+// `liveprob fit-inplay`: in-play model parameters from the open goal-minute data, written as
+// the model parameter file that calc, serve and replay read. Fitted: the goal-timing profile
+// r(t), the score-state multipliers with the strength dispersion κ, the extra-time rate factor,
+// and the shoot-out conversion and first-kicker edge. Every value in the file carries its source
+// and standard error in the file's notes; red-card effects keep their built-in values ("from
+// memory": the data carry no cards).
 #include <fmt/format.h>
 
+#include <cmath>
 #include <filesystem>
 #include <iostream>
+#include <limits>
 #include <memory>
+#include <optional>
+#include <set>
 #include <string>
+#include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/goal_minutes_reader.hpp"
+#include "liveprob/adapters/inplay_records.hpp"
+#include "liveprob/adapters/match_timelines.hpp"
 #include "liveprob/adapters/params_file.hpp"
+#include "liveprob/adapters/results_readers.hpp"
+#include "liveprob/engine/fit/calendar.hpp"
+#include "liveprob/engine/fit/extra_time_fit.hpp"
 #include "liveprob/engine/fit/goal_timing.hpp"
+#include "liveprob/engine/fit/score_state_fit.hpp"
+#include "liveprob/engine/fit/shootout_fit.hpp"
+#include "liveprob/replay/walk_forward_priors.hpp"
 
 namespace {
 
+namespace fs = std::filesystem;
+namespace fit = liveprob::fit;
+namespace adapters = liveprob::adapters;
+using liveprob::cli::UsageError;
+
 struct FitInplayOptions {
     std::string international_dir;
+    std::vector<std::string> championships;
     std::string base_params;
     std::string out;
+    double half_life_days = 730.0;
+    double min_matches = 6.0;
+    int extra_time_from_year = 1970;
 };
 
+// Competitions whose knock-out matches play extra time before any shoot-out (from memory; the
+// source does not say, and some other competitions went straight to penalties). Only their
+// matches feed the extra-time fit from the international data.
+const std::set<std::string> kExtraTimeCompetitions = {"FIFA World Cup", "UEFA Euro", "African Cup of Nations",
+                                                      "AFC Asian Cup", "Gold Cup", "Confederations Cup"};
+
+// One match of the sources with what the fits need to know about it.
+struct Candidate {
+    const adapters::MatchTimeline* timeline = nullptr;
+    bool championship = false;  // from a championship file: every match of it is listed
+};
+
+int regulation_goals(const adapters::MatchTimeline& t) { return t.regulation_goals[0] + t.regulation_goals[1]; }
+
+struct Samples {
+    std::vector<fit::RegulationRecord> regulation;
+    std::vector<fit::ExtraTimeRecord> extra_time;
+    int first_day = 0, last_day = 0;
+    int left_out_unrated = 0;  // a side with too few earlier results for a prior of its own
+    int left_out_goalless = 0;  // no regulation goal: cannot be told from unrecorded matches
+};
+
+std::string span_of_years(int first_day, int last_day) {
+    return fit::iso_date(first_day).substr(0, 4) + "-" + fit::iso_date(last_day).substr(0, 4);
+}
+
 int run_fit_inplay(const FitInplayOptions& o) {
-    const std::filesystem::path dir(o.international_dir);
-    const auto read = liveprob::read_regulation_goal_minutes((dir / "results.csv").string(),
-                                                             (dir / "goalscorers.csv").string());
+    if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
+    const fs::path dir(o.international_dir);
+    // Every international match with complete goal records (no coverage filter: a goalless
+    // match is left out below, and those with goals are conditioned on having one).
+    const auto international = adapters::read_international_timelines(dir.string(), {0.0});
+    std::vector<adapters::TimelinesRead> championships;
+    for (const auto& path : o.championships) championships.push_back(adapters::read_championship_timelines(path));
+    auto history = liveprob::read_international_results((dir / "results.csv").string()).matches;
+
+    std::vector<Candidate> candidates;
+    for (const auto& t : international.matches) candidates.push_back({&t, false});
+    for (const auto& read : championships)
+        for (const auto& t : read.matches) {
+            candidates.push_back({&t, true});
+            history.push_back({t.day, t.home, t.away, t.regulation_goals[0] + t.extra_time_goals[0],
+                               t.regulation_goals[1] + t.extra_time_goals[1], t.neutral});
+        }
+
     liveprob::ModelParams params = o.base_params.empty() ? liveprob::ModelParams{}
                                                          : liveprob::load_params_file(o.base_params);
-    const auto timing = liveprob::fit::fit_goal_timing(read.counts, params.timing);
-    if (!timing.converged) throw std::runtime_error("the timing-profile fit did not converge");
-    params.timing = timing.profile;
-
     liveprob::ParamsFileNotes notes;
-    const std::string fitted = fmt::format("fitted by fit-inplay on {} matches ({} goals) of the international goal minutes",
-                                           read.matches_used, timing.goals);
-    for (const char* key : {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end",
-                            "timing.stoppage_factor"})
-        notes.sources[key] = fitted;
-    notes.sources["timing.first_half_end"] = "fixed at 1 (the profile's scale is set by the engine)";
-    notes.sources["timing.expected_stoppage_first"] = "held, from memory (only factor x duration is identified)";
-    notes.sources["timing.expected_stoppage_second"] = notes.sources["timing.expected_stoppage_first"];
-    for (const char* key : {"timing.extra_time_factor", "score_state", "red_cards", "shootout", "kappa"})
-        notes.sources[key] = "not fitted here: built-in value (from memory)";
+
+    // 1. The goal-timing profile, from every regulation goal minute.
+    fit::MinuteCounts counts = adapters::regulation_minute_counts(international.matches);
+    for (const auto& read : championships) {
+        const auto more = adapters::regulation_minute_counts(read.matches);
+        for (std::size_t i = 0; i < counts.size(); ++i) counts[i] += more[i];
+    }
+    const auto timing = fit::fit_goal_timing(counts, params.timing);
+    if (!timing.converged) throw std::runtime_error("the timing-profile fit did not converge");
+    // The international source folds stoppage into minutes 45 and 90 and spans a century of
+    // shorter stoppage: its stoppage factor only serves the shape fit and the state exposures
+    // of its own matches. The championship files tell stoppage goals apart and are recent:
+    // the engine's stoppage factor comes from them when given.
+    const liveprob::TimingProfile source_timing = timing.profile;
+    params.timing = timing.profile;
+    std::optional<fit::StoppageFit> stoppage;
+    if (!championships.empty()) {
+        adapters::StoppageCounts sc;
+        for (const auto& read : championships) {
+            const auto more = adapters::stoppage_counts(read.matches);
+            sc.regulation_goals += more.regulation_goals;
+            sc.stoppage_goals += more.stoppage_goals;
+        }
+        stoppage = fit::fit_stoppage_factor(sc.regulation_goals, sc.stoppage_goals, timing.profile);
+        params.timing.stoppage_factor = stoppage->factor;
+    }
+
+    // 2. Pre-match priors, walk-forward: ratings refitted monthly on the results before the month.
+    std::vector<liveprob::replay::FixtureToPrice> fixtures;
+    for (const auto& c : candidates)
+        fixtures.push_back({c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral});
+    liveprob::replay::WalkForwardOptions wf;
+    wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
+    wf.fit.min_matches = o.min_matches;
+    wf.fit.min_weight = 0.01;
+    wf.fit.standard_errors = false;
+    wf.schedule = liveprob::replay::RefitSchedule::month;
+    const auto priors = liveprob::replay::walk_forward_priors(history, fixtures, wf);
+
+    // 3. The samples.
+    Samples samples;
+    samples.first_day = std::numeric_limits<int>::max();
+    samples.last_day = std::numeric_limits<int>::min();
+    int extra_time_international = 0, extra_time_championship = 0;
+    for (std::size_t i = 0; i < candidates.size(); ++i) {
+        const auto& t = *candidates[i].timeline;
+        const bool championship = candidates[i].championship;
+        if (!priors.both_sides_rated[i]) {
+            ++samples.left_out_unrated;
+            continue;
+        }
+        const bool has_goal = regulation_goals(t) > 0;
+        // Regulation: the international matches with a goal, conditioned on having one. (The
+        // championship files' priors come from results that end in 2015, years before them.)
+        if (!championship) {
+            if (has_goal) {
+                samples.regulation.push_back(fit::regulation_record(adapters::inplay_match(t, priors.priors[i], true),
+                                                                    source_timing));
+                samples.first_day = std::min(samples.first_day, t.day);
+                samples.last_day = std::max(samples.last_day, t.day);
+            } else {
+                ++samples.left_out_goalless;
+            }
+        }
+        // Extra time: level after regulation in a competition known to play it, the regulation
+        // goals (not the extra time) deciding whether the match is listed.
+        if (!t.extra_time) continue;
+        const bool international_ok = !championship && has_goal && kExtraTimeCompetitions.contains(t.competition) &&
+                                      t.day >= fit::day_number(o.extra_time_from_year, 1, 1);
+        if (!championship && !international_ok) continue;
+        samples.extra_time.push_back(fit::extra_time_record(adapters::inplay_match(t, priors.priors[i], false),
+                                                            params.timing));
+        ++(championship ? extra_time_championship : extra_time_international);
+    }
+
+    // 4. Score-state multipliers and κ, jointly.
+    const auto states = fit::fit_score_state(samples.regulation);
+    if (!states.converged) throw std::runtime_error("the score-state fit did not converge");
+    params.score_state = states.effects;
+    params.kappa = states.kappa;
+
+    // 5. The extra-time factor, with those effects and κ.
+    const auto extra = fit::fit_extra_time_factor(samples.extra_time, states.effects, states.kappa);
+    if (!extra.converged) throw std::runtime_error("the extra-time fit did not converge");
+    params.timing.extra_time_factor = extra.factor;
+
+    // 6. The shoot-out: winners and first kickers (international), tallies (championships).
+    auto shootouts = adapters::shootout_records(adapters::read_shootout_rows((dir / "shootouts.csv").string()));
+    for (const auto& read : championships) {
+        const auto more = adapters::shootout_records(read.matches);
+        shootouts.records.insert(shootouts.records.end(), more.records.begin(), more.records.end());
+    }
+    const auto kicks = fit::fit_shootout(shootouts.records, params.shootout);
+    if (!kicks.converged) throw std::runtime_error("the shoot-out fit did not converge");
+    params.shootout = kicks.params;
+
+    // Sources and standard errors, beside the values.
+    const std::string priors_text = fmt::format("priors from ratings refitted monthly on the results before each "
+                                                "month (half-life {} days)", o.half_life_days);
+    const std::string timing_text = fmt::format("fitted by fit-inplay: multinomial likelihood of {} regulation goal "
+                                                "minutes (international{})", timing.goals,
+                                                championships.empty() ? "" : " and championship files");
+    for (const char* key : {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end"})
+        notes.sources[key] = timing_text;
     notes.standard_errors["timing.first_half_start"] = timing.first_half_start_se;
     notes.standard_errors["timing.second_half_start"] = timing.second_half_start_se;
     notes.standard_errors["timing.second_half_end"] = timing.second_half_end_se;
-    notes.standard_errors["timing.stoppage_factor"] = timing.stoppage_factor_se;
+    if (stoppage) {
+        notes.sources["timing.stoppage_factor"] = fmt::format(
+            "fitted by fit-inplay: {} of {} regulation goals of the championship files in stoppage time (they give "
+            "its minutes), shape and expected stoppage held; the international goal minutes, which fold stoppage "
+            "into minutes 45 and 90 and reach back a century, give {:.3f} (se {:.3f})",
+            stoppage->stoppage_goals, stoppage->regulation_goals, source_timing.stoppage_factor,
+            timing.stoppage_factor_se);
+        notes.standard_errors["timing.stoppage_factor"] = stoppage->factor_se;
+    } else {
+        notes.sources["timing.stoppage_factor"] =
+            timing_text + " (the international source folds stoppage into minutes 45 and 90 and reaches back a "
+                          "century of shorter stoppage: add --championship files for a recent estimate)";
+        notes.standard_errors["timing.stoppage_factor"] = timing.stoppage_factor_se;
+    }
+    notes.sources["timing.first_half_end"] = "fixed at 1 (the profile's scale is set by the engine)";
+    notes.sources["timing.expected_stoppage_first"] = "held, from memory (only factor x duration is identified)";
+    notes.sources["timing.expected_stoppage_second"] = notes.sources["timing.expected_stoppage_first"];
+    notes.sources["timing.expected_stoppage_extra"] = notes.sources["timing.expected_stoppage_first"];
+    const std::string states_text = fmt::format(
+        "fitted by fit-inplay: joint likelihood with the strength dispersion (Gamma mixing, matches conditioned on "
+        "a regulation goal) on {} international matches {} with complete goal minutes, {}",
+        samples.regulation.size(), span_of_years(samples.first_day, samples.last_day), priors_text);
+    for (const char* key : {"score_state.leading", "score_state.level", "score_state.trailing", "kappa"})
+        notes.sources[key] = states_text;
+    notes.standard_errors["score_state.leading"] = states.leading_se;
+    notes.standard_errors["score_state.level"] = states.level_se;
+    notes.standard_errors["score_state.trailing"] = states.trailing_se;
+    if (std::isfinite(states.kappa)) notes.standard_errors["kappa"] = states.kappa_se;
+    notes.sources["timing.extra_time_factor"] = fmt::format(
+        "fitted by fit-inplay: time to the first extra-time goal in {} matches level after regulation ({} of "
+        "international final tournaments since {} with a regulation goal, {} of championship files), strength "
+        "posteriors from regulation; {}",
+        extra.matches, extra_time_international, o.extra_time_from_year, extra_time_championship, priors_text);
+    notes.standard_errors["timing.extra_time_factor"] = extra.factor_se;
+    notes.sources["shootout.conversion"] =
+        kicks.conversion_fitted
+            ? fmt::format("fitted by fit-inplay: kicks scored in {} shoot-outs with a tally (championship files) "
+                          "under the engine's shoot-out rules",
+                          kicks.with_tally)
+            : "not fitted (no shoot-out tally in the data given: add --championship files); kept";
+    if (kicks.conversion_fitted) notes.standard_errors["shootout.conversion"] = kicks.conversion_se;
+    notes.sources["shootout.first_kicker_edge"] =
+        kicks.edge_fitted ? fmt::format("fitted by fit-inplay: the first kicker won {} of {} shoot-outs naming it "
+                                        "(international shoot-outs file); model P(first kicker wins) {:.4f} (se {:.4f})",
+                                        kicks.first_kicker_wins, kicks.with_first_kicker,
+                                        kicks.first_kicker_win_probability, kicks.first_kicker_win_probability_se)
+                          : "not fitted (no shoot-out names its first kicker); kept";
+    if (kicks.edge_fitted) notes.standard_errors["shootout.first_kicker_edge"] = kicks.edge_se;
+    notes.sources["red_cards"] = "from memory (published red-card studies): the open data carry no cards";
+    notes.sources["xg_weight"] = "the project's choice (no data here carries xG)";
     liveprob::save_params_file(params, o.out, notes);
+
     std::cout << fmt::format(
-        "{} matches used, {} skipped (incomplete goal records or a goal outside minutes 1-90)\n"
-        "second-half share: data {:.4f}, fitted {:.4f} (se {:.4f})\nwrote {}\n",
-        read.matches_used, read.matches_skipped, timing.data_second_half_share, timing.second_half_share,
-        timing.second_half_share_se, o.out);
+        "data: {} international matches with complete goal records, {} championship matches; {} left out "
+        "(a side without {} weighted earlier matches), {} goalless international matches left out\n"
+        "priors: {} monthly rating fits ({} not converged)\n",
+        international.matches.size(), candidates.size() - international.matches.size(), samples.left_out_unrated,
+        o.min_matches, samples.left_out_goalless, priors.refits, priors.not_converged);
+    std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "parameter", "value", "se");
+    auto row = [](const char* name, double value, double se) {
+        std::cout << fmt::format("{:<28} {:>9.4f} {:>9.4f}\n", name, value, se);
+    };
+    row("timing.first_half_start", params.timing.first_half_start, timing.first_half_start_se);
+    row("timing.second_half_start", params.timing.second_half_start, timing.second_half_start_se);
+    row("timing.second_half_end", params.timing.second_half_end, timing.second_half_end_se);
+    row("timing.stoppage_factor", params.timing.stoppage_factor, stoppage ? stoppage->factor_se : timing.stoppage_factor_se);
+    row("score_state.leading", states.effects.leading, states.leading_se);
+    row("score_state.level", states.effects.level, states.level_se);
+    row("score_state.trailing", states.effects.trailing, states.trailing_se);
+    row("kappa", states.kappa, states.kappa_se);
+    row("timing.extra_time_factor", extra.factor, extra.factor_se);
+    row("shootout.conversion", kicks.params.conversion, kicks.conversion_se);
+    row("shootout.first_kicker_edge", kicks.params.first_kicker_edge, kicks.edge_se);
+    std::cout << fmt::format(
+        "second-half share: data {:.4f}, fitted {:.4f} (se {:.4f})\n"
+        "score states: {} matches, {} goals{}\n"
+        "extra time: {} matches, first goal in {} (model expects {:.1f})\n"
+        "shoot-outs: first kicker won {} of {} (model {:.4f}); {} tallies with {} kicks scored; {} name only the "
+        "winner (no information)\nwrote {}\n",
+        timing.data_second_half_share, timing.second_half_share, timing.second_half_share_se, states.sides / 2,
+        states.goals, states.dispersion_at_bound ? " (no dispersion found: kappa = infinity)" : "", extra.matches,
+        extra.first_goals, extra.expected_first_goals, kicks.first_kicker_wins, kicks.with_first_kicker,
+        kicks.first_kicker_win_probability, kicks.with_tally, kicks.tally_kicks_scored, kicks.uninformative, o.out);
     return liveprob::cli::kExitOk;
 }
 
 const liveprob::cli::Registration registration{{
-    "fit-inplay", "fit in-play parameters (goal-timing profile) from goal-minute data",
+    "fit-inplay", "fit in-play parameters (timing, score states, dispersion, extra time, shoot-outs) from goal minutes",
     [](CLI::App& app) {
         auto o = std::make_shared<FitInplayOptions>();
         app.add_option("--international", o->international_dir,
-                       "folder with the international results.csv and goalscorers.csv")
+                       "folder with the international results.csv, goalscorers.csv and shootouts.csv")
             ->required();
+        app.add_option("--championship", o->championships,
+                       "championship file(s) (euro.json format): goal minutes, extra time and shoot-out tallies");
         app.add_option("--params", o->base_params, "parameter file to start from (defaults built in)");
         app.add_option("--out", o->out, "parameter file to write")->required();
+        app.add_option("--half-life", o->half_life_days, "time-decay half-life in days of the prior ratings");
+        app.add_option("--min-matches", o->min_matches,
+                       "a match is used only when both sides have this many weighted earlier matches");
         return [o] { return run_fit_inplay(*o); };
     }}};
 

@@ -79,6 +79,15 @@ struct InternationalSelection {
 // the file when one cannot be read or lacks a column.
 TimelinesRead read_international_timelines(const std::string& dir, const InternationalSelection& selection = {});
 
+// The rows of the international shoot-outs file (shootouts.csv), in file order: every
+// shoot-out the source records, whether or not its match has complete goal records.
+struct ShootoutRow {
+    int day = 0;
+    std::string home, away, winner;
+    std::string first_shooter;  // empty when the source does not name it
+};
+std::vector<ShootoutRow> read_shootout_rows(const std::string& path);
+
 // One championship file. Its matches are taken as played at neutral venues (the file names no
 // venue) and its kick-off times as given.
 TimelinesRead read_championship_timelines(const std::string& path);

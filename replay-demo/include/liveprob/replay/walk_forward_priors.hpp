@@ -38,6 +38,9 @@ struct WalkForwardOptions {
 
 struct WalkForwardPriors {
     std::vector<PriorMeans> priors;  // one per fixture, in the fixtures' order
+    // Per fixture: both sides were rated from at least `fit.min_matches` weighted matches (not
+    // shrunk, not unrated), so the prior rests on their own results.
+    std::vector<bool> both_sides_rated;
     std::size_t refits = 0;
     std::size_t not_converged = 0;   // refits whose Newton iterations did not converge
     std::size_t unrated_sides = 0;   // sides with no result before the day: rated as average

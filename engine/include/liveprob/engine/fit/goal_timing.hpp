@@ -34,4 +34,20 @@ MinuteCounts minute_shares(const TimingProfile& profile);
 // Throws std::invalid_argument when there are no goals.
 TimingFit fit_goal_timing(const MinuteCounts& counts, const TimingProfile& start);
 
+// The stoppage factor from a source that tells stoppage-time goals apart (45+k, 90+k, k ≥ 1).
+// With the profile's shape and its expected stoppage held, the regulation goals are multinomial
+// over the minutes and the two stoppages, whose cells scale with the factor alone; the share of
+// stoppage goals S / N is then sufficient and the maximum is in closed form:
+//   f̂ = S / (N − S) · A / B,   A = the 90 minutes' rates, B = D₁·r(45) + D₂·r(90)
+// (rates as in minute_shares, D the expected stoppage). Standard error from the binomial
+// variance of S / N by the delta method.
+struct StoppageFit {
+    double factor = 0.0;
+    double factor_se = 0.0;
+    int regulation_goals = 0;
+    int stoppage_goals = 0;
+};
+// Throws std::invalid_argument unless 0 < stoppage_goals < regulation_goals.
+StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals, const TimingProfile& shape);
+
 }  // namespace liveprob::fit
