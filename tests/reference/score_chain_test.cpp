@@ -104,10 +104,17 @@ TEST_CASE("score chain in exposure equals a fine-step Runge-Kutta solution on th
         const int steps = static_cast<int>(std::ceil((to_min - from_min) / kStep));
         const double h = (to_min - from_min) / steps;
         auto rate_at = [&](double t) { return curve.rate({period, static_cast<std::uint32_t>(std::lround(t * 60'000.0))}); };
+        // r jumps to the stoppage rate at the nominal end: the last stage takes the limit from
+        // the left, extrapolated exactly from two readings before it (r is linear there).
+        auto rate_before_end = [&](double t) {
+            if (std::lround(t * 60'000.0) < std::lround(to_min * 60'000.0)) return rate_at(t);
+            constexpr double kMs = 1.0 / 60'000.0;
+            return 2.0 * rate_at(to_min - kMs) - rate_at(to_min - 2.0 * kMs);
+        };
         for (int s = 0; s < steps; ++s) {
             const double t = from_min + s * h;
             // r(t) is piecewise linear, so evaluate it exactly at each stage time.
-            const double r0 = rate_at(t), r1 = rate_at(t + h / 2), r2 = rate_at(t + h);
+            const double r0 = rate_at(t), r1 = rate_at(t + h / 2), r2 = rate_before_end(t + h);
             const Eigen::VectorXd k1 = r0 * (qt * p);
             const Eigen::VectorXd k2 = r1 * (qt * (p + h / 2 * k1));
             const Eigen::VectorXd k3 = r1 * (qt * (p + h / 2 * k2));

@@ -6,8 +6,23 @@
 using namespace liveprob;
 using liveprob::test::at_minute;
 
+namespace {
+// The profile the arithmetic below is written for (not the fitted defaults): rates 0.85 to 1
+// and 1 to 1.25, stoppage at the half's end rate, extra time at 0.85 of the end rate.
+TimingProfile stated_profile() {
+    TimingProfile p;
+    p.first_half_start = 0.85;
+    p.first_half_end = 1.0;
+    p.second_half_start = 1.0;
+    p.second_half_end = 1.25;
+    p.stoppage_factor = 1.0;
+    p.extra_time_factor = 0.85;
+    return p;
+}
+}  // namespace
+
 TEST_CASE("a whole regulation match carries exposure 1") {
-    const TimingProfile profile;
+    const TimingProfile profile = stated_profile();
     const TimingCurve curve(profile, CompetitionFormat{});
     CHECK(curve.remaining_regulation({Period::pre_match, 0}, std::nullopt) == Approx(1.0).epsilon(1e-15));
     // Pieces add up: kick-off to 30', 30' to the end.
@@ -21,7 +36,7 @@ TEST_CASE("a whole regulation match carries exposure 1") {
 }
 
 TEST_CASE("the rate rises through the match and stoppage runs at the half's end rate") {
-    const TimingCurve curve(TimingProfile{}, CompetitionFormat{});
+    const TimingCurve curve(stated_profile(), CompetitionFormat{});
     CHECK(curve.rate(at_minute(Period::first_half, 1)) < curve.rate(at_minute(Period::first_half, 40)));
     CHECK(curve.rate(at_minute(Period::second_half, 50)) < curve.rate(at_minute(Period::second_half, 85)));
     CHECK(curve.rate(at_minute(Period::first_half, 46.5)) == Approx(curve.rate(at_minute(Period::first_half, 45))));
@@ -42,7 +57,7 @@ TEST_CASE("announced stoppage extends the half; past it a small overrun remains"
 }
 
 TEST_CASE("extra time: its own exposure, and none in a league format") {
-    TimingProfile profile;
+    const TimingProfile profile = stated_profile();
     CompetitionFormat knockout;
     knockout.extra_time = true;
     const TimingCurve curve(profile, knockout);
