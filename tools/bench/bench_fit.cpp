@@ -18,7 +18,7 @@ namespace {
 
 std::filesystem::path open_data() {
     if (const char* env = std::getenv("LIVEPROB_OPEN_DATA")) return env;
-    return std::filesystem::path(__FILE__).parent_path() / "../../../shared/data/open";
+    return std::filesystem::path(LIVEPROB_SOURCE_DIR) / "../shared/data/open";
 }
 
 fit::RatingsFitOptions decayed() {
@@ -43,7 +43,8 @@ void BM_LeagueSeasonDecayRho(benchmark::State& state) {
     state.counters["matches"] = static_cast<double>(games.size());
 }
 
-// Every month from the first to the last match: fit on everything before the month's first day.
+// Every month from January of the benchmark's argument (a year) to December 2015: fit on
+// everything before the month's first day.
 void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
     const auto games = liveprob::read_international_results((open_data() / "international/results.csv").string()).matches;
     for (auto _ : state) {
@@ -53,15 +54,19 @@ void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
         o.min_weight = 0.01;
         o.standard_errors = false;
         std::optional<fit::Ratings> previous;
-        int refits = 0;
-        for (int year = 1873; year <= 2015; ++year)
+        int refits = 0, newton_iterations = 0, not_converged = 0;
+        for (int year = static_cast<int>(state.range(0)); year <= 2015; ++year)
             for (int month = 1; month <= 12; ++month) {
                 o.as_of_day = fit::day_number(year, month, 1);
                 o.start = previous ? &*previous : nullptr;
                 previous = fit::fit_ratings(games, o);
                 ++refits;
+                newton_iterations += previous->diagnostics.iterations;
+                not_converged += previous->diagnostics.converged ? 0 : 1;
             }
         state.counters["refits"] = refits;
+        state.counters["newton_iterations"] = newton_iterations;
+        state.counters["not_converged"] = not_converged;
     }
 }
 
@@ -69,7 +74,7 @@ void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
 
 BENCHMARK(BM_LeagueSeasonPlain)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_LeagueSeasonDecayRho)->Unit(benchmark::kMillisecond);
-BENCHMARK(BM_InternationalMonthlyWalkForward)->Unit(benchmark::kSecond)->Iterations(1)->Repetitions(3)
-    ->ReportAggregatesOnly(true);
+BENCHMARK(BM_InternationalMonthlyWalkForward)->Arg(2013)->Arg(1873)->Unit(benchmark::kSecond)->Iterations(1)
+    ->Repetitions(3)->ReportAggregatesOnly(true);
 
 BENCHMARK_MAIN();
