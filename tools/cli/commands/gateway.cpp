@@ -8,6 +8,7 @@
 #include <memory>
 
 #include "command_registry.hpp"
+#include "liveprob/adapters/endpoints_file.hpp"
 #include "liveprob/adapters/gateway/gateway.hpp"
 
 namespace {
@@ -22,17 +23,13 @@ struct GatewayOptions {
     std::uint64_t handshake_timeout_ms = 10'000;
 };
 
-// serve's endpoints file: "name=endpoint" lines; we want publish= and snapshot=.
+// serve's endpoints file: we want publish= and snapshot=.
 void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
-    std::ifstream in(path);
-    if (!in) throw std::runtime_error("cannot read " + path);
-    for (std::string line; std::getline(in, line);) {
-        const auto eq = line.find('=');
-        if (eq == std::string::npos) continue;
-        const std::string key = line.substr(0, eq);
-        if (key == "publish" && config.feed_endpoint.empty()) config.feed_endpoint = line.substr(eq + 1);
-        if (key == "snapshot" && config.snapshot_endpoint.empty()) config.snapshot_endpoint = line.substr(eq + 1);
-    }
+    const auto endpoints = liveprob::adapters::read_endpoints_file(path);
+    if (const auto it = endpoints.find("publish"); it != endpoints.end() && config.feed_endpoint.empty())
+        config.feed_endpoint = it->second;
+    if (const auto it = endpoints.find("snapshot"); it != endpoints.end() && config.snapshot_endpoint.empty())
+        config.snapshot_endpoint = it->second;
     if (config.feed_endpoint.empty()) throw std::runtime_error(path + " names no publish endpoint");
 }
 

@@ -13,7 +13,7 @@
 
 #include "command_registry.hpp"
 #include "liveprob/adapters/params_file.hpp"
-#include "liveprob/adapters/text_file.hpp"
+#include "liveprob/adapters/endpoints_file.hpp"
 #include "liveprob/replay/backtest.hpp"
 #include "liveprob/replay/live_replay.hpp"
 #include "liveprob/replay/report_html.hpp"
@@ -82,17 +82,12 @@ LoadedStreams load_streams(const std::vector<std::string>& args) {
     return out;
 }
 
-// "key=value" lines of serve's endpoints file.
-std::string endpoint_from_file(const std::string& path, const std::string& key) {
-    const std::string text = read_text_file(path, "the endpoints file");
-    std::size_t start = 0;
-    while (start < text.size()) {
-        const std::size_t end = std::min(text.find('\n', start), text.size());
-        const std::string line = text.substr(start, end - start);
-        if (line.rfind(key + "=", 0) == 0) return line.substr(key.size() + 1);
-        start = end + 1;
-    }
-    throw UsageError(fmt::format("{}: no {}= line", path, key));
+// One endpoint from serve's endpoints file.
+std::string endpoint_from_file(const std::string& path, const std::string& name) {
+    const auto endpoints = adapters::read_endpoints_file(path);
+    const auto it = endpoints.find(name);
+    if (it == endpoints.end()) throw UsageError(fmt::format("{}: no {}= line", path, name));
+    return it->second;
 }
 
 void print_table(const replay::BacktestResult& result) {
