@@ -112,8 +112,10 @@ MatchReplay replay_match(const std::vector<InboundMessage>& messages, const Mode
                 model->outputs().status == MatchStatus::abandoned) {
                 break;
             }
-            model->advance_to(at);
-            baseline->advance_to(at);
+            // Priced there already (a message at the bucket's minute): the outputs stand, and
+            // moving the clock onto itself would only price them again.
+            if (!(model->priced_clock() == at)) model->advance_to(at);
+            if (!(baseline->priced_clock() == at)) baseline->advance_to(at);
             record_bucket(next_bucket++);
             if (out.timeline) out.timeline->points.push_back({minutes_of(model->priced_clock()), forecast_of(model->outputs())});
         }

@@ -35,7 +35,7 @@ struct BacktestResult {
     std::array<std::array<ScoreAccumulator, kForecasters>, kBuckets> scores{};
     std::uint64_t matches = 0, scored = 0, abandoned = 0, unfinished = 0, unusable = 0;
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
-    std::uint64_t evaluations = 0;      // model outputs computed (buckets, and events on request)
+    std::uint64_t evaluations = 0;      // model outputs read (buckets, and events on request)
     std::uint64_t invalid_outputs = 0;  // of those, not finite, below -1e-12 or not summing to 1 (1e-9)
     std::vector<Timeline> timelines;
     std::vector<std::string> problems;  // one line per unusable match (the first few)
