@@ -75,7 +75,8 @@ struct ModelParams {
     double xg_weight = 0.5;  // the project's starting choice (no data here carries xG)
     // Gauss quadrature nodes for the strength mixture: nodes of the strength ratio when both
     // strengths are Gamma-distributed, per side when one is known (documented accuracy in
-    // engine/README.md: 5 nodes agree with a converged mixture to about 2e-9 at κ = 25).
+    // engine/README.md: 5 nodes agree with a converged mixture to 5e-8 at the fitted κ, 2e-9
+    // at κ = 25; raise it for a smaller κ).
     int quadrature_nodes = 5;
 
     static ModelParams plain_poisson() {
