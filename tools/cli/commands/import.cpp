@@ -12,6 +12,7 @@
 #include <memory>
 #include <set>
 #include <string>
+#include <thread>
 #include <vector>
 
 #include "command_registry.hpp"
@@ -135,6 +136,7 @@ int run_import(const ImportOptions& o) {
     wf.fit.min_weight = 0.01;
     wf.fit.standard_errors = false;
     wf.schedule = o.refit == "month" ? replay::RefitSchedule::month : replay::RefitSchedule::match_day;
+    wf.threads = std::max(1U, std::thread::hardware_concurrency());
     ProgressBar bar("import: walk-forward fits", "fits", o.quiet);
     wf.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
     const auto priors = replay::walk_forward_priors(history, fixtures, wf);

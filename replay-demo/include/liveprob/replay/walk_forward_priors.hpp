@@ -32,7 +32,14 @@ struct WalkForwardOptions {
     RefitSchedule schedule = RefitSchedule::match_day;
     // Expected goals beyond this are held at it (the engine takes priors up to 10 goals).
     double max_expected_goals = 10.0;
-    // Called after each refit with (refits done, refits in all).
+    // The refits are split into this many stretches of consecutive days, each a chain of fits
+    // warm-started from the one before (the first cold), run side by side on up to `threads`
+    // threads. The priors depend on the number of chains only within the fit's convergence
+    // tolerance, and not at all on the number of threads.
+    unsigned chains = 2;
+    unsigned threads = 2;
+    // Called from the calling thread with (refits done, refits in all), after each refit it
+    // makes and once at the end.
     std::function<void(std::size_t, std::size_t)> progress;
 };
 
