@@ -1,6 +1,8 @@
 #include "liveprob/engine/shootout.hpp"
 
 #include <algorithm>
+#include <array>
+#include <cstddef>
 #include <stdexcept>
 
 namespace liveprob {
@@ -19,27 +21,45 @@ Kickers conversions(const ShootoutParams& p) {
     return k;
 }
 
-// P(first kicker wins) from a state; recursion depth is at most the kicks left in the
-// current round structure (<= 2 * 5 + 2), as level states after a full round close in form.
-double first_wins(const Kickers& k, int ft, int fs, int st, int ss) {
-    switch (shootout_outcome(ft, fs, st, ss)) {
-        case ShootoutOutcome::first_wins: return 1.0;
-        case ShootoutOutcome::second_wins: return 0.0;
-        case ShootoutOutcome::undecided: break;
+// P(first kicker wins) from a state, by recursion over the next kick; a level state after a
+// complete sudden-death round closes in form. Within the best of five the same states are
+// reached along many kick orders, so they are remembered (at most 6^4 of them): without that
+// the recursion from the first kick visits thousands of paths.
+class FirstWins {
+public:
+    explicit FirstWins(const Kickers& k) : k_(k) { memo_.fill(-1.0); }
+
+    double operator()(int ft, int fs, int st, int ss) {
+        switch (shootout_outcome(ft, fs, st, ss)) {
+            case ShootoutOutcome::first_wins: return 1.0;
+            case ShootoutOutcome::second_wins: return 0.0;
+            case ShootoutOutcome::undecided: break;
+        }
+        if (ft == st && ft >= kShootoutRegularKicks) {
+            // Level after a complete round of sudden death: rounds repeat until one differs.
+            const double first_round = k_.first * (1.0 - k_.second);
+            const double second_round = (1.0 - k_.first) * k_.second;
+            return first_round / (first_round + second_round);
+        }
+        const bool remembered = ft <= kShootoutRegularKicks && st <= kShootoutRegularKicks;
+        double* slot = remembered ? &memo_[slot_of(ft, fs, st, ss)] : nullptr;
+        if (slot && *slot >= 0.0) return *slot;
+        const double p = ft == st  // the first side is due to kick
+            ? k_.first * (*this)(ft + 1, fs + 1, st, ss) + (1.0 - k_.first) * (*this)(ft + 1, fs, st, ss)
+            : k_.second * (*this)(ft, fs, st + 1, ss + 1) + (1.0 - k_.second) * (*this)(ft, fs, st + 1, ss);
+        if (slot) *slot = p;
+        return p;
     }
-    if (ft == st && ft >= kShootoutRegularKicks) {
-        // Level after a complete round of sudden death: rounds repeat until one differs.
-        const double first_round = k.first * (1.0 - k.second);
-        const double second_round = (1.0 - k.first) * k.second;
-        return first_round / (first_round + second_round);
+
+private:
+    static constexpr std::size_t kSide = kShootoutRegularKicks + 1;  // 0 .. 5 kicks taken or scored
+    static std::size_t slot_of(int ft, int fs, int st, int ss) {
+        return ((static_cast<std::size_t>(ft) * kSide + static_cast<std::size_t>(fs)) * kSide +
+                static_cast<std::size_t>(st)) * kSide + static_cast<std::size_t>(ss);
     }
-    if (ft == st) {  // first side to kick
-        return k.first * first_wins(k, ft + 1, fs + 1, st, ss) +
-               (1.0 - k.first) * first_wins(k, ft + 1, fs, st, ss);
-    }
-    return k.second * first_wins(k, ft, fs, st + 1, ss + 1) +
-           (1.0 - k.second) * first_wins(k, ft, fs, st + 1, ss);
-}
+    Kickers k_;
+    std::array<double, kSide * kSide * kSide * kSide> memo_{};
+};
 
 }  // namespace
 
@@ -66,7 +86,7 @@ double shootout_home_win(const ShootoutParams& params, const ShootoutState& stat
     if (ft < 0 || st < 0 || fs < 0 || ss < 0 || fs > ft || ss > st || !(ft == st || ft == st + 1)) {
         throw std::invalid_argument("shoot-out state not reachable in ABAB order");
     }
-    const double p_first = first_wins(k, ft, fs, st, ss);
+    const double p_first = FirstWins(k)(ft, fs, st, ss);
     return state.first == Side::home ? p_first : 1.0 - p_first;
 }
 
