@@ -1,8 +1,11 @@
 // `liveprob send`: pushes a feed file (JSON lines, or a recorded size-prefixed stream) to a
-// service's ingest endpoint. The whole file is read and checked first, so a bad line stops
-// the run before anything is sent. Pacing: as fast as possible, at a fixed rate, or by the
-// match clock with a speed factor.
+// service's ingest endpoint, or with several endpoints (shards in order) each match to the
+// shard that owns it. This is also the JSON feed adapter: JSON lines are read, checked and
+// turned into FlatBuffers messages here. The whole file is read and checked first, so a bad
+// line stops the run before anything is sent. Pacing: as fast as possible, at a fixed rate,
+// or by the match clock with a speed factor.
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <chrono>
 #include <fstream>
@@ -13,7 +16,7 @@
 
 #include "command_registry.hpp"
 #include "liveprob/adapters/feed_pacing.hpp"
-#include "liveprob/adapters/snapshot_client.hpp"
+#include "liveprob/adapters/shard_sender.hpp"
 #include "liveprob/protocol/byte_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
@@ -23,7 +26,7 @@ namespace liveprob::cli {
 namespace {
 
 struct SendFlags {
-    std::string to;
+    std::vector<std::string> to;  // one ingest endpoint per shard, in shard order
     std::string file;
     std::string format = "auto";
     double speed = 0.0;
@@ -78,15 +81,14 @@ int run_send(const SendFlags& f) {
     if (f.format != "auto" && f.format != "jsonl" && f.format != "frames") {
         throw UsageError("--format must be auto, jsonl or frames");
     }
+    if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
     std::vector<InboundMessage> messages = read_feed(f);
-    const auto keys = adapters::load_curve_client_keys(f.server_key, f.client_key);
+    adapters::ShardSenderOptions options;
+    options.keys = adapters::load_curve_client_keys(f.server_key, f.client_key);
+    options.linger_ms = f.linger_ms;
 
     zmq::context_t context(1);
-    zmq::socket_t push(context, zmq::socket_type::push);
-    push.set(zmq::sockopt::linger, f.linger_ms);
-    push.set(zmq::sockopt::sndhwm, 1'000'000);
-    adapters::apply_curve_client(push, keys);
-    push.connect(f.to);
+    adapters::ShardSender sender(context, f.to, options);
 
     adapters::FeedPacer pacer = f.rate > 0.0    ? adapters::FeedPacer::at_rate(f.rate)
                                 : f.speed > 0.0 ? adapters::FeedPacer::by_match_clock(f.speed)
@@ -100,9 +102,15 @@ int run_send(const SendFlags& f) {
                                           .count();
         }
         const std::vector<std::uint8_t> bytes = protocol::encode_feed_message(m);
-        push.send(zmq::buffer(bytes), zmq::send_flags::none);
+        sender.send(m.header.match_id, bytes);
     }
-    std::cout << fmt::format("sent {} messages to {}", messages.size(), f.to) << std::endl;
+    if (sender.shard_count() == 1) {
+        std::cout << fmt::format("sent {} messages to {}", messages.size(), f.to.front()) << std::endl;
+    } else {
+        std::cout << fmt::format("sent {} messages to {} shards ({} each, in shard order)", messages.size(),
+                                 sender.shard_count(), fmt::join(sender.sent_per_shard(), ", "))
+                  << std::endl;
+    }
     return kExitOk;
 }
 
@@ -111,7 +119,12 @@ const Registration registration{{
     "push a feed file (JSON lines or a recorded stream) to a service's ingest endpoint",
     [](CLI::App& sub) -> std::function<int()> {
         auto f = std::make_shared<SendFlags>();
-        sub.add_option("--to", f->to, "ingest endpoint, e.g. tcp://127.0.0.1:7430")->required();
+        sub.add_option("--to", f->to,
+                       "ingest endpoint, e.g. tcp://127.0.0.1:7430; for shards, every shard's in order "
+                       "(0/N first, comma-separated): each match goes to the shard that owns it")
+            ->required()
+            ->allow_extra_args(false)  // one argument (split at commas): the feed file is never taken for an endpoint
+            ->delimiter(',');
         sub.add_option("file", f->file, "feed file")->required()->check(CLI::ExistingFile);
         sub.add_option("--format", f->format, "auto | jsonl | frames (size-prefixed stream)");
         sub.add_option("--speed", f->speed, "pace by the match clock, this many times real time (0: no pacing)");
