@@ -164,6 +164,13 @@ void LiveService::Impl::replay() {
     const JournalReplayReport report = replay_journal(
         config.journal_path, [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
     replaying = false;
+    // A rebuilt match continues its output sequence from the restart time in microseconds since
+    // the Unix epoch, not from 1. The run before published fewer updates per match than
+    // microseconds have passed since its own start, so the sequence only rises across restarts
+    // and a subscriber that skips updates "not newer" than the last (protocol/README.md) takes
+    // the restarted service's updates at once; it sees one forward jump, like a gap.
+    const auto restart_seq = static_cast<std::uint64_t>(wall_time_us());
+    for (auto& [id, m] : book.matches()) m.output_seq = restart_seq;
     counters.journal_replayed = report.frames;
     counters.journal_torn_bytes = report.torn_bytes;
     if (!report.torn_detail.empty()) {

@@ -73,7 +73,7 @@ protocol::DecodedUpdate wait_for_events(const ServeProcess& serve, std::uint64_t
 }  // namespace
 
 TEST_CASE("a whole match sent through send and serve reaches tap exactly as the engine computes it",
-          "[integration][serve]") {
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-whole-match");
     const auto feed = invented_match(101);
     write_frames(dir / "feed.lpf", feed);
@@ -116,7 +116,7 @@ TEST_CASE("a whole match sent through send and serve reaches tap exactly as the 
     CHECK(json_number(lines.back(), "away_goals") == 1);
 }
 
-TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket", "[integration][serve]") {
+TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket", "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-late-joiner");
     const auto feed = invented_match(202);
     const std::vector<InboundMessage> first_half(feed.begin(), feed.begin() + 14);
@@ -145,7 +145,7 @@ TEST_CASE("a subscriber that joins late gets the current state from the snapshot
     CHECK(none.error.find("999") != std::string::npos);
 }
 
-TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed key's are", "[integration][serve]") {
+TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed key's are", "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-curve");
     for (const char* name : {"server", "listed", "unlisted"}) {
         ChildProcess keys({bin(), "keys", "--dir", dir.string(), "--name", name}, dir / "keys.out", dir / "keys.err");
@@ -183,7 +183,7 @@ TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed ke
     CHECK(counter(*counters, "matches") == 1);
 }
 
-TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupted run's", "[integration][serve]") {
+TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupted run's", "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-crash");
     const auto feed = invented_match(404);
     const std::size_t split = 20;
@@ -218,6 +218,8 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     REQUIRE(restored.updates.size() == 1);
     CHECK(same_outputs(restored.updates[0].outputs, before_outputs.back().outputs));
     CHECK(restored.updates[0].meta.input_seq == before_outputs.back().input_seq);
+    // The output sequence goes on rising: subscribers skip updates not newer than the last.
+    CHECK(restored.updates[0].meta.output_seq > before_outputs.size());
 
     zmq::context_t context(1);
     TestSubscriber sub(context, second.publish(), adapters::match_topic_string(404));
@@ -234,7 +236,7 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     }
 }
 
-TEST_CASE("garbage frames are counted and dropped and the service keeps serving", "[integration][serve]") {
+TEST_CASE("garbage frames are counted and dropped and the service keeps serving", "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-garbage");
     ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
     zmq::context_t context(1);
@@ -289,7 +291,7 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
 }
 
 TEST_CASE("a subscriber that never reads does not hold up others, and serve's memory stays bounded",
-          "[integration][serve]") {
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-stalled");
     // Ticks every 10 ms over 50 live matches: about 5,000 updates a second with no new state,
     // so serve's memory can only grow through what it queues for subscribers.
@@ -334,7 +336,7 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
 }
 
 TEST_CASE("disk full for the journal: messages are counted and not applied, and serve keeps serving",
-          "[integration][serve]") {
+          "[integration][serve][sockets]") {
     // /dev/full accepts the open and fails every write with ENOSPC, as a full disk does.
     const auto dir = scratch_dir("serve-disk-full");
     ServeProcess serve(dir, "serve", {"--journal", "/dev/full", "--journal-sync", "every_message",
