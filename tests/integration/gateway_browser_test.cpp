@@ -70,7 +70,7 @@ ShownFigures shown_for(const std::string& dom, std::uint64_t match_id) {
 
 }  // namespace
 
-TEST_CASE("the page shows what the engine published, in a real browser", "[gateway][browser]") {
+TEST_CASE("the page shows what the engine published, in a real browser", "[gateway][browser][sockets]") {
     REQUIRE(std::filesystem::exists(kChromium));  // tools/setup/install-deps.sh installs it
     const auto dir = test::scratch_dir("gateway-browser");
     test::LiveStack stack(dir);

@@ -220,7 +220,7 @@ bool has(const std::string& frame, const std::string& part) { return frame.find(
 
 }  // namespace
 
-TEST_CASE("a client receives the matches it watches and no others", "[gateway]") {
+TEST_CASE("a client receives the matches it watches and no others", "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 7);
@@ -247,7 +247,7 @@ TEST_CASE("a client receives the matches it watches and no others", "[gateway]")
     CHECK_FALSE(client.receive_update(300ms));  // nothing of match 8 came through
 }
 
-TEST_CASE("watching all delivers every match, including ones that start later", "[gateway]") {
+TEST_CASE("watching all delivers every match, including ones that start later", "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 1);
@@ -265,7 +265,7 @@ TEST_CASE("watching all delivers every match, including ones that start later", 
     CHECK_FALSE(client.receive_update(300ms));
 }
 
-TEST_CASE("a bad request gets an error reply and the connection stays usable", "[gateway]") {
+TEST_CASE("a bad request gets an error reply and the connection stays usable", "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 3);
@@ -281,7 +281,7 @@ TEST_CASE("a bad request gets an error reply and the connection stays usable", "
     CHECK(counter(gateway.port(), "bad_requests") == 2);
 }
 
-TEST_CASE("a slow reader gets the latest value of each match, not every value", "[gateway]") {
+TEST_CASE("a slow reader gets the latest value of each match, not every value", "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
@@ -309,7 +309,7 @@ TEST_CASE("a slow reader gets the latest value of each match, not every value", 
     CHECK(counter(gateway.port(), "frames_conflated") > 0);
 }
 
-TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on", "[gateway]") {
+TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on", "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
@@ -342,7 +342,7 @@ TEST_CASE("a client past the send-queue cap is closed with code 4001 while other
     CHECK(stalled.close_code() == liveprob::gateway::kCloseSendQueueFull);
 }
 
-TEST_CASE("an origin outside the allow-list cannot open the feed", "[gateway]") {
+TEST_CASE("an origin outside the allow-list cannot open the feed", "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.allowed_origins = {"http://screens.example"};
@@ -359,7 +359,7 @@ TEST_CASE("an origin outside the allow-list cannot open the feed", "[gateway]") 
     CHECK(counter(gateway.port(), "origins_rejected") == 1);
 }
 
-TEST_CASE("a client message over the size limit closes the client with code 1009", "[gateway]") {
+TEST_CASE("a client message over the size limit closes the client with code 1009", "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.max_client_message_bytes = 256;
@@ -372,7 +372,7 @@ TEST_CASE("a client message over the size limit closes the client with code 1009
     CHECK(counter(gateway.port(), "clients_closed_oversize") == 1);
 }
 
-TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[gateway]") {
+TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.idle_timeout = 400ms;
@@ -384,7 +384,7 @@ TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[
     CHECK_FALSE(silent.receive(1000ms));
 }
 
-TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded", "[gateway]") {
+TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded", "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 9);
@@ -406,7 +406,7 @@ TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not for
     CHECK(has(http_get(gateway.port(), "/api/matches").body, R"("match_id":9,"update_seq":5,)"));
 }
 
-TEST_CASE("plain HTTP serves the page, the match state and the timeline", "[gateway]") {
+TEST_CASE("plain HTTP serves the page, the match state and the timeline", "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 4);

@@ -22,7 +22,7 @@ std::filesystem::path python_modules() {
 }
 }  // namespace
 
-TEST_CASE("the Python subscriber prints what serve published", "[python][gateway]") {
+TEST_CASE("the Python subscriber prints what serve published", "[python][gateway][sockets]") {
     const auto dir = test::scratch_dir("python-subscriber");
     test::LiveStack stack(dir);
     test::FeedBuilder feed(55);

@@ -17,7 +17,7 @@
 using namespace liveprob;
 using namespace liveprob::replay;
 
-TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 threads", "[replay]") {
+TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 threads", "[replay][threads]") {
     const auto league = make_demo_league(5);
     const auto season = simulate_demo_season(league, 5);
     const auto dir = liveprob::test::scratch_dir("replay-report");
