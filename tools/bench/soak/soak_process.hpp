@@ -1,0 +1,42 @@
+// The processes a soak runs (serve shards, the relay, bare forwarders): started with their
+// output in a log file, sampled for memory and CPU from /proc, stopped with SIGTERM.
+#pragma once
+
+#include <sys/types.h>
+
+#include <chrono>
+#include <cstdint>
+#include <filesystem>
+#include <map>
+#include <string>
+#include <vector>
+
+namespace liveprob::soak {
+
+class SoakProcess {
+public:
+    SoakProcess(std::string name, const std::vector<std::string>& argv, const std::filesystem::path& log);
+    ~SoakProcess();
+    SoakProcess(const SoakProcess&) = delete;
+    SoakProcess& operator=(const SoakProcess&) = delete;
+
+    const std::string& name() const noexcept { return name_; }
+    pid_t pid() const noexcept { return pid_; }
+    bool running();
+    // SIGTERM, then SIGKILL after `grace`.
+    void stop(std::chrono::milliseconds grace = std::chrono::milliseconds(5000));
+
+    // Resident memory now (KiB) and CPU time used so far (user + system, seconds); 0 once ended.
+    std::uint64_t rss_kib() const;
+    double cpu_seconds() const;
+
+private:
+    std::string name_;
+    pid_t pid_ = -1;
+};
+
+// "key=value" lines, as serve and relay write their endpoints files; waits for the file.
+std::map<std::string, std::string> read_endpoints_file(const std::filesystem::path& path, SoakProcess& writer,
+                                                       std::chrono::seconds limit);
+
+}  // namespace liveprob::soak
