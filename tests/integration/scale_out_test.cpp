@@ -138,7 +138,7 @@ std::string bin() { return liveprob_binary().string(); }
 
 std::vector<std::string> shard_args(const std::filesystem::path& dir, std::uint32_t k) {
     return {"--shard", fmt::format("{}/{}", k, kShards), "--journal", (dir / fmt::format("shard-{}.lpf", k)).string(),
-            "--tick-ms", "3600000"};
+            "--tick-ms", "3600000", "--counters-ms", "200"};
 }
 
 enum class FeedFormat { frames, json_lines };
@@ -322,6 +322,38 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
             CHECK(one.updates[0].meta.match_id == id);
             CHECK(same_outputs(one.updates[0].outputs, sub.of(id).back().update.outputs));
         }
+    }
+
+    // A message for another shard's match, pushed straight to the wrong shard: counted, dropped.
+    {
+        const std::uint64_t stray = owned[0].front();
+        TestSubscriber counters(context, shards[2]->publish(), "no.match.");
+        REQUIRE(counters.next_counters(20s).has_value());
+        zmq::socket_t push(context, zmq::socket_type::push);
+        push.set(zmq::sockopt::linger, 2000);
+        push.connect(shards[2]->ingest());
+        push.send(zmq::buffer(protocol::encode_feed_message(varied_match(stray).front())));
+        std::optional<protocol::CounterSet> seen;
+        const auto deadline = std::chrono::steady_clock::now() + 20s;
+        do {
+            seen = counters.next_counters(5s);
+            REQUIRE(seen.has_value());
+        } while (counter(*seen, "ingest.not_our_shard") == 0 && std::chrono::steady_clock::now() < deadline);
+        CHECK(counter(*seen, "ingest.not_our_shard") == 1);
+        CHECK(ask(context, shards[2]->snapshot(), stray).error == fmt::format("unknown match {}", stray));
+    }
+    // A request the relay cannot read gets an error reply, not silence.
+    {
+        zmq::socket_t dealer(context, zmq::socket_type::dealer);
+        dealer.set(zmq::sockopt::linger, 0);
+        dealer.set(zmq::sockopt::rcvtimeo, 10000);
+        dealer.connect(relay_snapshot);
+        dealer.send(zmq::str_buffer("not a snapshot request"));
+        zmq::message_t reply;
+        REQUIRE(dealer.recv(reply));
+        const auto decoded = protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
+        REQUIRE(decoded.ok());
+        CHECK(decoded.value->error.rfind("bad request", 0) == 0);
     }
 
     // 2. kill -9 one shard.
