@@ -345,6 +345,24 @@ struct PricingScratch {
     }
 };
 
+// Complements (1 - the rest) and differences can land a rounding error below zero, like
+// -2.2e-16; a published probability is never negative, so those become 0. Anything further
+// below would be a fault, and stays visible to the tests.
+void settle_rounding(Outputs& out) {
+    auto settle = [](double& p) {
+        if (p < 0.0 && p > -1e-12) p = 0.0;
+    };
+    for (double* p : {&out.p_home, &out.p_draw, &out.p_away, &out.p_advance_home, &out.p_advance_away,
+                      &out.next_goal_home, &out.next_goal_away, &out.next_goal_none, &out.p_both_score,
+                      &out.tail_mass}) {
+        settle(*p);
+    }
+    for (double& p : out.p_over) settle(p);
+    for (auto& row : out.goals_added) {
+        for (double& p : row) settle(p);
+    }
+}
+
 PricingScratch& thread_scratch() {
     thread_local std::unique_ptr<PricingScratch> scratch;
     if (!scratch) scratch = std::make_unique<PricingScratch>();
@@ -394,6 +412,11 @@ PricingModel& PricingModel::operator=(PricingModel&&) noexcept = default;
 const ModelParams& PricingModel::params() const { return ws_->params; }
 
 void PricingModel::price(const PricingState& st, Outputs& out) {
+    price_unsettled(st, out);
+    settle_rounding(out);
+}
+
+void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
     Workspace& model = *ws_;
     PricingScratch& w = thread_scratch();
     const ModelParams& prm = model.params;

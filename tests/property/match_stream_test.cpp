@@ -51,10 +51,13 @@ void check_distributions(const Outputs& o) {
     CHECK(smallest >= 0.0);
     CHECK(std::abs(grid - 1.0) <= kSumTolerance);
     if (o.has_advance) CHECK(std::abs(o.p_advance_home + o.p_advance_away - 1.0) <= kSumTolerance);
-    for (double p : {o.p_home, o.p_draw, o.p_away, o.next_goal_none, o.p_both_score, o.p_advance_home}) {
-        CHECK(p >= -kSumTolerance);
+    // Never below zero, not even by a rounding error (screens print what they get).
+    for (double p : {o.p_home, o.p_draw, o.p_away, o.next_goal_home, o.next_goal_away, o.next_goal_none,
+                     o.p_both_score, o.p_advance_home, o.p_advance_away}) {
+        CHECK(p >= 0.0);
         CHECK(p <= 1.0 + kSumTolerance);
     }
+    for (double p : o.p_over) CHECK(p >= 0.0);
     for (std::size_t i = 1; i < o.p_over.size(); ++i) CHECK(o.p_over[i] <= o.p_over[i - 1] + kSumTolerance);
 }
 

@@ -2,6 +2,7 @@
 // the clock move them the right way, settled matches give the result, bad input is refused.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <cmath>
 
 #include "liveprob/engine/intensity.hpp"
@@ -153,4 +154,44 @@ TEST_CASE("bad input is refused with a clear error") {
     bad = ModelParams{};
     bad.shootout.conversion = 1.0;
     CHECK_THROWS_AS(PricingModel{bad}, std::invalid_argument);
+}
+
+TEST_CASE("no published probability is negative, even by a rounding error") {
+    // Complements (1 - the rest) used to come out at -2.2e-16 for some states: a consumer that
+    // checks p >= 0 (or takes a log) must never see that. Scan a grid of priors, minutes,
+    // scores, both formats and both the full and the plain model.
+    CompetitionFormat knockout;
+    knockout.extra_time = true;
+    knockout.shootout = true;
+    int states = 0;
+    for (const ModelParams& params : {ModelParams{}, ModelParams::plain_poisson()}) {
+        PricingModel model{params};
+        for (double lh : {0.2, 1.0, 3.0, 6.0, 10.0}) {
+            for (double la : {0.2, 1.5, 10.0}) {
+                for (int minute = 0; minute <= 95; minute += 5) {
+                    for (int goals = 0; goals <= 2; ++goals) {
+                        for (bool cup : {false, true}) {
+                            const Period period = minute < 45 ? Period::first_half : Period::second_half;
+                            PricingState st = full_state(lh, la, at_minute(period, minute), goals, 0);
+                            if (cup) st.format = knockout;
+                            Outputs out;
+                            model.price(st, out);
+                            ++states;
+                            double lowest = std::min({out.p_home, out.p_draw, out.p_away, out.p_advance_home,
+                                                      out.p_advance_away, out.next_goal_home, out.next_goal_away,
+                                                      out.next_goal_none, out.p_both_score, out.tail_mass});
+                            for (double p : out.p_over) lowest = std::min(lowest, p);
+                            for (const auto& row : out.goals_added) {
+                                for (double p : row) lowest = std::min(lowest, p);
+                            }
+                            INFO("prior " << lh << "," << la << " minute " << minute << " score " << goals
+                                          << "-0 " << (cup ? "knockout" : "league"));
+                            REQUIRE(lowest >= 0.0);
+                        }
+                    }
+                }
+            }
+        }
+    }
+    CHECK(states == 2 * 5 * 3 * 20 * 3 * 2);
 }

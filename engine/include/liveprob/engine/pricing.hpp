@@ -51,6 +51,8 @@ public:
     const ModelParams& params() const;
 
 private:
+    void price_unsettled(const PricingState& state, Outputs& out);  // before settle_rounding
+
     struct Workspace;
     std::unique_ptr<Workspace> ws_;
 };
