@@ -71,24 +71,26 @@ private:
 constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (checked in add())
 
 // One jump (number n >= 1) of the uniformized chain over the plane, accumulating the new
-// distribution with weight w. The hot loop of the whole engine: branch-free inner loops, so
-// that they vectorize; compiled twice (AVX2 and baseline x86-64, picked at load time). No FMA:
-// both versions round identically, so a replay reproduces live figures to the last bit on any
-// machine. Rows past n cannot hold mass yet and are left alone; within a row every cell is
-// computed (a shorter, ragged range would cost more in loop overhead than it saves).
-__attribute__((target_clones("avx2", "default")))
+// distribution with weight w. The hot loop of the whole engine: one branch-free pass, so that
+// it vectorizes. Rows past n cannot hold mass yet and are left alone; within a row every cell
+// is computed (a shorter, ragged range would cost more in loop overhead than it saves).
+// Rounding is the same on every machine, so a replay reproduces live figures to the last bit:
+// the fused multiply-adds are written out (std::fma is exactly rounded wherever it runs), and
+// on x86-64 the loop is compiled twice, for AVX2 with FMA (Haswell and later, picked at load
+// time) and for the baseline, where std::fma is a library call: correct, identical, slower.
+#if defined(__x86_64__)
+__attribute__((target_clones("arch=haswell", "default")))
+#endif
 void uniformized_step(const double* __restrict stay, const double* __restrict from_home,
                       const double* __restrict from_away, const double* __restrict v,
                       double* __restrict nv, double* __restrict acc, double w, std::size_t n) {
     constexpr std::size_t width = kStepWidth;
-    auto cells = [&](std::size_t begin, std::size_t end) {
-        for (std::size_t x = begin; x < end; ++x) {
-            const double y = stay[x] * v[x] + from_home[x] * v[x - width] + from_away[x] * v[x - 1];
-            nv[x] = y;
-            acc[x] += w * y;
-        }
-    };
-    cells(width, (std::min(n, kGridSize) + 2) * width);
+    const std::size_t end = (std::min(n, kGridSize) + 2) * width;
+    for (std::size_t x = width; x < end; ++x) {
+        const double y = std::fma(stay[x], v[x], std::fma(from_home[x], v[x - width], from_away[x] * v[x - 1]));
+        nv[x] = y;
+        acc[x] = std::fma(w, y, acc[x]);
+    }
 }
 
 }  // namespace
@@ -219,15 +221,20 @@ void difference_values(const ClassRates& rates, int start_diff, double level_val
         const int tie = start_diff + d;
         u[slot(d)] = tie > 0 ? 1.0 : tie == 0 ? level_value : 0.0;
     }
-    auto step = [&](const double* __restrict from, double* __restrict to) {
-        for (std::size_t x = 1; x + 1 < at(kSlots); ++x) {
+    // Only the start's value is read, so u_n is needed only within (last n) - n slots of the
+    // start: each pass covers a narrower range.
+    const std::size_t last = out.empty() ? 0 : out.size() - 1;
+    auto step = [&](const double* __restrict from, double* __restrict to, std::size_t reach) {
+        const std::size_t lo = slot(0) > reach + 1 ? slot(0) - reach : 1;
+        const std::size_t hi = std::min(slot(0) + reach, at(kSlots) - 2);
+        for (std::size_t x = lo; x <= hi; ++x) {
             to[x] = stay[x] * from[x] + up[x] * from[x + 1] + down[x] * from[x - 1];
         }
     };
     for (std::size_t n = 0; n < out.size(); ++n) {
         if (n > 0) {
-            if (n % 2 == 1) step(u.data(), next.data());
-            else step(next.data(), u.data());
+            if (n % 2 == 1) step(u.data(), next.data(), last - n);
+            else step(next.data(), u.data(), last - n);
         }
         out[n] = (n % 2 == 1 ? next : u)[slot(0)];
     }

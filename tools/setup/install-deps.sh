@@ -12,6 +12,7 @@ packages=(
   catch2 libbenchmark-dev libcli11-dev libfmt-dev libspdlog-dev libsimdjson-dev
   python3 python3-scipy python3-statsmodels python3-numpy python3-zmq   # reference checks, Python client
   chromium fonts-dejavu-core                    # the gateway page's browser test (headless)
+  qemu-user                                     # same figures on an emulated older processor
 )
 
 missing=()

@@ -29,9 +29,9 @@ struct JumpCounts {
 };
 
 // The chains' truncation tolerance: the weighted mass (factor · P(N > n)) left out of a sum.
-// Far below the quadrature's accuracy (engine/README.md) and the 1e-12 within which the
-// published distributions must sum to 1, whatever the number of nodes.
-inline constexpr double kJumpTailTolerance = 1e-15;
+// Far below the quadrature's accuracy (engine/README.md) and, summed over the nodes, below the
+// 1e-12 within which the published distributions must sum to 1.
+inline constexpr double kJumpTailTolerance = 1e-14;
 
 // Writes factor · P(N = n) for n = 0, 1, ... into `out` until the remaining weighted tail
 // (bounded by a geometric series past the mode) is below kJumpTailTolerance; returns how many were
