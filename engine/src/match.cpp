@@ -126,8 +126,13 @@ bool Match::advance_to(MatchClock now) {
         return false;
     }
     now.clock_ms = std::min(now.clock_ms, period_latest_ms(fold_.format(), now.period));
-    priced_clock_ = now;
-    outputs_stale_ = true;
+    // A clock held at the period's latest point (play beyond the announced stoppage time) does
+    // not move on: the outputs already priced there stay valid, and the timer's republish of
+    // such a match costs no pricing.
+    if (!(now == priced_clock_)) {
+        priced_clock_ = now;
+        outputs_stale_ = true;
+    }
     return true;
 }
 
