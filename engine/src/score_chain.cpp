@@ -76,10 +76,13 @@ constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (
 // is computed (a shorter, ragged range would cost more in loop overhead than it saves).
 // Rounding is the same on every machine, so a replay reproduces live figures to the last bit:
 // the fused multiply-adds are written out (std::fma is exactly rounded wherever it runs), and
-// on x86-64 the loop is compiled twice, for AVX2 with FMA (Haswell and later, picked at load
-// time) and for the baseline, where std::fma is a library call: correct, identical, slower.
+// on x86-64 the loop is compiled twice, for x86-64-v3 (AVX2 with FMA) and for the baseline,
+// where std::fma is a library call: correct, identical, several times slower. The clone is
+// picked at load time by processor features; not "arch=haswell", which picks by processor
+// model, so that every other processor (any AMD one, later Intel ones) got the slow baseline.
 #if defined(__x86_64__)
-__attribute__((target_clones("arch=haswell", "default")))
+#define LIVEPROB_FAST_CLONE "arch=x86-64-v3"
+__attribute__((target_clones(LIVEPROB_FAST_CLONE, "default")))
 #endif
 void uniformized_step(const double* __restrict stay, const double* __restrict from_home,
                       const double* __restrict from_away, const double* __restrict v,
@@ -94,6 +97,19 @@ void uniformized_step(const double* __restrict stay, const double* __restrict fr
 }
 
 }  // namespace
+
+namespace {
+// Dispatched by the same rule as the step's clones, so it names the one that runs. (Versions of
+// a function dispatch only where they are all visible: callers elsewhere use the wrapper.)
+#if defined(__x86_64__)
+__attribute__((target(LIVEPROB_FAST_CLONE))) const char* kernel_name() { return "x86-64-v3"; }
+__attribute__((target("default"))) const char* kernel_name() { return "baseline"; }
+#else
+const char* kernel_name() { return "baseline"; }
+#endif
+}  // namespace
+
+const char* score_chain_kernel() { return kernel_name(); }
 
 double ClassRates::max_total() const noexcept {
     double lam = 0.0;

@@ -15,6 +15,7 @@
 
 #include "liveprob/engine/intensity.hpp"
 #include "liveprob/engine/pricing.hpp"
+#include "liveprob/engine/score_chain.hpp"
 
 namespace {
 std::atomic<long> g_allocations{0};
@@ -106,4 +107,10 @@ BENCHMARK(score_chain_only);
 BENCHMARK(full_model)->Arg(5)->Arg(6)->Arg(8)->Arg(4);
 BENCHMARK(full_model_league);
 
-BENCHMARK_MAIN();
+int main(int argc, char** argv) {
+    benchmark::Initialize(&argc, argv);
+    benchmark::AddCustomContext("score_chain_kernel", liveprob::score_chain_kernel());
+    benchmark::RunSpecifiedBenchmarks();
+    benchmark::Shutdown();
+    return 0;
+}

@@ -101,6 +101,10 @@ struct DifferenceOutcome {
 // shoot-out, which the home side wins with probability level_value.) Allocates nothing.
 void difference_values(const ClassRates& rates, int start_diff, double level_value, std::span<double> out);
 
+// Which compiled form of the chain step this processor runs: "x86-64-v3" (AVX2 with FMA) or
+// "baseline" (the same figures, several times slower). For benchmarks and checks.
+const char* score_chain_kernel();
+
 // Outcome over `exposure` with known rates (Poisson jump count).
 DifferenceOutcome solve_difference(const ClassRates& rates, int start_diff, double exposure);
 
