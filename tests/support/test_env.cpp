@@ -38,11 +38,12 @@ CommandResult run_command(const std::string& command) {
 }
 
 std::filesystem::path scratch_dir(const std::string& name) {
-    auto dir = std::filesystem::temp_directory_path() /
-               ("liveprob-test-" + name + "-" + std::to_string(::getpid()));
-    std::filesystem::remove_all(dir);
-    std::filesystem::create_directories(dir);
-    return dir;
+    // mkdtemp makes a directory nobody else holds. A name from the process id alone is not
+    // enough: ids are reused within minutes here (pid_max 32768, several builds at once), and a
+    // test in another work tree that drew the same id used to clear this one's folder mid-run.
+    std::string path = (std::filesystem::temp_directory_path() / ("liveprob-test-" + name + "-XXXXXX")).string();
+    if (::mkdtemp(path.data()) == nullptr) throw std::runtime_error("cannot create a scratch folder " + path);
+    return path;
 }
 
 }  // namespace liveprob::test
