@@ -8,23 +8,9 @@
 #include <new>
 
 #include "feed_builder.hpp"
+#include "heap_allocation_counter.hpp"
 #include "liveprob/engine/match.hpp"
 
-namespace {
-std::atomic<long> allocations{0};
-}  // namespace
-
-// GCC sees malloc/free inside the replaced operators as a mismatch; they are the pair here.
-#pragma GCC diagnostic push
-#pragma GCC diagnostic ignored "-Wmismatched-new-delete"
-void* operator new(std::size_t size) {
-    allocations.fetch_add(1, std::memory_order_relaxed);
-    if (void* p = std::malloc(size ? size : 1)) return p;
-    throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
-#pragma GCC diagnostic pop
 
 using namespace liveprob;
 using liveprob::test::at_minute;
@@ -47,7 +33,7 @@ TEST_CASE("applying messages in feed order and reading the outputs allocates not
     // Warm up: the first pricing of each kind of state may size caches.
     (void)match.outputs();
 
-    const long before = allocations.load();
+    const long before = test::heap_allocations();
     double sum = 0.0;
     for (const auto& m : stream) {
         REQUIRE(match.apply(m).verdict == Verdict::accepted);
@@ -55,7 +41,7 @@ TEST_CASE("applying messages in feed order and reading the outputs allocates not
         match.advance_to(MatchClock{m.header.clock.period, m.header.clock.clock_ms + 30'000});
         sum += match.outputs().p_draw;
     }
-    const long during = allocations.load() - before;
+    const long during = test::heap_allocations() - before;
     CHECK(sum > 0.0);
     CHECK(during == 0);
 }

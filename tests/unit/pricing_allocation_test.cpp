@@ -8,28 +8,18 @@
 
 #include "liveprob/engine/intensity.hpp"
 #include "liveprob/engine/pricing.hpp"
+#include "heap_allocation_counter.hpp"
 #include "pricing_fixtures.hpp"
 
-namespace {
-std::atomic<long> g_allocations{0};
-}
-
-void* operator new(std::size_t size) {
-    g_allocations.fetch_add(1, std::memory_order_relaxed);
-    if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
-    throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 using namespace liveprob;
 
 TEST_CASE("the allocation counter sees heap allocations") {
     static double* volatile probe = nullptr;  // volatile: the pair cannot be optimised away
-    const long before = g_allocations.load();
+    const long before = test::heap_allocations();
     probe = new double(1.0);
     delete probe;
-    CHECK(g_allocations.load() == before + 1);
+    CHECK(test::heap_allocations() == before + 1);
 }
 
 TEST_CASE("pricing allocates nothing per update, plain and full model") {
@@ -46,7 +36,7 @@ TEST_CASE("pricing allocates nothing per update, plain and full model") {
         }
         Outputs out;
         model.price(st, out);  // warm-up: caches the quadrature nodes
-        const long before = g_allocations.load();
+        const long before = test::heap_allocations();
         for (int minute = 11; minute < 90; ++minute) {
             st.clock = test::at_minute(minute < 45 ? Period::first_half : Period::second_half, minute);
             if (minute == 60) st.goals[0] = 1;
@@ -54,7 +44,7 @@ TEST_CASE("pricing allocates nothing per update, plain and full model") {
             st.theta_rate[0] += 0.01;
             model.price(st, out);
         }
-        const long allocations = g_allocations.load() - before;  // before Catch's own messages
+        const long allocations = test::heap_allocations() - before;  // before Catch's own messages
         INFO((full ? "full" : "plain") << " model");
         CHECK(allocations == 0);
     }

@@ -8,20 +8,10 @@
 #include <limits>
 #include <new>
 
+#include "heap_allocation_counter.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "sample_messages.hpp"
 
-// Counts every heap allocation of this test program, to prove steady-state encoding makes none.
-namespace {
-std::atomic<std::size_t> g_allocations{0};
-}
-void* operator new(std::size_t size) {
-    g_allocations.fetch_add(1, std::memory_order_relaxed);
-    if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
-    throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 using namespace liveprob;
 using namespace liveprob::protocol;
@@ -88,13 +78,13 @@ TEST_CASE("encoding an update allocates nothing once the encoder is warm", "[upd
     Outputs outputs = test::sample_outputs();
     for (auto& row : outputs.goals_added) row.fill(0.001);
     (void)encoder.encode(kMeta, outputs);  // warm-up: the builder grows to size here
-    const std::size_t before = g_allocations.load();
+    const long before = test::heap_allocations();
     std::size_t total = 0;
     for (int i = 0; i < 1000; ++i) {
         outputs.p_home = 0.001 * i;
         total += encoder.encode(kMeta, outputs).size();
     }
-    const std::size_t after = g_allocations.load();
+    const long after = test::heap_allocations();
     CHECK(total > 0);
     CHECK(after - before == 0);
 }
