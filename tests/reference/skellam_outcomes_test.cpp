@@ -13,7 +13,7 @@
 
 namespace fit = liveprob::fit;
 
-TEST_CASE("independent Poisson W/D/L equals SciPy's Skellam distribution; over 2.5 its Poisson") {
+TEST_CASE("independent Poisson W/D/L equals SciPy's Skellam distribution, and over 2.5 its Poisson") {
     const std::vector<std::pair<double, double>> cases{{1.45, 1.1}, {2.8, 0.4}, {0.3, 0.35}, {4.2, 3.1}};
     std::string script = "import scipy.stats as s\n";
     for (const auto& [lh, la] : cases)

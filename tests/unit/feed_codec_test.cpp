@@ -91,7 +91,7 @@ TEST_CASE("a root offset past the end is caught by the verifier", "[feed_codec]"
     CHECK(result.detail.rfind("malformed: ", 0) == 0);
 }
 
-TEST_CASE("another schema major version is refused; a newer minor is read", "[feed_codec]") {
+TEST_CASE("another schema major version is refused, a newer minor is read", "[feed_codec]") {
     const auto v2 = decode(hand_built(2, true, true));
     CHECK(v2.error == DecodeError::wrong_schema_version);
     CHECK(v2.detail == "wrong_schema_version: schema major version 2, this build reads 1");

@@ -58,7 +58,7 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     CHECK_THROWS_AS(validate_service_config(same), ConfigError);
 }
 
-TEST_CASE("journal: frames replay in order; a torn tail is reported and cut, nothing earlier lost", "[unit][serve]") {
+TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, nothing earlier lost", "[unit][serve]") {
     const auto dir = liveprob::test::scratch_dir("journal-tail");
     const std::string path = (dir / "journal.lpf").string();
     const std::vector<std::vector<std::uint8_t>> frames = {{1, 2, 3}, {4}, std::vector<std::uint8_t>(1000, 7)};

@@ -269,7 +269,7 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
     }
 }
 
-TEST_CASE("a knock-out level after regulation goes on; one side ahead may end", "[fold]") {
+TEST_CASE("a knock-out level after regulation goes on, one side ahead may end", "[fold]") {
     Folding level(knockout());
     level.play_regulation_level();
     level.refused(level.feed.whistle(Period::second_half, 94), RejectReason::final_whistle_too_early);

@@ -11,7 +11,7 @@ TEST_CASE("edit distance is the Levenshtein distance, ignoring case") {
     CHECK(fit::edit_distance("", "abc") == 3);
 }
 
-TEST_CASE("names resolve exactly or through an alias; unknown names list the closest") {
+TEST_CASE("names resolve exactly or through an alias, and unknown names list the closest") {
     const fit::TeamNameResolver names({"Harbour Town", "Hill Rovers", "Riverside Athletic", "Harbour United"},
                                       {{"Hbr Town", "Harbour Town"}});
     CHECK(names.resolve("Hill Rovers") == "Hill Rovers");

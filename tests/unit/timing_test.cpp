@@ -43,7 +43,7 @@ TEST_CASE("the rate rises through the match and stoppage runs at the half's end 
     CHECK(curve.rate({Period::pre_match, 0}) == 0.0);
 }
 
-TEST_CASE("announced stoppage extends the half; past it a small overrun remains") {
+TEST_CASE("announced stoppage extends the half, and past it a small overrun remains") {
     const TimingProfile profile;
     const TimingCurve curve(profile, CompetitionFormat{});
     const MatchClock m90 = at_minute(Period::second_half, 90);
