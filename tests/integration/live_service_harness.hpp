@@ -4,11 +4,6 @@
 #pragma once
 
 #include <fmt/format.h>
-#include <fcntl.h>
-#include <signal.h>
-#include <spawn.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <chrono>
 #include <cstdlib>
@@ -28,78 +23,12 @@
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "child_process.hpp"
 #include "test_env.hpp"
-
-extern char** environ;
 
 namespace liveprob::test {
 
 using namespace std::chrono_literals;
-
-// A child process; its stdout and stderr go to files. The destructor kills it (SIGKILL) if it
-// still runs, so a failing test leaves nothing behind.
-class ChildProcess {
-public:
-    ChildProcess(const std::vector<std::string>& args, const std::filesystem::path& out,
-                 const std::filesystem::path& err)
-        : out_(out) {
-        posix_spawn_file_actions_t actions;
-        posix_spawn_file_actions_init(&actions);
-        posix_spawn_file_actions_addopen(&actions, 1, out.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-        posix_spawn_file_actions_addopen(&actions, 2, err.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-        std::vector<char*> argv;
-        for (const auto& a : args) argv.push_back(const_cast<char*>(a.c_str()));
-        argv.push_back(nullptr);
-        const int rc = posix_spawn(&pid_, argv[0], &actions, nullptr, argv.data(), environ);
-        posix_spawn_file_actions_destroy(&actions);
-        if (rc != 0) throw std::runtime_error("cannot start " + args[0]);
-    }
-    ~ChildProcess() {
-        if (pid_ > 0) {
-            ::kill(pid_, SIGKILL);
-            ::waitpid(pid_, nullptr, 0);
-        }
-    }
-    ChildProcess(const ChildProcess&) = delete;
-    ChildProcess& operator=(const ChildProcess&) = delete;
-
-    pid_t pid() const noexcept { return pid_; }
-    void signal(int sig) { if (pid_ > 0) ::kill(pid_, sig); }
-
-    // Exit code, or -signal when killed; nullopt if it still runs after `timeout`.
-    std::optional<int> wait(std::chrono::milliseconds timeout) {
-        const auto deadline = std::chrono::steady_clock::now() + timeout;
-        while (pid_ > 0) {
-            int status = 0;
-            const pid_t r = ::waitpid(pid_, &status, WNOHANG);
-            if (r == pid_) {
-                pid_ = -1;
-                return WIFEXITED(status) ? WEXITSTATUS(status) : -WTERMSIG(status);
-            }
-            if (std::chrono::steady_clock::now() > deadline) return std::nullopt;
-            std::this_thread::sleep_for(10ms);
-        }
-        return std::nullopt;
-    }
-
-    std::string output() const {
-        std::ifstream in(out_);
-        std::stringstream s;
-        s << in.rdbuf();
-        return s.str();
-    }
-
-private:
-    pid_t pid_ = -1;
-    std::filesystem::path out_;
-};
-
-inline std::string read_text(const std::filesystem::path& p) {
-    std::ifstream in(p);
-    std::stringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
 
 // `liveprob serve` on ephemeral loopback ports; endpoints read back from its endpoints file.
 class ServeProcess {
@@ -124,7 +53,7 @@ public:
             if (std::chrono::steady_clock::now() > deadline) throw std::runtime_error("serve did not start");
             std::this_thread::sleep_for(20ms);
         }
-        std::istringstream lines(read_text(endpoints_file));
+        std::istringstream lines(read_whole_file(endpoints_file));
         std::string line;
         while (std::getline(lines, line)) {
             const auto eq = line.find('=');
@@ -138,7 +67,7 @@ public:
     const std::map<std::string, std::string>& endpoints() const { return endpoints_; }
     ChildProcess& process() { return *process_; }
     // What serve wrote (spdlog writes to standard output; errors go to standard error).
-    std::string log() const { return process_->output() + read_text(log_); }
+    std::string log() const { return process_->output() + read_whole_file(log_); }
 
 private:
     std::unique_ptr<ChildProcess> process_;

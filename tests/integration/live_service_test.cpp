@@ -153,7 +153,7 @@ TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed ke
     }
     {
         std::ofstream allow(dir / "allowed.keys");
-        allow << "# feeds allowed in\n" << read_text(dir / "listed.public");
+        allow << "# feeds allowed in\n" << read_whole_file(dir / "listed.public");
     }
     ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100", "--server-secret-key",
                                       (dir / "server.secret").string(), "--allowed-feed-keys",
@@ -321,14 +321,7 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
         const auto feed = invented_match(id);
         for (std::size_t i = 0; i < 10; ++i) push.send(zmq::buffer(protocol::encode_feed_message(feed[i])));
     }
-    const auto rss_kib = [&] {
-        std::ifstream status("/proc/" + std::to_string(serve.process().pid()) + "/status");
-        std::string line;
-        while (std::getline(status, line)) {
-            if (line.rfind("VmRSS:", 0) == 0) return std::stol(line.substr(6));
-        }
-        return 0L;
-    };
+    const auto rss_kib = [&] { return static_cast<long>(harness::memory_kib(serve.process().pid())); };
     // Warm up (every match created, queues to the stalled subscriber full), then measure.
     REQUIRE(reader.updates(2000, 30s, false).size() == 2000);
     const long rss_before = rss_kib();

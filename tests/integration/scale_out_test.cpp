@@ -158,7 +158,7 @@ std::string send_routed(const std::filesystem::path& dir, const std::string& nam
     args.insert(args.end(), extra.begin(), extra.end());
     ChildProcess send(args, dir / (name + ".out"), dir / (name + ".err"));
     const auto code = send.wait(120s);
-    INFO(read_text(dir / (name + ".err")));
+    INFO(read_whole_file(dir / (name + ".err")));
     REQUIRE(code == std::optional<int>(0));
     return send.output();
 }
@@ -216,7 +216,7 @@ std::map<std::string, std::string> read_endpoints(const std::filesystem::path& p
         std::this_thread::sleep_for(20ms);
     }
     std::map<std::string, std::string> out;
-    std::istringstream lines(read_text(path));
+    std::istringstream lines(read_whole_file(path));
     for (std::string line; std::getline(lines, line);) {
         if (const auto eq = line.find('='); eq != std::string::npos) out[line.substr(0, eq)] = line.substr(eq + 1);
     }

@@ -15,9 +15,6 @@
 #include <boost/beast/core.hpp>
 #include <boost/beast/websocket.hpp>
 #include <fmt/format.h>
-#include <fcntl.h>
-#include <spawn.h>
-#include <sys/wait.h>
 
 #include <algorithm>
 #include <chrono>
@@ -30,12 +27,12 @@
 #include <thread>
 #include <vector>
 
-
-extern char** environ;
+#include "harness/child_process.hpp"
 
 namespace {
 
 namespace asio = boost::asio;
+namespace harness = liveprob::harness;
 namespace beast = boost::beast;
 namespace websocket = beast::websocket;
 using asio::ip::tcp;
@@ -58,56 +55,13 @@ std::string liveprob_bin() {
     return env ? env : (std::filesystem::canonical("/proc/self/exe").parent_path().parent_path() / "liveprob").string();
 }
 
-// A liveprob subcommand as its own process, so its CPU and memory are its own.
-struct Process {
-    pid_t pid = -1;
-    // Standard output goes to /dev/null unless `keep_output`.
-    explicit Process(std::vector<std::string> argv, bool keep_output = false) {
-        const std::string bin = liveprob_bin();
-        argv.insert(argv.begin(), bin);
-        std::vector<char*> args;
-        for (auto& a : argv) args.push_back(a.data());
-        args.push_back(nullptr);
-        posix_spawn_file_actions_t actions;
-        posix_spawn_file_actions_init(&actions);
-        if (!keep_output) posix_spawn_file_actions_addopen(&actions, 1, "/dev/null", O_WRONLY, 0);
-        const int rc = posix_spawn(&pid, bin.c_str(), &actions, nullptr, args.data(), environ);
-        posix_spawn_file_actions_destroy(&actions);
-        if (rc != 0) throw std::runtime_error("cannot start " + bin);
-    }
-    Process(const Process&) = delete;
-    Process& operator=(const Process&) = delete;
-    ~Process() {
-        if (pid > 0) {
-            kill(pid, SIGTERM);
-            wait();
-        }
-    }
-    int wait() {
-        int status = 0;
-        if (pid > 0) waitpid(pid, &status, 0);
-        pid = -1;
-        return status;
-    }
-    // utime + stime in seconds (/proc/<pid>/stat fields 14 and 15).
-    double cpu_seconds() const {
-        const std::string stat = read_file(fmt::format("/proc/{}/stat", pid));
-        std::istringstream in(stat.substr(stat.rfind(')') + 2));
-        std::string field;
-        double ticks = 0;
-        for (int i = 3; i <= 15 && in >> field; ++i) {
-            if (i >= 14) ticks += std::stod(field);
-        }
-        return ticks / static_cast<double>(sysconf(_SC_CLK_TCK));
-    }
-    double memory_mib(const char* key) const {  // VmRSS or VmHWM
-        std::istringstream in(read_file(fmt::format("/proc/{}/status", pid)));
-        for (std::string line; std::getline(in, line);) {
-            if (line.rfind(key, 0) == 0) return std::stod(line.substr(std::strlen(key) + 1)) / 1024.0;
-        }
-        return 0;
-    }
-};
+// A liveprob subcommand as its own process, so its CPU and memory are its own; its output goes
+// to <dir>/<name>.log.
+std::unique_ptr<harness::ChildProcess> run_liveprob(const std::filesystem::path& dir, const std::string& name,
+                                             std::vector<std::string> args) {
+    args.insert(args.begin(), liveprob_bin());
+    return std::make_unique<harness::ChildProcess>(args, dir / (name + ".log"));
+}
 
 void wait_for_file(const std::filesystem::path& p) {
     for (int i = 0; i < 500 && !(std::filesystem::exists(p) && std::filesystem::file_size(p) > 0); ++i) {
@@ -126,8 +80,8 @@ std::string endpoint_of(const std::filesystem::path& endpoints_file, const std::
 
 // The first round of the invented league: the first ten match streams in name order.
 std::vector<std::filesystem::path> first_round(const std::filesystem::path& dir) {
-    Process simulate({"simulate", "--out", (dir / "streams").string(), "--seed", "2031"});
-    if (simulate.wait() != 0) throw std::runtime_error("liveprob simulate failed");
+    const auto simulate = run_liveprob(dir, "simulate", {"simulate", "--out", (dir / "streams").string(), "--seed", "2031"});
+    if (simulate->wait(5min) != 0) throw std::runtime_error("liveprob simulate failed");
     std::vector<std::filesystem::path> files;
     for (const auto& e : std::filesystem::directory_iterator(dir / "streams" / "league")) files.push_back(e.path());
     std::sort(files.begin(), files.end());
@@ -175,12 +129,12 @@ void run_load(benchmark::State& state, bool with_stalled_client) {
     const std::vector<std::filesystem::path> round = first_round(dir);
 
     const auto endpoints = dir / "endpoints";
-    Process serve({"serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*", "--snapshot",
+    const auto serve = run_liveprob(dir, "serve", {"serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*", "--snapshot",
                    "tcp://127.0.0.1:*", "--endpoints-file", endpoints.string(), "--tick-ms", "200",
                    "--log-level", "warn"});
     wait_for_file(endpoints);
     const auto port_file = dir / "port";
-    Process gateway({"gateway", "--serve-endpoints", endpoints.string(), "--port", "0", "--port-file",
+    const auto gateway = run_liveprob(dir, "gateway", {"gateway", "--serve-endpoints", endpoints.string(), "--port", "0", "--port-file",
                      port_file.string(), "--queue-cap", "64", "--client-send-buffer", "16384"});
     wait_for_file(port_file);
     const auto port = static_cast<std::uint16_t>(std::stoi(read_file(port_file)));
@@ -215,29 +169,29 @@ void run_load(benchmark::State& state, bool with_stalled_client) {
     for (auto& io : ios) client_threads.emplace_back([&io] { io->run(); });
     std::this_thread::sleep_for(500ms);  // subscriptions settle
 
-    const double cpu_before = gateway.cpu_seconds();
-    const double serve_cpu_before = serve.cpu_seconds();
+    const double cpu_before = harness::cpu_seconds(gateway->pid());
+    const double serve_cpu_before = harness::cpu_seconds(serve->pid());
     const std::string ingest = endpoint_of(endpoints, "ingest");
     double seconds = 0;
     for (auto _ : state) {
         const auto start = std::chrono::steady_clock::now();
-        std::vector<std::unique_ptr<Process>> senders;
+        std::vector<std::unique_ptr<harness::ChildProcess>> senders;
         for (const auto& file : round) {
-            senders.push_back(std::make_unique<Process>(
-                std::vector<std::string>{"send", "--to", ingest, "--speed", "300", "--stamp", file.string()}));
+            senders.push_back(run_liveprob(dir, "send-" + file.stem().string(),
+                                    {"send", "--to", ingest, "--speed", "300", "--stamp", file.string()}));
         }
-        for (auto& s : senders) s->wait();
+        for (auto& s : senders) s->wait(10min);
         std::this_thread::sleep_for(1s);  // the last frames arrive
         seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
         state.SetIterationTime(seconds);
     }
-    const double cpu = gateway.cpu_seconds() - cpu_before;
+    const double cpu = harness::cpu_seconds(gateway->pid()) - cpu_before;
     state.counters["clients"] = clients;
     state.counters["seconds"] = seconds;
-    state.counters["serve_cpu_pct"] = 100.0 * (serve.cpu_seconds() - serve_cpu_before) / seconds;
+    state.counters["serve_cpu_pct"] = 100.0 * (harness::cpu_seconds(serve->pid()) - serve_cpu_before) / seconds;
     state.counters["gw_cpu_pct"] = 100.0 * cpu / seconds;
-    state.counters["gw_rss_MiB"] = gateway.memory_mib("VmRSS:");
-    state.counters["gw_peak_MiB"] = gateway.memory_mib("VmHWM:");
+    state.counters["gw_rss_MiB"] = static_cast<double>(harness::memory_kib(gateway->pid(), "VmRSS:")) / 1024.0;
+    state.counters["gw_peak_MiB"] = static_cast<double>(harness::memory_kib(gateway->pid(), "VmHWM:")) / 1024.0;
     for (auto& io : ios) io->stop();
     for (auto& t : client_threads) t.join();
     std::vector<std::int64_t> all;

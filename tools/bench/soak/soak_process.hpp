@@ -11,28 +11,29 @@
 #include <string>
 #include <vector>
 
+#include "harness/child_process.hpp"
+
 namespace liveprob::soak {
 
 class SoakProcess {
 public:
     SoakProcess(std::string name, const std::vector<std::string>& argv, const std::filesystem::path& log);
-    ~SoakProcess();
     SoakProcess(const SoakProcess&) = delete;
     SoakProcess& operator=(const SoakProcess&) = delete;
 
     const std::string& name() const noexcept { return name_; }
-    pid_t pid() const noexcept { return pid_; }
-    bool running();
+    pid_t pid() const noexcept { return process_.pid(); }
+    bool running() { return process_.running(); }
     // SIGTERM, then SIGKILL after `grace`.
-    void stop(std::chrono::milliseconds grace = std::chrono::milliseconds(5000));
+    void stop(std::chrono::milliseconds grace = std::chrono::milliseconds(5000)) { process_.stop(grace); }
 
     // Resident memory now (KiB) and CPU time used so far (user + system, seconds); 0 once ended.
-    std::uint64_t rss_kib() const;
-    double cpu_seconds() const;
+    std::uint64_t rss_kib() const { return harness::memory_kib(process_.pid()); }
+    double cpu_seconds() const { return harness::cpu_seconds(process_.pid()); }
 
 private:
     std::string name_;
-    pid_t pid_ = -1;
+    harness::ChildProcess process_;
 };
 
 // "key=value" lines, as serve and relay write their endpoints files; waits for the file.
