@@ -79,6 +79,7 @@ TEST_CASE("bad parameter files are errors naming the key and the reason") {
     CHECK_THAT(error_of(head + R"("timing":{"second_half_ending":1.2}})"),
                Catch::Contains("timing.second_half_ending") && Catch::Contains("unknown key"));
     CHECK_THAT(error_of(head + R"("colour":"red"})"), Catch::Contains("'colour': unknown key"));
+    CHECK_THAT(error_of(head + R"("col\nour":"red"})"), Catch::Contains(R"('col\nour': unknown key)"));
     CHECK_THAT(error_of(head + R"("shootout":{"conversion":1.5}})"),
                Catch::Contains("shootout.conversion") && Catch::Contains("outside the allowed range"));
     CHECK_THAT(error_of(head + R"("kappa":"lots"})"), Catch::Contains("'kappa'"));

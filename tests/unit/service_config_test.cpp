@@ -49,6 +49,9 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     CHECK(error_of(R"({"curve_publish": 1})") == "svc.json: curve_publish: must be true or false");
     CHECK(error_of("[1, 2]") == "svc.json: must hold one JSON object");
     CHECK(error_of("{").find("svc.json: not valid JSON") == 0);
+    // A key or value holding a newline (JSON's "\n") is quoted escaped: the error stays one line.
+    CHECK(error_of(R"({"publish_\nendpoint": "tcp://127.0.0.1:1"})") == R"(svc.json: publish_\nendpoint: unknown key)");
+    CHECK(error_of(R"({"journal_sync": "none\u0001"})").find(R"(got "none\x01")") != std::string::npos);
 
     ServiceConfig c;
     c.curve_secret_key_file = "server.secret";

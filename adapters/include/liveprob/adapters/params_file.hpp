@@ -22,12 +22,15 @@
 #include <stdexcept>
 #include <string>
 
+#include "liveprob/adapters/one_line.hpp"
 #include "liveprob/engine/params.hpp"
 
 namespace liveprob {
 
+// Names the file, the key and the reason, on one line (control bytes quoted from the file are
+// shown escaped).
 struct ParamsFileError : std::runtime_error {
-    using std::runtime_error::runtime_error;
+    explicit ParamsFileError(const std::string& what) : std::runtime_error(one_line(what)) {}
 };
 
 // Provenance written beside the values: keys are the dotted parameter names.

@@ -7,12 +7,15 @@
 #include <stdexcept>
 #include <string>
 
+#include "liveprob/adapters/one_line.hpp"
+
 namespace liveprob::adapters {
 
 // A bad configuration: the message names the key and the reason, e.g.
-// "service.json: tick_interval_ms: must be between 10 and 3600000, got 0".
+// "service.json: tick_interval_ms: must be between 10 and 3600000, got 0". Always one line:
+// control bytes quoted from the file are shown escaped.
 struct ConfigError : std::runtime_error {
-    using std::runtime_error::runtime_error;
+    explicit ConfigError(const std::string& what) : std::runtime_error(one_line(what)) {}
 };
 
 enum class JournalSync : std::uint8_t {
