@@ -1,5 +1,6 @@
 #include "liveprob/engine/fit/dixon_coles.hpp"
 #include "liveprob/engine/fit/prices_to_prior.hpp"
+#include "log_factorial.hpp"
 #include "rating_newton.hpp"
 
 #include <algorithm>
@@ -174,7 +175,7 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
         if (w < o.min_weight) continue;
         const int h = team(m.home), a = team(m.away);
         games.push_back({h, a, m.home_goals, m.away_goals, m.neutral, w,
-                         std::lgamma(m.home_goals + 1.0) + std::lgamma(m.away_goals + 1.0)});
+                         log_factorial(m.home_goals) + log_factorial(m.away_goals)});
         for (int i : {h, a}) {
             counts[static_cast<std::size_t>(i)] += 1;
             weights[static_cast<std::size_t>(i)] += w;

@@ -4,6 +4,7 @@
 #include <limits>
 #include <stdexcept>
 
+#include "log_factorial.hpp"
 #include "small_newton.hpp"
 
 namespace liveprob::fit {
@@ -46,7 +47,7 @@ void add_side(const SideStates& side, const Layout& layout, const Values& v, Eva
     for (std::size_t s = 0; s < kScoreStates; ++s) {
         c[s] = side.prior * v.m[s] * side.exposure[s];
         mu += c[s];
-        if (side.goals[s] > 0) e.value += side.goals[s] * std::log(c[s]) - std::lgamma(side.goals[s] + 1.0);
+        if (side.goals[s] > 0) e.value += side.goals[s] * std::log(c[s]) - log_factorial(side.goals[s]);
     }
     const int goals = side.total_goals();
     if (poisson) {
