@@ -80,7 +80,10 @@ constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (
 // where std::fma is a library call: correct, identical, several times slower. The clone is
 // picked at load time by processor features; not "arch=haswell", which picks by processor
 // model, so that every other processor (any AMD one, later Intel ones) got the slow baseline.
-#if defined(__x86_64__)
+// Clang 14 (Debian's; only the fuzz preset uses it) knows no "arch=x86-64-v3" for versioned
+// functions: it builds the baseline alone, with the same figures.
+#if defined(__x86_64__) && !defined(__clang__)
+#define LIVEPROB_CHAIN_CLONES 1
 #define LIVEPROB_FAST_CLONE "arch=x86-64-v3"
 __attribute__((target_clones(LIVEPROB_FAST_CLONE, "default")))
 #endif
@@ -101,7 +104,7 @@ void uniformized_step(const double* __restrict stay, const double* __restrict fr
 namespace {
 // Dispatched by the same rule as the step's clones, so it names the one that runs. (Versions of
 // a function dispatch only where they are all visible: callers elsewhere use the wrapper.)
-#if defined(__x86_64__)
+#if defined(LIVEPROB_CHAIN_CLONES)
 __attribute__((target(LIVEPROB_FAST_CLONE))) const char* kernel_name() { return "x86-64-v3"; }
 __attribute__((target("default"))) const char* kernel_name() { return "baseline"; }
 #else
