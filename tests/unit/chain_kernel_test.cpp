@@ -10,12 +10,12 @@
 
 TEST_CASE("a processor with AVX2 and FMA runs the fast chain step", "[chain]") {
     const std::string kernel = liveprob::score_chain_kernel();
-#if defined(__x86_64__)
+#if defined(__x86_64__) && !defined(__clang__)
     __builtin_cpu_init();
     const bool fast_capable = __builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma");
     INFO("kernel " << kernel);
     CHECK(kernel == (fast_capable ? "x86-64-v3" : "baseline"));
 #else
-    CHECK(kernel == "baseline");
+    CHECK(kernel == "baseline");  // other processors, and clang builds: the baseline step alone
 #endif
 }
