@@ -99,9 +99,6 @@ void uniformized_step(const double* __restrict stay, const double* __restrict fr
     }
 }
 
-}  // namespace
-
-namespace {
 // Dispatched by the same rule as the step's clones, so it names the one that runs. (Versions of
 // a function dispatch only where they are all visible: callers elsewhere use the wrapper.)
 #if defined(LIVEPROB_CHAIN_CLONES)
