@@ -7,7 +7,7 @@
 
 namespace liveprob::test {
 
-// The open datasets: $LIVEPROB_OPEN_DATA, else ../shared/data/open beside the source tree.
+// The open datasets: $LIVEPROB_OPEN_DATA, else the copy in the repository (tests/data/open).
 // Throws (so the test fails, never skips) when the folder is missing.
 std::filesystem::path open_data_dir();
 

@@ -1,6 +1,6 @@
 // Rating-fit speed: one league season with decay and ρ, and the walk-forward refit of the whole
 // international results file at monthly steps (warm-started). Needs the open data
-// ($LIVEPROB_OPEN_DATA or ../shared/data/open beside the source tree).
+// ($LIVEPROB_OPEN_DATA, or the copy in the repository, tests/data/open).
 #include <benchmark/benchmark.h>
 
 #include <cmath>
@@ -18,7 +18,7 @@ namespace {
 
 std::filesystem::path open_data() {
     if (const char* env = std::getenv("LIVEPROB_OPEN_DATA")) return env;
-    return std::filesystem::path(LIVEPROB_SOURCE_DIR) / "../shared/data/open";
+    return std::filesystem::path(LIVEPROB_SOURCE_DIR) / "tests/data/open";
 }
 
 fit::RatingsFitOptions decayed() {

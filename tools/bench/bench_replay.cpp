@@ -27,7 +27,8 @@ using namespace liveprob;
 
 std::filesystem::path open_data() {
     const char* env = std::getenv("LIVEPROB_OPEN_DATA");
-    return env && *env ? std::filesystem::path(env) : std::filesystem::path("../shared/data/open");
+    return env && *env ? std::filesystem::path(env)
+                       : std::filesystem::path(LIVEPROB_SOURCE_DIR) / "tests/data/open";
 }
 
 const std::vector<replay::MatchMessages>& international_sample() {
