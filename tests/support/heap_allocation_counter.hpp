@@ -1,37 +1,11 @@
-// Counts every heap allocation of the test program that includes this header, by replacing the
-// global allocation functions. Include it in exactly one file of a program (a test executable
-// is one file), and read `heap_allocations()` before and after the code under test.
-// Every replaceable form (plain, array, nothrow, sized) is one malloc/free pair: replacing only
-// the plain form leaves the nothrow one to the runtime, and the address sanitizer then sees
-// memory from its own `new` released by our `free` and rightly aborts.
+// Counts every heap allocation of the allocation tests' program (tests/allocation/): its
+// heap_allocation_counter.cpp replaces the global allocation functions for that one program.
+// Read `heap_allocations()` before and after the code under test.
 #pragma once
 
 #include <atomic>
-#include <cstdlib>
-#include <new>
 
 namespace liveprob::test {
 inline std::atomic<long> g_heap_allocations{0};
 inline long heap_allocations() noexcept { return g_heap_allocations.load(std::memory_order_relaxed); }
 }  // namespace liveprob::test
-
-// GCC sees malloc/free inside the replaced operators as a mismatch; they are the pair here.
-#pragma GCC diagnostic push
-#pragma GCC diagnostic ignored "-Wmismatched-new-delete"
-void* operator new(std::size_t size, const std::nothrow_t&) noexcept {
-    liveprob::test::g_heap_allocations.fetch_add(1, std::memory_order_relaxed);
-    return std::malloc(size == 0 ? 1 : size);
-}
-void* operator new(std::size_t size) {
-    if (void* p = operator new(size, std::nothrow)) return p;
-    throw std::bad_alloc();
-}
-void* operator new[](std::size_t size) { return operator new(size); }
-void* operator new[](std::size_t size, const std::nothrow_t& tag) noexcept { return operator new(size, tag); }
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete[](void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
-void operator delete[](void* p, std::size_t) noexcept { std::free(p); }
-void operator delete(void* p, const std::nothrow_t&) noexcept { std::free(p); }
-void operator delete[](void* p, const std::nothrow_t&) noexcept { std::free(p); }
-#pragma GCC diagnostic pop
