@@ -293,7 +293,7 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
 TEST_CASE("a subscriber that never reads does not hold up others, and serve's memory stays bounded",
           "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-stalled");
-#if defined(__SANITIZE_ADDRESS__)
+#if defined(LIVEPROB_TEST_ASAN)
     // The address sanitizer holds freed memory back (its quarantine, 256 MiB by default) to catch
     // use after free, so serve's resident memory would grow with every update it frees. This
     // test measures what serve itself keeps: the serve it starts runs without the quarantine.

@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "feed_builder.hpp"
+#include "test_env.hpp"
 #include "liveprob/engine/match_state.hpp"
 #include "liveprob/engine/messages.hpp"
 #include "liveprob/engine/params.hpp"
@@ -176,7 +177,7 @@ private:
 };
 
 // Fewer streams under the sanitizers, which run the same code several times slower.
-#if defined(__SANITIZE_ADDRESS__) || defined(__SANITIZE_THREAD__)
+#if defined(LIVEPROB_TEST_ASAN) || defined(LIVEPROB_TEST_TSAN)
 inline constexpr int kStreamScale = 5;
 #else
 inline constexpr int kStreamScale = 1;

@@ -5,6 +5,23 @@
 #include <filesystem>
 #include <string>
 
+// Which sanitizer the test program was built with, the same on GCC (which defines
+// __SANITIZE_ADDRESS__ / __SANITIZE_THREAD__) and clang (which answers __has_feature).
+#if defined(__SANITIZE_ADDRESS__)
+#define LIVEPROB_TEST_ASAN 1
+#elif defined(__has_feature)
+#if __has_feature(address_sanitizer)
+#define LIVEPROB_TEST_ASAN 1
+#endif
+#endif
+#if defined(__SANITIZE_THREAD__)
+#define LIVEPROB_TEST_TSAN 1
+#elif defined(__has_feature)
+#if __has_feature(thread_sanitizer)
+#define LIVEPROB_TEST_TSAN 1
+#endif
+#endif
+
 namespace liveprob::test {
 
 // The open datasets: $LIVEPROB_OPEN_DATA, else the copy in the repository (tests/data/open).
