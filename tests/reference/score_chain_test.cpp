@@ -4,6 +4,7 @@
 //  - time-varying rates r(t) on the real clock: a classical fourth-order Runge–Kutta
 //    integration with small steps.
 // Every probability (grid cells and overflow buckets) within 1e-9.
+// test-build: optimised (Eigen's matrix exponential; its SSE prefetch only compiles optimised)
 #include <catch2/catch.hpp>
 #include <unsupported/Eigen/MatrixFunctions>
 

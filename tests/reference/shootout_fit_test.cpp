@@ -8,6 +8,7 @@
 //    with standard error sqrt(q (1 − q) / n);
 //  - the conversion from the championship files' tallies against the maximum of the
 //    brute-force likelihood, found by golden-section search.
+// test-build: optimised (brute-force walks over every kick sequence inside likelihood searches)
 #include <catch2/catch.hpp>
 
 #include <cmath>
