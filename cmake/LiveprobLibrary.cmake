@@ -1,21 +1,34 @@
-# liveprob_folder_library(NAME <target> DEPS <targets...>): one library per top-level folder,
-# built from every src/*.cpp in it, public headers under include/.
-function(liveprob_folder_library)
-  cmake_parse_arguments(ARG "" "NAME;ALIAS" "DEPS;PRIVATE_DEPS" ${ARGN})
-  file(GLOB_RECURSE _src CONFIGURE_DEPENDS ${CMAKE_CURRENT_SOURCE_DIR}/src/*.cpp)
-  if(NOT _src)  # a folder with headers only (or none yet)
-    add_library(${ARG_NAME} INTERFACE)
-    target_include_directories(${ARG_NAME} INTERFACE $<BUILD_INTERFACE:${CMAKE_CURRENT_SOURCE_DIR}/include>)
-    target_link_libraries(${ARG_NAME} INTERFACE ${ARG_DEPS})
-    add_library(${ARG_ALIAS} ALIAS ${ARG_NAME})
-    return()
+# liveprob_library(<job>): the library of one sub-folder, as its row of cmake/Layers.cmake says.
+# Target liveprob_<job> (alias liveprob::<job>), built from every src/*.cpp of the folder
+# (globbed: re-run the configure step after adding a file), public headers under
+# include/liveprob/<job>/, linked to the project targets of USES and the outside libraries of
+# LINKS (public) and PRIVATE_LINKS, and to nothing else.
+function(liveprob_library job)
+  if(NOT job IN_LIST LIVEPROB_LAYERS)
+    message(FATAL_ERROR "liveprob_library(${job}): no row for '${job}' in cmake/Layers.cmake")
   endif()
-  add_library(${ARG_NAME} ${_src})
-  add_library(${ARG_ALIAS} ALIAS ${ARG_NAME})
-  target_include_directories(${ARG_NAME} PUBLIC
+  set(_target liveprob_${job})
+  file(GLOB_RECURSE _src CONFIGURE_DEPENDS ${CMAKE_CURRENT_SOURCE_DIR}/src/*.cpp)
+  add_library(${_target} ${_src})
+  add_library(liveprob::${job} ALIAS ${_target})
+  target_include_directories(${_target} PUBLIC
     $<BUILD_INTERFACE:${CMAKE_CURRENT_SOURCE_DIR}/include>
     $<INSTALL_INTERFACE:${CMAKE_INSTALL_INCLUDEDIR}>)
-  target_link_libraries(${ARG_NAME} PUBLIC ${ARG_DEPS} PRIVATE ${ARG_PRIVATE_DEPS})
-  set_target_properties(${ARG_NAME} PROPERTIES POSITION_INDEPENDENT_CODE ON)
-  liveprob_warnings(${ARG_NAME})
+  foreach(_use IN LISTS LIVEPROB_LAYER_${job}_USES)
+    target_link_libraries(${_target} PUBLIC liveprob::${_use})
+  endforeach()
+  foreach(_scope PUBLIC PRIVATE)
+    set(_names ${LIVEPROB_LAYER_${job}_LINKS})
+    if(_scope STREQUAL "PRIVATE")
+      set(_names ${LIVEPROB_LAYER_${job}_PRIVATE_LINKS})
+    endif()
+    foreach(_name IN LISTS _names)
+      if(LIVEPROB_OUTSIDE_${_name}_TARGET)
+        target_link_libraries(${_target} ${_scope} ${LIVEPROB_OUTSIDE_${_name}_TARGET})
+      endif()
+    endforeach()
+  endforeach()
+  set_target_properties(${_target} PROPERTIES POSITION_INDEPENDENT_CODE ON EXPORT_NAME ${job})
+  add_dependencies(${_target} liveprob_layering_check)
+  liveprob_warnings(${_target})
 endfunction()

@@ -16,7 +16,7 @@ namespace {
 // Counts repeated and backwards sequence numbers per match.
 class SequenceWatch {
 public:
-    void see(const MessageHeader& h, FeedCheckSummary& summary) {
+    void see(const core::MessageHeader& h, FeedCheckSummary& summary) {
         if (!seen_.insert({h.match_id, h.source_seq}).second) {
             ++summary.repeated_seq;
             return;
@@ -35,7 +35,7 @@ private:
     std::map<std::uint64_t, std::uint64_t> highest_;
 };
 
-void count_message(const InboundMessage& m, FeedCheckSummary& summary, SequenceWatch& watch) {
+void count_message(const core::InboundMessage& m, FeedCheckSummary& summary, SequenceWatch& watch) {
     ++summary.ok;
     ++summary.kinds[kind_name(m.body)];
     watch.see(m.header, summary);

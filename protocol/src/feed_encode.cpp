@@ -1,6 +1,6 @@
 // InboundMessage -> FeedMessage buffer, written as it is: checks belong to the reader.
 #include "liveprob/protocol/feed_codec.hpp"
-#include "liveprob/engine/overloaded.hpp"
+#include "liveprob/core/overloaded.hpp"
 #include "liveprob/wire/feed_generated.h"
 
 namespace liveprob::protocol {
@@ -10,15 +10,15 @@ namespace {
 namespace w = liveprob::wire;
 using BodyRef = std::pair<w::Body, flatbuffers::Offset<void>>;
 
-w::Side wire_side(Side s) { return static_cast<w::Side>(static_cast<std::uint8_t>(s)); }
-w::Period wire_period(Period p) { return static_cast<w::Period>(static_cast<std::uint8_t>(p)); }
+w::Side wire_side(core::Side s) { return static_cast<w::Side>(static_cast<std::uint8_t>(s)); }
+w::Period wire_period(core::Period p) { return static_cast<w::Period>(static_cast<std::uint8_t>(p)); }
 
 template <class T>
 BodyRef ref(w::Body type, flatbuffers::Offset<T> offset) {
     return {type, offset.Union()};
 }
 
-BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const MatchSetup& s) {
+BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const core::MatchSetup& s) {
     const auto home = fbb.CreateString(s.home_name);
     const auto away = fbb.CreateString(s.away_name);
     flatbuffers::Offset<w::PriorMeans> prior;
@@ -29,7 +29,7 @@ BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const MatchSetup& s) {
         const auto away_key = fbb.CreateString(s.ratings->away_key);
         ratings = w::CreateRatingReference(fbb, home_key, away_key);
     }
-    const CompetitionFormat& f = s.format;
+    const core::CompetitionFormat& f = s.format;
     flatbuffers::Offset<w::FirstLeg> first_leg;
     if (f.first_leg) first_leg = w::CreateFirstLeg(fbb, f.first_leg->home_goals, f.first_leg->away_goals);
     const auto format = w::CreateFormat(fbb, f.half_minutes, f.extra_time, f.extra_half_minutes,
@@ -38,50 +38,50 @@ BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const MatchSetup& s) {
                                               format, s.scheduled_kickoff_us));
 }
 
-BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const MessageBody& body) {
+BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const core::MessageBody& body) {
     return std::visit(
-        overloaded{
-            [&](const MatchSetup& m) { return write_setup(fbb, m); },
-            [&](const PeriodStart& m) {
+        core::overloaded{
+            [&](const core::MatchSetup& m) { return write_setup(fbb, m); },
+            [&](const core::PeriodStart& m) {
                 return ref(w::Body::PeriodStart, w::CreatePeriodStart(fbb, wire_period(m.period)));
             },
-            [&](const PeriodEnd& m) {
+            [&](const core::PeriodEnd& m) {
                 return ref(w::Body::PeriodEnd, w::CreatePeriodEnd(fbb, wire_period(m.period)));
             },
-            [&](const Goal& m) {
+            [&](const core::Goal& m) {
                 return ref(w::Body::Goal, w::CreateGoal(fbb, wire_side(m.side), m.penalty, m.own_goal));
             },
-            [&](const GoalCancelled& m) {
+            [&](const core::GoalCancelled& m) {
                 return ref(w::Body::GoalCancelled, w::CreateGoalCancelled(fbb, m.goal_seq));
             },
-            [&](const RedCard& m) {
+            [&](const core::RedCard& m) {
                 return ref(w::Body::RedCard, w::CreateRedCard(fbb, wire_side(m.side), m.second_yellow));
             },
-            [&](const CardRescinded& m) {
+            [&](const core::CardRescinded& m) {
                 return ref(w::Body::CardRescinded, w::CreateCardRescinded(fbb, m.card_seq));
             },
-            [&](const StoppageAnnounced& m) {
+            [&](const core::StoppageAnnounced& m) {
                 return ref(w::Body::StoppageAnnounced,
                            w::CreateStoppageAnnounced(fbb, wire_period(m.period), m.minutes));
             },
-            [&](const ScoreCorrection& m) {
+            [&](const core::ScoreCorrection& m) {
                 return ref(w::Body::ScoreCorrection,
                            w::CreateScoreCorrection(fbb, m.home_goals, m.away_goals));
             },
-            [&](const ShootoutKick& m) {
+            [&](const core::ShootoutKick& m) {
                 return ref(w::Body::ShootoutKick, w::CreateShootoutKick(fbb, wire_side(m.side), m.scored));
             },
-            [&](const ShotXg& m) {
+            [&](const core::ShotXg& m) {
                 return ref(w::Body::ShotXg, w::CreateShotXg(fbb, wire_side(m.side), m.xg));
             },
-            [&](const MatchAbandoned& m) {
+            [&](const core::MatchAbandoned& m) {
                 const auto reason = fbb.CreateString(m.reason);
                 return ref(w::Body::Abandoned, w::CreateAbandoned(fbb, reason));
             },
-            [&](const FinalWhistle&) {
+            [&](const core::FinalWhistle&) {
                 return ref(w::Body::FinalWhistle, w::CreateFinalWhistle(fbb));
             },
-            [&](const ClockSync& m) {
+            [&](const core::ClockSync& m) {
                 return ref(w::Body::ClockSync, w::CreateClockSync(fbb, m.running));
             },
         },
@@ -90,10 +90,10 @@ BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const MessageBody& body)
 
 }  // namespace
 
-std::vector<std::uint8_t> encode_feed_message(const InboundMessage& message) {
+std::vector<std::uint8_t> encode_feed_message(const core::InboundMessage& message) {
     flatbuffers::FlatBufferBuilder fbb(256);
     const auto [body_type, body] = write_body(fbb, message.body);
-    const MessageHeader& h = message.header;
+    const core::MessageHeader& h = message.header;
     const w::MatchClock clock(wire_period(h.clock.period), h.clock.clock_ms);
     const auto header = w::CreateHeader(fbb, h.match_id, h.source_seq, h.source_time_us, &clock);
     fbb.Finish(w::CreateFeedMessage(fbb, kSchemaMajor, kSchemaMinor, header, body_type, body),

@@ -38,38 +38,38 @@ struct alternative_index<T, std::variant<Ts...>> {
     }();
 };
 template <class T>
-constexpr std::size_t kind_of = alternative_index<T, MessageBody>::value;
+constexpr std::size_t kind_of = alternative_index<T, core::MessageBody>::value;
 
-Side side(const JsonFields& f) { return static_cast<Side>(f.choice("side", kSides)); }
+core::Side side(const JsonFields& f) { return static_cast<core::Side>(f.choice("side", kSides)); }
 
-Period period(const JsonFields& f, std::string_view name) {
-    return static_cast<Period>(f.choice(name, kPeriods));
+core::Period period(const JsonFields& f, std::string_view name) {
+    return static_cast<core::Period>(f.choice(name, kPeriods));
 }
 
-Period period_or(const JsonFields& f, std::string_view name, Period fallback) {
+core::Period period_or(const JsonFields& f, std::string_view name, core::Period fallback) {
     return f.has(name) ? period(f, name) : fallback;
 }
 
 // Fields every message has; each kind adds its own.
 constexpr std::string_view kHeaderFields[] = {"match", "seq", "time_us", "period", "clock", "type"};
 
-MatchSetup read_setup(const JsonFields& f) {
+core::MatchSetup read_setup(const JsonFields& f) {
     f.only(kHeaderFields, {"home", "away", "neutral", "prior", "ratings", "kickoff_us",
             "half_minutes", "extra_time", "extra_half_minutes", "shootout", "first_leg"},
            "a 'setup' message");
-    MatchSetup s;
+    core::MatchSetup s;
     s.home_name = f.text("home");
     s.away_name = f.text("away");
     s.neutral_venue = f.boolean_or("neutral", false);
     if (f.has("prior")) {
         const JsonFields prior = f.object("prior");
         prior.only({}, {"home", "away"}, "'prior'");
-        s.prior = PriorMeans{prior.number("home"), prior.number("away")};
+        s.prior = core::PriorMeans{prior.number("home"), prior.number("away")};
     }
     if (f.has("ratings")) {
         const JsonFields ratings = f.object("ratings");
         ratings.only({}, {"home", "away"}, "'ratings'");
-        s.ratings = RatingReference{ratings.text("home"), ratings.text("away")};
+        s.ratings = core::RatingReference{ratings.text("home"), ratings.text("away")};
     }
     s.scheduled_kickoff_us = f.i64_or("kickoff_us", 0);
     s.format.half_minutes = f.u16_or("half_minutes", s.format.half_minutes);
@@ -79,61 +79,61 @@ MatchSetup read_setup(const JsonFields& f) {
     if (f.has("first_leg")) {
         const JsonFields leg = f.object("first_leg");
         leg.only({}, {"home", "away"}, "'first_leg'");
-        s.format.first_leg = FirstLegResult{leg.u16("home"), leg.u16("away")};
+        s.format.first_leg = core::FirstLegResult{leg.u16("home"), leg.u16("away")};
     }
     return s;
 }
 
-MessageBody read_body(const JsonFields& f, std::size_t kind, Period clock_period) {
+core::MessageBody read_body(const JsonFields& f, std::size_t kind, core::Period clock_period) {
     const std::string context = fmt::format("a '{}' message", kKinds[kind]);
     switch (kind) {
-        case kind_of<MatchSetup>: return read_setup(f);
-        case kind_of<PeriodStart>:
+        case kind_of<core::MatchSetup>: return read_setup(f);
+        case kind_of<core::PeriodStart>:
             f.only(kHeaderFields, {"starts"}, context);
-            return PeriodStart{period_or(f, "starts", clock_period)};
-        case kind_of<PeriodEnd>:
+            return core::PeriodStart{period_or(f, "starts", clock_period)};
+        case kind_of<core::PeriodEnd>:
             f.only(kHeaderFields, {"ends"}, context);
-            return PeriodEnd{period_or(f, "ends", clock_period)};
-        case kind_of<Goal>:
+            return core::PeriodEnd{period_or(f, "ends", clock_period)};
+        case kind_of<core::Goal>:
             f.only(kHeaderFields, {"side", "penalty", "own_goal"}, context);
-            return Goal{side(f), f.boolean_or("penalty", false), f.boolean_or("own_goal", false)};
-        case kind_of<GoalCancelled>:
+            return core::Goal{side(f), f.boolean_or("penalty", false), f.boolean_or("own_goal", false)};
+        case kind_of<core::GoalCancelled>:
             f.only(kHeaderFields, {"goal_seq"}, context);
-            return GoalCancelled{f.u64("goal_seq")};
-        case kind_of<RedCard>:
+            return core::GoalCancelled{f.u64("goal_seq")};
+        case kind_of<core::RedCard>:
             f.only(kHeaderFields, {"side", "second_yellow"}, context);
-            return RedCard{side(f), f.boolean_or("second_yellow", false)};
-        case kind_of<CardRescinded>:
+            return core::RedCard{side(f), f.boolean_or("second_yellow", false)};
+        case kind_of<core::CardRescinded>:
             f.only(kHeaderFields, {"card_seq"}, context);
-            return CardRescinded{f.u64("card_seq")};
-        case kind_of<StoppageAnnounced>:
+            return core::CardRescinded{f.u64("card_seq")};
+        case kind_of<core::StoppageAnnounced>:
             f.only(kHeaderFields, {"minutes", "for_period"}, context);
-            return StoppageAnnounced{period_or(f, "for_period", clock_period), f.u16("minutes")};
-        case kind_of<ScoreCorrection>:
+            return core::StoppageAnnounced{period_or(f, "for_period", clock_period), f.u16("minutes")};
+        case kind_of<core::ScoreCorrection>:
             f.only(kHeaderFields, {"home_goals", "away_goals"}, context);
-            return ScoreCorrection{f.u16("home_goals"), f.u16("away_goals")};
-        case kind_of<ShootoutKick>:
+            return core::ScoreCorrection{f.u16("home_goals"), f.u16("away_goals")};
+        case kind_of<core::ShootoutKick>:
             f.only(kHeaderFields, {"side", "scored"}, context);
-            return ShootoutKick{side(f), f.boolean("scored")};
-        case kind_of<ShotXg>:
+            return core::ShootoutKick{side(f), f.boolean("scored")};
+        case kind_of<core::ShotXg>:
             f.only(kHeaderFields, {"side", "xg"}, context);
-            return ShotXg{side(f), f.number("xg")};
-        case kind_of<MatchAbandoned>:
+            return core::ShotXg{side(f), f.number("xg")};
+        case kind_of<core::MatchAbandoned>:
             f.only(kHeaderFields, {"reason"}, context);
-            return MatchAbandoned{f.text_or("reason", "")};
-        case kind_of<FinalWhistle>:
+            return core::MatchAbandoned{f.text_or("reason", "")};
+        case kind_of<core::FinalWhistle>:
             f.only(kHeaderFields, {}, context);
-            return FinalWhistle{};
+            return core::FinalWhistle{};
         default:  // kind_of<ClockSync>, the last
             f.only(kHeaderFields, {"running"}, context);
-            return ClockSync{f.boolean_or("running", true)};
+            return core::ClockSync{f.boolean_or("running", true)};
     }
 }
 
-InboundMessage read_message(const JsonFields& f, std::string& kind_hint) {
+core::InboundMessage read_message(const JsonFields& f, std::string& kind_hint) {
     const std::size_t kind = f.choice("type", kKinds);
     kind_hint = std::string(kKinds[kind]);
-    InboundMessage m;
+    core::InboundMessage m;
     m.header.match_id = f.u64("match");
     m.header.source_seq = f.u64("seq");
     m.header.source_time_us = f.i64("time_us");
@@ -185,7 +185,7 @@ JsonLineResult JsonFeedReader::read_line(std::string_view line, std::size_t line
     }
     try {
         const JsonFields fields(object, "");
-        InboundMessage message = read_message(fields, result.kind_hint);
+        core::InboundMessage message = read_message(fields, result.kind_hint);
         if (const auto problem = check_message(message)) return refuse(problem->field, problem->reason);
         result.kind = JsonLineKind::message;
         result.message = std::move(message);

@@ -1,6 +1,6 @@
 // InboundMessage -> one JSON line, and the match clock's text form.
 #include <charconv>
-#include "liveprob/engine/overloaded.hpp"
+#include "liveprob/core/overloaded.hpp"
 
 #include <fmt/format.h>
 
@@ -46,8 +46,8 @@ private:
     std::string& out_;
 };
 
-void write_setup(LineWriter& w, const MatchSetup& s) {
-    const CompetitionFormat defaults;
+void write_setup(LineWriter& w, const core::MatchSetup& s) {
+    const core::CompetitionFormat defaults;
     w.text("home", s.home_name);
     w.text("away", s.away_name);
     w.flag_if("neutral", s.neutral_venue);
@@ -67,7 +67,7 @@ void write_setup(LineWriter& w, const MatchSetup& s) {
 }
 
 // A period field that defaults to the clock's period is written only when it differs.
-void period_unless(LineWriter& w, std::string_view name, Period value, Period clock_period) {
+void period_unless(LineWriter& w, std::string_view name, core::Period value, core::Period clock_period) {
     if (value != clock_period) w.text(name, period_name(value));
 }
 
@@ -105,48 +105,48 @@ std::optional<std::uint32_t> parse_match_clock(std::string_view text) {
     return (minutes * 60 + seconds) * 1000 + millis;
 }
 
-std::string to_json_line(const InboundMessage& message) {
-    const MessageHeader& h = message.header;
+std::string to_json_line(const core::InboundMessage& message) {
+    const core::MessageHeader& h = message.header;
     std::string out = fmt::format("{{\"match\": {}, \"seq\": {}, \"time_us\": {}, \"period\": \"{}\", "
                                   "\"clock\": \"{}\", \"type\": \"{}\"",
                                   h.match_id, h.source_seq, h.source_time_us, period_name(h.clock.period),
                                   format_match_clock(h.clock.clock_ms), kind_name(message.body));
     LineWriter w(out);
-    const Period clock_period = h.clock.period;
-    std::visit(overloaded{
-                   [&](const MatchSetup& m) { write_setup(w, m); },
-                   [&](const PeriodStart& m) { period_unless(w, "starts", m.period, clock_period); },
-                   [&](const PeriodEnd& m) { period_unless(w, "ends", m.period, clock_period); },
-                   [&](const Goal& m) {
+    const core::Period clock_period = h.clock.period;
+    std::visit(core::overloaded{
+                   [&](const core::MatchSetup& m) { write_setup(w, m); },
+                   [&](const core::PeriodStart& m) { period_unless(w, "starts", m.period, clock_period); },
+                   [&](const core::PeriodEnd& m) { period_unless(w, "ends", m.period, clock_period); },
+                   [&](const core::Goal& m) {
                        w.text("side", side_name(m.side));
                        w.flag_if("penalty", m.penalty);
                        w.flag_if("own_goal", m.own_goal);
                    },
-                   [&](const GoalCancelled& m) { w.number("goal_seq", m.goal_seq); },
-                   [&](const RedCard& m) {
+                   [&](const core::GoalCancelled& m) { w.number("goal_seq", m.goal_seq); },
+                   [&](const core::RedCard& m) {
                        w.text("side", side_name(m.side));
                        w.flag_if("second_yellow", m.second_yellow);
                    },
-                   [&](const CardRescinded& m) { w.number("card_seq", m.card_seq); },
-                   [&](const StoppageAnnounced& m) {
+                   [&](const core::CardRescinded& m) { w.number("card_seq", m.card_seq); },
+                   [&](const core::StoppageAnnounced& m) {
                        w.number("minutes", m.minutes);
                        period_unless(w, "for_period", m.period, clock_period);
                    },
-                   [&](const ScoreCorrection& m) {
+                   [&](const core::ScoreCorrection& m) {
                        w.number("home_goals", m.home_goals);
                        w.number("away_goals", m.away_goals);
                    },
-                   [&](const ShootoutKick& m) {
+                   [&](const core::ShootoutKick& m) {
                        w.text("side", side_name(m.side));
                        w.flag("scored", m.scored);
                    },
-                   [&](const ShotXg& m) {
+                   [&](const core::ShotXg& m) {
                        w.text("side", side_name(m.side));
                        w.number("xg", m.xg);
                    },
-                   [&](const MatchAbandoned& m) { if (!m.reason.empty()) w.text("reason", m.reason); },
-                   [](const FinalWhistle&) {},
-                   [&](const ClockSync& m) { if (!m.running) w.flag("running", false); },
+                   [&](const core::MatchAbandoned& m) { if (!m.reason.empty()) w.text("reason", m.reason); },
+                   [](const core::FinalWhistle&) {},
+                   [&](const core::ClockSync& m) { if (!m.running) w.flag("running", false); },
                },
                message.body);
     out.push_back('}');

@@ -1,5 +1,5 @@
 #include "liveprob/protocol/message_checks.hpp"
-#include "liveprob/engine/overloaded.hpp"
+#include "liveprob/core/overloaded.hpp"
 
 #include <cmath>
 #include <fmt/format.h>
@@ -18,16 +18,16 @@ Problem missing(std::string field, std::string reason) {
     return MessageProblem{DecodeError::missing_field, std::move(field), std::move(reason)};
 }
 
-bool is_playing_period(Period p) noexcept {
-    return p >= Period::first_half && p <= Period::extra_second;
+bool is_playing_period(core::Period p) noexcept {
+    return p >= core::Period::first_half && p <= core::Period::extra_second;
 }
 
 // Periods that can start or end: the four of open play plus the shoot-out.
-bool can_start_or_end(Period p) noexcept {
-    return p >= Period::first_half && p <= Period::shootout;
+bool can_start_or_end(core::Period p) noexcept {
+    return p >= core::Period::first_half && p <= core::Period::shootout;
 }
 
-Problem check_side(Side side) {
+Problem check_side(core::Side side) {
     if (!is_known_side(static_cast<std::uint8_t>(side))) {
         return bad("side", fmt::format("unknown side {}", static_cast<int>(side)));
     }
@@ -50,7 +50,7 @@ Problem check_prior_goals(double value, const std::string& field) {
     return std::nullopt;
 }
 
-Problem check_format(const CompetitionFormat& format) {
+Problem check_format(const core::CompetitionFormat& format) {
     if (format.half_minutes == 0 || format.half_minutes > kMaxHalfMinutes) {
         return bad("half_minutes",
                    fmt::format("must be 1..{}, got {}", kMaxHalfMinutes, format.half_minutes));
@@ -63,7 +63,7 @@ Problem check_format(const CompetitionFormat& format) {
     return std::nullopt;
 }
 
-Problem check_setup(const MatchSetup& setup) {
+Problem check_setup(const core::MatchSetup& setup) {
     if (auto p = check_name(setup.home_name, "home")) return p;
     if (auto p = check_name(setup.away_name, "away")) return p;
     if (!setup.prior && !setup.ratings) {
@@ -83,25 +83,25 @@ Problem check_setup(const MatchSetup& setup) {
     return check_format(setup.format);
 }
 
-Problem check_body(const MessageBody& body) {
+Problem check_body(const core::MessageBody& body) {
     return std::visit(
-        overloaded{
-            [](const MatchSetup& m) { return check_setup(m); },
-            [](const PeriodStart& m) -> Problem {
+        core::overloaded{
+            [](const core::MatchSetup& m) { return check_setup(m); },
+            [](const core::PeriodStart& m) -> Problem {
                 if (!can_start_or_end(m.period)) {
                     return bad("starts", fmt::format("'{}' is not a period that starts",
                                                      period_name(m.period)));
                 }
                 return std::nullopt;
             },
-            [](const PeriodEnd& m) -> Problem {
+            [](const core::PeriodEnd& m) -> Problem {
                 if (!can_start_or_end(m.period)) {
                     return bad("ends", fmt::format("'{}' is not a period that ends",
                                                    period_name(m.period)));
                 }
                 return std::nullopt;
             },
-            [](const StoppageAnnounced& m) -> Problem {
+            [](const core::StoppageAnnounced& m) -> Problem {
                 if (!is_playing_period(m.period)) {
                     return bad("for_period", fmt::format("'{}' has no stoppage time",
                                                          period_name(m.period)));
@@ -112,17 +112,17 @@ Problem check_body(const MessageBody& body) {
                 }
                 return std::nullopt;
             },
-            [](const Goal& m) { return check_side(m.side); },
-            [](const RedCard& m) { return check_side(m.side); },
-            [](const ShootoutKick& m) { return check_side(m.side); },
-            [](const ShotXg& m) -> Problem {
+            [](const core::Goal& m) { return check_side(m.side); },
+            [](const core::RedCard& m) { return check_side(m.side); },
+            [](const core::ShootoutKick& m) { return check_side(m.side); },
+            [](const core::ShotXg& m) -> Problem {
                 if (auto p = check_side(m.side)) return p;
                 if (!std::isfinite(m.xg) || m.xg < 0.0 || m.xg > 1.0) {
                     return bad("xg", fmt::format("must be in [0, 1], got {}", m.xg));
                 }
                 return std::nullopt;
             },
-            [](const MatchAbandoned& m) -> Problem {
+            [](const core::MatchAbandoned& m) -> Problem {
                 if (m.reason.size() > kMaxReasonBytes) {
                     return bad("reason", fmt::format("longer than {} bytes", kMaxReasonBytes));
                 }
@@ -141,15 +141,15 @@ std::string MessageProblem::describe() const {
 }
 
 bool is_known_period(std::uint8_t raw) noexcept {
-    return raw <= static_cast<std::uint8_t>(Period::finished);
+    return raw <= static_cast<std::uint8_t>(core::Period::finished);
 }
 
 bool is_known_side(std::uint8_t raw) noexcept {
-    return raw <= static_cast<std::uint8_t>(Side::away);
+    return raw <= static_cast<std::uint8_t>(core::Side::away);
 }
 
-std::optional<MessageProblem> check_message(const InboundMessage& message) {
-    const MessageHeader& h = message.header;
+std::optional<MessageProblem> check_message(const core::InboundMessage& message) {
+    const core::MessageHeader& h = message.header;
     if (h.match_id == 0) return bad("match", "must not be 0 (0 means 'every match' in requests)");
     if (!is_known_period(static_cast<std::uint8_t>(h.clock.period))) {
         return bad("period", fmt::format("unknown period {}", static_cast<int>(h.clock.period)));

@@ -36,17 +36,17 @@ Problem check_goals(const char* field, double goals) {
 }
 
 // Side length of the smallest square of the grid holding every non-zero cell.
-std::size_t used_grid_size(const Outputs& o) {
+std::size_t used_grid_size(const core::Outputs& o) {
     std::size_t n = 0;
-    for (std::size_t i = 0; i < kGrid; ++i) {
-        for (std::size_t j = 0; j < kGrid; ++j) {
+    for (std::size_t i = 0; i < core::kGrid; ++i) {
+        for (std::size_t j = 0; j < core::kGrid; ++j) {
             if (o.goals_added[i][j] != 0.0) n = std::max(n, std::max(i, j) + 1);
         }
     }
     return n;
 }
 
-Problem read_probabilities(const w::Update& in, Outputs& o) {
+Problem read_probabilities(const w::Update& in, core::Outputs& o) {
     const std::pair<const char*, double> probabilities[] = {
         {"p_home", in.p_home()}, {"p_draw", in.p_draw()}, {"p_away", in.p_away()},
         {"p_advance_home", in.p_advance_home()}, {"p_advance_away", in.p_advance_away()},
@@ -74,19 +74,19 @@ Problem read_probabilities(const w::Update& in, Outputs& o) {
     return std::nullopt;
 }
 
-Problem read_vectors(const w::Update& in, Outputs& o) {
+Problem read_vectors(const w::Update& in, core::Outputs& o) {
     const auto* over = in.p_over();
     if (!over) return MessageProblem{DecodeError::missing_field, "p_over", "absent"};
-    if (over->size() != kTotalsLines) {
-        return bad("p_over", fmt::format("{} lines, expected {}", over->size(), kTotalsLines));
+    if (over->size() != core::kTotalsLines) {
+        return bad("p_over", fmt::format("{} lines, expected {}", over->size(), core::kTotalsLines));
     }
     for (flatbuffers::uoffset_t i = 0; i < over->size(); ++i) {
         if (auto p = check_probability("p_over", over->Get(i))) return p;
         o.p_over[i] = over->Get(i);
     }
     const std::size_t n = in.grid_size();
-    if (n > static_cast<std::size_t>(kGrid)) {
-        return bad("grid_size", fmt::format("{} is larger than {}", n, kGrid));
+    if (n > static_cast<std::size_t>(core::kGrid)) {
+        return bad("grid_size", fmt::format("{} is larger than {}", n, core::kGrid));
     }
     const auto* grid = in.goals_added();
     const std::size_t cells = grid ? grid->size() : 0;
@@ -106,7 +106,7 @@ Problem read_vectors(const w::Update& in, Outputs& o) {
 }  // namespace
 
 flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
-                                            const UpdateMeta& meta, const Outputs& o) {
+                                            const UpdateMeta& meta, const core::Outputs& o) {
     const auto p_over = fbb.CreateVector(o.p_over.data(), o.p_over.size());
     const std::size_t n = used_grid_size(o);
     double* cells = nullptr;
@@ -155,7 +155,7 @@ std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& ou
                               fmt::format("{}, this build reads {}", in.schema_major(), kSchemaMajor)};
     }
     const auto status = static_cast<std::uint8_t>(in.status());
-    if (status > static_cast<std::uint8_t>(MatchStatus::abandoned)) {
+    if (status > static_cast<std::uint8_t>(core::MatchStatus::abandoned)) {
         return bad("status", fmt::format("{} is not a match status", status));
     }
     const w::MatchClock* clock = in.clock();
@@ -166,9 +166,9 @@ std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& ou
     out = DecodedUpdate{};
     out.meta = UpdateMeta{in.match_id(), in.output_seq(), in.input_seq(), in.receive_time_us(),
                           in.publish_time_us(), in.compute_ns()};
-    Outputs& o = out.outputs;
-    o.status = static_cast<MatchStatus>(status);
-    o.clock = MatchClock{static_cast<Period>(period), clock->clock_ms()};
+    core::Outputs& o = out.outputs;
+    o.status = static_cast<core::MatchStatus>(status);
+    o.clock = core::MatchClock{static_cast<core::Period>(period), clock->clock_ms()};
     o.home_goals = in.home_goals();
     o.away_goals = in.away_goals();
     o.home_reds = in.home_reds();

@@ -9,10 +9,13 @@
 
 #include "feed_builder.hpp"
 #include "heap_allocation_counter.hpp"
-#include "liveprob/engine/match.hpp"
+#include "liveprob/core/match.hpp"
 
 
 using namespace liveprob;
+
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 
 TEST_CASE("applying messages in feed order and reading the outputs allocates nothing", "[match][allocation]") {

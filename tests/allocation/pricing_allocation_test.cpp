@@ -6,13 +6,16 @@
 #include <cstdlib>
 #include <new>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/pricing.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/pricing.hpp"
 #include "heap_allocation_counter.hpp"
 #include "pricing_fixtures.hpp"
 
 
 using namespace liveprob;
+
+
+using namespace liveprob::core;
 
 TEST_CASE("the allocation counter sees heap allocations") {
     static double* volatile probe = nullptr;  // volatile: the pair cannot be optimised away

@@ -8,8 +8,8 @@
 #include <stdexcept>
 #include <string>
 
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/adapters/service_config.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/service/service_config.hpp"
 
 namespace {
 // A refusal is one non-empty line.
@@ -20,7 +20,7 @@ void require_one_line(const std::exception& e) {
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-    using namespace liveprob::adapters;
+    using namespace liveprob::service;
     const std::string text(reinterpret_cast<const char*>(data), size);
     try {
         const ServiceConfig config = parse_service_config(text, "fuzz.json");
@@ -34,10 +34,10 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();  // names the file
     }
     try {
-        const liveprob::ModelParams params = liveprob::parse_params_json(text, "fuzz.json");
-        const liveprob::ModelParams again = liveprob::parse_params_json(liveprob::params_to_json(params), "again.json");
-        if (liveprob::params_to_json(again) != liveprob::params_to_json(params)) std::abort();
-    } catch (const liveprob::ParamsFileError& e) {
+        const liveprob::core::ModelParams params = liveprob::files::parse_params_json(text, "fuzz.json");
+        const liveprob::core::ModelParams again = liveprob::files::parse_params_json(liveprob::files::params_to_json(params), "again.json");
+        if (liveprob::files::params_to_json(again) != liveprob::files::params_to_json(params)) std::abort();
+    } catch (const liveprob::files::ParamsFileError& e) {
         require_one_line(e);
         if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();
     }

@@ -10,11 +10,13 @@
 #include <cstdlib>
 #include <vector>
 
-#include "liveprob/engine/match.hpp"
+#include "liveprob/core/match.hpp"
 
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 struct ByteReader {
     const std::uint8_t* data;

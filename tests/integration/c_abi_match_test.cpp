@@ -8,10 +8,12 @@
 #include <vector>
 
 #include "feed_builder.hpp"
-#include "liveprob/engine/liveprob_c.h"
-#include "liveprob/engine/match.hpp"
+#include "liveprob/capi/liveprob_c.h"
+#include "liveprob/core/match.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 
 namespace {

@@ -7,11 +7,14 @@
 #include <regex>
 #include <string>
 
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/engine/snapshot.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/core/position.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
+using namespace liveprob::files;
+
+using namespace liveprob::core;
 
 namespace {
 

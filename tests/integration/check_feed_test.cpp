@@ -15,6 +15,8 @@
 #include "test_env.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::test;
 
 namespace {

@@ -7,25 +7,27 @@
 #include <fmt/format.h>
 
 #include "child_process.hpp"
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
 
+using namespace liveprob::core;
+
 TEST_CASE("convert: frames to JSON lines and back gives the same bytes, damaged input is refused", "[convert]") {
     const auto dir = liveprob::test::scratch_dir("convert-cli");
-    const auto season = replay::simulate_demo_season(replay::make_demo_league(3), 3);
+    const auto season = demo::simulate_demo_season(demo::make_demo_league(3), 3);
     std::vector<InboundMessage> messages;
     for (std::size_t i = 0; i < 5; ++i) messages.insert(messages.end(), season.league[i].messages.begin(), season.league[i].messages.end());
-    replay::write_stream(dir / "a.stream", messages, replay::StreamForm::frames);
+    backtest::write_stream(dir / "a.stream", messages, backtest::StreamForm::frames);
     const std::string bin = liveprob::test::liveprob_binary().string();
     auto convert = [&](const std::string& args) {
         return liveprob::test::run_command(fmt::format("{} convert {} 2>&1", bin, args));
     };
 
     REQUIRE(convert(fmt::format("{} --out {} --form json", (dir / "a.stream").string(), (dir / "a.jsonl").string())).exit_code == 0);
-    CHECK(replay::read_stream(dir / "a.jsonl").messages == messages);
+    CHECK(backtest::read_stream(dir / "a.jsonl").messages == messages);
     REQUIRE(convert(fmt::format("{} --out {} --form frames", (dir / "a.jsonl").string(), (dir / "b.stream").string())).exit_code == 0);
     CHECK(liveprob::test::read_whole_file(dir / "b.stream") == liveprob::test::read_whole_file(dir / "a.stream"));
 
@@ -42,5 +44,5 @@ TEST_CASE("convert: frames to JSON lines and back gives the same bytes, damaged 
     CHECK_FALSE(std::filesystem::exists(dir / "c.stream"));
     const auto skipped = convert(fmt::format("{} --out {} --form frames --skip-bad", (dir / "damaged.jsonl").string(), (dir / "c.stream").string()));
     CHECK(skipped.exit_code == 0);
-    CHECK(replay::read_stream(dir / "c.stream").messages.size() == messages.size() - 1);
+    CHECK(backtest::read_stream(dir / "c.stream").messages.size() == messages.size() - 1);
 }

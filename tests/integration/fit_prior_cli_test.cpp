@@ -12,9 +12,9 @@
 #include <set>
 #include <string>
 
-#include "liveprob/adapters/ratings_file.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/files/ratings_file.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "test_env.hpp"
 
@@ -59,7 +59,7 @@ TEST_CASE("fit on the project's results CSV writes a ratings file that prior rea
     const auto run = liveprob_run(fmt::format("fit --results {} --out {}", example("results_example.csv"), ratings_path));
     INFO(run.out);
     REQUIRE(run.exit_code == 0);
-    const fit::Ratings r = liveprob::load_ratings_file(ratings_path);
+    const fit::Ratings r = liveprob::files::load_ratings_file(ratings_path);
     const FileDiagnostics d = diagnostics_in(ratings_path);
     CHECK(d.converged);
     CHECK(d.iterations > 0);
@@ -98,7 +98,7 @@ TEST_CASE("fit on the project's results CSV writes a ratings file that prior rea
     const auto read = reader.read_line(prior.out.substr(0, prior.out.find('\n')), 1);
     REQUIRE(read.kind == liveprob::protocol::JsonLineKind::message);
     CHECK(read.message->header.match_id == 77);
-    const auto& setup = std::get<liveprob::MatchSetup>(read.message->body);
+    const auto& setup = std::get<liveprob::core::MatchSetup>(read.message->body);
     REQUIRE(setup.prior);
     const auto expected = fit::expected_goals(r, *r.find("Harbour Town"), *r.find("Hill Rovers"), false);
     CHECK(setup.prior->home_goals == Approx(expected.home).epsilon(1e-12));
@@ -136,7 +136,7 @@ TEST_CASE("fit reads the open datasets' formats: a league file and the internati
                                                  (dir / "league.json").string()));
     INFO(league.out);
     REQUIRE(league.exit_code == 0);
-    const fit::Ratings l = liveprob::load_ratings_file((dir / "league.json").string());
+    const fit::Ratings l = liveprob::files::load_ratings_file((dir / "league.json").string());
     const FileDiagnostics ld = diagnostics_in((dir / "league.json").string());
     CHECK(l.teams.size() == 18);
     CHECK(ld.matches == 306);
@@ -149,7 +149,7 @@ TEST_CASE("fit reads the open datasets' formats: a league file and the internati
                                                         (dir / "international.json").string()));
     INFO(international.out);
     REQUIRE(international.exit_code == 0);
-    const fit::Ratings i = liveprob::load_ratings_file((dir / "international.json").string());
+    const fit::Ratings i = liveprob::files::load_ratings_file((dir / "international.json").string());
     REQUIRE(i.as_of_day);
     CHECK(*i.as_of_day == *fit::parse_iso_date("2010-06-11"));
     CHECK(diagnostics_in((dir / "international.json").string()).converged);

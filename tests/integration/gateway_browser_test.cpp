@@ -17,6 +17,8 @@
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace std::chrono_literals;
 
 const char* kChromium = "/usr/bin/chromium";

@@ -21,8 +21,8 @@
 #include <thread>
 #include <vector>
 
-#include "liveprob/adapters/gateway/gateway.hpp"
-#include "liveprob/adapters/topics.hpp"
+#include "liveprob/gateway/gateway.hpp"
+#include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "test_env.hpp"
 
@@ -52,9 +52,9 @@ public:
         meta.output_seq = seq;
         meta.input_seq = seq;
         meta.publish_time_us = 1'700'000'000'000'000;
-        liveprob::Outputs o;
-        o.status = liveprob::MatchStatus::in_play;
-        o.clock = {liveprob::Period::second_half, static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
+        liveprob::core::Outputs o;
+        o.status = liveprob::core::MatchStatus::in_play;
+        o.clock = {liveprob::core::Period::second_half, static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
         o.home_goals = home_goals;
         o.p_home = p_home;
         o.p_draw = (1.0 - p_home) * 0.5;
@@ -66,7 +66,7 @@ public:
         publish_raw(match_id, encoder_.encode(meta, o));
     }
     void publish_raw(std::uint64_t match_id, std::span<const std::uint8_t> bytes) {
-        const std::string topic = liveprob::adapters::match_topic_string(match_id);
+        const std::string topic = liveprob::transport::match_topic_string(match_id);
         socket_.send(zmq::buffer(topic), zmq::send_flags::sndmore);
         socket_.send(zmq::buffer(bytes.data(), bytes.size()), zmq::send_flags::none);
     }
@@ -97,7 +97,7 @@ private:
 liveprob::gateway::GatewayConfig test_config(const FakeServe& serve) {
     liveprob::gateway::GatewayConfig c;
     c.feed_endpoint = serve.endpoint();
-    c.web_dir = liveprob::test::source_dir() / "adapters" / "web";
+    c.web_dir = liveprob::test::source_dir() / "adapters" / "gateway" / "web";
     c.idle_timeout = 5s;
     c.handshake_timeout = 2s;
     return c;

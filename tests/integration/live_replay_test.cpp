@@ -15,12 +15,15 @@
 #include <fmt/format.h>
 
 #include "child_process.hpp"
-#include "liveprob/replay/backtest.hpp"
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
+#include "liveprob/backtest/backtest.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
+using namespace liveprob::scoring;
+
+using namespace liveprob::core;
 
 namespace {
 
@@ -74,16 +77,16 @@ liveprob::test::CommandResult run(const std::string& command) {
 TEST_CASE("replay --live through serve scores what a subscriber received: equal to the in-process replay",
           "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay");
-    const auto season = replay::simulate_demo_season(replay::make_demo_league(11), 11);
+    const auto season = demo::simulate_demo_season(demo::make_demo_league(11), 11);
     std::filesystem::create_directories(dir / "streams");
     // The first two rounds of the league (20 matches, interleaved by kick-off) and the whole cup.
     for (std::size_t i = 0; i < 20; ++i) {
-        replay::write_stream(dir / "streams" / fmt::format("league-{}.stream", i), season.league[i].messages,
-                             replay::StreamForm::frames);
+        backtest::write_stream(dir / "streams" / fmt::format("league-{}.stream", i), season.league[i].messages,
+                             backtest::StreamForm::frames);
     }
     for (std::size_t i = 0; i < season.cup.size(); ++i) {
-        replay::write_stream(dir / "streams" / fmt::format("cup-{}.jsonl", i), season.cup[i].messages,
-                             replay::StreamForm::json_lines);
+        backtest::write_stream(dir / "streams" / fmt::format("cup-{}.jsonl", i), season.cup[i].messages,
+                             backtest::StreamForm::json_lines);
     }
     const std::string bin = liveprob::test::liveprob_binary().string();
     liveprob::test::ChildProcess serve({bin, "serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
@@ -119,7 +122,7 @@ TEST_CASE("replay --live through serve scores what a subscriber received: equal 
 
     // The journal is a recorded stream: it holds every message sent, in the order sent.
     serve.stop();
-    const auto journal = replay::read_stream(dir / "journal.lpj");
+    const auto journal = backtest::read_stream(dir / "journal.lpj");
     CHECK(journal.bad_records == 0);
     std::size_t expected = 0;
     for (std::size_t i = 0; i < 20; ++i) expected += season.league[i].messages.size();
@@ -127,7 +130,7 @@ TEST_CASE("replay --live through serve scores what a subscriber received: equal 
     CHECK(journal.messages.size() == expected);
     std::vector<InboundMessage> recorded;
     for (const auto& file : std::filesystem::directory_iterator(dir / "streams")) {
-        const auto contents = replay::read_stream(file.path());
+        const auto contents = backtest::read_stream(file.path());
         recorded.insert(recorded.end(), contents.messages.begin(), contents.messages.end());
     }
     auto by_time = [](const InboundMessage& x, const InboundMessage& y) {
@@ -146,13 +149,13 @@ TEST_CASE("replay --live through serve scores what a subscriber received: equal 
 
 TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps", "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay-paced");
-    const auto season = replay::simulate_demo_season(replay::make_demo_league(12), 12);
+    const auto season = demo::simulate_demo_season(demo::make_demo_league(12), 12);
     std::filesystem::create_directories(dir / "streams");
     // One league round: ten matches played at the same time.
     std::int64_t first = INT64_MAX, last = INT64_MIN;
     for (std::size_t i = 0; i < 10; ++i) {
         const auto& messages = season.league[i].messages;
-        replay::write_stream(dir / "streams" / fmt::format("m{}.stream", i), messages, replay::StreamForm::frames);
+        backtest::write_stream(dir / "streams" / fmt::format("m{}.stream", i), messages, backtest::StreamForm::frames);
         first = std::min(first, messages.front().header.source_time_us);
         last = std::max(last, messages.back().header.source_time_us);
     }
@@ -181,8 +184,8 @@ TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps",
 
 TEST_CASE("replay --live against an endpoint where nothing answers fails with a clear error", "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay-nothing");
-    const auto season = replay::simulate_demo_season(replay::make_demo_league(13), 13);
-    replay::write_stream(dir / "m.stream", season.league[0].messages, replay::StreamForm::frames);
+    const auto season = demo::simulate_demo_season(demo::make_demo_league(13), 13);
+    backtest::write_stream(dir / "m.stream", season.league[0].messages, backtest::StreamForm::frames);
     const std::string bin = liveprob::test::liveprob_binary().string();
     // Ports nobody listens on (serve not started): the setup is queued, no update ever comes.
     const auto result = liveprob::test::run_command(

@@ -18,8 +18,8 @@
 #include <vector>
 #include <zmq.hpp>
 
-#include "liveprob/adapters/topics.hpp"
-#include "liveprob/engine/match.hpp"
+#include "liveprob/transport/topics.hpp"
+#include "liveprob/core/match.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/update_codec.hpp"
@@ -75,9 +75,9 @@ private:
     std::filesystem::path log_;
 };
 
-inline InboundMessage feed_message(std::uint64_t match_id, std::uint64_t seq, Period period, std::uint32_t clock_ms,
-                                   MessageBody body) {
-    InboundMessage m;
+inline core::InboundMessage feed_message(std::uint64_t match_id, std::uint64_t seq, core::Period period, std::uint32_t clock_ms,
+                                   core::MessageBody body) {
+    core::InboundMessage m;
     m.header.match_id = match_id;
     m.header.source_seq = seq;
     m.header.source_time_us = 1'800'000'000'000'000 + static_cast<std::int64_t>(clock_ms) * 1000;
@@ -88,39 +88,39 @@ inline InboundMessage feed_message(std::uint64_t match_id, std::uint64_t seq, Pe
 
 // An invented match: setup, kick-off, a clock sync every five minutes, goals, a red card,
 // stoppage, both halves' ends and the final whistle.
-inline std::vector<InboundMessage> invented_match(std::uint64_t match_id) {
-    MatchSetup setup;
+inline std::vector<core::InboundMessage> invented_match(std::uint64_t match_id) {
+    core::MatchSetup setup;
     setup.home_name = "Harrow Fen";
     setup.away_name = "Lumen Quay";
-    setup.prior = PriorMeans{1.55, 1.10};
-    std::vector<InboundMessage> m;
+    setup.prior = core::PriorMeans{1.55, 1.10};
+    std::vector<core::InboundMessage> m;
     std::uint64_t seq = 1;
-    const auto add = [&](Period p, std::uint32_t minute_ms, MessageBody body) {
+    const auto add = [&](core::Period p, std::uint32_t minute_ms, core::MessageBody body) {
         m.push_back(feed_message(match_id, seq++, p, minute_ms, std::move(body)));
     };
     constexpr std::uint32_t kMinute = 60'000;
-    add(Period::pre_match, 0, setup);
-    add(Period::first_half, 0, PeriodStart{Period::first_half});
+    add(core::Period::pre_match, 0, setup);
+    add(core::Period::first_half, 0, core::PeriodStart{core::Period::first_half});
     for (std::uint32_t minute = 5; minute <= 45; minute += 5) {
-        add(Period::first_half, minute * kMinute, ClockSync{true});
-        if (minute == 20) add(Period::first_half, 20 * kMinute + 30'000, Goal{Side::home, false, false});
-        if (minute == 35) add(Period::first_half, 35 * kMinute + 10'000, RedCard{Side::away, false});
+        add(core::Period::first_half, minute * kMinute, core::ClockSync{true});
+        if (minute == 20) add(core::Period::first_half, 20 * kMinute + 30'000, core::Goal{core::Side::home, false, false});
+        if (minute == 35) add(core::Period::first_half, 35 * kMinute + 10'000, core::RedCard{core::Side::away, false});
     }
-    add(Period::first_half, 45 * kMinute, StoppageAnnounced{Period::first_half, 2});
-    add(Period::first_half, 47 * kMinute, PeriodEnd{Period::first_half});
-    add(Period::second_half, 45 * kMinute, PeriodStart{Period::second_half});
+    add(core::Period::first_half, 45 * kMinute, core::StoppageAnnounced{core::Period::first_half, 2});
+    add(core::Period::first_half, 47 * kMinute, core::PeriodEnd{core::Period::first_half});
+    add(core::Period::second_half, 45 * kMinute, core::PeriodStart{core::Period::second_half});
     for (std::uint32_t minute = 50; minute <= 90; minute += 5) {
-        add(Period::second_half, minute * kMinute, ClockSync{true});
-        if (minute == 60) add(Period::second_half, 61 * kMinute, Goal{Side::away, false, false});
-        if (minute == 75) add(Period::second_half, 77 * kMinute, Goal{Side::home, true, false});
+        add(core::Period::second_half, minute * kMinute, core::ClockSync{true});
+        if (minute == 60) add(core::Period::second_half, 61 * kMinute, core::Goal{core::Side::away, false, false});
+        if (minute == 75) add(core::Period::second_half, 77 * kMinute, core::Goal{core::Side::home, true, false});
     }
-    add(Period::second_half, 90 * kMinute, StoppageAnnounced{Period::second_half, 4});
-    add(Period::second_half, 94 * kMinute, PeriodEnd{Period::second_half});
-    add(Period::second_half, 94 * kMinute, FinalWhistle{});
+    add(core::Period::second_half, 90 * kMinute, core::StoppageAnnounced{core::Period::second_half, 4});
+    add(core::Period::second_half, 94 * kMinute, core::PeriodEnd{core::Period::second_half});
+    add(core::Period::second_half, 94 * kMinute, core::FinalWhistle{});
     return m;
 }
 
-inline void write_frames(const std::filesystem::path& path, const std::vector<InboundMessage>& messages) {
+inline void write_frames(const std::filesystem::path& path, const std::vector<core::InboundMessage>& messages) {
     std::vector<std::uint8_t> stream;
     for (const auto& message : messages) protocol::append_frame(stream, protocol::encode_feed_message(message));
     std::ofstream out(path, std::ios::binary);
@@ -131,19 +131,19 @@ inline void write_frames(const std::filesystem::path& path, const std::vector<In
 // after every message the match accepts (the service publishes exactly these).
 struct ReferenceOutput {
     std::uint64_t input_seq = 0;
-    Outputs outputs;
+    core::Outputs outputs;
 };
-inline std::vector<ReferenceOutput> engine_outputs(const std::vector<InboundMessage>& feed) {
+inline std::vector<ReferenceOutput> engine_outputs(const std::vector<core::InboundMessage>& feed) {
     std::vector<ReferenceOutput> out;
-    std::optional<Match> match;
+    std::optional<core::Match> match;
     for (const auto& m : feed) {
         if (!match) {
-            match.emplace(m.header.match_id, std::get<MatchSetup>(m.body), ModelParams{});
+            match.emplace(m.header.match_id, std::get<core::MatchSetup>(m.body), core::ModelParams{});
             out.push_back({m.header.source_seq, match->outputs()});
             continue;
         }
-        const ApplyResult r = match->apply(m);
-        if (r.verdict == Verdict::accepted || r.verdict == Verdict::late) {
+        const core::ApplyResult r = match->apply(m);
+        if (r.verdict == core::Verdict::accepted || r.verdict == core::Verdict::late) {
             out.push_back({m.header.source_seq, match->outputs()});
         }
     }
@@ -158,7 +158,7 @@ public:
         socket_.set(zmq::sockopt::linger, 0);
         socket_.set(zmq::sockopt::rcvhwm, rcvhwm);
         socket_.set(zmq::sockopt::subscribe, topic);
-        socket_.set(zmq::sockopt::subscribe, std::string(adapters::kCountersTopic));
+        socket_.set(zmq::sockopt::subscribe, std::string(transport::kCountersTopic));
         socket_.connect(endpoint);
     }
     zmq::socket_t& socket() { return socket_; }
@@ -168,7 +168,7 @@ public:
         const auto deadline = std::chrono::steady_clock::now() + timeout;
         while (std::chrono::steady_clock::now() < deadline) {
             auto [topic, body] = receive(50ms);
-            if (!topic || *topic != adapters::kCountersTopic) continue;
+            if (!topic || *topic != transport::kCountersTopic) continue;
             auto decoded = protocol::decode_counters({body.data(), body.size()});
             if (decoded.ok()) return *decoded.value;
         }
@@ -182,7 +182,7 @@ public:
         const auto deadline = std::chrono::steady_clock::now() + timeout;
         while (got.size() < count && std::chrono::steady_clock::now() < deadline) {
             auto [topic, body] = receive(50ms);
-            if (!topic || *topic == adapters::kCountersTopic) continue;
+            if (!topic || *topic == transport::kCountersTopic) continue;
             auto decoded = protocol::decode_update({body.data(), body.size()});
             if (!decoded.ok()) throw std::runtime_error("an update failed to decode: " + decoded.detail);
             if (events_only && decoded.value->meta.receive_time_us == 0) continue;
@@ -212,7 +212,7 @@ inline std::uint64_t counter(const protocol::CounterSet& set, const std::string&
 }
 
 // Every published field of two outputs, compared exactly (the same engine, the same inputs).
-inline bool same_outputs(const Outputs& a, const Outputs& b) {
+inline bool same_outputs(const core::Outputs& a, const core::Outputs& b) {
     return a.status == b.status && a.clock == b.clock && a.home_goals == b.home_goals &&
            a.away_goals == b.away_goals && a.home_reds == b.home_reds && a.away_reds == b.away_reds &&
            a.p_home == b.p_home && a.p_draw == b.p_draw && a.p_away == b.p_away &&

@@ -8,6 +8,8 @@
 #include "live_service_harness.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::test;
 
 namespace {
@@ -222,7 +224,7 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     CHECK(restored.updates[0].meta.output_seq > before_outputs.size());
 
     zmq::context_t context(1);
-    TestSubscriber sub(context, second.publish(), adapters::match_topic_string(404));
+    TestSubscriber sub(context, second.publish(), transport::match_topic_string(404));
     REQUIRE(sub.next_counters(20s).has_value());
     send_file(dir, second.ingest(), dir / "after.lpf");
     const std::size_t remaining = uninterrupted.size() - before_outputs.size();

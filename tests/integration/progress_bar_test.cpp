@@ -13,8 +13,8 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 #include "test_env.hpp"
 
 namespace {
@@ -59,10 +59,10 @@ TerminalRun run_on_terminal(const std::vector<std::string>& argv) {
 
 TEST_CASE("progress bar: rate and ETA on a terminal, nothing with --quiet or when not a terminal", "[progress]") {
     const auto dir = liveprob::test::scratch_dir("progress-bar");
-    const auto season = liveprob::replay::simulate_demo_season(liveprob::replay::make_demo_league(4), 4);
-    std::vector<liveprob::InboundMessage> all;
+    const auto season = liveprob::demo::simulate_demo_season(liveprob::demo::make_demo_league(4), 4);
+    std::vector<liveprob::core::InboundMessage> all;
     for (const auto& m : season.league) all.insert(all.end(), m.messages.begin(), m.messages.end());
-    liveprob::replay::write_stream(dir / "season.stream", all, liveprob::replay::StreamForm::frames);
+    liveprob::backtest::write_stream(dir / "season.stream", all, liveprob::backtest::StreamForm::frames);
     const std::string bin = liveprob::test::liveprob_binary().string();
 
     const auto shown = run_on_terminal({bin, "replay", (dir / "season.stream").string(), "--report", (dir / "a").string()});

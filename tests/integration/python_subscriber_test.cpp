@@ -14,6 +14,8 @@
 
 using namespace liveprob;
 
+using namespace liveprob::core;
+
 namespace {
 // flatc writes the Python modules to <build>/python (protocol/CMakeLists.txt); the program is
 // <build>/tools/liveprob.

@@ -7,15 +7,20 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/replay/backtest.hpp"
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
-#include "liveprob/replay/report_html.hpp"
-#include "liveprob/replay/report_json.hpp"
+#include "liveprob/backtest/backtest.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/report/report_html.hpp"
+#include "liveprob/report/report_json.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
-using namespace liveprob::replay;
+
+using namespace liveprob::core;
+using namespace liveprob::backtest;
+using namespace liveprob::demo;
+using namespace liveprob::report;
+using namespace liveprob::scoring;
 
 TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 threads", "[replay][threads]") {
     const auto league = make_demo_league(5);

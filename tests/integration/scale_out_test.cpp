@@ -21,11 +21,14 @@
 #include <set>
 
 #include "live_service_harness.hpp"
-#include "liveprob/adapters/shard_sender.hpp"
+#include "liveprob/clients/shard_sender.hpp"
+#include "liveprob/clients/snapshot_client.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/protocol/sharding.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::test;
 
 namespace {
@@ -99,7 +102,7 @@ public:
     RelaySubscriber(zmq::context_t& context, const std::string& endpoint) : socket_(context, zmq::socket_type::sub) {
         socket_.set(zmq::sockopt::linger, 0);
         socket_.set(zmq::sockopt::rcvhwm, 0);  // keep everything: the test counts every update
-        socket_.set(zmq::sockopt::subscribe, std::string(adapters::kMatchTopicPrefix));
+        socket_.set(zmq::sockopt::subscribe, std::string(transport::kMatchTopicPrefix));
         socket_.connect(endpoint);
     }
 
@@ -199,13 +202,13 @@ private:
         const auto message = feed_message(id, next_seq_[shard]++, Period::pre_match, 0, std::move(body));
         sender_.send(id, protocol::encode_feed_message(message));
     }
-    adapters::ShardSender sender_;
+    clients::ShardSender sender_;
     std::vector<std::uint64_t> ids_;
     std::array<std::uint64_t, kShards> next_seq_{1, 1, 1};
 };
 
 protocol::SnapshotReplyContents ask(zmq::context_t& context, const std::string& endpoint, std::uint64_t match_id) {
-    return adapters::request_snapshot(context, endpoint, match_id, 10s);
+    return clients::request_snapshot(context, endpoint, match_id, 10s);
 }
 
 // The "key=value" lines of an endpoints file, once the program has written it.

@@ -7,12 +7,14 @@
 #include <string>
 #include <utility>
 
-#include "liveprob/engine/match.hpp"
-#include "liveprob/replay/demo_league.hpp"
-#include "liveprob/replay/demo_season.hpp"
+#include "liveprob/core/match.hpp"
+#include "liveprob/demo/demo_league.hpp"
+#include "liveprob/demo/demo_season.hpp"
 
 using namespace liveprob;
-using namespace liveprob::replay;
+
+using namespace liveprob::core;
+using namespace liveprob::demo;
 
 TEST_CASE("double round robin: each pair meets twice with home and away swapped", "[demo]") {
     for (const int n : {2, 4, 6, 20}) {

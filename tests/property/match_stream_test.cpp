@@ -9,11 +9,13 @@
 #include <optional>
 #include <random>
 
-#include "liveprob/engine/match.hpp"
-#include "liveprob/engine/snapshot.hpp"
+#include "liveprob/core/match.hpp"
+#include "liveprob/core/position.hpp"
 #include "random_match_stream.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::kStreamScale;
 using liveprob::test::RandomStream;
 using liveprob::test::StreamGenerator;

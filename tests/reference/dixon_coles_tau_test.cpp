@@ -6,7 +6,7 @@
 
 #include <boost/math/distributions/poisson.hpp>
 
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 
 namespace fit = liveprob::fit;
 

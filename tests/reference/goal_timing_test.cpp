@@ -8,18 +8,18 @@
 #include <cmath>
 #include <iostream>
 
-#include "liveprob/adapters/inplay_records.hpp"
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/engine/fit/goal_timing.hpp"
+#include "liveprob/datasets/inplay_records.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/fit/goal_timing.hpp"
 #include "test_env.hpp"
 
 TEST_CASE("the fitted timing profile reproduces the second-half share of the goal minutes") {
     const auto dir = liveprob::test::open_data_dir() / "international";
     // Every match with complete goal records (no coverage filter: goalless ones add no minute).
-    const auto read = liveprob::adapters::read_international_timelines(dir.string(), {0.0});
+    const auto read = liveprob::datasets::read_international_timelines(dir.string(), {0.0});
     REQUIRE(read.matches.size() > 5000);
-    const auto counts = liveprob::adapters::regulation_minute_counts(read.matches);
-    const auto fit = liveprob::fit::fit_goal_timing(counts, liveprob::TimingProfile{});
+    const auto counts = liveprob::datasets::regulation_minute_counts(read.matches);
+    const auto fit = liveprob::fit::fit_goal_timing(counts, liveprob::core::TimingProfile{});
     std::cout << "matches " << read.matches.size() << " (left out " << read.skipped.total() << "), goals " << fit.goals
               << ", data second-half share " << fit.data_second_half_share << ", fitted " << fit.second_half_share
               << " (se " << fit.second_half_share_se << "), profile " << fit.profile.first_half_start << " "
@@ -36,22 +36,22 @@ TEST_CASE("the fitted timing profile reproduces the second-half share of the goa
 
 TEST_CASE("the stoppage factor from the championship files: the multinomial maximum, near the half's end rate") {
     const auto dir = liveprob::test::open_data_dir() / "euro";
-    liveprob::adapters::StoppageCounts counts;
+    liveprob::datasets::StoppageCounts counts;
     for (const char* year : {"2020", "2024"}) {
-        const auto read = liveprob::adapters::read_championship_timelines((dir / year / "euro.json").string());
-        const auto more = liveprob::adapters::stoppage_counts(read.matches);
+        const auto read = liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
+        const auto more = liveprob::datasets::stoppage_counts(read.matches);
         counts.regulation_goals += more.regulation_goals;
         counts.stoppage_goals += more.stoppage_goals;
     }
     REQUIRE(counts.stoppage_goals > 10);
-    const liveprob::TimingProfile shape;
+    const liveprob::core::TimingProfile shape;
     const auto fit = liveprob::fit::fit_stoppage_factor(counts.regulation_goals, counts.stoppage_goals, shape);
     std::cout << counts.stoppage_goals << " of " << counts.regulation_goals << " goals in stoppage: factor "
               << fit.factor << " (se " << fit.factor_se << ")\n";
     // The closed form is the maximum of the multinomial likelihood of the engine's minute shares,
     // with the stoppage goals in their own two cells (found here by golden-section search).
     auto log_likelihood = [&](double factor) {
-        liveprob::TimingProfile p = shape;
+        liveprob::core::TimingProfile p = shape;
         p.stoppage_factor = factor;
         const auto with = liveprob::fit::minute_shares(p);
         p.stoppage_factor = 0.0;

@@ -17,18 +17,18 @@
 #include <fstream>
 #include <map>
 
-#include "liveprob/adapters/inplay_records.hpp"
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
-#include "liveprob/engine/fit/extra_time_fit.hpp"
-#include "liveprob/engine/fit/score_state_fit.hpp"
+#include "liveprob/datasets/inplay_records.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
+#include "liveprob/fit/extra_time_fit.hpp"
+#include "liveprob/fit/score_state_fit.hpp"
 #include "reference_lines.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;
-namespace adapters = liveprob::adapters;
+namespace datasets = liveprob::datasets;
 namespace test = liveprob::test;
 
 namespace {
@@ -42,8 +42,8 @@ struct Sample {
 const Sample& open_data_sample() {
     static const Sample sample = [] {
         const auto dir = test::open_data_dir() / "international";
-        const auto read = adapters::read_international_timelines(dir.string());
-        const auto results = liveprob::read_international_results((dir / "results.csv").string());
+        const auto read = datasets::read_international_timelines(dir.string());
+        const auto results = liveprob::datasets::read_international_results((dir / "results.csv").string());
         fit::RatingsFitOptions options;
         options.xi = std::log(2.0) / 730.0;
         options.min_matches = 6.0;
@@ -53,7 +53,7 @@ const Sample& open_data_sample() {
         // Ratings as of each decade's end keep the priors close to the teams of the time.
         std::map<int, fit::Ratings> by_decade;
         Sample s;
-        const liveprob::TimingProfile timing;
+        const liveprob::core::TimingProfile timing;
         for (const auto& t : read.matches) {
             const int decade_end = fit::day_number(std::min(10 * (std::stoi(fit::iso_date(t.day).substr(0, 4)) / 10) + 10, 2016), 1, 1);
             auto it = by_decade.find(decade_end);
@@ -66,7 +66,7 @@ const Sample& open_data_sample() {
             const fit::TeamRating* away = r.find(t.away);
             if (!home || !away || home->shrunk || away->shrunk) continue;
             const auto e = fit::expected_goals(r, *home, *away, t.neutral);
-            const auto match = adapters::inplay_match(t, {e.home, e.away}, false);
+            const auto match = datasets::inplay_match(t, {e.home, e.away}, false);
             s.regulation.push_back(fit::regulation_record(match, timing));
             if (t.extra_time && t.day >= fit::day_number(1970, 1, 1)) s.extra_time.push_back(fit::extra_time_record(match, timing));
         }
@@ -139,7 +139,7 @@ TEST_CASE("with one multiplier for all states, kappa equals statsmodels' negativ
 TEST_CASE("the extra-time factor with kappa = infinity is the closed form and statsmodels' Poisson GLM") {
     const auto& sample = open_data_sample();
     REQUIRE(sample.extra_time.size() > 50);
-    const liveprob::ScoreStateEffects effects{0.95, 1.0, 1.08};
+    const liveprob::core::ScoreStateEffects effects{0.95, 1.0, 1.08};
     const double inf = std::numeric_limits<double>::infinity();
     const auto fitted = fit::fit_extra_time_factor(sample.extra_time, effects, inf);
     REQUIRE(fitted.converged);

@@ -11,7 +11,7 @@
 #include <iostream>
 #include <string>
 
-#include "liveprob/adapters/params_file.hpp"
+#include "liveprob/files/params_file.hpp"
 #include "test_env.hpp"
 
 namespace test = liveprob::test;
@@ -19,7 +19,7 @@ namespace test = liveprob::test;
 namespace {
 
 struct FittedFile {
-    liveprob::ModelParams params;
+    liveprob::core::ModelParams params;
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     std::string output;
@@ -48,7 +48,7 @@ const FittedFile& fitted() {
         REQUIRE(result.exit_code == 0);
         FittedFile f;
         f.output = result.out;
-        f.params = liveprob::load_params_file(out.string());  // what calc, serve and replay read
+        f.params = liveprob::files::load_params_file(out.string());  // what calc, serve and replay read
         REQUIRE(f.parser.load(out.string()).get(f.root) == simdjson::SUCCESS);
         return f;
     }();

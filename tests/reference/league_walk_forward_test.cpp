@@ -11,23 +11,23 @@
 #include <iostream>
 #include <map>
 
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
-#include "liveprob/replay/scoring_rules.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
+#include "liveprob/scoring/scoring_rules.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;
-namespace rp = liveprob::replay;
+namespace scoring = liveprob::scoring;
 
 namespace {
 
 struct Scores {
     double rps = 0, brier = 0, log_loss = 0;
     int n = 0;
-    void add(const rp::Forecast& f, rp::Outcome o) {
-        rps += rp::ranked_probability_score(f, o);
-        brier += rp::brier_score(f, o);
-        log_loss += rp::log_loss(f, o);
+    void add(const scoring::Forecast& f, scoring::Outcome o) {
+        rps += scoring::ranked_probability_score(f, o);
+        brier += scoring::brier_score(f, o);
+        log_loss += scoring::log_loss(f, o);
         ++n;
     }
     double mean_rps() const { return rps / n; }
@@ -62,11 +62,11 @@ SeasonResult predict_season(const std::string& league, const std::string& season
             ratings = std::move(next);
             fitted_day = g.day;
         }
-        const rp::Outcome outcome = rp::outcome_of(g.home_goals, g.away_goals);
+        const scoring::Outcome outcome = scoring::outcome_of(g.home_goals, g.away_goals);
         // Base rates of the training window (matches before today).
         std::array<double, 3> counts{0, 0, 0};
         for (const auto& k : known)
-            if (k.day < g.day) counts[static_cast<std::size_t>(rp::outcome_of(k.home_goals, k.away_goals))] += 1;
+            if (k.day < g.day) counts[static_cast<std::size_t>(scoring::outcome_of(k.home_goals, k.away_goals))] += 1;
         const double total = counts[0] + counts[1] + counts[2];
         out.base_rates.add({counts[0] / total, counts[1] / total, counts[2] / total}, outcome);
 
@@ -97,7 +97,7 @@ TEST_CASE("ratings beat the league base rates and equal teams in every season, w
         for (const char* code : {"de", "es", "fr", "it"}) {
             const auto file = root / season / fmt::format("{}.1.json", code);
             if (!std::filesystem::exists(file)) continue;
-            auto read = liveprob::read_league_json(file.string());
+            auto read = liveprob::datasets::read_league_json(file.string());
             leagues[code].emplace_back(season, std::move(read.matches));
         }
     REQUIRE(leagues.size() == 4);
@@ -135,7 +135,7 @@ TEST_CASE("league sanity band: home wins clearly outnumber away wins") {
         for (const char* code : {"de", "es", "fr", "it"}) {
             const auto file = season.path() / fmt::format("{}.1.json", code);
             if (!std::filesystem::exists(file)) continue;
-            for (const auto& m : liveprob::read_league_json(file.string()).matches) {
+            for (const auto& m : liveprob::datasets::read_league_json(file.string()).matches) {
                 home_wins += m.home_goals > m.away_goals;
                 away_wins += m.home_goals < m.away_goals;
                 ++matches;

@@ -12,13 +12,16 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/timeline_feed.hpp"
-#include "liveprob/engine/match.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/core/match.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
-using liveprob::adapters::MatchTimeline;
+using namespace liveprob::datasets;
+
+using namespace liveprob::core;
+using liveprob::datasets::MatchTimeline;
 
 namespace {
 
@@ -60,7 +63,7 @@ struct Folded {
 };
 
 Folded fold(const MatchTimeline& t, std::uint64_t id) {
-    const auto feed = adapters::feed_from_timeline(t, id, PriorMeans{1.4, 1.1});
+    const auto feed = datasets::feed_from_timeline(t, id, PriorMeans{1.4, 1.1});
     Match match(id, std::get<MatchSetup>(feed.front().body));
     Folded out;
     for (std::size_t i = 1; i < feed.size(); ++i) {
@@ -78,7 +81,7 @@ Folded fold(const MatchTimeline& t, std::uint64_t id) {
 TEST_CASE("international import: the matches taken and each feed's folded score agree with the files",
           "[import][open-data]") {
     const auto dir = liveprob::test::open_data_dir() / "international";
-    const auto read = adapters::read_international_timelines(dir.string());
+    const auto read = datasets::read_international_timelines(dir.string());
     // line -> the Python reading of that row
     std::map<std::uint32_t, std::vector<std::string>> python;
     std::size_t python_selected = 0;
@@ -127,7 +130,7 @@ TEST_CASE("championship import: extra time, shoot-out scores and a file error, a
     for (const char* year : {"2020", "2024"}) {
         const auto file = liveprob::test::open_data_dir() / "euro" / year / "euro.json";
         INFO(file.string());
-        const auto read = adapters::read_championship_timelines(file.string());
+        const auto read = datasets::read_championship_timelines(file.string());
         std::map<std::uint32_t, std::vector<std::string>> python;
         for (auto& row : read_tsv(run_script("championship_scores.py", file, std::string("import-championship-") + year))) {
             REQUIRE(row.size() == 6);

@@ -7,11 +7,13 @@
 #include <cstdio>
 #include <string>
 
-#include "liveprob/engine/pricing.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/timing.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 using liveprob::test::pricing_state;
 using liveprob::test::scipy_values;

@@ -8,12 +8,14 @@
 #include <cmath>
 #include <string>
 
-#include "liveprob/engine/pricing.hpp"
-#include "liveprob/engine/score_chain.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/score_chain.hpp"
+#include "liveprob/core/timing.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 using liveprob::test::pricing_state;
 using liveprob::test::scipy_values;

@@ -9,12 +9,14 @@
 #include <algorithm>
 #include <cmath>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/pricing.hpp"
-#include "liveprob/engine/quadrature.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/quadrature.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 namespace {
 

@@ -10,9 +10,9 @@
 #include <fstream>
 #include <map>
 
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 #include "reference_lines.hpp"
 #include "test_env.hpp"
 
@@ -67,7 +67,7 @@ void check_against_reference(const fit::Ratings& r, const std::map<std::string, 
 
 std::vector<fit::MatchResult> league_season() {
     const auto path = test::open_data_dir() / "leagues/2015-16/de.1.json";
-    auto read = liveprob::read_league_json(path.string());
+    auto read = liveprob::datasets::read_league_json(path.string());
     REQUIRE(read.matches.size() == 306);  // 18 teams, every pair twice
     return read.matches;
 }

@@ -13,11 +13,13 @@
 #include <cmath>
 #include <vector>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/score_chain.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/score_chain.hpp"
+#include "liveprob/core/timing.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 namespace {
 

@@ -12,10 +12,10 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/replay/bucket_scores.hpp"
+#include "liveprob/scoring/bucket_scores.hpp"
 #include "test_env.hpp"
 
-using namespace liveprob::replay;
+using namespace liveprob::scoring;
 using Catch::Detail::Approx;
 
 namespace {

@@ -15,13 +15,13 @@
 #include <functional>
 #include <map>
 
-#include "liveprob/adapters/inplay_records.hpp"
-#include "liveprob/engine/fit/shootout_fit.hpp"
-#include "liveprob/engine/shootout.hpp"
+#include "liveprob/datasets/inplay_records.hpp"
+#include "liveprob/fit/shootout_fit.hpp"
+#include "liveprob/core/shootout.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;
-using liveprob::Side;
+using liveprob::core::Side;
 
 namespace {
 
@@ -91,16 +91,16 @@ TEST_CASE("tally probabilities equal a brute-force walk over every kick sequence
         }
     CHECK(total == Approx(1.0).margin(1e-12));
     // The engine's shoot-out model gives the same chance to the first kicker.
-    liveprob::ShootoutState start;
+    liveprob::core::ShootoutState start;
     start.first = Side::home;
-    CHECK(first_wins == Approx(liveprob::shootout_home_win({p_second, p_first - p_second}, start)).margin(1e-12));
+    CHECK(first_wins == Approx(liveprob::core::shootout_home_win({p_second, p_first - p_second}, start)).margin(1e-12));
 }
 
 TEST_CASE("winner and first kicker only: the binomial closed form, and the conversion is held") {
     std::vector<fit::ShootoutRecord> records;
     for (int i = 0; i < 130; ++i) records.push_back({i < 70 ? Side::home : Side::away, Side::home, std::nullopt});
     for (int i = 0; i < 40; ++i) records.push_back({Side::away, std::nullopt, std::nullopt});  // winner only
-    const liveprob::ShootoutParams start{0.75, 0.0};
+    const liveprob::core::ShootoutParams start{0.75, 0.0};
     const auto f = fit::fit_shootout(records, start);
     REQUIRE(f.converged);
     CHECK_FALSE(f.conversion_fitted);
@@ -112,17 +112,17 @@ TEST_CASE("winner and first kicker only: the binomial closed form, and the conve
     CHECK(f.first_kicker_win_probability_se == Approx(std::sqrt(q * (1 - q) / 130.0)).epsilon(1e-4));
     CHECK(f.params.first_kicker_edge > 0.0);
     // With no edge the first kicker wins half the time whatever the conversion.
-    liveprob::ShootoutState state;
+    liveprob::core::ShootoutState state;
     state.first = Side::home;
-    for (double p : {0.6, 0.75, 0.9}) CHECK(liveprob::shootout_home_win({p, 0.0}, state) == Approx(0.5).margin(1e-14));
+    for (double p : {0.6, 0.75, 0.9}) CHECK(liveprob::core::shootout_home_win({p, 0.0}, state) == Approx(0.5).margin(1e-14));
 }
 
 TEST_CASE("the conversion from the championship files' tallies is the brute-force likelihood's maximum") {
     const auto dir = liveprob::test::open_data_dir() / "euro";
     std::vector<fit::ShootoutRecord> records;
     for (const char* year : {"2020", "2024"}) {
-        const auto read = liveprob::adapters::read_championship_timelines((dir / year / "euro.json").string());
-        const auto more = liveprob::adapters::shootout_records(read.matches);
+        const auto read = liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
+        const auto more = liveprob::datasets::shootout_records(read.matches);
         records.insert(records.end(), more.records.begin(), more.records.end());
     }
     REQUIRE(records.size() == 7);  // four in 2020 (played 2021), three in 2024

@@ -9,9 +9,11 @@
 #include <cmath>
 #include <vector>
 
-#include "liveprob/engine/shootout.hpp"
+#include "liveprob/core/shootout.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 namespace {
 

@@ -8,7 +8,7 @@
 #include <fstream>
 #include <sstream>
 
-#include "liveprob/engine/fit/prices_to_prior.hpp"
+#include "liveprob/fit/prices_to_prior.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;

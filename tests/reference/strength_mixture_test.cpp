@@ -21,16 +21,18 @@
 #include <string>
 #include <vector>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/jump_counts.hpp"
-#include "liveprob/engine/pricing.hpp"
-#include "liveprob/engine/quadrature.hpp"
-#include "liveprob/engine/score_chain.hpp"
-#include "liveprob/engine/shootout.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/jump_counts.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/quadrature.hpp"
+#include "liveprob/core/score_chain.hpp"
+#include "liveprob/core/shootout.hpp"
+#include "liveprob/core/timing.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 namespace {
 

@@ -6,12 +6,12 @@
 #include <cstdint>
 #include <utility>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 
 namespace liveprob::test {
 
-inline MatchClock at_minute(Period period, double minute) {
-    return MatchClock{period, static_cast<std::uint32_t>(std::llround(minute * 60'000.0))};
+inline core::MatchClock at_minute(core::Period period, double minute) {
+    return core::MatchClock{period, static_cast<std::uint32_t>(std::llround(minute * 60'000.0))};
 }
 
 class FeedBuilder {
@@ -20,11 +20,11 @@ public:
         : match_id_(match_id), next_seq_(first_seq) {}
 
     // The next message in feed order.
-    InboundMessage next(MessageBody body, MatchClock clock) {
+    core::InboundMessage next(core::MessageBody body, core::MatchClock clock) {
         return with_seq(next_seq_++, std::move(body), clock);
     }
-    InboundMessage with_seq(std::uint64_t seq, MessageBody body, MatchClock clock) const {
-        InboundMessage m;
+    core::InboundMessage with_seq(std::uint64_t seq, core::MessageBody body, core::MatchClock clock) const {
+        core::InboundMessage m;
         m.header.match_id = match_id_;
         m.header.source_seq = seq;
         m.header.source_time_us = 1'800'000'000'000'000 + static_cast<std::int64_t>(seq) * 1'000'000;
@@ -33,13 +33,13 @@ public:
         return m;
     }
 
-    InboundMessage start(Period p, double minute) { return next(PeriodStart{p}, at_minute(p, minute)); }
-    InboundMessage end(Period p, double minute) { return next(PeriodEnd{p}, at_minute(p, minute)); }
-    InboundMessage goal(Side s, Period p, double minute) { return next(Goal{s, false, false}, at_minute(p, minute)); }
-    InboundMessage red(Side s, Period p, double minute) { return next(RedCard{s, false}, at_minute(p, minute)); }
-    InboundMessage shot(Side s, double xg, Period p, double minute) { return next(ShotXg{s, xg}, at_minute(p, minute)); }
-    InboundMessage kick(Side s, bool scored) { return next(ShootoutKick{s, scored}, MatchClock{Period::shootout, 0}); }
-    InboundMessage whistle(Period p, double minute) { return next(FinalWhistle{}, at_minute(p, minute)); }
+    core::InboundMessage start(core::Period p, double minute) { return next(core::PeriodStart{p}, at_minute(p, minute)); }
+    core::InboundMessage end(core::Period p, double minute) { return next(core::PeriodEnd{p}, at_minute(p, minute)); }
+    core::InboundMessage goal(core::Side s, core::Period p, double minute) { return next(core::Goal{s, false, false}, at_minute(p, minute)); }
+    core::InboundMessage red(core::Side s, core::Period p, double minute) { return next(core::RedCard{s, false}, at_minute(p, minute)); }
+    core::InboundMessage shot(core::Side s, double xg, core::Period p, double minute) { return next(core::ShotXg{s, xg}, at_minute(p, minute)); }
+    core::InboundMessage kick(core::Side s, bool scored) { return next(core::ShootoutKick{s, scored}, core::MatchClock{core::Period::shootout, 0}); }
+    core::InboundMessage whistle(core::Period p, double minute) { return next(core::FinalWhistle{}, at_minute(p, minute)); }
 
     std::uint64_t last_seq() const noexcept { return next_seq_ - 1; }
     std::uint64_t match_id() const noexcept { return match_id_; }

@@ -48,7 +48,7 @@ public:
         std::vector<std::string> argv{liveprob_binary().string(), "gateway", "--serve-endpoints",
                                       (dir_ / "serve.endpoints").string(), "--port", "0", "--port-file",
                                       (dir_ / "gateway.port").string(), "--page-dir",
-                                      (source_dir() / "adapters" / "web").string()};
+                                      (source_dir() / "adapters" / "gateway" / "web").string()};
         argv.insert(argv.end(), extra.begin(), extra.end());
         gateway_ = std::make_unique<ChildProcess>(argv, dir_ / "gateway.log");
         const auto port = static_cast<std::uint16_t>(std::stoi(wait_for_file(dir_ / "gateway.port")));
@@ -58,7 +58,7 @@ public:
         return port;
     }
 
-    void send(const InboundMessage& message) {
+    void send(const core::InboundMessage& message) {
         const auto bytes = protocol::encode_feed_message(message);
         push_.send(zmq::buffer(bytes), zmq::send_flags::none);
     }

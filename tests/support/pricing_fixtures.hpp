@@ -7,16 +7,16 @@
 #include <string>
 #include <vector>
 
-#include "liveprob/engine/pricing.hpp"
+#include "liveprob/core/pricing.hpp"
 #include "test_env.hpp"
 
 namespace liveprob::test {
 
-inline PricingState pricing_state(double home_goals, double away_goals, MatchClock clock,
+inline core::PricingState pricing_state(double home_goals, double away_goals, core::MatchClock clock,
                                   int home_score = 0, int away_score = 0) {
-    PricingState s;
+    core::PricingState s;
     s.prior = {home_goals, away_goals};
-    s.status = clock.period == Period::pre_match ? MatchStatus::not_started : MatchStatus::in_play;
+    s.status = clock.period == core::Period::pre_match ? core::MatchStatus::not_started : core::MatchStatus::in_play;
     s.clock = clock;
     s.goals = {home_score, away_score};
     const double inf = std::numeric_limits<double>::infinity();
@@ -25,7 +25,7 @@ inline PricingState pricing_state(double home_goals, double away_goals, MatchClo
     return s;
 }
 
-inline MatchClock at_minute(Period p, double minute) {
+inline core::MatchClock at_minute(core::Period p, double minute) {
     return {p, static_cast<std::uint32_t>(minute * 60'000.0)};
 }
 

@@ -6,10 +6,10 @@
 
 #include <string>
 
-#include "liveprob/engine/score_chain.hpp"
+#include "liveprob/core/score_chain.hpp"
 
 TEST_CASE("a processor with AVX2 and FMA runs the fast chain step", "[chain]") {
-    const std::string kernel = liveprob::score_chain_kernel();
+    const std::string kernel = liveprob::core::score_chain_kernel();
 #if defined(__x86_64__) && !defined(__clang__)
     __builtin_cpu_init();
     const bool fast_capable = __builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma");

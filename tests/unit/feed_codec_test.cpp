@@ -12,6 +12,8 @@
 #include "sample_messages.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::protocol;
 
 namespace {

@@ -6,8 +6,8 @@
 #include <numeric>
 #include <random>
 
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 
 namespace fit = liveprob::fit;
 

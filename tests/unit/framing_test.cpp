@@ -10,6 +10,8 @@
 #include "test_env.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::protocol;
 
 namespace {

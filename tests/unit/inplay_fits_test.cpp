@@ -7,13 +7,13 @@
 #include <cmath>
 #include <random>
 
-#include "liveprob/engine/fit/extra_time_fit.hpp"
-#include "liveprob/engine/fit/inplay_sample.hpp"
-#include "liveprob/engine/fit/score_state_fit.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/fit/extra_time_fit.hpp"
+#include "liveprob/fit/inplay_sample.hpp"
+#include "liveprob/fit/score_state_fit.hpp"
+#include "liveprob/core/timing.hpp"
 
 namespace fit = liveprob::fit;
-using liveprob::Side;
+using liveprob::core::Side;
 
 namespace {
 
@@ -74,7 +74,7 @@ std::vector<fit::RegulationRecord> simulate(const Truth& truth, int matches, uns
 }  // namespace
 
 TEST_CASE("state exposures: a side's exposures sum to the match's, each goal counts in the state it was scored from") {
-    const liveprob::TimingProfile timing;
+    const liveprob::core::TimingProfile timing;
     // 1-0 at 30', 1-1 at 60', 2-1 at 88'.
     const auto r = fit::regulation_record(
         match_with({{Side::home, 30}, {Side::away, 60}, {Side::home, 88}}), timing);
@@ -84,20 +84,20 @@ TEST_CASE("state exposures: a side's exposures sum to the match's, each goal cou
     CHECK(r.sides[0].exposure[kLeading] == Approx(r.sides[1].exposure[kTrailing]).epsilon(1e-12));
     // The level stretches: kick-off to 30' and 60' to 88', each goal in the middle of its
     // minute's exposure under the engine's own curve.
-    const liveprob::TimingCurve curve(timing, liveprob::CompetitionFormat{});
-    auto at = [&](liveprob::Period p, int minute) {
+    const liveprob::core::TimingCurve curve(timing, liveprob::core::CompetitionFormat{});
+    auto at = [&](liveprob::core::Period p, int minute) {
         auto to = [&](int m) {
-            return curve.exposure({liveprob::Period::first_half, 0}, {p, static_cast<std::uint32_t>(m * 60'000)});
+            return curve.exposure({liveprob::core::Period::first_half, 0}, {p, static_cast<std::uint32_t>(m * 60'000)});
         };
         return 0.5 * (to(minute - 1) + to(minute));
     };
-    const double level = at(liveprob::Period::first_half, 30) + at(liveprob::Period::second_half, 88) -
-                         at(liveprob::Period::second_half, 60);
+    const double level = at(liveprob::core::Period::first_half, 30) + at(liveprob::core::Period::second_half, 88) -
+                         at(liveprob::core::Period::second_half, 60);
     CHECK(r.sides[0].exposure[kLevel] == Approx(level).epsilon(1e-9));
 }
 
 TEST_CASE("goals of one minute share it: never zero exposure between them") {
-    const liveprob::TimingProfile timing;
+    const liveprob::core::TimingProfile timing;
     const std::vector<fit::InplayGoal> goals{{Side::home, 90}, {Side::away, 90}, {Side::away, 90}};
     const auto at = fit::goal_exposures(goals, timing);
     CHECK(at[0] < at[1]);
@@ -110,7 +110,7 @@ TEST_CASE("goals of one minute share it: never zero exposure between them") {
 }
 
 TEST_CASE("extra time: the exposure before its first goal, with that goal's scorer") {
-    const liveprob::TimingProfile timing;
+    const liveprob::core::TimingProfile timing;
     fit::InplayMatch m = match_with({{Side::home, 10}, {Side::away, 70}, {Side::away, 110}, {Side::home, 115}});
     m.extra_time = true;
     const auto r = fit::extra_time_record(m, timing);

@@ -5,9 +5,11 @@
 #include <stdexcept>
 
 #include "feed_builder.hpp"
-#include "liveprob/engine/match.hpp"
+#include "liveprob/core/match.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 using liveprob::test::FeedBuilder;
 

@@ -6,14 +6,16 @@
 
 #include <fstream>
 
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/timeline_feed.hpp"
-#include "liveprob/engine/match.hpp"
-#include "liveprob/engine/match_state.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/core/match.hpp"
+#include "liveprob/core/match_state.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
-using namespace liveprob::adapters;
+
+using namespace liveprob::core;
+using namespace liveprob::datasets;
 
 namespace {
 

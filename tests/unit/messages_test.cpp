@@ -3,9 +3,11 @@
 #include <set>
 #include <string>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 TEST_CASE("every message kind has a distinct stable name", "[messages]") {
     const MessageBody bodies[] = {MatchSetup{}, PeriodStart{}, PeriodEnd{}, Goal{}, GoalCancelled{},

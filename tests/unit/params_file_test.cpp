@@ -6,12 +6,12 @@
 #include <fstream>
 #include <limits>
 
-#include "liveprob/adapters/params_file.hpp"
+#include "liveprob/files/params_file.hpp"
 #include "test_env.hpp"
 
-using liveprob::ModelParams;
-using liveprob::ParamsFileError;
-using liveprob::parse_params_json;
+using liveprob::core::ModelParams;
+using liveprob::files::ParamsFileError;
+using liveprob::files::parse_params_json;
 
 namespace {
 std::string error_of(const std::string& text) {
@@ -36,14 +36,14 @@ TEST_CASE("a parameter file round-trips every field exactly") {
     p.kappa = 17.25;
     p.xg_weight = 0.4;
     p.quadrature_nodes = 9;
-    liveprob::ParamsFileNotes notes;
+    liveprob::files::ParamsFileNotes notes;
     notes.sources["timing.first_half_start"] = "fitted on \"goal minutes\"";
     notes.standard_errors["kappa"] = 2.5;
 
     const auto dir = liveprob::test::scratch_dir("params_file_round_trip");
     const std::string path = (dir / "params.json").string();
-    liveprob::save_params_file(p, path, notes);
-    const ModelParams q = liveprob::load_params_file(path);
+    liveprob::files::save_params_file(p, path, notes);
+    const ModelParams q = liveprob::files::load_params_file(path);
     CHECK(q.timing.first_half_start == p.timing.first_half_start);
     CHECK(q.timing.second_half_end == p.timing.second_half_end);
     CHECK(q.timing.extra_time_factor == p.timing.extra_time_factor);
@@ -60,7 +60,7 @@ TEST_CASE("a parameter file round-trips every field exactly") {
 
 TEST_CASE("infinite kappa is written as \"infinity\" and read back") {
     const ModelParams plain = ModelParams::plain_poisson();
-    const std::string text = liveprob::params_to_json(plain);
+    const std::string text = liveprob::files::params_to_json(plain);
     CHECK(text.find("\"kappa\": \"infinity\"") != std::string::npos);
     CHECK(std::isinf(parse_params_json(text, "x").kappa));
 }
@@ -98,6 +98,6 @@ TEST_CASE("bad parameter files are errors naming the key and the reason") {
 
 TEST_CASE("a missing parameter file is a clear error") {
     const auto dir = liveprob::test::scratch_dir("params_file_missing");
-    CHECK_THROWS_WITH(liveprob::load_params_file((dir / "none.json").string()),
+    CHECK_THROWS_WITH(liveprob::files::load_params_file((dir / "none.json").string()),
                       Catch::Contains("cannot open"));
 }

@@ -4,8 +4,8 @@
 #include <array>
 #include <cmath>
 
-#include "liveprob/engine/fit/margin.hpp"
-#include "liveprob/engine/fit/prices_to_prior.hpp"
+#include "liveprob/fit/margin.hpp"
+#include "liveprob/fit/prices_to_prior.hpp"
 
 namespace fit = liveprob::fit;
 

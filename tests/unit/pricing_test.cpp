@@ -5,11 +5,13 @@
 #include <algorithm>
 #include <cmath>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/pricing.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/pricing.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 using liveprob::test::pricing_state;
 

@@ -6,9 +6,11 @@
 
 #include <cmath>
 
-#include "liveprob/engine/quadrature.hpp"
+#include "liveprob/core/quadrature.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 TEST_CASE("Gamma quadrature reproduces the moments of degree below 2n") {
     for (const double shape : {0.7, 3.0, 25.0, 41.5}) {

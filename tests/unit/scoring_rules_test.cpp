@@ -2,11 +2,11 @@
 
 #include <cmath>
 
-#include "liveprob/replay/bucket_scores.hpp"
-#include "liveprob/replay/calibration.hpp"
-#include "liveprob/replay/scoring_rules.hpp"
+#include "liveprob/scoring/bucket_scores.hpp"
+#include "liveprob/scoring/calibration.hpp"
+#include "liveprob/scoring/scoring_rules.hpp"
 
-using namespace liveprob::replay;
+using namespace liveprob::scoring;
 using Catch::Detail::Approx;
 
 TEST_CASE("outcome of a score", "[scoring]") {

@@ -4,11 +4,12 @@
 #include <filesystem>
 #include <fstream>
 
-#include "liveprob/adapters/journal.hpp"
-#include "liveprob/adapters/service_config.hpp"
+#include "liveprob/files/journal.hpp"
+#include "liveprob/service/service_config.hpp"
 #include "test_env.hpp"
 
-using namespace liveprob::adapters;
+using namespace liveprob::files;
+using namespace liveprob::service;
 
 namespace {
 std::string error_of(const std::string& json) {

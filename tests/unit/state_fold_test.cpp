@@ -8,11 +8,13 @@
 #include <string>
 
 #include "feed_builder.hpp"
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/state_fold.hpp"
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/state_fold.hpp"
+#include "liveprob/core/timing.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 using liveprob::test::FeedBuilder;
 

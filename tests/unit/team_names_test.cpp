@@ -1,7 +1,7 @@
 // Feed names to rating names: exact, alias, or an error listing the closest known names.
 #include <catch2/catch.hpp>
 
-#include "liveprob/engine/fit/team_names.hpp"
+#include "liveprob/fit/team_names.hpp"
 
 namespace fit = liveprob::fit;
 

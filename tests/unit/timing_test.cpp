@@ -1,9 +1,11 @@
 #include <catch2/catch.hpp>
 
-#include "liveprob/engine/timing.hpp"
+#include "liveprob/core/timing.hpp"
 #include "pricing_fixtures.hpp"
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using liveprob::test::at_minute;
 
 namespace {

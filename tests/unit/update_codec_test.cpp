@@ -11,6 +11,9 @@
 
 
 using namespace liveprob;
+
+
+using namespace liveprob::core;
 using namespace liveprob::protocol;
 
 namespace {

@@ -5,11 +5,14 @@
 
 #include <cmath>
 
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/walk_forward_priors.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/walk_forward_priors.hpp"
 
 using namespace liveprob;
-using namespace liveprob::replay;
+
+using namespace liveprob::core;
+using namespace liveprob::backtest;
+using namespace liveprob::demo;
 
 namespace {
 

@@ -13,6 +13,8 @@
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace liveprob::protocol;
 
 InboundMessage goal() {

@@ -8,9 +8,9 @@
 #include <filesystem>
 #include <string>
 
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 
 namespace fit = liveprob::fit;
 
@@ -31,13 +31,13 @@ fit::RatingsFitOptions decayed() {
 
 // Baseline in the same run: the plain Poisson fit (no decay, no ρ) of the same season.
 void BM_LeagueSeasonPlain(benchmark::State& state) {
-    const auto games = liveprob::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    const auto games = liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
     fit::RatingsFitOptions o;
     for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
 }
 
 void BM_LeagueSeasonDecayRho(benchmark::State& state) {
-    const auto games = liveprob::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    const auto games = liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
     const auto o = decayed();
     for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
     state.counters["matches"] = static_cast<double>(games.size());
@@ -46,7 +46,7 @@ void BM_LeagueSeasonDecayRho(benchmark::State& state) {
 // Every month from January of the benchmark's argument (a year) to December 2015: fit on
 // everything before the month's first day.
 void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
-    const auto games = liveprob::read_international_results((open_data() / "international/results.csv").string()).matches;
+    const auto games = liveprob::datasets::read_international_results((open_data() / "international/results.csv").string()).matches;
     for (auto _ : state) {
         fit::RatingsFitOptions o;
         o.xi = std::log(2.0) / (2.0 * 365.0);

@@ -8,12 +8,14 @@
 #include <chrono>
 #include <vector>
 
-#include "liveprob/adapters/match_book.hpp"
+#include "liveprob/service/match_registry.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using SteadyClock = std::chrono::steady_clock;
 
 InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period, std::uint32_t clock_ms,
@@ -27,38 +29,38 @@ InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
 // N matches in the first half, as a service holds them mid-afternoon: set up, kicked off, a
 // clock sync at 10:00; with `history`, also a goal, a card, and a clock sync every minute up
 // to 30:00 (24 logged messages in all).
-void fill_book(adapters::MatchBook& book, std::uint64_t matches, SteadyClock::time_point now, bool history = false) {
+void fill_registry(service::MatchRegistry& registry, std::uint64_t matches, SteadyClock::time_point now, bool history = false) {
     std::vector<std::uint64_t> touched;
     for (std::uint64_t id = 1; id <= matches; ++id) {
         MatchSetup setup;
         setup.home_name = "Home side";
         setup.away_name = "Away side";
         setup.prior = PriorMeans{1.2 + 0.001 * static_cast<double>(id % 500), 1.1};
-        book.handle(message(id, 1, Period::pre_match, 0, setup), 0, now, touched);
-        book.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0, now, touched);
-        book.handle(message(id, 3, Period::first_half, 600'000, ClockSync{true}), 0, now, touched);
+        registry.handle(message(id, 1, Period::pre_match, 0, setup), 0, now, touched);
+        registry.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0, now, touched);
+        registry.handle(message(id, 3, Period::first_half, 600'000, ClockSync{true}), 0, now, touched);
         if (!history) continue;
         std::uint64_t seq = 4;
-        book.handle(message(id, seq++, Period::first_half, 650'000, Goal{Side::home}), 0, now, touched);
-        book.handle(message(id, seq++, Period::first_half, 700'000, RedCard{Side::away}), 0, now, touched);
+        registry.handle(message(id, seq++, Period::first_half, 650'000, Goal{Side::home}), 0, now, touched);
+        registry.handle(message(id, seq++, Period::first_half, 700'000, RedCard{Side::away}), 0, now, touched);
         for (std::uint32_t minute = 11; minute <= 30; ++minute) {
-            book.handle(message(id, seq++, Period::first_half, minute * 60'000, ClockSync{true}), 0, now, touched);
+            registry.handle(message(id, seq++, Period::first_half, minute * 60'000, ClockSync{true}), 0, now, touched);
         }
     }
 }
 
 void BM_TickPass(benchmark::State& state) {
     const auto matches = static_cast<std::uint64_t>(state.range(0));
-    adapters::MatchBook book{ModelParams{}};
+    service::MatchRegistry registry{ModelParams{}};
     auto now = SteadyClock::now();
-    fill_book(book, matches, now);
+    fill_registry(registry, matches, now);
     protocol::UpdateEncoder encoder;
     Outputs outputs;  // one buffer for all matches, as the service keeps it
     std::size_t bytes = 0;
     for (auto _ : state) {
         now += std::chrono::seconds(1);  // one tick of a 1 Hz timer
-        for (auto& [id, m] : book.matches()) {
-            book.advance(m, now);
+        for (auto& [id, m] : registry.matches()) {
+            registry.advance(m, now);
             m.match.price_into(outputs);
             protocol::UpdateMeta meta{id, ++m.output_seq, m.input_seq, 0, 0, 0};
             bytes += encoder.encode(meta, outputs).size();
@@ -86,12 +88,12 @@ void BM_MemoryPerMatch(benchmark::State& state) {
     for (auto _ : state) {
         const std::size_t before = mallinfo2().uordblks;
         {
-            adapters::MatchBook book{ModelParams{}};
+            service::MatchRegistry registry{ModelParams{}};
             const auto now = SteadyClock::now();
-            fill_book(book, matches, now, history);
+            fill_registry(registry, matches, now, history);
             Outputs outputs;
-            for (auto& [id, m] : book.matches()) {
-                book.advance(m, now + std::chrono::seconds(1));
+            for (auto& [id, m] : registry.matches()) {
+                registry.advance(m, now + std::chrono::seconds(1));
                 m.match.price_into(outputs);
             }
             per_match = static_cast<double>(mallinfo2().uordblks - before) / static_cast<double>(matches);

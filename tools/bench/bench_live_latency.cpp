@@ -25,6 +25,8 @@
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 using namespace std::chrono_literals;
 
 constexpr std::uint64_t kMatches = 100;

@@ -13,9 +13,9 @@
 #include <limits>
 #include <new>
 
-#include "liveprob/engine/intensity.hpp"
-#include "liveprob/engine/pricing.hpp"
-#include "liveprob/engine/score_chain.hpp"
+#include "liveprob/core/intensity.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/score_chain.hpp"
 
 namespace {
 std::atomic<long> g_allocations{0};
@@ -32,6 +32,8 @@ void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 namespace {
 
 using namespace liveprob;
+
+using namespace liveprob::core;
 
 PricingState base_state() {
     PricingState st;
@@ -109,7 +111,7 @@ BENCHMARK(full_model_league);
 
 int main(int argc, char** argv) {
     benchmark::Initialize(&argc, argv);
-    benchmark::AddCustomContext("score_chain_kernel", liveprob::score_chain_kernel());
+    benchmark::AddCustomContext("score_chain_kernel", liveprob::core::score_chain_kernel());
     benchmark::RunSpecifiedBenchmarks();
     benchmark::Shutdown();
     return 0;

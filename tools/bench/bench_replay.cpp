@@ -14,16 +14,19 @@
 #include <filesystem>
 #include <string>
 
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/adapters/timeline_feed.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
-#include "liveprob/replay/backtest.hpp"
-#include "liveprob/replay/demo_season.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
+#include "liveprob/backtest/backtest.hpp"
+#include "liveprob/demo/demo_season.hpp"
 
 namespace {
 
 using namespace liveprob;
+using namespace liveprob::datasets;
+
+using namespace liveprob::core;
 
 std::filesystem::path open_data() {
     const char* env = std::getenv("LIVEPROB_OPEN_DATA");
@@ -31,10 +34,10 @@ std::filesystem::path open_data() {
                        : std::filesystem::path(LIVEPROB_SOURCE_DIR) / "tests/data/open";
 }
 
-const std::vector<replay::MatchMessages>& international_sample() {
+const std::vector<backtest::MatchMessages>& international_sample() {
     static const auto matches = [] {
         const auto dir = open_data() / "international";
-        const auto read = adapters::read_international_timelines(dir.string());
+        const auto read = datasets::read_international_timelines(dir.string());
         const auto results = read_international_results((dir / "results.csv").string()).matches;
         fit::RatingsFitOptions o;
         o.xi = std::log(2.0) / 730.0;
@@ -42,14 +45,14 @@ const std::vector<replay::MatchMessages>& international_sample() {
         o.min_weight = 0.01;
         o.standard_errors = false;
         const auto ratings = fit::fit_ratings(results, o);
-        std::vector<replay::MatchMessages> out;
+        std::vector<backtest::MatchMessages> out;
         const fit::TeamRating average{};
         for (std::size_t i = 0; i < read.matches.size(); i += 12) {
             const auto& t = read.matches[i];
             const auto* h = ratings.find(t.home);
             const auto* a = ratings.find(t.away);
             const auto g = fit::expected_goals(ratings, h ? *h : average, a ? *a : average, t.neutral);
-            out.push_back(adapters::feed_from_timeline(t, 10'000'000 + t.origin_number,
+            out.push_back(datasets::feed_from_timeline(t, 10'000'000 + t.origin_number,
                                                        PriorMeans{std::min(g.home, 10.0), std::min(g.away, 10.0)}));
         }
         return out;
@@ -57,10 +60,10 @@ const std::vector<replay::MatchMessages>& international_sample() {
     return matches;
 }
 
-const std::vector<replay::MatchMessages>& demo_season() {
+const std::vector<backtest::MatchMessages>& demo_season() {
     static const auto matches = [] {
-        const auto season = replay::simulate_demo_season(replay::make_demo_league(2031), 2031);
-        std::vector<replay::MatchMessages> out;
+        const auto season = demo::simulate_demo_season(demo::make_demo_league(2031), 2031);
+        std::vector<backtest::MatchMessages> out;
         for (const auto& m : season.league) out.push_back(m.messages);
         for (const auto& m : season.cup) out.push_back(m.messages);
         return out;
@@ -80,8 +83,8 @@ double process_cpu_seconds() {
 // rate, matches per CPU-second over all threads: on a machine shared with other work, wall time
 // shows the cores this process got, while an unchanged per-CPU-second rate on more threads shows
 // that the work itself scales.
-void replay_streams(benchmark::State& state, const std::vector<replay::MatchMessages>& matches) {
-    replay::BacktestOptions options;
+void replay_streams(benchmark::State& state, const std::vector<backtest::MatchMessages>& matches) {
+    backtest::BacktestOptions options;
     options.every_event = state.range(0) != 0;
     options.threads = static_cast<unsigned>(state.range(1));
     options.timelines = 0;
@@ -90,7 +93,7 @@ void replay_streams(benchmark::State& state, const std::vector<replay::MatchMess
     double cpu = 0.0;
     for (auto _ : state) {
         const double cpu_before = process_cpu_seconds();
-        const auto result = replay::run_backtest(matches, options);
+        const auto result = backtest::run_backtest(matches, options);
         if (result.invalid_outputs != 0) state.SkipWithError("invalid outputs");
         evaluations = result.evaluations;
         messages = result.messages;

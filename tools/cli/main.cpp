@@ -6,7 +6,7 @@
 #include <utility>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/version.hpp"
+#include "liveprob/system/version.hpp"
 
 namespace liveprob::cli {
 std::vector<Command>& command_registry() {
@@ -19,7 +19,7 @@ int main(int argc, char** argv) {
     using namespace liveprob::cli;
     CLI::App app{"liveprob: live football win/draw/loss probabilities (estimates, not advice)",
                  "liveprob"};
-    app.set_version_flag("--version", std::string("liveprob ") + liveprob::version_string());
+    app.set_version_flag("--version", std::string("liveprob ") + liveprob::system::version_string());
     app.require_subcommand(1);
     app.fallthrough(false);
 

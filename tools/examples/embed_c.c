@@ -4,7 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
-#include "liveprob/engine/liveprob_c.h"
+#include "liveprob/capi/liveprob_c.h"
 
 static uint64_t next_seq = 1;
 

@@ -6,7 +6,7 @@
 
 #include <cstdint>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 
 namespace liveprob::soak {
 
@@ -16,7 +16,7 @@ public:
     // the final whistle, and at least two in-play messages.
     SoakFeed(std::uint64_t slots, std::uint64_t events_per_match, std::uint64_t first_match_id = 1);
 
-    InboundMessage event(std::uint64_t index) const;
+    core::InboundMessage event(std::uint64_t index) const;
     // The index of the event with this match id and sequence number; nullopt-like ~0 when the
     // pair is not one of this feed's.
     std::uint64_t index_of(std::uint64_t match_id, std::uint64_t source_seq) const noexcept;
@@ -26,7 +26,7 @@ public:
     std::uint64_t events_per_match() const noexcept { return events_per_match_; }
 
 private:
-    InboundMessage in_play(std::uint64_t match_id, std::uint64_t j, Period period, std::uint32_t clock_ms) const;
+    core::InboundMessage in_play(std::uint64_t match_id, std::uint64_t j, core::Period period, std::uint32_t clock_ms) const;
 
     std::uint64_t slots_;
     std::uint64_t events_per_match_;

@@ -9,8 +9,8 @@
 #include <thread>
 #include <zmq.hpp>
 
-#include "liveprob/adapters/shard_sender.hpp"
-#include "liveprob/adapters/topics.hpp"
+#include "liveprob/clients/shard_sender.hpp"
+#include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "soak_process.hpp"
@@ -89,12 +89,12 @@ public:
         : settings_(s), feed_(feed), total_(total), sent_ns_(sent_ns), seen_(total, 0),
           updates_(context, zmq::socket_type::sub), last_counters_(t.backend_publish.size()) {
         updates_.set(zmq::sockopt::rcvhwm, 0);
-        updates_.set(zmq::sockopt::subscribe, std::string(adapters::kMatchTopicPrefix));
+        updates_.set(zmq::sockopt::subscribe, std::string(transport::kMatchTopicPrefix));
         updates_.connect(t.front_publish);
         if (s.backend == Backend::serve) {
             for (const auto& ep : t.backend_publish) {
                 auto& c = counters_.emplace_back(context, zmq::socket_type::sub);
-                c.set(zmq::sockopt::subscribe, std::string(adapters::kCountersTopic));
+                c.set(zmq::sockopt::subscribe, std::string(transport::kCountersTopic));
                 c.connect(ep);
             }
         }
@@ -228,14 +228,14 @@ PhaseResult run_phase(const PhaseSettings& settings, const SoakFeed& feed) {
     std::atomic<std::uint64_t> sent{0};
     std::thread reader([&] { subscriber.run(start, stop_reading); });
     std::thread sender([&] {
-        adapters::ShardSenderOptions options;
+        clients::ShardSenderOptions options;
         options.linger_ms = 10'000;
         options.send_high_water_mark = 10'000'000;
-        adapters::ShardSender out(context, topology.ingest, options);
+        clients::ShardSender out(context, topology.ingest, options);
         for (std::uint64_t i = 0; i < total && !g_stop.load(); ++i) {
             const auto due = start + std::chrono::nanoseconds(static_cast<std::int64_t>(1e9 * static_cast<double>(i) / settings.rate));
             if (SteadyClock::now() < due) std::this_thread::sleep_until(due);
-            const InboundMessage m = feed.event(i);
+            const core::InboundMessage m = feed.event(i);
             const auto bytes = protocol::encode_feed_message(m);
             sent_ns[i].store(std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now().time_since_epoch()).count(),
                              std::memory_order_relaxed);
@@ -305,7 +305,7 @@ int run_bare_forwarder(const std::string& endpoints_file) {
         std::fclose(f);
         std::filesystem::rename(partial, endpoints_file);
     }
-    const std::string_view topic = adapters::kMatchTopicPrefix;
+    const std::string_view topic = transport::kMatchTopicPrefix;
     while (!g_stop.load()) {
         zmq::pollitem_t item{pull.handle(), 0, ZMQ_POLLIN, 0};
         if (zmq::poll(&item, 1, 100ms) <= 0) continue;

@@ -1,6 +1,6 @@
 // `liveprob calc`: the outputs for one match position given on the command line, for analysts
 // and for checking. The position is reached through the same Match API the service uses
-// (liveprob/engine/snapshot.hpp), so calc and the live engine agree exactly.
+// (liveprob/core/position.hpp), so calc and the live engine agree exactly.
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -12,8 +12,8 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/engine/snapshot.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/core/position.hpp"
 
 namespace {
 
@@ -59,10 +59,10 @@ std::pair<std::string, std::string> split_pair(const std::string& text, char sep
     return {text.substr(0, at), text.substr(at + 1)};
 }
 
-lp::PriorMeans parse_prior(const std::string& text) {
+lp::core::PriorMeans parse_prior(const std::string& text) {
     if (text.empty()) throw UsageError("--prior is required (expected regulation goals H,A)");
     const auto [h, a] = split_pair(text, ',', "--prior", "H,A (expected regulation goals)");
-    const lp::PriorMeans prior{parse_number(h, "--prior"), parse_number(a, "--prior")};
+    const lp::core::PriorMeans prior{parse_number(h, "--prior"), parse_number(a, "--prior")};
     for (double v : {prior.home_goals, prior.away_goals}) {
         if (v <= 0.0 || v > 10.0) throw UsageError("--prior: expected goals must be in (0, 10]");
     }
@@ -78,8 +78,8 @@ std::array<int, 2> parse_tally(const std::string& text, const std::string& optio
     return tally;
 }
 
-lp::CompetitionFormat parse_format(const std::string& text) {
-    lp::CompetitionFormat format;
+lp::core::CompetitionFormat parse_format(const std::string& text) {
+    lp::core::CompetitionFormat format;
     if (text == "knockout") {
         format.extra_time = true;
         format.shootout = true;
@@ -90,8 +90,8 @@ lp::CompetitionFormat parse_format(const std::string& text) {
 }
 
 // "67", "67.5" or "45+2" (minute 2 of the stoppage after the 45th) into a clock reading.
-lp::MatchClock parse_minute(const std::string& text, const lp::CompetitionFormat& format) {
-    using lp::Period;
+lp::core::MatchClock parse_minute(const std::string& text, const lp::core::CompetitionFormat& format) {
+    using lp::core::Period;
     const bool knockout = format.extra_time;
     const double half = format.half_minutes;
     const double extra = format.extra_half_minutes;
@@ -99,7 +99,7 @@ lp::MatchClock parse_minute(const std::string& text, const lp::CompetitionFormat
         {half, Period::first_half}, {2 * half, Period::second_half},
         {2 * half + extra, Period::extra_first}, {2 * half + 2 * extra, Period::extra_second}};
     auto clock_at = [](Period p, double minute) {
-        return lp::MatchClock{p, static_cast<std::uint32_t>(std::llround(minute * 60'000.0))};
+        return lp::core::MatchClock{p, static_cast<std::uint32_t>(std::llround(minute * 60'000.0))};
     };
     if (const auto plus = text.find('+'); plus != std::string::npos) {
         const auto [base_text, added_text] = split_pair(text, '+', "--minute", "M or END+S (e.g. 45+2)");
@@ -126,7 +126,7 @@ lp::MatchClock parse_minute(const std::string& text, const lp::CompetitionFormat
 std::string num(double v) { return fmt::format("{:.17g}", v); }
 std::string pct(double v) { return fmt::format("{:5.1f}%", 100.0 * v); }
 
-void print_json(const lp::Outputs& o, const lp::MatchPosition& position, const std::string& format_name) {
+void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& position, const std::string& format_name) {
     std::string s = "{";
     s += fmt::format("\"home\":{},\"draw\":{},\"away\":{},", num(o.p_home), num(o.p_draw), num(o.p_away));
     if (o.has_advance) {
@@ -139,8 +139,8 @@ void print_json(const lp::Outputs& o, const lp::MatchPosition& position, const s
     s += fmt::format("\"next_goal\":{{\"home\":{},\"away\":{},\"none\":{}}},", num(o.next_goal_home),
                      num(o.next_goal_away), num(o.next_goal_none));
     s += "\"over\":{";
-    for (int i = 0; i < lp::kTotalsLines; ++i) {
-        s += fmt::format("{}\"{:.1f}\":{}", i ? "," : "", lp::totals_line(i), num(o.p_over[static_cast<std::size_t>(i)]));
+    for (int i = 0; i < lp::core::kTotalsLines; ++i) {
+        s += fmt::format("{}\"{:.1f}\":{}", i ? "," : "", lp::core::totals_line(i), num(o.p_over[static_cast<std::size_t>(i)]));
     }
     s += fmt::format("}},\"both_score\":{},\"tail_mass\":{},", num(o.p_both_score), num(o.tail_mass));
     s += "\"goals_added\":[";
@@ -155,15 +155,15 @@ void print_json(const lp::Outputs& o, const lp::MatchPosition& position, const s
     }
     s += fmt::format("],\"position\":{{\"period\":\"{}\",\"clock_ms\":{},\"score\":[{},{}],\"reds\":[{},{}],"
                      "\"format\":\"{}\"}}}}",
-                     lp::period_name(position.clock.period), position.clock.clock_ms, position.score[0],
+                     lp::core::period_name(position.clock.period), position.clock.clock_ms, position.score[0],
                      position.score[1], position.reds[0], position.reds[1], format_name);
     fmt::print("{}\n", s);
 }
 
-void print_table(const lp::Outputs& o, const lp::MatchPosition& position, const std::string& format_name) {
+void print_table(const lp::core::Outputs& o, const lp::core::MatchPosition& position, const std::string& format_name) {
     const auto& c = position.clock;
     fmt::print("position      {}' ({}), score {}-{}, red cards {}-{}, {}\n",
-               fmt::format("{:.1f}", c.clock_ms / 60'000.0), lp::period_name(c.period), position.score[0],
+               fmt::format("{:.1f}", c.clock_ms / 60'000.0), lp::core::period_name(c.period), position.score[0],
                position.score[1], position.reds[0], position.reds[1], format_name);
     fmt::print("full time     home {}  draw {}  away {}\n", pct(o.p_home), pct(o.p_draw), pct(o.p_away));
     if (o.has_advance) fmt::print("to advance    home {}  away {}\n", pct(o.p_advance_home), pct(o.p_advance_away));
@@ -171,15 +171,15 @@ void print_table(const lp::Outputs& o, const lp::MatchPosition& position, const 
     fmt::print("next goal     home {}  away {}  none {}\n", pct(o.next_goal_home), pct(o.next_goal_away),
                pct(o.next_goal_none));
     fmt::print("total over   ");
-    for (int i = 0; i < lp::kTotalsLines; ++i) {
-        fmt::print(" {:.1f} {}", lp::totals_line(i), pct(o.p_over[static_cast<std::size_t>(i)]));
+    for (int i = 0; i < lp::core::kTotalsLines; ++i) {
+        fmt::print(" {:.1f} {}", lp::core::totals_line(i), pct(o.p_over[static_cast<std::size_t>(i)]));
     }
     fmt::print("\nboth score    {}\n", pct(o.p_both_score));
     // The five likeliest final scores.
     struct Cell { int home; int away; double p; };
     std::vector<Cell> cells;
-    for (int i = 0; i < lp::kGrid; ++i) {
-        for (int j = 0; j < lp::kGrid; ++j) {
+    for (int i = 0; i < lp::core::kGrid; ++i) {
+        for (int j = 0; j < lp::core::kGrid; ++j) {
             cells.push_back({position.score[0] + i, position.score[1] + j,
                              o.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)]});
         }
@@ -192,11 +192,11 @@ void print_table(const lp::Outputs& o, const lp::MatchPosition& position, const 
         fmt::print("{}-{} {}{}", cell.home, cell.away, pct(cell.p), k < 4 ? "   " : "\n");
     }
     fmt::print("grid tail     {:.3g} (probability beyond {} more goals for a side)\n", o.tail_mass,
-               lp::kMaxGoalsAdded);
+               lp::core::kMaxGoalsAdded);
 }
 
 int run_calc(const CalcOptions& options) {
-    lp::MatchPosition position;
+    lp::core::MatchPosition position;
     position.prior = parse_prior(options.prior);
     position.format = parse_format(options.format);
     position.clock = parse_minute(options.minute, position.format);
@@ -206,12 +206,12 @@ int run_calc(const CalcOptions& options) {
         if (*options.stoppage < 0 || *options.stoppage > 30) throw UsageError("--stoppage: must be 0..30 minutes");
         position.stoppage_minutes = options.stoppage;
     }
-    lp::ModelParams params;
-    if (!options.params_path.empty()) params = lp::load_params_file(options.params_path);
+    lp::core::ModelParams params;
+    if (!options.params_path.empty()) params = lp::files::load_params_file(options.params_path);
 
-    std::optional<lp::Match> match;
+    std::optional<lp::core::Match> match;
     try {
-        match.emplace(lp::match_at(position, params));
+        match.emplace(lp::core::match_at(position, params));
     } catch (const std::invalid_argument& e) {
         throw UsageError(std::string("the position cannot be priced: ") + e.what());
     }

@@ -8,7 +8,7 @@
 #include <memory>
 
 #include "command_registry.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -19,25 +19,25 @@ struct ConvertOptions {
 };
 
 int run_convert(const ConvertOptions& o) {
-    replay::StreamForm form{};
+    backtest::StreamForm form{};
     try {
-        form = replay::parse_stream_form(o.form);
+        form = backtest::parse_stream_form(o.form);
     } catch (const std::invalid_argument& e) {
         throw UsageError(e.what());
     }
     if (std::filesystem::exists(o.out) && std::filesystem::equivalent(o.in, o.out)) {
         throw UsageError("--out must not be the input file");
     }
-    const auto contents = replay::read_stream(o.in);
+    const auto contents = backtest::read_stream(o.in);
     if (contents.bad_records && !o.skip_bad) {
         std::cerr << fmt::format("liveprob convert: {} bad record(s), nothing written (--skip-bad leaves them out); "
                                  "first: {}\n",
                                  contents.bad_records, contents.first_problem);
         return kExitFailure;
     }
-    replay::write_stream(o.out, contents.messages, form);
+    backtest::write_stream(o.out, contents.messages, form);
     std::cout << fmt::format("{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
-                             form == replay::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
+                             form == backtest::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
                              contents.bad_records ? fmt::format(" ({} bad record(s) left out; first: {})",
                                                                 contents.bad_records, contents.first_problem)
                                                   : "");

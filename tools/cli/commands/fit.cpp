@@ -8,10 +8,10 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/ratings_file.hpp"
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
+#include "liveprob/files/ratings_file.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 
 namespace {
 
@@ -42,13 +42,13 @@ int run_fit(const FitOptions& o) {
     options.min_matches = o.min_matches;
     options.shrink_precision = o.shrink_precision;
 
-    const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{} : liveprob::load_alias_file(o.aliases);
+    const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{} : liveprob::files::load_alias_file(o.aliases);
     auto rename = [&](std::string& name) {
         if (const auto it = aliases.find(name); it != aliases.end()) name = it->second;
     };
     std::vector<fit::MatchResult> matches;
     for (const auto& path : o.results) {
-        auto read = liveprob::read_results_any(path);
+        auto read = liveprob::datasets::read_results_any(path);
         std::cerr << fmt::format("{}: {} matches, {} rows without a result skipped, {} duplicates dropped\n", path,
                                  read.matches.size(), read.skipped, read.duplicates);
         for (auto& m : read.matches) {
@@ -59,7 +59,7 @@ int run_fit(const FitOptions& o) {
     }
     const fit::Ratings ratings = fit::fit_ratings(matches, options);
     for (const auto& w : ratings.diagnostics.warnings) std::cerr << "warning: " << w << "\n";
-    liveprob::save_ratings_file(ratings, o.out);
+    liveprob::files::save_ratings_file(ratings, o.out);
     const auto& d = ratings.diagnostics;
     std::cout << fmt::format(
         "fitted {} teams on {} matches{}: home advantage {:.4f} (se {:.4f}), rho {:.4f} (se {:.4f}), "

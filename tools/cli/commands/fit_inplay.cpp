@@ -17,22 +17,22 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/inplay_records.hpp"
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/engine/fit/extra_time_fit.hpp"
-#include "liveprob/engine/fit/goal_timing.hpp"
-#include "liveprob/engine/fit/score_state_fit.hpp"
-#include "liveprob/engine/fit/shootout_fit.hpp"
-#include "liveprob/replay/walk_forward_priors.hpp"
+#include "liveprob/datasets/inplay_records.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/extra_time_fit.hpp"
+#include "liveprob/fit/goal_timing.hpp"
+#include "liveprob/fit/score_state_fit.hpp"
+#include "liveprob/fit/shootout_fit.hpp"
+#include "liveprob/backtest/walk_forward_priors.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
 namespace fit = liveprob::fit;
-namespace adapters = liveprob::adapters;
+namespace datasets = liveprob::datasets;
 using liveprob::cli::UsageError;
 
 struct FitInplayOptions {
@@ -53,11 +53,11 @@ const std::set<std::string> kExtraTimeCompetitions = {"FIFA World Cup", "UEFA Eu
 
 // One match of the sources with what the fits need to know about it.
 struct Candidate {
-    const adapters::MatchTimeline* timeline = nullptr;
+    const datasets::MatchTimeline* timeline = nullptr;
     bool championship = false;  // from a championship file: every match of it is listed
 };
 
-int regulation_goals(const adapters::MatchTimeline& t) { return t.regulation_goals[0] + t.regulation_goals[1]; }
+int regulation_goals(const datasets::MatchTimeline& t) { return t.regulation_goals[0] + t.regulation_goals[1]; }
 
 struct Samples {
     std::vector<fit::RegulationRecord> regulation;
@@ -76,10 +76,10 @@ int run_fit_inplay(const FitInplayOptions& o) {
     const fs::path dir(o.international_dir);
     // Every international match with complete goal records (no coverage filter: a goalless
     // match is left out below, and those with goals are conditioned on having one).
-    const auto international = adapters::read_international_timelines(dir.string(), {0.0});
-    std::vector<adapters::TimelinesRead> championships;
-    for (const auto& path : o.championships) championships.push_back(adapters::read_championship_timelines(path));
-    auto history = liveprob::read_international_results((dir / "results.csv").string()).matches;
+    const auto international = datasets::read_international_timelines(dir.string(), {0.0});
+    std::vector<datasets::TimelinesRead> championships;
+    for (const auto& path : o.championships) championships.push_back(datasets::read_championship_timelines(path));
+    auto history = liveprob::datasets::read_international_results((dir / "results.csv").string()).matches;
 
     std::vector<Candidate> candidates;
     for (const auto& t : international.matches) candidates.push_back({&t, false});
@@ -90,14 +90,14 @@ int run_fit_inplay(const FitInplayOptions& o) {
                                t.regulation_goals[1] + t.extra_time_goals[1], t.neutral});
         }
 
-    liveprob::ModelParams params = o.base_params.empty() ? liveprob::ModelParams{}
-                                                         : liveprob::load_params_file(o.base_params);
-    liveprob::ParamsFileNotes notes;
+    liveprob::core::ModelParams params = o.base_params.empty() ? liveprob::core::ModelParams{}
+                                                         : liveprob::files::load_params_file(o.base_params);
+    liveprob::files::ParamsFileNotes notes;
 
     // 1. The goal-timing profile, from every regulation goal minute.
-    fit::MinuteCounts counts = adapters::regulation_minute_counts(international.matches);
+    fit::MinuteCounts counts = datasets::regulation_minute_counts(international.matches);
     for (const auto& read : championships) {
-        const auto more = adapters::regulation_minute_counts(read.matches);
+        const auto more = datasets::regulation_minute_counts(read.matches);
         for (std::size_t i = 0; i < counts.size(); ++i) counts[i] += more[i];
     }
     const auto timing = fit::fit_goal_timing(counts, params.timing);
@@ -106,13 +106,13 @@ int run_fit_inplay(const FitInplayOptions& o) {
     // shorter stoppage: its stoppage factor only serves the shape fit and the state exposures
     // of its own matches. The championship files tell stoppage goals apart and are recent:
     // the engine's stoppage factor comes from them when given.
-    const liveprob::TimingProfile source_timing = timing.profile;
+    const liveprob::core::TimingProfile source_timing = timing.profile;
     params.timing = timing.profile;
     std::optional<fit::StoppageFit> stoppage;
     if (!championships.empty()) {
-        adapters::StoppageCounts sc;
+        datasets::StoppageCounts sc;
         for (const auto& read : championships) {
-            const auto more = adapters::stoppage_counts(read.matches);
+            const auto more = datasets::stoppage_counts(read.matches);
             sc.regulation_goals += more.regulation_goals;
             sc.stoppage_goals += more.stoppage_goals;
         }
@@ -121,16 +121,16 @@ int run_fit_inplay(const FitInplayOptions& o) {
     }
 
     // 2. Pre-match priors, walk-forward: ratings refitted monthly on the results before the month.
-    std::vector<liveprob::replay::FixtureToPrice> fixtures;
+    std::vector<liveprob::backtest::FixtureToPrice> fixtures;
     for (const auto& c : candidates)
         fixtures.push_back({c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral});
-    liveprob::replay::WalkForwardOptions wf;
+    liveprob::backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
     wf.fit.min_weight = 0.01;
     wf.fit.standard_errors = false;
-    wf.schedule = liveprob::replay::RefitSchedule::month;
-    const auto priors = liveprob::replay::walk_forward_priors(history, fixtures, wf);
+    wf.schedule = liveprob::backtest::RefitSchedule::month;
+    const auto priors = liveprob::backtest::walk_forward_priors(history, fixtures, wf);
 
     // 3. The samples.
     Samples samples;
@@ -149,7 +149,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
         // championship files' priors come from results that end in 2015, years before them.)
         if (!championship) {
             if (has_goal) {
-                samples.regulation.push_back(fit::regulation_record(adapters::inplay_match(t, priors.priors[i], true),
+                samples.regulation.push_back(fit::regulation_record(datasets::inplay_match(t, priors.priors[i], true),
                                                                     source_timing));
                 samples.first_day = std::min(samples.first_day, t.day);
                 samples.last_day = std::max(samples.last_day, t.day);
@@ -163,7 +163,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
         const bool international_ok = !championship && has_goal && kExtraTimeCompetitions.contains(t.competition) &&
                                       t.day >= fit::day_number(o.extra_time_from_year, 1, 1);
         if (!championship && !international_ok) continue;
-        samples.extra_time.push_back(fit::extra_time_record(adapters::inplay_match(t, priors.priors[i], false),
+        samples.extra_time.push_back(fit::extra_time_record(datasets::inplay_match(t, priors.priors[i], false),
                                                             params.timing));
         ++(championship ? extra_time_championship : extra_time_international);
     }
@@ -180,9 +180,9 @@ int run_fit_inplay(const FitInplayOptions& o) {
     params.timing.extra_time_factor = extra.factor;
 
     // 6. The shoot-out: winners and first kickers (international), tallies (championships).
-    auto shootouts = adapters::shootout_records(adapters::read_shootout_rows((dir / "shootouts.csv").string()));
+    auto shootouts = datasets::shootout_records(datasets::read_shootout_rows((dir / "shootouts.csv").string()));
     for (const auto& read : championships) {
-        const auto more = adapters::shootout_records(read.matches);
+        const auto more = datasets::shootout_records(read.matches);
         shootouts.records.insert(shootouts.records.end(), more.records.begin(), more.records.end());
     }
     const auto kicks = fit::fit_shootout(shootouts.records, params.shootout);
@@ -250,7 +250,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
     if (kicks.edge_fitted) notes.standard_errors["shootout.first_kicker_edge"] = kicks.edge_se;
     notes.sources["red_cards"] = "from memory (published red-card studies): the open data carry no cards";
     notes.sources["xg_weight"] = "the project's choice (no data here carries xG)";
-    liveprob::save_params_file(params, o.out, notes);
+    liveprob::files::save_params_file(params, o.out, notes);
 
     std::cout << fmt::format(
         "data: {} international matches with complete goal records, {} championship matches; {} left out "

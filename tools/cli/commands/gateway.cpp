@@ -8,8 +8,8 @@
 #include <memory>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/endpoints_file.hpp"
-#include "liveprob/adapters/gateway/gateway.hpp"
+#include "liveprob/files/endpoints_file.hpp"
+#include "liveprob/gateway/gateway.hpp"
 
 namespace {
 
@@ -25,7 +25,7 @@ struct GatewayOptions {
 
 // serve's endpoints file: we want publish= and snapshot=.
 void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
-    const auto endpoints = liveprob::adapters::read_endpoints_file(path);
+    const auto endpoints = liveprob::files::read_endpoints_file(path);
     if (const auto it = endpoints.find("publish"); it != endpoints.end() && config.feed_endpoint.empty())
         config.feed_endpoint = it->second;
     if (const auto it = endpoints.find("snapshot"); it != endpoints.end() && config.snapshot_endpoint.empty())

@@ -16,12 +16,12 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/match_timelines.hpp"
-#include "liveprob/adapters/results_readers.hpp"
-#include "liveprob/adapters/timeline_feed.hpp"
-#include "liveprob/engine/fit/calendar.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
-#include "liveprob/replay/walk_forward_priors.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/fit/calendar.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/backtest/walk_forward_priors.hpp"
 #include "progress_bar.hpp"
 
 namespace liveprob::cli {
@@ -47,7 +47,7 @@ struct ImportOptions {
 };
 
 struct ImportedMatch {
-    adapters::MatchTimeline timeline;
+    datasets::MatchTimeline timeline;
     std::uint64_t match_id = 0;
     fs::path file;  // the stream it goes to, relative to --out
 };
@@ -59,7 +59,7 @@ std::optional<int> date_option(const std::string& text, const char* name) {
     return day;
 }
 
-void print_skips(const std::string& what, const adapters::TimelinesRead& read) {
+void print_skips(const std::string& what, const datasets::TimelinesRead& read) {
     const auto& s = read.skipped;
     std::cout << fmt::format(
         "{}: {} matches with complete goal records; left out: {} without a result, {} repeated, {} with goal "
@@ -74,14 +74,14 @@ int run_import(const ImportOptions& o) {
     if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
     if (o.coverage < 0.0 || o.coverage > 1.0) throw UsageError("--coverage must lie in [0, 1]");
     if (o.refit != "match-day" && o.refit != "month") throw UsageError("--refit must be match-day or month");
-    replay::StreamForm form{};
+    backtest::StreamForm form{};
     try {
-        form = replay::parse_stream_form(o.form);
+        form = backtest::parse_stream_form(o.form);
     } catch (const std::invalid_argument& e) {
         throw UsageError(e.what());
     }
     const auto from = date_option(o.from, "--from"), to = date_option(o.to, "--to");
-    const char* ext = form == replay::StreamForm::frames ? "stream" : "jsonl";
+    const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
     using Clock = std::chrono::steady_clock;
     auto since = [](Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); };
     const auto start = Clock::now();
@@ -90,9 +90,9 @@ int run_import(const ImportOptions& o) {
     std::vector<fit::MatchResult> history;
     auto wanted = [&](int day) { return (!from || day >= *from) && (!to || day < *to); };
     if (!o.international.empty()) {
-        auto read = adapters::read_international_timelines(o.international, {o.coverage});
+        auto read = datasets::read_international_timelines(o.international, {o.coverage});
         print_skips("international", read);
-        auto results = read_international_results((fs::path(o.international) / "results.csv").string());
+        auto results = datasets::read_international_results((fs::path(o.international) / "results.csv").string());
         history = std::move(results.matches);
         for (auto& t : read.matches) {
             if (!wanted(t.day)) continue;
@@ -102,7 +102,7 @@ int run_import(const ImportOptions& o) {
         }
     }
     for (const auto& path : o.championships) {
-        auto read = adapters::read_championship_timelines(path);
+        auto read = datasets::read_championship_timelines(path);
         print_skips(path, read);
         if (read.matches.empty()) continue;
         const std::string year = fit::iso_date(read.matches.front().day).substr(0, 4);
@@ -127,28 +127,28 @@ int run_import(const ImportOptions& o) {
 
     const double read_seconds = since(start);
     const auto fit_start = Clock::now();
-    std::vector<replay::FixtureToPrice> fixtures;
+    std::vector<backtest::FixtureToPrice> fixtures;
     for (const auto& m : matches) fixtures.push_back({m.timeline.day, m.timeline.home, m.timeline.away, m.timeline.neutral});
-    replay::WalkForwardOptions wf;
+    backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
     wf.fit.shrink_precision = o.shrink_precision;
     wf.fit.min_weight = 0.01;
     wf.fit.standard_errors = false;
-    wf.schedule = o.refit == "month" ? replay::RefitSchedule::month : replay::RefitSchedule::match_day;
+    wf.schedule = o.refit == "month" ? backtest::RefitSchedule::month : backtest::RefitSchedule::match_day;
     wf.threads = std::max(1U, std::thread::hardware_concurrency());
     ProgressBar bar("import: walk-forward fits", "fits", o.quiet);
     wf.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
-    const auto priors = replay::walk_forward_priors(history, fixtures, wf);
+    const auto priors = backtest::walk_forward_priors(history, fixtures, wf);
     const double fit_seconds = since(fit_start);
     const auto write_start = Clock::now();
 
-    std::map<fs::path, std::vector<InboundMessage>> files;
+    std::map<fs::path, std::vector<core::InboundMessage>> files;
     std::size_t written = 0, shootouts = 0, extra_time = 0;
     for (std::size_t i = 0; i < matches.size(); ++i) {
-        const PriorMeans& prior = priors.priors[i];
+        const core::PriorMeans& prior = priors.priors[i];
         if (prior.home_goals <= 0.0 || prior.away_goals <= 0.0) continue;  // no history before its day
-        auto feed = adapters::feed_from_timeline(matches[i].timeline, matches[i].match_id, prior);
+        auto feed = datasets::feed_from_timeline(matches[i].timeline, matches[i].match_id, prior);
         auto& stream = files[matches[i].file];
         stream.insert(stream.end(), std::make_move_iterator(feed.begin()), std::make_move_iterator(feed.end()));
         ++written;
@@ -157,7 +157,7 @@ int run_import(const ImportOptions& o) {
     }
     for (const auto& [file, messages] : files) {
         fs::create_directories((fs::path(o.out) / file).parent_path());
-        replay::write_stream(fs::path(o.out) / file, messages, form);
+        backtest::write_stream(fs::path(o.out) / file, messages, form);
     }
     std::cout << fmt::format(
         "walk-forward priors: {} fits ({} not converged), {} sides without an earlier result rated as average, "

@@ -2,7 +2,7 @@
 #include <iostream>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/curve_keys.hpp"
+#include "liveprob/transport/curve_keys.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -19,8 +19,8 @@ const Registration registration{{
             if (name->empty() || name->find('/') != std::string::npos) {
                 throw UsageError("--name must be a plain file name");
             }
-            const auto pair = adapters::generate_curve_key_pair();
-            adapters::write_key_pair(pair, *directory, *name);
+            const auto pair = transport::generate_curve_key_pair();
+            transport::write_key_pair(pair, *directory, *name);
             std::cout << pair.public_z85 << "\n";
             return kExitOk;
         };

@@ -6,9 +6,9 @@
 #include <string>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/ratings_file.hpp"
-#include "liveprob/engine/fit/dixon_coles.hpp"
-#include "liveprob/engine/fit/team_names.hpp"
+#include "liveprob/files/ratings_file.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
+#include "liveprob/fit/team_names.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 
 namespace {
@@ -25,11 +25,11 @@ struct PriorOptions {
 };
 
 int run_prior(const PriorOptions& o) {
-    const fit::Ratings ratings = liveprob::load_ratings_file(o.ratings);
+    const fit::Ratings ratings = liveprob::files::load_ratings_file(o.ratings);
     std::vector<std::string> known;
     for (const auto& t : ratings.teams) known.push_back(t.name);
     const fit::TeamNameResolver names(known, o.aliases.empty() ? std::map<std::string, std::string>{}
-                                                               : liveprob::load_alias_file(o.aliases));
+                                                               : liveprob::files::load_alias_file(o.aliases));
     const fit::TeamRating& home = *ratings.find(names.resolve(o.home));
     const fit::TeamRating& away = *ratings.find(names.resolve(o.away));
     const fit::ExpectedGoals e = fit::expected_goals(ratings, home, away, o.neutral);
@@ -38,12 +38,12 @@ int run_prior(const PriorOptions& o) {
                                  o.neutral ? " (neutral venue)" : "", e.home, e.away);
         return liveprob::cli::kExitOk;
     }
-    liveprob::MatchSetup setup;
+    liveprob::core::MatchSetup setup;
     setup.home_name = o.home;
     setup.away_name = o.away;
     setup.neutral_venue = o.neutral;
-    setup.prior = liveprob::PriorMeans{e.home, e.away};
-    liveprob::InboundMessage message;
+    setup.prior = liveprob::core::PriorMeans{e.home, e.away};
+    liveprob::core::InboundMessage message;
     message.header.match_id = o.match_id;
     message.body = setup;
     std::cout << liveprob::protocol::to_json_line(message) << "\n";

@@ -8,7 +8,7 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/engine/fit/prices_to_prior.hpp"
+#include "liveprob/fit/prices_to_prior.hpp"
 
 namespace {
 

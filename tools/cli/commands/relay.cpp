@@ -2,14 +2,14 @@
 #include <memory>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/relay.hpp"
+#include "liveprob/service/relay.hpp"
 
 namespace {
 
 const liveprob::cli::Registration registration{{
     "relay", "forward every shard's updates (and route snapshot requests) through one endpoint",
     [](CLI::App& app) {
-        auto config = std::make_shared<liveprob::adapters::RelayConfig>();
+        auto config = std::make_shared<liveprob::service::RelayConfig>();
         auto timeout_ms = std::make_shared<int>(1000);
         app.add_option("--shard-publish", config->shard_publish,
                        "publish endpoints of the shards, in shard order (0/N first)")
@@ -30,7 +30,7 @@ const liveprob::cli::Registration registration{{
             ->capture_default_str()->check(CLI::Range(10, 60'000));
         return [config, timeout_ms] {
             config->shard_timeout = std::chrono::milliseconds(*timeout_ms);
-            liveprob::adapters::run_relay(*config);
+            liveprob::service::run_relay(*config);
             return liveprob::cli::kExitOk;
         };
     }}};

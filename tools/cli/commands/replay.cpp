@@ -1,7 +1,7 @@
 // `liveprob replay STREAMS... --report DIR`: replays recorded streams and writes the calibration
 // report (index.html and report.json), printing the score table. Fast mode runs the engine in
 // process on all cores; --live sends the streams over real sockets to a running `serve` at a
-// chosen speed and scores what a subscriber received (replay-demo/include/liveprob/replay/live_replay.hpp).
+// chosen speed and scores what a subscriber received (replay-demo/live/include/liveprob/live/live_replay.hpp).
 #include <chrono>
 #include <filesystem>
 #include <iostream>
@@ -12,11 +12,11 @@
 #include <fmt/ranges.h>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/adapters/endpoints_file.hpp"
-#include "liveprob/replay/backtest.hpp"
-#include "liveprob/replay/live_replay.hpp"
-#include "liveprob/replay/report_html.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/files/endpoints_file.hpp"
+#include "liveprob/backtest/backtest.hpp"
+#include "liveprob/live/live_replay.hpp"
+#include "liveprob/report/report_html.hpp"
 #include "progress_bar.hpp"
 
 namespace liveprob::cli {
@@ -60,17 +60,17 @@ std::vector<std::filesystem::path> stream_files(const std::vector<std::string>& 
 }
 
 struct LoadedStreams {
-    std::vector<replay::MatchMessages> matches;
+    std::vector<backtest::MatchMessages> matches;
     std::size_t files = 0;
     std::uint64_t bad_records = 0;
 };
 
 LoadedStreams load_streams(const std::vector<std::string>& args) {
     LoadedStreams out;
-    std::vector<InboundMessage> all;
+    std::vector<core::InboundMessage> all;
     const auto files = stream_files(args);
     for (const auto& file : files) {
-        auto contents = replay::read_stream(file);
+        auto contents = backtest::read_stream(file);
         if (contents.bad_records) {
             out.bad_records += contents.bad_records;
             std::cerr << "liveprob replay: " << contents.bad_records << " bad record(s) skipped; first: " << contents.first_problem << "\n";
@@ -78,32 +78,32 @@ LoadedStreams load_streams(const std::vector<std::string>& args) {
         all.insert(all.end(), std::make_move_iterator(contents.messages.begin()), std::make_move_iterator(contents.messages.end()));
     }
     out.files = files.size();
-    out.matches = replay::group_by_match(all);
+    out.matches = backtest::group_by_match(all);
     return out;
 }
 
 // One endpoint from serve's endpoints file.
 std::string endpoint_from_file(const std::string& path, const std::string& name) {
-    const auto endpoints = adapters::read_endpoints_file(path);
+    const auto endpoints = files::read_endpoints_file(path);
     const auto it = endpoints.find(name);
     if (it == endpoints.end()) throw UsageError(fmt::format("{}: no {}= line", path, name));
     return it->second;
 }
 
-void print_table(const replay::BacktestResult& result) {
-    using replay::Forecaster;
+void print_table(const backtest::BacktestResult& result) {
+    using backtest::Forecaster;
     std::cout << fmt::format("{:>5} {:>6} {:>9} {:>9} {:>9} {:>8}\n", "min", "n", "rps", "fixed", "uniform", "ece");
-    for (int b = 0; b < replay::kBuckets; ++b) {
-        std::cout << fmt::format("{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>8.4f}\n", replay::bucket_label(b),
-                                 result.at(b, Forecaster::model).count(), result.at(b, Forecaster::model).mean_rps(),
-                                 result.at(b, Forecaster::fixed_prior).mean_rps(),
-                                 result.at(b, Forecaster::uniform_timing_no_state).mean_rps(),
-                                 result.at(b, Forecaster::model).calibration().expected_calibration_error());
+    for (int b = 0; b < scoring::kBuckets; ++b) {
+        std::cout << fmt::format("{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>8.4f}\n", scoring::bucket_label(b),
+                                 result.at(b, backtest::Forecaster::model).count(), result.at(b, backtest::Forecaster::model).mean_rps(),
+                                 result.at(b, backtest::Forecaster::fixed_prior).mean_rps(),
+                                 result.at(b, backtest::Forecaster::uniform_timing_no_state).mean_rps(),
+                                 result.at(b, backtest::Forecaster::model).calibration().expected_calibration_error());
     }
 }
 
-replay::LiveReplayOptions live_options(const ReplayOptions& o) {
-    replay::LiveReplayOptions live;
+live::LiveReplayOptions live_options(const ReplayOptions& o) {
+    live::LiveReplayOptions live;
     live.ingest = o.ingest;
     live.publish = o.publish;
     if (!o.endpoints_file.empty()) {
@@ -116,7 +116,7 @@ replay::LiveReplayOptions live_options(const ReplayOptions& o) {
     if (o.speed < 0.0) throw UsageError("--speed must be 0 (as fast as possible) or positive");
     live.speed = o.speed;
     live.first_update_timeout = std::chrono::milliseconds(o.wait_ms);
-    live.keys = adapters::load_curve_client_keys(o.server_key, o.client_key);
+    live.keys = clients::load_curve_client_keys(o.server_key, o.client_key);
     return live;
 }
 
@@ -125,8 +125,8 @@ int run_replay(const ReplayOptions& o) {
                     !o.server_key.empty() || !o.client_key.empty())) {
         throw UsageError("--ingest, --publish, --endpoints, --speed and the keys belong to --live");
     }
-    replay::BacktestOptions options;
-    if (!o.params_file.empty()) options.params = load_params_file(o.params_file);
+    backtest::BacktestOptions options;
+    if (!o.params_file.empty()) options.params = files::load_params_file(o.params_file);
     options.threads = o.threads ? o.threads : std::max(1U, std::thread::hardware_concurrency());
     options.timelines = o.timelines;
     options.every_event = o.every_event;
@@ -137,15 +137,15 @@ int run_replay(const ReplayOptions& o) {
     const double read_seconds = since(start);
     const auto replay_start = Clock::now();
 
-    replay::BacktestResult result;
+    backtest::BacktestResult result;
     std::string how;
     std::vector<std::string> problems;
     if (o.live) {
-        replay::LiveReplayOptions live = live_options(o);
+        live::LiveReplayOptions live = live_options(o);
         live.in_process = options;
         ProgressBar bar("replay --live", "messages", o.quiet);
         if (bar.drawing()) live.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
-        const auto received = replay::run_live_replay(loaded.matches, live);
+        const auto received = live::run_live_replay(loaded.matches, live);
         result = received.scores;
         problems = received.problems;
         how = fmt::format(
@@ -162,7 +162,7 @@ int run_replay(const ReplayOptions& o) {
     } else {
         ProgressBar bar("replay", "matches", o.quiet);
         if (bar.drawing()) options.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
-        result = replay::run_backtest(loaded.matches, options);
+        result = backtest::run_backtest(loaded.matches, options);
         problems = result.problems;
         how = fmt::format("in process on {} thread(s){}", options.threads,
                           o.every_event ? fmt::format(", the model priced after every event too ({} evaluations, {} "
@@ -172,10 +172,10 @@ int run_replay(const ReplayOptions& o) {
     }
     const double replay_seconds = since(replay_start);
     const auto report_start = Clock::now();
-    replay::ReportHeading heading;
+    report::ReportHeading heading;
     heading.source = fmt::format("{} stream file(s) read in {:.2f} s, {} bad record(s) skipped; replayed {} in {:.2f} s.",
                                  loaded.files, read_seconds, loaded.bad_records, how, replay_seconds);
-    replay::write_report(o.report_dir, result, heading);
+    report::write_report(o.report_dir, result, heading);
     print_table(result);
     std::cout << fmt::format("{} matches scored ({} abandoned, {} unfinished, {} unusable), replayed {}; {:.2f} s in "
                              "all: streams read {:.2f} s, replay {:.2f} s, report written {:.2f} s; report: {}\n",

@@ -15,8 +15,8 @@
 #include <zmq.hpp>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/feed_pacing.hpp"
-#include "liveprob/adapters/shard_sender.hpp"
+#include "liveprob/clients/feed_pacing.hpp"
+#include "liveprob/clients/shard_sender.hpp"
 #include "liveprob/protocol/byte_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
@@ -37,11 +37,11 @@ struct SendFlags {
     int linger_ms = 5000;
 };
 
-std::vector<InboundMessage> read_json_lines(const std::string& path) {
+std::vector<core::InboundMessage> read_json_lines(const std::string& path) {
     std::ifstream in(path);
     if (!in) throw std::runtime_error(path + ": cannot open");
     protocol::JsonFeedReader reader;
-    std::vector<InboundMessage> messages;
+    std::vector<core::InboundMessage> messages;
     std::string line;
     std::size_t number = 0;
     while (std::getline(in, line)) {
@@ -52,9 +52,9 @@ std::vector<InboundMessage> read_json_lines(const std::string& path) {
     return messages;
 }
 
-std::vector<InboundMessage> read_frames(const std::string& path, const std::vector<std::uint8_t>& bytes) {
+std::vector<core::InboundMessage> read_frames(const std::string& path, const std::vector<std::uint8_t>& bytes) {
     protocol::FrameCursor cursor(bytes);
-    std::vector<InboundMessage> messages;
+    std::vector<core::InboundMessage> messages;
     while (const auto frame = cursor.next()) {
         auto decoded = protocol::decode_feed_message(frame->payload);
         if (!decoded.message) {
@@ -66,7 +66,7 @@ std::vector<InboundMessage> read_frames(const std::string& path, const std::vect
     return messages;
 }
 
-std::vector<InboundMessage> read_feed(const SendFlags& f) {
+std::vector<core::InboundMessage> read_feed(const SendFlags& f) {
     if (f.format == "jsonl") return read_json_lines(f.file);
     const std::vector<std::uint8_t> bytes = protocol::read_byte_file(f.file);
     if (f.format == "frames" || (f.format == "auto" && protocol::looks_like_frame_stream(bytes))) {
@@ -82,20 +82,20 @@ int run_send(const SendFlags& f) {
         throw UsageError("--format must be auto, jsonl or frames");
     }
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
-    std::vector<InboundMessage> messages = read_feed(f);
-    adapters::ShardSenderOptions options;
-    options.keys = adapters::load_curve_client_keys(f.server_key, f.client_key);
+    std::vector<core::InboundMessage> messages = read_feed(f);
+    clients::ShardSenderOptions options;
+    options.keys = clients::load_curve_client_keys(f.server_key, f.client_key);
     options.linger_ms = f.linger_ms;
 
     zmq::context_t context(1);
-    adapters::ShardSender sender(context, f.to, options);
+    clients::ShardSender sender(context, f.to, options);
 
-    adapters::FeedPacer pacer = f.rate > 0.0    ? adapters::FeedPacer::at_rate(f.rate)
-                                : f.speed > 0.0 ? adapters::FeedPacer::by_match_clock(f.speed)
-                                                : adapters::FeedPacer::as_fast_as_possible();
+    clients::FeedPacer pacer = f.rate > 0.0    ? clients::FeedPacer::at_rate(f.rate)
+                                : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
+                                                : clients::FeedPacer::as_fast_as_possible();
     for (std::size_t i = 0; i < messages.size(); ++i) {
         pacer.wait_for(messages[i]);
-        InboundMessage& m = messages[i];
+        core::InboundMessage& m = messages[i];
         if (f.stamp) {
             m.header.source_time_us = std::chrono::duration_cast<std::chrono::microseconds>(
                                           std::chrono::system_clock::now().time_since_epoch())

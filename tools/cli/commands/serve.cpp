@@ -5,9 +5,9 @@
 #include <optional>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/live_service.hpp"
-#include "liveprob/adapters/params_file.hpp"
-#include "liveprob/adapters/service_config.hpp"
+#include "liveprob/service/live_service.hpp"
+#include "liveprob/files/params_file.hpp"
+#include "liveprob/service/service_config.hpp"
 #include "liveprob/protocol/sharding.hpp"
 
 namespace liveprob::cli {
@@ -28,8 +28,8 @@ void override_with(T& setting, const std::optional<T>& flag) {
 }
 
 int run_serve(const ServeFlags& f) {
-    adapters::ServiceConfig config;
-    if (!f.config_file.empty()) config = adapters::load_service_config(f.config_file);
+    service::ServiceConfig config;
+    if (!f.config_file.empty()) config = service::load_service_config(f.config_file);
     override_with(config.ingest_endpoint, f.ingest);
     override_with(config.publish_endpoint, f.publish);
     override_with(config.snapshot_endpoint, f.snapshot);
@@ -37,7 +37,7 @@ int run_serve(const ServeFlags& f) {
     override_with(config.tick_interval_ms, f.tick_ms);
     override_with(config.counters_interval_ms, f.counters_ms);
     override_with(config.journal_path, f.journal);
-    if (f.journal_sync) config.journal_sync = adapters::parse_journal_sync(*f.journal_sync, "--journal-sync");
+    if (f.journal_sync) config.journal_sync = service::parse_journal_sync(*f.journal_sync, "--journal-sync");
     override_with(config.journal_sync_interval_ms, f.journal_sync_ms);
     override_with(config.publish_high_water_mark, f.publish_hwm);
     override_with(config.ingest_high_water_mark, f.ingest_hwm);
@@ -48,16 +48,16 @@ int run_serve(const ServeFlags& f) {
     override_with(config.curve_publish, f.encrypt_publish);
     override_with(config.log_level, f.log_level);
     try {
-        adapters::validate_service_config(config);
+        service::validate_service_config(config);
         protocol::parse_shard_spec(config.shard);
     } catch (const std::invalid_argument& e) {
         throw UsageError(std::string("--shard: ") + e.what());
-    } catch (const adapters::ConfigError& e) {
+    } catch (const service::ConfigError& e) {
         throw UsageError(e.what());
     }
     spdlog::set_level(spdlog::level::from_str(config.log_level));
-    const ModelParams params = config.params_file.empty() ? ModelParams{} : load_params_file(config.params_file);
-    adapters::LiveService service(config, params);
+    const core::ModelParams params = config.params_file.empty() ? core::ModelParams{} : files::load_params_file(config.params_file);
+    service::LiveService service(config, params);
     service.run();
     return kExitOk;
 }

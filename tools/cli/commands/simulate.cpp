@@ -7,8 +7,8 @@
 #include <fmt/format.h>
 
 #include "command_registry.hpp"
-#include "liveprob/replay/demo_season.hpp"
-#include "liveprob/replay/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -28,23 +28,23 @@ const Registration registration{{
         sub.add_option("--seed", o->seed, "seed of the league and of every match")->capture_default_str();
         sub.add_option("--form", o->form, "frames (size-prefixed binary) or json (JSON lines)")->capture_default_str();
         return [o] {
-            replay::StreamForm form{};
+            backtest::StreamForm form{};
             try {
-                form = replay::parse_stream_form(o->form);
+                form = backtest::parse_stream_form(o->form);
             } catch (const std::invalid_argument& e) {
                 throw UsageError(e.what());
             }
-            const auto league = replay::make_demo_league(o->seed);
-            const auto season = replay::simulate_demo_season(league, o->seed);
+            const auto league = demo::make_demo_league(o->seed);
+            const auto season = demo::simulate_demo_season(league, o->seed);
             const std::filesystem::path dir(o->out_dir);
             std::filesystem::create_directories(dir / "league");
             std::filesystem::create_directories(dir / "cup");
-            const char* ext = form == replay::StreamForm::frames ? "stream" : "jsonl";
+            const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
             for (const auto& match : season.league) {
-                replay::write_stream(dir / "league" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
+                backtest::write_stream(dir / "league" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
             }
             for (const auto& match : season.cup) {
-                replay::write_stream(dir / "cup" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
+                backtest::write_stream(dir / "cup" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
             }
             std::cout << fmt::format("{}: {} league matches, {} cup ties in {}\n", league.name,
                                      season.league.size(), season.cup.size(), dir.string());

@@ -13,8 +13,8 @@
 #include <zmq.hpp>
 
 #include "command_registry.hpp"
-#include "liveprob/adapters/snapshot_client.hpp"
-#include "liveprob/adapters/update_subscriber.hpp"
+#include "liveprob/clients/snapshot_client.hpp"
+#include "liveprob/clients/update_subscriber.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
 namespace liveprob::cli {
@@ -40,7 +40,7 @@ struct TapFlags {
 
 // Doubles with 17 significant digits: the text gives back the exact published value.
 std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
-    const Outputs& o = u.outputs;
+    const core::Outputs& o = u.outputs;
     std::string over;
     for (std::size_t i = 0; i < o.p_over.size(); ++i) over += fmt::format("{}{:.17g}", i ? "," : "", o.p_over[i]);
     return fmt::format(
@@ -60,7 +60,7 @@ std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
 }
 
 std::string table_row(const protocol::DecodedUpdate& u) {
-    const Outputs& o = u.outputs;
+    const core::Outputs& o = u.outputs;
     const std::uint32_t seconds = o.clock.clock_ms / 1000;
     return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}", u.meta.match_id,
                        u.meta.output_seq, status_name(o.status), seconds / 60, seconds % 60, o.home_goals,
@@ -97,16 +97,16 @@ void report_latency(std::vector<std::int64_t>& end_to_end, std::vector<std::int6
 int run_tap(const TapFlags& f) {
     if (f.format != "table" && f.format != "jsonl") throw UsageError("--format must be table or jsonl");
     if (f.snapshot_only && f.snapshot.empty()) throw UsageError("--snapshot-only needs --snapshot");
-    const auto keys = adapters::load_curve_client_keys(f.server_key, f.client_key);
+    const auto keys = clients::load_curve_client_keys(f.server_key, f.client_key);
     std::signal(SIGINT, on_interrupt);
     std::signal(SIGTERM, on_interrupt);
 
     zmq::context_t context(1);
-    adapters::SubscriberOptions subscription;
+    clients::SubscriberOptions subscription;
     subscription.match = f.match;
     subscription.counters = f.counters;
     subscription.keys = keys;
-    adapters::UpdateSubscriber sub(context, f.from, subscription);
+    clients::UpdateSubscriber sub(context, f.from, subscription);
 
     if (f.format == "table") {
         std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match", "seq", "status",
@@ -115,7 +115,7 @@ int run_tap(const TapFlags& f) {
     // Subscribed first, then the snapshot: nothing published in between is missed (it may
     // arrive twice; the output sequence tells).
     if (!f.snapshot.empty()) {
-        const auto reply = adapters::request_snapshot(context, f.snapshot, f.match.value_or(0),
+        const auto reply = clients::request_snapshot(context, f.snapshot, f.match.value_or(0),
                                                       std::chrono::milliseconds(5000), keys);
         if (!reply.error.empty()) std::cerr << "liveprob tap: snapshot: " << reply.error << "\n";
         for (const auto& u : reply.updates) print_update(f, u, "snapshot");
@@ -138,13 +138,13 @@ int run_tap(const TapFlags& f) {
             continue;
         }
         last_message = std::chrono::steady_clock::now();
-        if (received->kind == adapters::ReceivedMessage::Kind::counters) {
+        if (received->kind == clients::ReceivedMessage::Kind::counters) {
             std::string line;
             for (const auto& [name, value] : received->counters.values) line += fmt::format(" {}={}", name, value);
             std::cout << "counters:" << line << '\n' << std::flush;
             continue;
         }
-        if (received->kind == adapters::ReceivedMessage::Kind::undecodable) {
+        if (received->kind == clients::ReceivedMessage::Kind::undecodable) {
             std::cerr << "liveprob tap: dropped an update that does not decode: " << received->problem << "\n";
             continue;
         }

@@ -9,7 +9,7 @@
 #include <string>
 #include <vector>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 #include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
@@ -22,7 +22,7 @@ inline constexpr std::uint16_t kSchemaMinor = 0;
 inline constexpr std::size_t kMaxFeedMessageBytes = 64 * 1024;
 
 struct FeedDecodeResult {
-    std::optional<InboundMessage> message;  // set exactly when error == none
+    std::optional<core::InboundMessage> message;  // set exactly when error == none
     DecodeError error = DecodeError::none;
     std::string detail;                      // one line, for logs
 };
@@ -32,6 +32,6 @@ struct FeedDecodeResult {
 FeedDecodeResult decode_feed_message(std::span<const std::uint8_t> bytes);
 
 // Encodes `message` as it is (no checks, so tests can build bad messages on purpose).
-std::vector<std::uint8_t> encode_feed_message(const InboundMessage& message);
+std::vector<std::uint8_t> encode_feed_message(const core::InboundMessage& message);
 
 }  // namespace liveprob::protocol

@@ -9,7 +9,7 @@
 #include <string>
 #include <string_view>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 #include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
@@ -22,7 +22,7 @@ enum class JsonLineKind : std::uint8_t {
 
 struct JsonLineResult {
     JsonLineKind kind = JsonLineKind::skipped;
-    std::optional<InboundMessage> message;  // set exactly when kind == message
+    std::optional<core::InboundMessage> message;  // set exactly when kind == message
     std::string field;    // the field at fault ("" when the line is not a JSON object)
     std::string reason;   // what is wrong with it
     std::string error;    // one line: "line 12: field 'side': expected 'home' or 'away', got 'hme'"
@@ -46,7 +46,7 @@ private:
 };
 
 // One line (no newline) that read_line turns back into `message`; defaults are left out.
-std::string to_json_line(const InboundMessage& message);
+std::string to_json_line(const core::InboundMessage& message);
 
 // "67:12" for 4,032,000 ms, "67:12.250" when there are milliseconds.
 std::string format_match_clock(std::uint32_t clock_ms);

@@ -8,7 +8,7 @@
 #include <optional>
 #include <string>
 
-#include "liveprob/engine/messages.hpp"
+#include "liveprob/core/messages.hpp"
 #include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
@@ -32,7 +32,7 @@ struct MessageProblem {
 };
 
 // The first problem found, or nothing when the message may be folded.
-std::optional<MessageProblem> check_message(const InboundMessage& message);
+std::optional<MessageProblem> check_message(const core::InboundMessage& message);
 
 // Raw enum values as read from a wire buffer (they may be anything).
 bool is_known_period(std::uint8_t raw) noexcept;

@@ -10,7 +10,7 @@
 
 #include <flatbuffers/flatbuffers.h>
 
-#include "liveprob/engine/outputs.hpp"
+#include "liveprob/core/outputs.hpp"
 #include "liveprob/protocol/decode_error.hpp"
 
 namespace liveprob::protocol {
@@ -34,7 +34,7 @@ struct UpdateMeta {
 
 struct DecodedUpdate {
     UpdateMeta meta;
-    Outputs outputs;
+    core::Outputs outputs;
 };
 
 // Reusable update encoder. It keeps its builder between calls, so once the builder has grown
@@ -44,7 +44,7 @@ class UpdateEncoder {
 public:
     UpdateEncoder();
     // The bytes stay valid until the next call on this encoder.
-    std::span<const std::uint8_t> encode(const UpdateMeta& meta, const Outputs& outputs);
+    std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs);
 
 private:
     flatbuffers::FlatBufferBuilder builder_;

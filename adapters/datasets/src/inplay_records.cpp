@@ -1,0 +1,62 @@
+#include "liveprob/datasets/inplay_records.hpp"
+
+#include <optional>
+
+namespace liveprob::datasets {
+
+fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior, bool listed_for_goals) {
+    fit::InplayMatch out;
+    out.prior = prior;
+    out.extra_time = match.extra_time;
+    out.listed_for_goals = listed_for_goals;
+    out.goals.reserve(match.goals.size());
+    for (const TimelineGoal& g : match.goals) out.goals.push_back({g.side, g.minute});
+    return out;
+}
+
+fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches) {
+    fit::MinuteCounts counts{};
+    for (const MatchTimeline& m : matches)
+        for (const TimelineGoal& g : m.goals)
+            if (g.minute >= 1 && g.minute <= 90) counts[static_cast<std::size_t>(g.minute - 1)] += 1.0;
+    return counts;
+}
+
+StoppageCounts stoppage_counts(std::span<const MatchTimeline> matches) {
+    StoppageCounts out;
+    for (const MatchTimeline& m : matches)
+        for (const TimelineGoal& g : m.goals) {
+            if (g.minute < 1 || g.minute > 90) continue;
+            ++out.regulation_goals;
+            if ((g.minute == 45 || g.minute == 90) && g.stoppage > 0) ++out.stoppage_goals;
+        }
+    return out;
+}
+
+ShootoutRecords shootout_records(std::span<const ShootoutRow> rows) {
+    ShootoutRecords out;
+    auto side_named = [](const ShootoutRow& r, const std::string& name) -> std::optional<core::Side> {
+        if (name == r.home) return core::Side::home;
+        if (name == r.away) return core::Side::away;
+        return std::nullopt;
+    };
+    for (const ShootoutRow& r : rows) {
+        const auto winner = side_named(r, r.winner);
+        if (!winner) {
+            ++out.winner_unknown;
+            continue;
+        }
+        out.records.push_back({*winner, side_named(r, r.first_shooter), std::nullopt});
+    }
+    return out;
+}
+
+ShootoutRecords shootout_records(std::span<const MatchTimeline> matches) {
+    ShootoutRecords out;
+    for (const MatchTimeline& m : matches)
+        if (m.shootout && m.shootout->tally)
+            out.records.push_back({m.shootout->winner, m.shootout->first_kicker, m.shootout->tally});
+    return out;
+}
+
+}  // namespace liveprob::datasets

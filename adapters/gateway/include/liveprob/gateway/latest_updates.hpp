@@ -1,0 +1,75 @@
+// The gateway's memory of every match it has seen: the latest frame (for late joiners and the
+// HTTP state endpoint) and a bounded timeline of probabilities (for the page's chart).
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <map>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "liveprob/gateway/update_json.hpp"
+
+namespace liveprob::gateway {
+
+struct TimelinePoint {
+    std::uint32_t clock_ms = 0;
+    std::uint8_t period = 0;
+    double p_home = 0.0;
+    double p_draw = 0.0;
+    double p_away = 0.0;
+    std::uint16_t home_goals = 0;
+    std::uint16_t away_goals = 0;
+    std::uint8_t home_reds = 0;
+    std::uint8_t away_reds = 0;
+};
+
+using Frame = std::shared_ptr<const std::string>;
+
+// How an arriving update relates to what is already held for its match.
+enum class Arrival : std::uint8_t {
+    first,      // first update seen for this match
+    next,       // output_seq is the one after the latest
+    after_gap,  // output_seq jumped: updates were missed (ask for a snapshot)
+    stale,      // output_seq not newer than the latest: duplicate or late, ignored
+};
+
+class LatestUpdates {
+public:
+    explicit LatestUpdates(std::size_t timeline_points) : timeline_points_(timeline_points) {}
+
+    struct Accepted {
+        Arrival arrival = Arrival::first;
+        Frame frame;  // null when stale
+    };
+    Accepted accept(const GatewayUpdate& update);
+
+    // Latest frame of one match, or null.
+    Frame latest(std::uint64_t match_id) const;
+    // Every match's latest frame, in match-id order.
+    std::vector<std::pair<std::uint64_t, Frame>> all_latest() const;
+
+    // {"kind":"state","matches":[<frame>,...]}: every match seen since the gateway started,
+    // finished ones included (a page keeps showing a final result).
+    std::string render_state_json() const;
+    // {"match_id":7,"points":[[period,clock_ms,p_home,p_draw,p_away,home_goals,away_goals,
+    //  home_reds,away_reds],...]} or nothing for an unknown match.
+    std::optional<std::string> render_timeline_json(std::uint64_t match_id) const;
+
+    std::size_t match_count() const noexcept { return matches_.size(); }
+
+private:
+    struct Entry {
+        std::uint64_t output_seq = 0;
+        Frame frame;
+        std::vector<TimelinePoint> timeline;
+    };
+    void append_point(Entry& entry, const TimelinePoint& point) const;
+
+    std::size_t timeline_points_;
+    std::map<std::uint64_t, Entry> matches_;
+};
+
+}  // namespace liveprob::gateway

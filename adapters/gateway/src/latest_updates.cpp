@@ -1,0 +1,93 @@
+#include "liveprob/gateway/latest_updates.hpp"
+
+#include <fmt/format.h>
+
+#include <iterator>
+
+namespace liveprob::gateway {
+
+namespace {
+TimelinePoint point_of(const core::Outputs& o) {
+    return TimelinePoint{o.clock.clock_ms, static_cast<std::uint8_t>(o.clock.period), o.p_home,
+                         o.p_draw,       o.p_away,  o.home_goals, o.away_goals, o.home_reds,
+                         o.away_reds};
+}
+bool same_score_and_cards(const TimelinePoint& a, const TimelinePoint& b) {
+    return a.home_goals == b.home_goals && a.away_goals == b.away_goals &&
+           a.home_reds == b.home_reds && a.away_reds == b.away_reds;
+}
+}  // namespace
+
+LatestUpdates::Accepted LatestUpdates::accept(const GatewayUpdate& update) {
+    auto [it, inserted] = matches_.try_emplace(update.match_id);
+    Entry& entry = it->second;
+    Arrival arrival = Arrival::first;
+    if (!inserted) {
+        if (update.output_seq <= entry.output_seq) return {Arrival::stale, nullptr};
+        arrival = update.output_seq == entry.output_seq + 1 ? Arrival::next : Arrival::after_gap;
+    }
+    entry.output_seq = update.output_seq;
+    entry.frame = std::make_shared<const std::string>(render_update_json(update));
+    append_point(entry, point_of(update.outputs));
+    return {arrival, entry.frame};
+}
+
+void LatestUpdates::append_point(Entry& entry, const TimelinePoint& point) const {
+    auto& line = entry.timeline;
+    line.push_back(point);
+    if (timeline_points_ < 4 || line.size() <= timeline_points_) return;
+    // Thin the older half by dropping every second point, but keep every point where the score
+    // or the cards change: those are the marks the chart must not lose.
+    std::vector<TimelinePoint> kept;
+    kept.reserve(line.size());
+    const std::size_t half = line.size() / 2;
+    for (std::size_t i = 0; i < line.size(); ++i) {
+        const bool marks_change = i > 0 && !same_score_and_cards(line[i - 1], line[i]);
+        if (i >= half || i % 2 == 0 || marks_change) kept.push_back(line[i]);
+    }
+    line.swap(kept);
+}
+
+Frame LatestUpdates::latest(std::uint64_t match_id) const {
+    auto it = matches_.find(match_id);
+    return it == matches_.end() ? nullptr : it->second.frame;
+}
+
+std::vector<std::pair<std::uint64_t, Frame>> LatestUpdates::all_latest() const {
+    std::vector<std::pair<std::uint64_t, Frame>> out;
+    out.reserve(matches_.size());
+    for (const auto& [id, entry] : matches_) out.emplace_back(id, entry.frame);
+    return out;
+}
+
+std::string LatestUpdates::render_state_json() const {
+    std::string out = R"({"kind":"state","matches":[)";
+    bool first = true;
+    for (const auto& [id, entry] : matches_) {
+        if (!first) out += ',';
+        first = false;
+        out += *entry.frame;
+    }
+    out += "]}";
+    return out;
+}
+
+std::optional<std::string> LatestUpdates::render_timeline_json(std::uint64_t match_id) const {
+    auto found = matches_.find(match_id);
+    if (found == matches_.end()) return std::nullopt;
+    std::string out;
+    auto it = std::back_inserter(out);
+    fmt::format_to(it, R"({{"kind":"timeline","match_id":{},"points":[)", match_id);
+    bool first = true;
+    for (const auto& p : found->second.timeline) {
+        fmt::format_to(it, "{}[{},{},{},{},{},{},{},{},{}]", first ? "" : ",",
+                       static_cast<unsigned>(p.period), p.clock_ms, p.p_home, p.p_draw, p.p_away,
+                       p.home_goals, p.away_goals, static_cast<unsigned>(p.home_reds),
+                       static_cast<unsigned>(p.away_reds));
+        first = false;
+    }
+    out += "]}";
+    return out;
+}
+
+}  // namespace liveprob::gateway

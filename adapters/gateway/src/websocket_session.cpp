@@ -1,0 +1,207 @@
+#include "websocket_session.hpp"
+
+#include <boost/asio/buffer.hpp>
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <variant>
+#include <vector>
+
+#include "liveprob/gateway/client_request.hpp"
+
+namespace liveprob::gateway {
+
+namespace beast = boost::beast;
+namespace websocket = beast::websocket;
+
+WebSocketSession::WebSocketSession(beast::tcp_stream stream, GatewayHub& hub)
+    : ws_(std::move(stream)), hub_(hub), close_deadline_(ws_.get_executor()) {}
+
+WebSocketSession::~WebSocketSession() { hub_.clients.erase(this); }
+
+void WebSocketSession::start(HttpRequest request) {
+    beast::get_lowest_layer(ws_).expires_never();  // the WebSocket timeouts take over
+    // Pings go out at half the idle time; a client that answers nothing at all by the full
+    // idle time is dead or stalled and is cut off.
+    ws_.set_option(websocket::stream_base::timeout{hub_.config.handshake_timeout,
+                                                   hub_.config.idle_timeout, true});
+    ws_.read_message_max(hub_.config.max_client_message_bytes);
+    ws_.set_option(websocket::stream_base::decorator([](websocket::response_type& response) {
+        response.set(beast::http::field::server, "liveprob-gateway");
+    }));
+    ws_.async_accept(request, [self = shared_from_this()](beast::error_code ec) {
+        self->on_accept(ec);
+    });
+}
+
+void WebSocketSession::on_accept(beast::error_code ec) {
+    if (ec) return finish();
+    if (hub_.shutting_down) return begin_close(kCloseShuttingDown, "gateway shutting down");
+    open_ = true;
+    hub_.clients.insert(this);
+    ++hub_.counters.clients_opened;
+    read_next();
+}
+
+void WebSocketSession::read_next() {
+    ws_.async_read(read_buffer_, [self = shared_from_this()](beast::error_code ec, std::size_t) {
+        self->on_read(ec);
+    });
+}
+
+void WebSocketSession::on_read(beast::error_code ec) {
+    if (ec) {
+        // Beast has already sent close code 1009 for an oversize message.
+        if (ec == websocket::error::message_too_big) ++hub_.counters.clients_closed_oversize;
+        if (ec == beast::error::timeout) ++hub_.counters.clients_idle_timeout;
+        return finish();
+    }
+    const std::string text = beast::buffers_to_string(read_buffer_.data());
+    read_buffer_.consume(read_buffer_.size());
+    if (!closing_) handle_request(text);
+    read_next();  // also how the peer's answer to our close frame arrives
+}
+
+void WebSocketSession::handle_request(std::string_view text) {
+    auto parsed = parse_client_request(text);
+    if (auto* error = std::get_if<RequestError>(&parsed)) {
+        ++hub_.counters.bad_requests;
+        return queue_reply(fmt::format(R"({{"kind":"error","reason":{}}})", json_quoted(error->reason)));
+    }
+    const auto& request = std::get<WatchRequest>(parsed);
+    std::vector<std::uint64_t> newly_watched;
+    if (request.watch) {
+        if (request.all && !watch_all_) {
+            watch_all_ = true;
+            for (const auto& [id, frame] : hub_.latest.all_latest()) newly_watched.push_back(id);
+        }
+        for (std::uint64_t id : request.match_ids) {
+            if (watched_.insert(id).second) newly_watched.push_back(id);
+        }
+    } else {
+        if (request.all) {
+            watch_all_ = false;
+            watched_.clear();
+        }
+        for (std::uint64_t id : request.match_ids) watched_.erase(id);
+        // Frames of matches no longer watched are not sent.
+        std::erase_if(pending_order_, [&](std::uint64_t id) {
+            if (watches(id)) return false;
+            pending_.erase(id);
+            return true;
+        });
+    }
+
+    std::vector<std::uint64_t> listed(watched_.begin(), watched_.end());
+    std::sort(listed.begin(), listed.end());
+    queue_reply(fmt::format(R"({{"kind":"watching","all":{},"match_ids":[{}]}})", watch_all_,
+                            fmt::join(listed, ",")));
+    // A late joiner gets the latest state of each newly watched match straight away.
+    for (std::uint64_t id : newly_watched) {
+        if (Frame frame = hub_.latest.latest(id)) offer(id, frame);
+    }
+}
+
+bool WebSocketSession::watches(std::uint64_t match_id) const {
+    return watch_all_ || watched_.count(match_id) != 0;
+}
+
+void WebSocketSession::queue_reply(std::string text) {
+    if (closing_) return;
+    replies_.push_back(std::make_shared<const std::string>(std::move(text)));
+    if (over_cap()) return;
+    write_next();
+}
+
+void WebSocketSession::offer(std::uint64_t match_id, const Frame& frame) {
+    if (!open_ || closing_ || !watches(match_id)) return;
+    if (auto waiting = pending_.find(match_id); waiting != pending_.end()) {
+        waiting->second = frame;  // latest value wins; its place in the queue is kept
+        ++hub_.counters.frames_conflated;
+        return;
+    }
+    pending_.emplace(match_id, frame);
+    pending_order_.push_back(match_id);
+    if (over_cap()) return;
+    write_next();
+}
+
+bool WebSocketSession::over_cap() {
+    if (replies_.size() + pending_.size() <= hub_.config.send_queue_cap) return false;
+    ++hub_.counters.clients_dropped_slow;
+    begin_close(kCloseSendQueueFull, "send queue full");
+    return true;
+}
+
+void WebSocketSession::write_next() {
+    if (writing_ || closing_) return;
+    if (!replies_.empty()) {
+        in_flight_ = std::move(replies_.front());
+        replies_.pop_front();
+    } else if (!pending_order_.empty()) {
+        const std::uint64_t id = pending_order_.front();
+        pending_order_.pop_front();
+        auto waiting = pending_.find(id);
+        in_flight_ = std::move(waiting->second);
+        pending_.erase(waiting);
+    } else {
+        return;
+    }
+    writing_ = true;
+    ws_.text(true);
+    ws_.async_write(boost::asio::buffer(*in_flight_),
+                    [self = shared_from_this()](beast::error_code ec, std::size_t) {
+                        self->on_write(ec);
+                    });
+}
+
+void WebSocketSession::on_write(beast::error_code ec) {
+    writing_ = false;
+    in_flight_.reset();
+    if (ec) return finish();
+    ++hub_.counters.frames_sent;
+    if (closing_) return send_close();
+    write_next();
+}
+
+void WebSocketSession::begin_close(std::uint16_t code, const char* reason) {
+    if (closing_ || finished_) return;
+    closing_ = true;
+    close_code_ = code;
+    close_reason_ = reason;
+    replies_.clear();
+    pending_.clear();
+    pending_order_.clear();
+    // A client that does not read will never take our close frame: cut the connection after
+    // the handshake time-out rather than wait for it.
+    close_deadline_.expires_after(hub_.config.handshake_timeout);
+    close_deadline_.async_wait([self = shared_from_this()](beast::error_code ec) {
+        if (!ec) self->finish();
+    });
+    if (!writing_) send_close();  // else on_write sends it once the frame in flight is out
+}
+
+void WebSocketSession::send_close() {
+    websocket::close_reason reason;
+    reason.code = close_code_;
+    reason.reason = close_reason_;
+    ws_.async_close(reason,
+                    [self = shared_from_this()](beast::error_code) {
+                        // The read loop sees the end of the connection and finishes.
+                    });
+}
+
+void WebSocketSession::finish() {
+    if (finished_) return;
+    finished_ = true;
+    open_ = false;
+    hub_.clients.erase(this);
+    close_deadline_.cancel();
+    beast::error_code ignored;
+    beast::get_lowest_layer(ws_).socket().shutdown(boost::asio::socket_base::shutdown_both, ignored);
+    beast::get_lowest_layer(ws_).socket().close(ignored);
+}
+
+void WebSocketSession::close_going_away() { begin_close(kCloseShuttingDown, "gateway shutting down"); }
+
+}  // namespace liveprob::gateway

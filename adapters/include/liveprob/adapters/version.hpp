@@ -1,6 +1,0 @@
-#pragma once
-
-namespace liveprob {
-// The project's version, as set in the top-level CMakeLists.txt.
-const char* version_string() noexcept;
-}  // namespace liveprob

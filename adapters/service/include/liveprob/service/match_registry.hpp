@@ -1,0 +1,80 @@
+// The service's live matches: one engine Match per match id, plus what the runtime adds around
+// it — the output sequence, the last input it reflects, and the clock anchor the timer drifts
+// from. No sockets here: the service hands in decoded messages and the local time, and asks
+// what to publish. Replay of the journal goes through the same calls, so a restarted service
+// folds exactly the state an uninterrupted one holds.
+#pragma once
+
+#include <chrono>
+#include <cstdint>
+#include <deque>
+#include <memory>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "liveprob/core/match.hpp"
+
+namespace liveprob::service {
+
+// Messages that arrive before their match's setup wait here (bounded) and are applied, in
+// arrival order, once the setup arrives.
+inline constexpr std::size_t kMaxWaitingPerMatch = 256;
+inline constexpr std::size_t kMaxWaitingMatches = 1024;
+
+enum class MessageOutcome : std::uint8_t {
+    applied,          // accepted or late: the state changed, publish an update
+    duplicate,        // nothing changed
+    rejected,         // the engine refused it (reason counted by the match)
+    created,          // a setup created the match: publish its first update
+    bad_setup,        // the setup is unusable (no prior, bad format); nothing created
+    waiting,          // no setup yet: held until it arrives
+    waiting_overflow, // no setup yet and the waiting room is full: dropped
+};
+
+struct LiveMatch {
+    explicit LiveMatch(core::Match m) : match(std::move(m)) {}
+    core::Match match;
+    std::uint64_t output_seq = 0;       // last published output sequence
+    std::uint64_t input_seq = 0;        // source_seq of the last message applied
+    std::int64_t receive_time_us = 0;   // when that message arrived (0 once a tick is published)
+    // The timer's clock: the feed clock as of the last applied message, advanced by local
+    // elapsed time since it arrived.
+    core::MatchClock anchor_clock;
+    std::chrono::steady_clock::time_point anchor_time{};
+    bool live() const noexcept;
+};
+
+class MatchRegistry {
+public:
+    explicit MatchRegistry(core::ModelParams params) : params_(std::move(params)) {}
+
+    // `receive_time_us` is wall time for the update's timestamp; `now` anchors the clock.
+    // Messages released from the waiting room by a setup are applied too; `touched` lists
+    // every match whose state changed (to publish).
+    MessageOutcome handle(const core::InboundMessage& message, std::int64_t receive_time_us,
+                       std::chrono::steady_clock::time_point now, std::vector<std::uint64_t>& touched);
+
+    // Moves a live match's clock to its anchor plus elapsed time; true when the clock moved.
+    bool advance(LiveMatch& m, std::chrono::steady_clock::time_point now);
+
+    LiveMatch* find(std::uint64_t match_id);
+    std::unordered_map<std::uint64_t, LiveMatch>& matches() noexcept { return matches_; }
+    std::size_t waiting_messages() const noexcept { return waiting_count_; }
+    const std::string& last_setup_error() const noexcept { return last_setup_error_; }
+
+    // Engine verdict totals over all matches (the counters topic).
+    core::MatchCounters totals() const;
+
+private:
+    MessageOutcome apply_to(LiveMatch& m, const core::InboundMessage& message, std::int64_t receive_time_us,
+                         std::chrono::steady_clock::time_point now);
+
+    core::ModelParams params_;
+    std::unordered_map<std::uint64_t, LiveMatch> matches_;
+    std::unordered_map<std::uint64_t, std::deque<core::InboundMessage>> waiting_;
+    std::size_t waiting_count_ = 0;
+    std::string last_setup_error_;
+};
+
+}  // namespace liveprob::service

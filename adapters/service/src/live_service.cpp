@@ -1,0 +1,428 @@
+#include "liveprob/service/live_service.hpp"
+
+#include <boost/asio/signal_set.hpp>
+#include <boost/asio/steady_timer.hpp>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <chrono>
+#include <csignal>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+
+#include "liveprob/transport/curve_keys.hpp"
+#include "liveprob/files/journal.hpp"
+#include "liveprob/service/match_registry.hpp"
+#include "liveprob/transport/reactor_socket.hpp"
+#include "liveprob/service/service_counters.hpp"
+#include "liveprob/transport/topics.hpp"
+#include "liveprob/transport/zap_authenticator.hpp"
+#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/sharding.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+
+namespace liveprob::service {
+
+namespace {
+
+using SteadyClock = std::chrono::steady_clock;
+
+// Messages drained from one socket per turn of the loop, so ticks and snapshots stay timely
+// under a flood.
+constexpr int kDrainBatch = 512;
+// Largest inbound message ZeroMQ accepts at all (bigger: the peer is disconnected). Buffers
+// between the decoder's own limit and this are received, counted as oversize and dropped.
+constexpr std::int64_t kMaxIngestMessageBytes = 1 << 20;
+
+std::int64_t wall_time_us() {
+    return std::chrono::duration_cast<std::chrono::microseconds>(
+               std::chrono::system_clock::now().time_since_epoch())
+        .count();
+}
+
+void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, const char* domain) {
+    socket.set(zmq::sockopt::zap_domain, domain);
+    socket.set(zmq::sockopt::curve_server, 1);
+    socket.set(zmq::sockopt::curve_secretkey, secret_z85);
+}
+
+// Written atomically (temporary file, then rename) so a reader never sees half of it.
+void write_endpoints_file(const std::string& path, const std::string& ingest, const std::string& publish,
+                          const std::string& snapshot) {
+    const std::string temporary = path + ".partial";
+    {
+        std::ofstream out(temporary);
+        out << "ingest=" << ingest << "\npublish=" << publish << "\nsnapshot=" << snapshot << "\n";
+        if (!out) throw std::runtime_error("cannot write the endpoints file " + path);
+    }
+    std::filesystem::rename(temporary, path);
+}
+
+}  // namespace
+
+struct LiveService::Impl {
+    Impl(const ServiceConfig& config, const core::ModelParams& params);
+
+    void start();
+    void stop(const char* why);
+
+    // Ingest: one buffer from the socket or the journal.
+    void drain_ingest(zmq::socket_t& socket);
+    void handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal);
+    void replay();
+
+    // Outbound.
+    // Prices the match into `outputs` and publishes it; compute_ns runs from `started` (the
+    // message's arrival, or the tick's start) to the priced figures.
+    void publish(LiveMatch& m, bool tick, SteadyClock::time_point started);
+    static protocol::UpdateMeta meta_of(const LiveMatch& m);
+    void answer_snapshots(zmq::socket_t& socket);
+    void publish_counters();
+
+    // Timers.
+    void schedule_tick();
+    void schedule_counters();
+    void schedule_journal_sync();
+
+    ServiceConfig config;
+    protocol::ShardSpec shard;
+    boost::asio::io_context io;
+    zmq::context_t context{1};
+    std::unique_ptr<transport::ZapAuthenticator> zap;
+    std::optional<transport::ReactorSocket> ingest;
+    zmq::socket_t publisher;
+    std::optional<transport::ReactorSocket> snapshot;
+    std::unique_ptr<files::JournalWriter> journal;
+    MatchRegistry registry;
+    ServiceCounters counters;
+    protocol::UpdateEncoder encoder;
+    core::Outputs outputs;  // one buffer for every match: a match holds no outputs of its own
+    std::vector<std::uint64_t> touched;
+    protocol::CounterSet counter_set;
+    protocol::SnapshotReplyContents snapshot_reply;
+    std::vector<zmq::message_t> request_frames;
+    boost::asio::steady_timer tick_timer{io};
+    boost::asio::steady_timer counters_timer{io};
+    boost::asio::steady_timer sync_timer{io};
+    boost::asio::signal_set signals{io, SIGINT, SIGTERM};
+    bool replaying = false;
+    bool stopping = false;
+};
+
+LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params)
+    : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)), publisher(context, zmq::socket_type::pub),
+      registry(params) {
+    validate_service_config(config);
+    std::string secret;
+    if (config.curve_enabled()) {
+        secret = transport::read_key_file(config.curve_secret_key_file);
+        // The ZAP handler must be bound before any CURVE server socket exists.
+        zap = std::make_unique<transport::ZapAuthenticator>(io, context, transport::read_allow_list(config.curve_allowed_keys_file));
+    }
+
+    if (!config.journal_path.empty()) {
+        replay();
+        journal = std::make_unique<files::JournalWriter>(config.journal_path, config.journal_sync,
+                                                  std::chrono::milliseconds(config.journal_sync_interval_ms));
+    }
+
+    zmq::socket_t pull(context, zmq::socket_type::pull);
+    pull.set(zmq::sockopt::rcvhwm, config.ingest_high_water_mark);
+    pull.set(zmq::sockopt::maxmsgsize, kMaxIngestMessageBytes);
+    pull.set(zmq::sockopt::linger, 0);
+    if (config.curve_enabled()) make_curve_server(pull, secret, transport::kIngestZapDomain);
+    pull.bind(config.ingest_endpoint);
+
+    publisher.set(zmq::sockopt::sndhwm, config.publish_high_water_mark);
+    publisher.set(zmq::sockopt::linger, 200);
+    zmq::socket_t router(context, zmq::socket_type::router);
+    router.set(zmq::sockopt::sndhwm, 1000);
+    router.set(zmq::sockopt::maxmsgsize, std::int64_t{4096});
+    router.set(zmq::sockopt::linger, 0);
+    if (config.curve_publish) {
+        make_curve_server(publisher, secret, transport::kPublishZapDomain);
+        make_curve_server(router, secret, transport::kPublishZapDomain);
+    }
+    publisher.bind(config.publish_endpoint);
+    router.bind(config.snapshot_endpoint);
+
+    const std::string ingest_at = pull.get(zmq::sockopt::last_endpoint);
+    const std::string publish_at = publisher.get(zmq::sockopt::last_endpoint);
+    const std::string snapshot_at = router.get(zmq::sockopt::last_endpoint);
+    ingest.emplace(io, std::move(pull));
+    snapshot.emplace(io, std::move(router));
+    if (!config.endpoints_file.empty()) write_endpoints_file(config.endpoints_file, ingest_at, publish_at, snapshot_at);
+    spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at, publish_at,
+                 snapshot_at, config.curve_enabled() ? "on" : "off",
+                 config.curve_publish ? ", publish encrypted" : "",
+                 config.journal_path.empty() ? "off" : config.journal_path);
+}
+
+void LiveService::Impl::replay() {
+    replaying = true;
+    const files::JournalReplayReport report = files::replay_journal(
+        config.journal_path, [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
+    replaying = false;
+    // A rebuilt match continues its output sequence from the restart time in microseconds since
+    // the Unix epoch, not from 1. The run before published fewer updates per match than
+    // microseconds have passed since its own start, so the sequence only rises across restarts
+    // and a subscriber that skips updates "not newer" than the last (protocol/README.md) takes
+    // the restarted service's updates at once; it sees one forward jump, like a gap.
+    const auto restart_seq = static_cast<std::uint64_t>(wall_time_us());
+    for (auto& [id, m] : registry.matches()) m.output_seq = restart_seq;
+    counters.journal_replayed = report.frames;
+    counters.journal_torn_bytes = report.torn_bytes;
+    if (!report.torn_detail.empty()) {
+        spdlog::warn("journal {}: {}; cut {} bytes, {} whole frames kept", config.journal_path, report.torn_detail,
+                     report.torn_bytes, report.frames);
+    }
+    spdlog::info("journal {}: replayed {} frames into {} matches", config.journal_path, report.frames,
+                 registry.matches().size());
+}
+
+void LiveService::Impl::start() {
+    signals.async_wait([this](const boost::system::error_code& ec, int signal) {
+        if (!ec) stop(signal == SIGINT ? "SIGINT" : "SIGTERM");
+    });
+    if (zap) zap->start();
+    ingest->start([this](zmq::socket_t& s) { drain_ingest(s); });
+    snapshot->start([this](zmq::socket_t& s) { answer_snapshots(s); });
+    // The states rebuilt from the journal, republished for subscribers already listening.
+    for (auto& [id, m] : registry.matches()) publish(m, false, SteadyClock::now());
+    schedule_tick();
+    schedule_counters();
+    if (journal && config.journal_sync == files::JournalSync::interval) schedule_journal_sync();
+}
+
+void LiveService::Impl::stop(const char* why) {
+    if (stopping) return;
+    stopping = true;
+    spdlog::info("{}: stopping", why);
+    tick_timer.cancel();
+    counters_timer.cancel();
+    sync_timer.cancel();
+    signals.cancel();
+    ingest->stop();
+    snapshot->stop();
+    if (zap) zap->stop();
+    if (journal) {
+        try {
+            journal->sync();
+        } catch (const files::JournalError& e) {
+            spdlog::error("{}", e.what());
+        }
+    }
+    publish_counters();  // the final figures, on the topic and in the log
+    io.stop();
+}
+
+void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
+    for (int i = 0; i < kDrainBatch; ++i) {
+        zmq::message_t frame;
+        if (!socket.recv(frame, zmq::recv_flags::dontwait)) return;
+        ++counters.frames_received;
+        if (frame.more()) {
+            // A feed message is one frame: drop the whole multipart message.
+            ++counters.multipart_dropped;
+            while (frame.more() && socket.recv(frame, zmq::recv_flags::dontwait)) {}
+            continue;
+        }
+        handle_buffer({frame.data<std::uint8_t>(), frame.size()}, false);
+    }
+}
+
+void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal) {
+    const auto received_at = SteadyClock::now();
+    const std::int64_t receive_us = wall_time_us();
+    protocol::FeedDecodeResult decoded = protocol::decode_feed_message(bytes);
+    if (!decoded.message) {
+        const auto kind = static_cast<std::size_t>(decoded.error);
+        const std::uint64_t seen = ++counters.decode_rejected[kind < kDecodeErrorKinds ? kind : 0];
+        if (seen <= 10 || seen % 1000 == 0) {
+            spdlog::warn("dropped an inbound buffer of {} bytes{}: {} ({} so far)", bytes.size(),
+                         from_journal ? " from the journal" : "", decoded.detail, seen);
+        }
+        return;
+    }
+    if (!protocol::owns(shard, decoded.message->header.match_id)) {
+        ++counters.not_our_shard;
+        return;
+    }
+    // Written before it is applied: what the engine has seen, the journal has.
+    // A message that cannot be journalled (disk full) is not applied either: the state stays
+    // one that a restart can rebuild. It is counted and logged; the feed's resend, or the next
+    // message once space returns, goes on from there.
+    if (!from_journal && journal) {
+        try {
+            journal->append(bytes);
+        } catch (const files::JournalError& e) {
+            const std::uint64_t failed = ++counters.journal_write_failed;
+            if (failed <= 10 || failed % 1000 == 0)
+                spdlog::error("{}; message not applied ({} so far)", e.what(), failed);
+            return;
+        }
+        ++counters.journal_frames;
+    }
+    touched.clear();
+    const MessageOutcome outcome = registry.handle(*decoded.message, receive_us, received_at, touched);
+    switch (outcome) {
+        case MessageOutcome::bad_setup:
+            ++counters.bad_setup;
+            spdlog::warn("match {}: setup refused: {}", decoded.message->header.match_id, registry.last_setup_error());
+            break;
+        case MessageOutcome::waiting: ++counters.waiting; break;
+        case MessageOutcome::waiting_overflow: ++counters.waiting_overflow; break;
+        case MessageOutcome::created:
+            spdlog::info("match {}: created", decoded.message->header.match_id);
+            break;
+        case MessageOutcome::applied:
+        case MessageOutcome::duplicate:
+        case MessageOutcome::rejected: break;
+    }
+    for (const std::uint64_t id : touched) {
+        if (LiveMatch* m = registry.find(id)) publish(*m, false, received_at);
+    }
+}
+
+protocol::UpdateMeta LiveService::Impl::meta_of(const LiveMatch& m) {
+    protocol::UpdateMeta meta;
+    meta.match_id = m.match.match_id();
+    meta.output_seq = m.output_seq;
+    meta.input_seq = m.input_seq;
+    meta.receive_time_us = m.receive_time_us;
+    return meta;
+}
+
+void LiveService::Impl::publish(LiveMatch& m, bool tick, SteadyClock::time_point started) {
+    if (replaying) return;  // replayed states are published once, after the replay
+    m.match.price_into(outputs);
+    ++m.output_seq;
+    protocol::UpdateMeta meta = meta_of(m);
+    if (tick) meta.receive_time_us = 0;
+    meta.compute_ns = static_cast<std::uint32_t>(std::min<std::int64_t>(
+        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count(), 0xFFFF'FFFF));
+    meta.publish_time_us = wall_time_us();
+    const auto bytes = encoder.encode(meta, outputs);
+    const transport::MatchTopic topic = transport::match_topic(meta.match_id);
+    // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
+    publisher.send(zmq::const_buffer(topic.data(), topic.size()), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
+    ++(tick ? counters.ticks_published : counters.updates_published);
+}
+
+void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
+    for (int i = 0; i < kDrainBatch; ++i) {
+        request_frames.clear();
+        zmq::message_t frame;
+        if (!socket.recv(frame, zmq::recv_flags::dontwait)) return;
+        request_frames.push_back(std::move(frame));
+        while (request_frames.back().more()) {
+            zmq::message_t next;
+            if (!socket.recv(next, zmq::recv_flags::dontwait)) break;
+            request_frames.push_back(std::move(next));
+        }
+        ++counters.snapshot_requests;
+        // Envelope: [peer id] [empty delimiter, from REQ peers] payload.
+        if (request_frames.size() < 2 || request_frames.size() > 3) {
+            ++counters.snapshot_bad_requests;
+            continue;
+        }
+        const bool delimited = request_frames.size() == 3;
+        const zmq::message_t& payload = request_frames.back();
+        const auto wanted = protocol::decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()});
+        snapshot_reply.updates.clear();
+        snapshot_reply.error.clear();
+        const auto add = [this](const LiveMatch& m) {
+            m.match.price_into(outputs);
+            snapshot_reply.updates.push_back({meta_of(m), outputs});
+        };
+        if (!wanted.ok()) {
+            ++counters.snapshot_bad_requests;
+            snapshot_reply.error = "bad request: " + wanted.detail;
+        } else if (*wanted.value == 0) {
+            for (const auto& [id, m] : registry.matches()) {
+                if (m.live()) add(m);
+            }
+        } else if (const LiveMatch* m = registry.find(*wanted.value)) {
+            add(*m);
+        } else {
+            snapshot_reply.error = fmt::format("unknown match {}", *wanted.value);
+        }
+        const std::int64_t now_us = wall_time_us();
+        for (auto& u : snapshot_reply.updates) u.meta.publish_time_us = now_us;
+        const std::vector<std::uint8_t> reply = protocol::encode_snapshot_reply(snapshot_reply);
+        socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+        if (delimited) socket.send(zmq::const_buffer(nullptr, 0), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+        socket.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
+    }
+}
+
+void LiveService::Impl::schedule_tick() {
+    tick_timer.expires_after(std::chrono::milliseconds(config.tick_interval_ms));
+    tick_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        for (auto& [id, m] : registry.matches()) {
+            if (!m.live()) continue;
+            const auto started = SteadyClock::now();
+            registry.advance(m, started);
+            publish(m, true, started);
+        }
+        schedule_tick();
+    });
+}
+
+void LiveService::Impl::publish_counters() {
+    counters.matches = registry.matches().size();
+    counters.live_matches = 0;
+    for (const auto& [id, m] : registry.matches()) counters.live_matches += m.live() ? 1u : 0u;
+    if (zap) {
+        counters.curve_accepted = zap->accepted();
+        counters.curve_refused = zap->refused();
+    }
+    list_counters(counters, registry.totals(), counter_set.values);
+    counter_set.publish_time_us = wall_time_us();
+    const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set);
+    publisher.send(zmq::const_buffer(transport::kCountersTopic.data(), transport::kCountersTopic.size()),
+                   zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
+    std::string line;
+    for (const auto& [name, value] : counter_set.values) {
+        if (value != 0) line += fmt::format(" {}={}", name, value);
+    }
+    spdlog::info("counters:{}", line);
+}
+
+void LiveService::Impl::schedule_counters() {
+    counters_timer.expires_after(std::chrono::milliseconds(config.counters_interval_ms));
+    counters_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        publish_counters();
+        schedule_counters();
+    });
+}
+
+void LiveService::Impl::schedule_journal_sync() {
+    sync_timer.expires_after(std::chrono::milliseconds(config.journal_sync_interval_ms));
+    sync_timer.async_wait([this](const boost::system::error_code& ec) {
+        if (ec || stopping) return;
+        try {
+            journal->sync_if_due(SteadyClock::now());
+        } catch (const files::JournalError& e) {  // the frames are written; only durability is late
+            spdlog::error("{}", e.what());
+        }
+        schedule_journal_sync();
+    });
+}
+
+LiveService::LiveService(const ServiceConfig& config, const core::ModelParams& params)
+    : impl_(std::make_unique<Impl>(config, params)) {}
+
+LiveService::~LiveService() = default;
+
+void LiveService::run() {
+    impl_->start();
+    impl_->io.run();
+}
+
+}  // namespace liveprob::service

@@ -1,0 +1,53 @@
+#include "liveprob/service/service_counters.hpp"
+
+#include <numeric>
+#include <string>
+
+#include "liveprob/core/reject_reason.hpp"
+#include "liveprob/protocol/decode_error.hpp"
+
+namespace liveprob::service {
+
+std::uint64_t ServiceCounters::decode_rejected_total() const noexcept {
+    return std::accumulate(decode_rejected.begin(), decode_rejected.end(), std::uint64_t{0});
+}
+
+void list_counters(const ServiceCounters& s, const core::MatchCounters& e, CounterList& out) {
+    out.clear();
+    const auto add = [&out](std::string name, std::uint64_t value) { out.emplace_back(std::move(name), value); };
+    add("ingest.frames", s.frames_received);
+    add("ingest.multipart_dropped", s.multipart_dropped);
+    add("ingest.rejected", s.decode_rejected_total());
+    for (std::size_t i = 1; i < s.decode_rejected.size(); ++i) {
+        add(std::string("ingest.rejected.") + protocol::decode_error_name(static_cast<protocol::DecodeError>(i)),
+            s.decode_rejected[i]);
+    }
+    add("ingest.not_our_shard", s.not_our_shard);
+    add("ingest.bad_setup", s.bad_setup);
+    add("ingest.waiting_for_setup", s.waiting);
+    add("ingest.waiting_overflow", s.waiting_overflow);
+    add("engine.accepted", e.accepted);
+    add("engine.late", e.late);
+    add("engine.duplicate", e.duplicates);
+    add("engine.conflicting_duplicate", e.conflicting_duplicates);
+    add("engine.rejected", e.rejected);
+    for (std::size_t i = 1; i < e.rejected_by_reason.size(); ++i) {
+        if (e.rejected_by_reason[i] == 0) continue;  // the reasons that happened
+        add(std::string("engine.rejected.") + reject_reason_name(static_cast<core::RejectReason>(i)),
+            e.rejected_by_reason[i]);
+    }
+    add("publish.updates", s.updates_published);
+    add("publish.ticks", s.ticks_published);
+    add("snapshot.requests", s.snapshot_requests);
+    add("snapshot.bad_requests", s.snapshot_bad_requests);
+    add("journal.frames", s.journal_frames);
+    add("journal.replayed", s.journal_replayed);
+    add("journal.torn_bytes", s.journal_torn_bytes);
+    add("journal.write_failed", s.journal_write_failed);
+    add("curve.accepted", s.curve_accepted);
+    add("curve.refused", s.curve_refused);
+    add("matches", s.matches);
+    add("matches.live", s.live_matches);
+}
+
+}  // namespace liveprob::service

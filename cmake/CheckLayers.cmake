@@ -1,0 +1,53 @@
+# cmake -DSOURCE_DIR=<tree> [-DSTAMP=<file>] -P CheckLayers.cmake
+# Checks every #include of every library sub-folder of <tree> against its row of
+# cmake/Layers.cmake (read from this script's own folder): a project header must belong to the
+# folder itself or to one its row USES; an outside library's header must be one its row links;
+# a PURE folder includes no file, clock, stream or thread header. Folders missing from <tree> are
+# skipped (the layering test runs this on small fixture trees). Lists every offending line and
+# fails; writes STAMP when all is well.
+cmake_minimum_required(VERSION 3.25)
+include(${CMAKE_CURRENT_LIST_DIR}/Layers.cmake)
+
+set(_bad "")
+foreach(_job IN LISTS LIVEPROB_LAYERS)
+  set(_dir "${SOURCE_DIR}/${LIVEPROB_LAYER_${_job}_FOLDER}")
+  if(NOT IS_DIRECTORY "${_dir}")
+    continue()
+  endif()
+  set(_allowed_jobs ${_job} ${LIVEPROB_LAYER_${_job}_USES})
+  set(_allowed_outside ${LIVEPROB_LAYER_${_job}_LINKS} ${LIVEPROB_LAYER_${_job}_PRIVATE_LINKS})
+  file(GLOB_RECURSE _files "${_dir}/*.hpp" "${_dir}/*.cpp" "${_dir}/*.h" "${_dir}/*.c")
+  foreach(_file IN LISTS _files)
+    file(STRINGS "${_file}" _lines REGEX "^[ \t]*#[ \t]*include[ \t]*[<\"]")
+    foreach(_line IN LISTS _lines)
+      string(REGEX REPLACE "^[ \t]*#[ \t]*include[ \t]*[<\"]([^>\"]*)[>\"].*$" "\\1" _header "${_line}")
+      set(_why "")
+      if(_header MATCHES "^liveprob/([a-z_]+)/")
+        set(_owner "${CMAKE_MATCH_1}")
+        if(_owner IN_LIST LIVEPROB_LAYERS AND NOT _owner IN_LIST _allowed_jobs)
+          set(_why "${_job} may not use ${_owner}")
+        endif()
+      endif()
+      foreach(_name IN LISTS LIVEPROB_OUTSIDE_NAMES)
+        if(_header MATCHES "${LIVEPROB_OUTSIDE_${_name}_PATTERN}" AND NOT _name IN_LIST _allowed_outside)
+          set(_why "${_job} does not link ${_name}")
+        endif()
+      endforeach()
+      if(LIVEPROB_LAYER_${_job}_PURE AND _header MATCHES "${LIVEPROB_IMPURE_PATTERN}")
+        set(_why "${_job} is pure computation (no files, clocks, streams or threads)")
+      endif()
+      if(_why)
+        file(RELATIVE_PATH _rel "${SOURCE_DIR}" "${_file}")
+        list(APPEND _bad "${_rel}: #include ${_header}: ${_why}")
+      endif()
+    endforeach()
+  endforeach()
+endforeach()
+
+if(_bad)
+  string(REPLACE ";" "\n  " _msg "${_bad}")
+  message(FATAL_ERROR "Includes outside the layering table (cmake/Layers.cmake):\n  ${_msg}")
+endif()
+if(STAMP)
+  file(WRITE "${STAMP}" "ok\n")
+endif()

@@ -1,0 +1,124 @@
+// The engine's public C++ API for one match: create it from a setup, apply inbound messages,
+// advance the clock between them, read the outputs. No sockets, files or clocks: the host
+// (the service, the replay tool, a graphics system linking the engine) supplies everything.
+//
+//   liveprob::core::Match match(match_id, setup, params);
+//   match.apply(message);              // every inbound message, in any order
+//   match.advance_to(clock_now);       // as the host's timer runs between messages
+//   const liveprob::core::Outputs& out = match.outputs();
+//
+// State is a fold over the log of messages, kept in feed order (by source_seq):
+//  * a message with a source_seq already in the log is a duplicate and changes nothing;
+//  * a message older than the newest in the log is inserted and the log re-folded (late);
+//  * a message that is impossible where it stands in the log (a goal before kick-off, a
+//    kick outside a shoot-out, ...) is rejected with a reason and never applied; it stays in
+//    the log, so that if a late message makes it possible (the kick-off arrives after the
+//    goal) the re-fold applies it. Any order of the same messages gives the same state;
+//  * a message that is wrong in itself (another match id, unknown side, NaN xG) never enters
+//    the log.
+// The clock: each applied message anchors the clock to the feed's reading in its header;
+// advance_to() moves it on while play runs (not while ClockSync says the clock is stopped,
+// nor between periods), so probabilities drift as time passes. Advancing never changes the
+// fold: the next message re-anchors the clock to the feed.
+// After the final whistle the outputs are the result (probability 1 on what happened). After
+// MatchAbandoned the status is `abandoned` and every probability stays as it was priced just
+// before: the engine does not guess how an abandoned match is settled, and a screen showing
+// the bar does not jump.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <memory>
+#include <vector>
+
+#include "liveprob/core/match_state.hpp"
+#include "liveprob/core/messages.hpp"
+#include "liveprob/core/outputs.hpp"
+#include "liveprob/core/params.hpp"
+#include "liveprob/core/pricing.hpp"
+#include "liveprob/core/reject_reason.hpp"
+#include "liveprob/core/state_fold.hpp"
+
+namespace liveprob::core {
+
+enum class Verdict : std::uint8_t {
+    accepted = 0,   // newest in the log, applied
+    late = 1,       // older than the newest, inserted and applied by a re-fold
+    duplicate = 2,  // its source_seq is already in the log; nothing changed
+    rejected = 3,   // impossible (see `reason`); not applied
+};
+const char* verdict_name(Verdict verdict) noexcept;
+
+struct ApplyResult {
+    Verdict verdict = Verdict::accepted;
+    RejectReason reason = RejectReason::none;  // set when verdict == rejected
+    friend bool operator==(const ApplyResult&, const ApplyResult&) = default;
+};
+
+// What arrived, counted on arrival (unlike the state, these depend on the arrival order).
+struct MatchCounters {
+    std::uint64_t accepted = 0;
+    std::uint64_t late = 0;
+    std::uint64_t duplicates = 0;
+    std::uint64_t conflicting_duplicates = 0;  // same source_seq, different content (also duplicates)
+    std::uint64_t rejected = 0;
+    std::array<std::uint64_t, kRejectReasonCount> rejected_by_reason{};
+};
+
+class Match {
+public:
+    // Throws std::invalid_argument when the setup has no usable prior (ratings must be
+    // resolved to expected goals first) or the format or parameters are unusable.
+    Match(std::uint64_t match_id, const MatchSetup& setup, const ModelParams& params = ModelParams{});
+
+    ApplyResult apply(const InboundMessage& message);
+
+    // Moves the clock the outputs are priced at. Returns false (and changes nothing) when the
+    // clock cannot move there: not in play, clock stopped, another period, or earlier than the
+    // feed's last reading. Clocks far beyond the period's end are held at its latest point.
+    bool advance_to(MatchClock now);
+
+    // Prices the state at the priced clock into `out` (allocation-free once the thread has
+    // priced once). The same state and clock always give the same figures, to the last bit.
+    // A host pricing many matches (the service) passes one buffer of its own, so a match
+    // holds no outputs: its memory is its setup, state and event log.
+    void price_into(Outputs& out) const;
+
+    // The same, kept in a buffer the match allocates on first use: priced on demand, so a
+    // burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
+    const Outputs& outputs() const;
+    const MatchState& state() const noexcept { return state_; }
+    const MatchCounters& counters() const noexcept { return counters_; }
+    MatchClock priced_clock() const noexcept { return priced_clock_; }
+    const MatchSetup& setup() const noexcept { return setup_; }
+    std::uint64_t match_id() const noexcept { return fold_.match_id(); }
+    const ModelParams& params() const noexcept { return fold_.params(); }
+    std::size_t log_size() const noexcept { return log_.size(); }
+
+    // The model's input for the current state at the priced clock (for checks and tools).
+    PricingState pricing_state() const;
+
+private:
+    struct LoggedMessage {
+        MessageHeader header;
+        EventBody event;
+        RejectReason outcome = RejectReason::none;  // none: applied
+        InboundMessage message() const { return {header, message_body_of(event)}; }
+    };
+
+    void refold();
+    void anchor_clock() noexcept;
+    void count_rejection(RejectReason reason) noexcept;
+
+    MatchSetup setup_;
+    StateFold fold_;
+    mutable PricingModel model_;
+    std::vector<LoggedMessage> log_;  // sorted by source_seq
+    MatchState state_;
+    MatchClock priced_clock_;
+    MatchCounters counters_;
+    mutable std::unique_ptr<Outputs> outputs_;  // outputs()'s buffer, allocated on first use
+    mutable bool outputs_stale_ = true;
+};
+
+}  // namespace liveprob::core

@@ -1,0 +1,89 @@
+#include "liveprob/backtest/recorded_stream.hpp"
+
+#include <fmt/format.h>
+
+#include <stdexcept>
+#include <string_view>
+
+#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/json_feed.hpp"
+
+namespace liveprob::backtest {
+
+namespace {
+
+void note_problem(StreamContents& out, const std::string& problem) {
+    ++out.bad_records;
+    if (out.first_problem.empty()) out.first_problem = problem;
+}
+
+void read_frames(std::span<const std::uint8_t> bytes, StreamContents& out) {
+    protocol::FrameCursor cursor(bytes);
+    std::size_t frame_number = 0;
+    while (const auto frame = cursor.next()) {
+        ++frame_number;
+        auto decoded = protocol::decode_feed_message(frame->payload);
+        if (decoded.message) {
+            out.messages.push_back(std::move(*decoded.message));
+        } else {
+            note_problem(out, fmt::format("frame {} at offset {}: {}: {}", frame_number, frame->offset,
+                                          protocol::decode_error_name(decoded.error), decoded.detail));
+        }
+    }
+    if (cursor.end() != protocol::StreamEnd::clean) note_problem(out, cursor.end_detail());
+}
+
+void read_json_lines(std::string_view text, StreamContents& out) {
+    protocol::JsonFeedReader reader;
+    std::size_t line_number = 0;
+    while (!text.empty()) {
+        const auto newline = text.find('\n');
+        const auto line = text.substr(0, newline);
+        text = newline == std::string_view::npos ? std::string_view{} : text.substr(newline + 1);
+        auto result = reader.read_line(line, ++line_number);
+        if (result.kind == protocol::JsonLineKind::message) {
+            out.messages.push_back(std::move(*result.message));
+        } else if (result.kind == protocol::JsonLineKind::bad) {
+            note_problem(out, result.error);
+        }
+    }
+}
+
+}  // namespace
+
+StreamContents read_stream(const std::filesystem::path& path) {
+    const auto bytes = protocol::read_byte_file(path);
+    StreamContents out;
+    if (protocol::looks_like_frame_stream(bytes)) {
+        read_frames(bytes, out);
+    } else {
+        read_json_lines(std::string_view(reinterpret_cast<const char*>(bytes.data()), bytes.size()), out);
+    }
+    if (!out.first_problem.empty()) out.first_problem = path.string() + ": " + out.first_problem;
+    return out;
+}
+
+void write_stream(const std::filesystem::path& path, const std::vector<core::InboundMessage>& messages,
+                  StreamForm form) {
+    std::vector<std::uint8_t> bytes;
+    if (form == StreamForm::frames) {
+        for (const auto& m : messages) protocol::append_frame(bytes, protocol::encode_feed_message(m));
+    } else {
+        for (const auto& m : messages) {
+            const auto line = protocol::to_json_line(m);
+            bytes.insert(bytes.end(), line.begin(), line.end());
+            bytes.push_back('\n');
+        }
+    }
+    protocol::write_byte_file(path, bytes);
+}
+
+StreamForm parse_stream_form(const std::string& text) {
+    if (text == "frames" || text == "binary") return StreamForm::frames;
+    if (text == "json" || text == "jsonl") return StreamForm::json_lines;
+    throw std::invalid_argument("stream form must be 'frames' or 'json', got '" + text + "'");
+}
+
+}  // namespace liveprob::backtest
