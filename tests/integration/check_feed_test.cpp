@@ -7,7 +7,7 @@
 #include <sstream>
 #include <vector>
 
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
@@ -77,7 +77,7 @@ TEST_CASE("check-feed passes a clean feed with exit 0", "[check_feed]") {
     const auto dir = scratch_dir("check-feed-clean");
     std::string text;
     for (const auto& m : sample_messages()) text += protocol::to_json_line(m) + "\n";
-    protocol::write_byte_file(dir / "clean.jsonl", {reinterpret_cast<const std::uint8_t*>(text.data()), text.size()});
+    protocol::write_file_atomically(dir / "clean.jsonl", text);
     const auto run = stderr_of("check-feed " + quoted(dir / "clean.jsonl"));
     CHECK(run.exit_code == 0);
     CHECK(run.out.empty());
@@ -99,7 +99,7 @@ TEST_CASE("check-feed reads a size-prefixed stream and reports a bad frame and a
     }
     const std::size_t tail_offset = stream.size();
     stream.insert(stream.end(), {0x40, 0x00, 0x00, 0x00, 0x01, 0x02});  // promises 64 bytes, has 2
-    protocol::write_byte_file(dir / "journal.lpf", stream);
+    protocol::write_file_atomically(dir / "journal.lpf", stream);
 
     const auto errors = stderr_of("check-feed " + quoted(dir / "journal.lpf"));
     CHECK(errors.exit_code == 1);

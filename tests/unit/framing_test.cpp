@@ -4,7 +4,7 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "sample_messages.hpp"
 #include "test_env.hpp"
@@ -131,12 +131,12 @@ TEST_CASE("empty streams, empty frames and refused writes", "[framing]") {
 TEST_CASE("a stream survives a real file and is told apart from text", "[framing]") {
     const auto dir = test::scratch_dir("framing");
     const auto stream = sample_stream();
-    write_byte_file(dir / "feed.lpf", stream);
-    CHECK(read_byte_file(dir / "feed.lpf") == stream);
+    write_file_atomically(dir / "feed.lpf", stream);
+    CHECK(read_whole_file_bytes(dir / "feed.lpf") == stream);
     CHECK(looks_like_frame_stream(stream));
     const std::string text = "{\"match\": 7, \"seq\": 1}\n";
     CHECK_FALSE(looks_like_frame_stream({reinterpret_cast<const std::uint8_t*>(text.data()), text.size()}));
-    CHECK_THROWS_WITH(read_byte_file(dir / "absent.lpf"),
-                      Catch::Matchers::StartsWith("cannot open ") && Catch::Matchers::Contains("No such file"));
+    CHECK_THROWS_WITH(read_whole_file_bytes(dir / "absent.lpf"),
+                      Catch::Matchers::Contains("absent.lpf: cannot open the file: No such file"));
     std::filesystem::remove_all(dir);
 }

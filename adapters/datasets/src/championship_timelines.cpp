@@ -7,7 +7,7 @@
 #include <tuple>
 
 #include "liveprob/datasets/match_timelines.hpp"
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 #include "timeline_checks.hpp"
 
@@ -59,7 +59,7 @@ bool read_goals(element match, const char* key, core::Side side, std::vector<Tim
 }  // namespace
 
 TimelinesRead read_championship_timelines(const std::string& path) {
-    const std::string text = files::read_text_file(path, "the championship file");
+    const std::string text = protocol::read_whole_file(path, "the championship file");
     simdjson::dom::parser parser;
     element root;
     if (auto e = parser.parse(text).get(root); e != simdjson::SUCCESS)

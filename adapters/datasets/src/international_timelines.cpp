@@ -9,7 +9,7 @@
 
 #include "liveprob/files/csv_line.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 #include "timeline_checks.hpp"
 
@@ -31,7 +31,7 @@ bool true_flag(std::string_view s) { return s == "TRUE" || s == "True" || s == "
 class CsvReader {
 public:
     CsvReader(const std::string& path, const std::string& what, std::vector<std::string> columns)
-        : path_(path), text_(files::read_text_file(path, what)), names_(std::move(columns)) {}
+        : path_(path), text_(protocol::read_whole_file(path, what)), names_(std::move(columns)) {}
 
     template <typename Row>
     void for_each_row(Row&& row) {

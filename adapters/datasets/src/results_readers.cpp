@@ -10,7 +10,7 @@
 #include <tuple>
 
 #include "liveprob/files/csv_line.hpp"
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 
 namespace liveprob::datasets {
@@ -46,7 +46,7 @@ std::string first_line(const std::string& text) {
 }  // namespace
 
 ResultsRead read_project_results(const std::string& path) {
-    const std::string text = files::read_text_file(path, "the results file");
+    const std::string text = protocol::read_whole_file(path, "the results file");
     ResultsRead out;
     DuplicateFilter filter;
     const std::vector<std::string> expected{"date", "home", "away", "home_goals", "away_goals", "neutral"};
@@ -90,7 +90,7 @@ ResultsRead read_project_results(const std::string& path) {
 }
 
 ResultsRead read_international_results(const std::string& path) {
-    const std::string text = files::read_text_file(path, "the results file");
+    const std::string text = protocol::read_whole_file(path, "the results file");
     ResultsRead out;
     DuplicateFilter filter;
     int c_date = -1, c_home = -1, c_away = -1, c_hs = -1, c_as = -1, c_neutral = -1;
@@ -130,7 +130,7 @@ ResultsRead read_international_results(const std::string& path) {
 }
 
 ResultsRead read_league_json(const std::string& path) {
-    const std::string text = files::read_text_file(path, "the league file");
+    const std::string text = protocol::read_whole_file(path, "the league file");
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     if (auto e = parser.parse(text).get(root); e != simdjson::SUCCESS)
@@ -165,7 +165,7 @@ ResultsRead read_league_json(const std::string& path) {
 
 ResultsRead read_results_any(const std::string& path) {
     if (path.size() >= 5 && path.compare(path.size() - 5, 5, ".json") == 0) return read_league_json(path);
-    const std::string head = first_line(files::read_text_file(path, "the results file"));
+    const std::string head = first_line(protocol::read_whole_file(path, "the results file"));
     if (head.rfind("date,home_team", 0) == 0) return read_international_results(path);
     return read_project_results(path);
 }

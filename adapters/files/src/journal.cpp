@@ -9,7 +9,7 @@
 #include <unistd.h>
 #include <vector>
 
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/framing.hpp"
 
 namespace liveprob::files {
@@ -102,7 +102,7 @@ JournalReplayReport replay_journal(const std::string& path,
     std::error_code ec;
     // Nothing to replay from a missing file, nor from a device or pipe (which has no history).
     if (!std::filesystem::is_regular_file(path, ec)) return report;
-    const std::vector<std::uint8_t> bytes = protocol::read_byte_file(path);
+    const std::vector<std::uint8_t> bytes = protocol::read_whole_file_bytes(path, "the journal");
     protocol::FrameCursor cursor(bytes, kMaxJournalFrameBytes);
     while (const auto frame = cursor.next()) {
         visit(frame->payload);

@@ -1,6 +1,6 @@
 // Reading and writing the model parameter file (layout documented in params_file.hpp).
 #include "liveprob/files/params_file.hpp"
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 #include <fmt/format.h>
 #include <simdjson.h>
@@ -181,7 +181,7 @@ core::ModelParams parse_params_json(const std::string& text, const std::string& 
 core::ModelParams load_params_file(const std::string& path) {
     std::string text;
     try {
-        text = read_text_file(path, "the parameter file");
+        text = protocol::read_whole_file(path, "the parameter file");
     } catch (const std::runtime_error& e) {
         throw ParamsFileError(e.what());
     }
@@ -253,7 +253,7 @@ std::string params_to_json(const core::ModelParams& params, const ParamsFileNote
 
 void save_params_file(const core::ModelParams& params, const std::string& path, const ParamsFileNotes& notes) {
     try {
-        write_text_file_atomically(path, params_to_json(params, notes), "the parameter file");
+        protocol::write_file_atomically(path, params_to_json(params, notes), "the parameter file");
     } catch (const std::runtime_error& e) {
         throw ParamsFileError(e.what());
     }

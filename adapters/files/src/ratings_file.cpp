@@ -8,7 +8,7 @@
 #include <stdexcept>
 
 #include "liveprob/files/csv_line.hpp"
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 
 namespace liveprob::files {
@@ -93,11 +93,11 @@ std::string ratings_to_json(const fit::Ratings& r) {
 }
 
 void save_ratings_file(const fit::Ratings& ratings, const std::string& path) {
-    write_text_file_atomically(path, ratings_to_json(ratings), "the ratings file");
+    protocol::write_file_atomically(path, ratings_to_json(ratings), "the ratings file");
 }
 
 fit::Ratings load_ratings_file(const std::string& path) {
-    const std::string text = read_text_file(path, "the ratings file");
+    const std::string text = protocol::read_whole_file(path, "the ratings file");
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     if (auto e = parser.parse(text).get(root); e != simdjson::SUCCESS)
@@ -145,7 +145,7 @@ fit::Ratings load_ratings_file(const std::string& path) {
 }
 
 std::map<std::string, std::string> load_alias_file(const std::string& path) {
-    const std::string text = read_text_file(path, "the alias file");
+    const std::string text = protocol::read_whole_file(path, "the alias file");
     std::map<std::string, std::string> aliases;
     std::size_t start = 0;
     int line = 0;

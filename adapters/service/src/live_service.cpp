@@ -12,6 +12,7 @@
 #include <optional>
 
 #include "liveprob/transport/curve_keys.hpp"
+#include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/files/journal.hpp"
 #include "liveprob/service/match_registry.hpp"
 #include "liveprob/transport/reactor_socket.hpp"
@@ -45,18 +46,6 @@ void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, con
     socket.set(zmq::sockopt::zap_domain, domain);
     socket.set(zmq::sockopt::curve_server, 1);
     socket.set(zmq::sockopt::curve_secretkey, secret_z85);
-}
-
-// Written atomically (temporary file, then rename) so a reader never sees half of it.
-void write_endpoints_file(const std::string& path, const std::string& ingest, const std::string& publish,
-                          const std::string& snapshot) {
-    const std::string temporary = path + ".partial";
-    {
-        std::ofstream out(temporary);
-        out << "ingest=" << ingest << "\npublish=" << publish << "\nsnapshot=" << snapshot << "\n";
-        if (!out) throw std::runtime_error("cannot write the endpoints file " + path);
-    }
-    std::filesystem::rename(temporary, path);
 }
 
 }  // namespace
@@ -152,7 +141,10 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
     const std::string snapshot_at = router.get(zmq::sockopt::last_endpoint);
     ingest.emplace(io, std::move(pull));
     snapshot.emplace(io, std::move(router));
-    if (!config.endpoints_file.empty()) write_endpoints_file(config.endpoints_file, ingest_at, publish_at, snapshot_at);
+    if (!config.endpoints_file.empty()) {
+        files::write_endpoints_file(config.endpoints_file,
+                                    {{"ingest", ingest_at}, {"publish", publish_at}, {"snapshot", snapshot_at}});
+    }
     spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at, publish_at,
                  snapshot_at, config.curve_enabled() ? "on" : "off",
                  config.curve_publish ? ", publish encrypted" : "",

@@ -12,7 +12,7 @@
 #include <spdlog/spdlog.h>
 #include <zmq.hpp>
 
-#include "liveprob/files/text_file.hpp"
+#include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
@@ -148,9 +148,7 @@ void run_relay(const RelayConfig& config) {
     const std::string publish_at = downstream.get(zmq::sockopt::last_endpoint);
     const std::string snapshot_at = snapshot_front ? snapshot_front->get(zmq::sockopt::last_endpoint) : "";
     if (!config.endpoints_file.empty())
-        files::write_text_file_atomically(config.endpoints_file,
-                                   fmt::format("publish={}\nsnapshot={}\n", publish_at, snapshot_at),
-                                   "relay endpoints file");
+        files::write_endpoints_file(config.endpoints_file, {{"publish", publish_at}, {"snapshot", snapshot_at}});
     spdlog::info("relay: {} shards -> publish {} snapshot {}", config.shard_publish.size(), publish_at,
                  snapshot_at.empty() ? "(off)" : snapshot_at);
 

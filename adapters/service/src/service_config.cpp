@@ -3,12 +3,11 @@
 #include <fmt/format.h>
 #include <simdjson.h>
 
-#include <fstream>
 #include <limits>
-#include <sstream>
 #include <string_view>
 
 #include "liveprob/protocol/sharding.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace liveprob::service {
 
@@ -134,11 +133,13 @@ ServiceConfig parse_service_config(const std::string& json_text, const std::stri
 }
 
 ServiceConfig load_service_config(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw ConfigError(fmt::format("{}: cannot open the configuration file", path));
-    std::ostringstream text;
-    text << in.rdbuf();
-    return parse_service_config(text.str(), path);
+    std::string text;
+    try {
+        text = protocol::read_whole_file(path, "the configuration file");
+    } catch (const std::runtime_error& e) {
+        throw ConfigError(e.what());
+    }
+    return parse_service_config(text, path);
 }
 
 void validate_service_config(const ServiceConfig& c) {

@@ -5,7 +5,7 @@
 #include <stdexcept>
 #include <string_view>
 
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
@@ -54,7 +54,7 @@ void read_json_lines(std::string_view text, StreamContents& out) {
 }  // namespace
 
 StreamContents read_stream(const std::filesystem::path& path) {
-    const auto bytes = protocol::read_byte_file(path);
+    const auto bytes = protocol::read_whole_file_bytes(path, "the recorded stream");
     StreamContents out;
     if (protocol::looks_like_frame_stream(bytes)) {
         read_frames(bytes, out);
@@ -77,7 +77,7 @@ void write_stream(const std::filesystem::path& path, const std::vector<core::Inb
             bytes.push_back('\n');
         }
     }
-    protocol::write_byte_file(path, bytes);
+    protocol::write_file_atomically(path, bytes, "the recorded stream");
 }
 
 StreamForm parse_stream_form(const std::string& text) {

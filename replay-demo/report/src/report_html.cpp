@@ -5,7 +5,7 @@
 #include <algorithm>
 #include <string_view>
 
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/report/report_json.hpp"
 
 namespace liveprob::report {
@@ -153,11 +153,8 @@ std::string report_html(const backtest::BacktestResult& r, const ReportHeading& 
 
 void write_report(const std::filesystem::path& dir, const backtest::BacktestResult& result, const ReportHeading& heading) {
     std::filesystem::create_directories(dir);
-    const auto write = [&](const char* name, const std::string& text) {
-        protocol::write_byte_file(dir / name, std::span(reinterpret_cast<const std::uint8_t*>(text.data()), text.size()));
-    };
-    write("report.json", report_json(result));
-    write("index.html", report_html(result, heading));
+    protocol::write_file_atomically(dir / "report.json", report_json(result), "the JSON report");
+    protocol::write_file_atomically(dir / "index.html", report_html(result, heading), "the HTML report");
 }
 
 }  // namespace liveprob::report

@@ -36,8 +36,8 @@ private:
     harness::ChildProcess process_;
 };
 
-// "key=value" lines, as serve and relay write their endpoints files; waits for the file.
-std::map<std::string, std::string> read_endpoints_file(const std::filesystem::path& path, SoakProcess& writer,
-                                                       std::chrono::seconds limit);
+// The endpoints file serve or relay writes (files/endpoints_file.hpp), once it is there.
+std::map<std::string, std::string> wait_for_endpoints_file(const std::filesystem::path& path, SoakProcess& writer,
+                                                           std::chrono::seconds limit);
 
 }  // namespace liveprob::soak

@@ -10,6 +10,7 @@
 #include <zmq.hpp>
 
 #include "liveprob/clients/shard_sender.hpp"
+#include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/update_codec.hpp"
@@ -62,7 +63,7 @@ Topology start_topology(const PhaseSettings& s) {
         }
         auto& p = t.processes.emplace_back(std::make_unique<SoakProcess>(
             fmt::format("{} {}", prefix, k), argv, s.scratch / fmt::format("{}-{}.log", prefix, k)));
-        const auto endpoints = read_endpoints_file(endpoints_file, *p, 30s);
+        const auto endpoints = wait_for_endpoints_file(endpoints_file, *p, 30s);
         t.ingest.push_back(endpoints.at("ingest"));
         t.backend_publish.push_back(endpoints.at("publish"));
     }
@@ -76,7 +77,7 @@ Topology start_topology(const PhaseSettings& s) {
                                      "tcp://127.0.0.1:*", "--endpoints-file", endpoints_file.string(),
                                      "--high-water-mark", kDeepQueue},
             s.scratch / fmt::format("relay-{}.log", prefix)));
-        t.front_publish = read_endpoints_file(endpoints_file, *relay, 30s).at("publish");
+        t.front_publish = wait_for_endpoints_file(endpoints_file, *relay, 30s).at("publish");
     }
     return t;
 }
@@ -296,15 +297,8 @@ int run_bare_forwarder(const std::string& endpoints_file) {
     pub.set(zmq::sockopt::sndhwm, 1'000'000);
     pull.bind("tcp://127.0.0.1:*");
     pub.bind("tcp://127.0.0.1:*");
-    {
-        const std::string partial = endpoints_file + ".partial";
-        std::FILE* f = std::fopen(partial.c_str(), "w");
-        if (f == nullptr) return 1;
-        fmt::print(f, "ingest={}\npublish={}\n", pull.get(zmq::sockopt::last_endpoint),
-                   pub.get(zmq::sockopt::last_endpoint));
-        std::fclose(f);
-        std::filesystem::rename(partial, endpoints_file);
-    }
+    files::write_endpoints_file(endpoints_file, {{"ingest", pull.get(zmq::sockopt::last_endpoint)},
+                                                 {"publish", pub.get(zmq::sockopt::last_endpoint)}});
     const std::string_view topic = transport::kMatchTopicPrefix;
     while (!g_stop.load()) {
         zmq::pollitem_t item{pull.handle(), 0, ZMQ_POLLIN, 0};

@@ -7,7 +7,7 @@
 #include <memory>
 
 #include "command_registry.hpp"
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_check.hpp"
 
 namespace {
@@ -33,7 +33,7 @@ void print_summary(const std::string& path, const lp::FeedCheckSummary& s) {
 }
 
 int run_check_feed(const CheckFeedOptions& options) {
-    const auto bytes = lp::read_byte_file(options.path);  // throws: exit 1 with the reason
+    const auto bytes = lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
     const auto summary = lp::check_feed(bytes, [](const std::string& problem) {
         std::cerr << problem << "\n";
     });

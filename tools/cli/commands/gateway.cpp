@@ -10,6 +10,7 @@
 #include "command_registry.hpp"
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/gateway/gateway.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace {
 
@@ -45,14 +46,9 @@ int run_gateway(GatewayOptions& options) {
 
     liveprob::gateway::Gateway gateway(config);
     if (!options.port_file.empty()) {
-        // Written whole, then renamed, so a reader never sees half a number.
-        const std::string partial = options.port_file + ".partial";
-        {
-            std::ofstream out(partial);
-            out << gateway.port() << "\n";
-            if (!out) throw std::runtime_error("cannot write " + partial);
-        }
-        std::filesystem::rename(partial, options.port_file);
+        // Replaced atomically, so a reader never sees half a number.
+        liveprob::protocol::write_file_atomically(options.port_file, std::to_string(gateway.port()) + "\n",
+                                                  "the port file");
     }
     spdlog::info("gateway: http://{}:{}/ (WebSocket on /feed), subscribed to {}",
                  config.listen_address, gateway.port(), config.feed_endpoint);

@@ -17,7 +17,7 @@
 #include "command_registry.hpp"
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
-#include "liveprob/protocol/byte_file.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
@@ -68,7 +68,7 @@ std::vector<core::InboundMessage> read_frames(const std::string& path, const std
 
 std::vector<core::InboundMessage> read_feed(const SendFlags& f) {
     if (f.format == "jsonl") return read_json_lines(f.file);
-    const std::vector<std::uint8_t> bytes = protocol::read_byte_file(f.file);
+    const std::vector<std::uint8_t> bytes = protocol::read_whole_file_bytes(f.file, "the feed");
     if (f.format == "frames" || (f.format == "auto" && protocol::looks_like_frame_stream(bytes))) {
         return read_frames(f.file, bytes);
     }

@@ -1,6 +1,6 @@
 // Size-prefixed stream framing, the format of the journal and of recorded streams: each frame
 // is a 4-byte little-endian length followed by that many bytes (one FeedMessage buffer),
-// repeated to the end of the file. Pure byte work; see byte_file.hpp for files.
+// repeated to the end of the file. Pure byte work; see whole_file.hpp for files.
 #pragma once
 
 #include <cstddef>
