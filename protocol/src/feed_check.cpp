@@ -8,6 +8,7 @@
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace liveprob::protocol {
 
@@ -103,15 +104,19 @@ FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
 }
 
 std::string summary_json(const FeedCheckSummary& s) {
-    std::string kinds;
-    for (const auto& [kind, count] : s.kinds) {
-        kinds += fmt::format("{}\"{}\": {}", kinds.empty() ? "" : ", ", kind, count);
-    }
-    return fmt::format(
-        "{{\"form\": \"{}\", \"units\": {}, \"ok\": {}, \"skipped\": {}, \"bad\": {}, "
-        "\"kinds\": {{{}}}, \"repeated_seq\": {}, \"out_of_order_seq\": {}}}",
-        feed_form_name(s.form), s.units, s.ok, s.skipped, s.bad, kinds, s.repeated_seq,
-        s.out_of_order_seq);
+    std::string out;
+    JsonWriter json(out, JsonLayout::spaced);
+    json.begin_object()
+        .member("form", feed_form_name(s.form))
+        .member("units", s.units)
+        .member("ok", s.ok)
+        .member("skipped", s.skipped)
+        .member("bad", s.bad);
+    json.key("kinds").begin_object();
+    for (const auto& [kind, count] : s.kinds) json.member(kind, count);
+    json.end_object();
+    json.member("repeated_seq", s.repeated_seq).member("out_of_order_seq", s.out_of_order_seq).end_object();
+    return out;
 }
 
 }  // namespace liveprob::protocol

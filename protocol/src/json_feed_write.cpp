@@ -5,45 +5,28 @@
 #include <fmt/format.h>
 
 #include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace liveprob::protocol {
 
 namespace {
 
-// JSON string escaping: quote, backslash and control characters.
-std::string quoted(std::string_view text) {
-    std::string out = "\"";
-    for (char c : text) {
-        const auto u = static_cast<unsigned char>(c);
-        if (c == '"' || c == '\\') {
-            out.push_back('\\');
-            out.push_back(c);
-        } else if (u < 0x20) {
-            out += fmt::format("\\u{:04x}", u);
-        } else {
-            out.push_back(c);
-        }
-    }
-    out.push_back('"');
-    return out;
-}
-
-// Appends `, "name": value` pieces to a line under construction.
+// Adds `, "name": value` members to a line's object under construction.
 class LineWriter {
 public:
-    explicit LineWriter(std::string& out) : out_(out) {}
-    void raw(std::string_view name, std::string_view json) { out_ += fmt::format(", \"{}\": {}", name, json); }
-    void text(std::string_view name, std::string_view value) { raw(name, quoted(value)); }
-    void flag(std::string_view name, bool value) { raw(name, value ? "true" : "false"); }
+    explicit LineWriter(JsonWriter& json) : json_(json) {}
+    void text(std::string_view name, std::string_view value) { json_.member(name, value); }
+    void flag(std::string_view name, bool value) { json_.member(name, value); }
     void flag_if(std::string_view name, bool value) { if (value) flag(name, true); }
     template <class N>
-    void number(std::string_view name, N value) { raw(name, fmt::format("{}", value)); }
-    void pair(std::string_view name, const std::string& home, const std::string& away) {
-        raw(name, fmt::format("{{\"home\": {}, \"away\": {}}}", home, away));
+    void number(std::string_view name, N value) { json_.member(name, value); }
+    template <class V>
+    void pair(std::string_view name, const V& home, const V& away) {
+        json_.key(name).begin_object().member("home", home).member("away", away).end_object();
     }
 
 private:
-    std::string& out_;
+    JsonWriter& json_;
 };
 
 void write_setup(LineWriter& w, const core::MatchSetup& s) {
@@ -51,8 +34,8 @@ void write_setup(LineWriter& w, const core::MatchSetup& s) {
     w.text("home", s.home_name);
     w.text("away", s.away_name);
     w.flag_if("neutral", s.neutral_venue);
-    if (s.prior) w.pair("prior", fmt::format("{}", s.prior->home_goals), fmt::format("{}", s.prior->away_goals));
-    if (s.ratings) w.pair("ratings", quoted(s.ratings->home_key), quoted(s.ratings->away_key));
+    if (s.prior) w.pair("prior", s.prior->home_goals, s.prior->away_goals);
+    if (s.ratings) w.pair("ratings", s.ratings->home_key, s.ratings->away_key);
     if (s.scheduled_kickoff_us != 0) w.number("kickoff_us", s.scheduled_kickoff_us);
     if (s.format.half_minutes != defaults.half_minutes) w.number("half_minutes", s.format.half_minutes);
     w.flag_if("extra_time", s.format.extra_time);
@@ -61,8 +44,7 @@ void write_setup(LineWriter& w, const core::MatchSetup& s) {
     }
     w.flag_if("shootout", s.format.shootout);
     if (s.format.first_leg) {
-        w.pair("first_leg", fmt::format("{}", s.format.first_leg->home_goals),
-               fmt::format("{}", s.format.first_leg->away_goals));
+        w.pair("first_leg", s.format.first_leg->home_goals, s.format.first_leg->away_goals);
     }
 }
 
@@ -107,11 +89,16 @@ std::optional<std::uint32_t> parse_match_clock(std::string_view text) {
 
 std::string to_json_line(const core::InboundMessage& message) {
     const core::MessageHeader& h = message.header;
-    std::string out = fmt::format("{{\"match\": {}, \"seq\": {}, \"time_us\": {}, \"period\": \"{}\", "
-                                  "\"clock\": \"{}\", \"type\": \"{}\"",
-                                  h.match_id, h.source_seq, h.source_time_us, period_name(h.clock.period),
-                                  format_match_clock(h.clock.clock_ms), kind_name(message.body));
-    LineWriter w(out);
+    std::string out;
+    JsonWriter json(out, JsonLayout::spaced);
+    json.begin_object()
+        .member("match", h.match_id)
+        .member("seq", h.source_seq)
+        .member("time_us", h.source_time_us)
+        .member("period", period_name(h.clock.period))
+        .member("clock", format_match_clock(h.clock.clock_ms))
+        .member("type", kind_name(message.body));
+    LineWriter w(json);
     const core::Period clock_period = h.clock.period;
     std::visit(core::overloaded{
                    [&](const core::MatchSetup& m) { write_setup(w, m); },
@@ -149,7 +136,7 @@ std::string to_json_line(const core::InboundMessage& message) {
                    [&](const core::ClockSync& m) { if (!m.running) w.flag("running", false); },
                },
                message.body);
-    out.push_back('}');
+    json.end_object();
     return out;
 }
 

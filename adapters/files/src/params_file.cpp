@@ -1,5 +1,6 @@
 // Reading and writing the model parameter file (layout documented in params_file.hpp).
 #include "liveprob/files/params_file.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
 #include <fmt/format.h>
@@ -188,66 +189,37 @@ core::ModelParams load_params_file(const std::string& path) {
     return parse_params_json(text, path);
 }
 
-namespace {
-
-std::string json_string(std::string_view s) {
-    std::string out = "\"";
-    for (char c : s) {
-        if (c == '"' || c == '\\') {
-            out += '\\';
-            out += c;
-        } else if (static_cast<unsigned char>(c) < 0x20) {
-            out += fmt::format("\\u{:04x}", static_cast<unsigned>(static_cast<unsigned char>(c)));
-        } else {
-            out += c;
-        }
-    }
-    return out + "\"";
-}
-
-std::string exact(double x) { return fmt::format("{:.17g}", x); }
-
-}  // namespace
-
 std::string params_to_json(const core::ModelParams& params, const ParamsFileNotes& notes) {
     core::ModelParams copy = params;
-    std::string out = fmt::format("{{\n  \"kind\": \"{}\",\n  \"version\": {}", kKind, kVersion);
+    std::string out;
+    protocol::JsonWriter json(out, protocol::JsonLayout::indented);
+    json.begin_object().member("kind", kKind).member("version", kVersion);
     std::string_view open_section;
-    auto close_section = [&] {
-        if (!open_section.empty()) out += "\n  }";
-        open_section = {};
-    };
     for (const auto& f : number_fields()) {
         if (f.section != open_section) {
-            close_section();
-            if (!f.section.empty()) out += fmt::format(",\n  {}: {{", json_string(f.section));
+            if (!open_section.empty()) json.end_object();
+            if (!f.section.empty()) json.key(f.section).begin_object();
             open_section = f.section;
-        } else if (!f.section.empty()) {
-            out += ",";
         }
-        const std::string value = exact(number_in(copy, f));
-        if (f.section.empty()) out += fmt::format(",\n  {}: {}", json_string(short_key(f)), value);
-        else out += fmt::format("\n    {}: {}", json_string(short_key(f)), value);
-        if (f.section == "red_cards" && short_key(f) == "opponent_per_card")
-            out += fmt::format(",\n    \"max_cards\": {}", params.red_cards.max_cards);
+        json.member(short_key(f), number_in(copy, f));
+        if (f.section == "red_cards" && short_key(f) == "opponent_per_card") {
+            json.member("max_cards", params.red_cards.max_cards);
+        }
     }
-    close_section();
-    out += fmt::format(",\n  \"kappa\": {}",
-                       std::isinf(params.kappa) ? std::string("\"infinity\"") : exact(params.kappa));
-    out += fmt::format(",\n  \"quadrature_nodes\": {}", params.quadrature_nodes);
-    auto map_section = [&](std::string_view name, const auto& entries, auto render) {
+    if (!open_section.empty()) json.end_object();
+    if (std::isinf(params.kappa)) json.member("kappa", "infinity");
+    else json.member("kappa", params.kappa);
+    json.member("quadrature_nodes", params.quadrature_nodes);
+    auto map_section = [&](std::string_view name, const auto& entries) {
         if (entries.empty()) return;
-        out += fmt::format(",\n  {}: {{", json_string(name));
-        bool first = true;
-        for (const auto& [k, v] : entries) {
-            out += fmt::format("{}\n    {}: {}", first ? "" : ",", json_string(k), render(v));
-            first = false;
-        }
-        out += "\n  }";
+        json.key(name).begin_object();
+        for (const auto& [k, v] : entries) json.member(k, v);
+        json.end_object();
     };
-    map_section("notes", notes.sources, [](const std::string& s) { return json_string(s); });
-    map_section("standard_errors", notes.standard_errors, [](double x) { return exact(x); });
-    out += "\n}\n";
+    map_section("notes", notes.sources);
+    map_section("standard_errors", notes.standard_errors);
+    json.end_object();
+    out.push_back('\n');
     return out;
 }
 

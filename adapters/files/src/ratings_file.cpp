@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "liveprob/files/csv_line.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 
@@ -16,20 +17,12 @@ namespace {
 
 constexpr std::string_view kKind = "liveprob-team-ratings";
 
-std::string json_text(std::string_view s) {
-    std::string out = "\"";
-    for (char c : s) {
-        if (c == '"' || c == '\\') out += '\\';
-        if (static_cast<unsigned char>(c) < 0x20) {
-            out += fmt::format("\\u{:04x}", static_cast<unsigned>(static_cast<unsigned char>(c)));
-            continue;
-        }
-        out += c;
-    }
-    return out + "\"";
+// Standard errors that could not be estimated are NaN in memory and null in the file.
+void number_or_null(protocol::JsonWriter& json, std::string_view key, double x) {
+    json.key(key);
+    if (std::isfinite(x)) json.value(x);
+    else json.null();
 }
-
-std::string num(double x) { return std::isfinite(x) ? fmt::format("{:.17g}", x) : "null"; }
 
 class Fields {
 public:
@@ -68,27 +61,39 @@ private:
 }  // namespace
 
 std::string ratings_to_json(const fit::Ratings& r) {
-    std::string out = fmt::format("{{\n  \"kind\": \"{}\",\n  \"version\": 1,\n  \"model\": \"dixon-coles\",\n", kKind);
-    out += fmt::format("  \"as_of\": {},\n", r.as_of_day ? json_text(fit::iso_date(*r.as_of_day)) : "null");
-    out += fmt::format("  \"decay_per_day\": {},\n  \"low_score_rho\": {},\n  \"low_score_rho_se\": {},\n",
-                       num(r.xi), num(r.rho), num(r.rho_se));
-    out += fmt::format("  \"intercept\": {},\n  \"intercept_se\": {},\n", num(r.intercept), num(r.intercept_se));
-    out += fmt::format("  \"home_advantage\": {},\n  \"home_advantage_se\": {},\n", num(r.home_advantage),
-                       num(r.home_advantage_se));
+    std::string out;
+    protocol::JsonWriter json(out, protocol::JsonLayout::indented);
+    json.begin_object().member("kind", kKind).member("version", 1).member("model", "dixon-coles");
+    json.key("as_of");
+    if (r.as_of_day) json.value(fit::iso_date(*r.as_of_day));
+    else json.null();
+    number_or_null(json, "decay_per_day", r.xi);
+    number_or_null(json, "low_score_rho", r.rho);
+    number_or_null(json, "low_score_rho_se", r.rho_se);
+    number_or_null(json, "intercept", r.intercept);
+    number_or_null(json, "intercept_se", r.intercept_se);
+    number_or_null(json, "home_advantage", r.home_advantage);
+    number_or_null(json, "home_advantage_se", r.home_advantage_se);
     const auto& d = r.diagnostics;
-    out += fmt::format("  \"fit\": {{\"log_likelihood\": {}, \"matches\": {}, \"iterations\": {}, \"converged\": {}, "
-                       "\"warnings\": [",
-                       num(d.log_likelihood), d.matches, d.iterations, d.converged);
-    for (std::size_t i = 0; i < d.warnings.size(); ++i) out += (i ? ", " : "") + json_text(d.warnings[i]);
-    out += "]},\n  \"teams\": [";
-    for (std::size_t i = 0; i < r.teams.size(); ++i) {
-        const auto& t = r.teams[i];
-        out += fmt::format("{}\n    {{\"name\": {}, \"attack\": {}, \"attack_se\": {}, \"defence\": {}, "
-                           "\"defence_se\": {}, \"matches\": {}, \"weighted_matches\": {}, \"shrunk\": {}}}",
-                           i ? "," : "", json_text(t.name), num(t.attack), num(t.attack_se), num(t.defence),
-                           num(t.defence_se), t.matches, num(t.weighted_matches), t.shrunk);
+    json.key("fit").begin_object_on_one_line();
+    number_or_null(json, "log_likelihood", d.log_likelihood);
+    json.member("matches", d.matches).member("iterations", d.iterations).member("converged", d.converged);
+    json.key("warnings").begin_array();
+    for (const auto& warning : d.warnings) json.value(warning);
+    json.end_array().end_object();
+    json.key("teams").begin_array();
+    for (const auto& t : r.teams) {
+        json.begin_object_on_one_line().member("name", t.name);
+        number_or_null(json, "attack", t.attack);
+        number_or_null(json, "attack_se", t.attack_se);
+        number_or_null(json, "defence", t.defence);
+        number_or_null(json, "defence_se", t.defence_se);
+        json.member("matches", t.matches);
+        number_or_null(json, "weighted_matches", t.weighted_matches);
+        json.member("shrunk", t.shrunk).end_object();
     }
-    out += "\n  ]\n}\n";
+    json.end_array().end_object();
+    out.push_back('\n');
     return out;
 }
 

@@ -50,24 +50,4 @@ std::variant<WatchRequest, RequestError> parse_client_request(std::string_view t
     return request;
 }
 
-std::string json_quoted(std::string_view text) {
-    std::string out = "\"";
-    for (const char c : text) {
-        const auto byte = static_cast<unsigned char>(c);
-        if (c == '"' || c == '\\') {
-            out += '\\';
-            out += c;
-        } else if (byte < 0x20) {
-            static constexpr char kHex[] = "0123456789abcdef";
-            out += "\\u00";
-            out += kHex[byte >> 4];
-            out += kHex[byte & 0xf];
-        } else {
-            out += c;
-        }
-    }
-    out += '"';
-    return out;
-}
-
 }  // namespace liveprob::gateway

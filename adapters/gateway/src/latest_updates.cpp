@@ -1,8 +1,6 @@
 #include "liveprob/gateway/latest_updates.hpp"
 
-#include <fmt/format.h>
-
-#include <iterator>
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace liveprob::gateway {
 
@@ -61,14 +59,11 @@ std::vector<std::pair<std::uint64_t, Frame>> LatestUpdates::all_latest() const {
 }
 
 std::string LatestUpdates::render_state_json() const {
-    std::string out = R"({"kind":"state","matches":[)";
-    bool first = true;
-    for (const auto& [id, entry] : matches_) {
-        if (!first) out += ',';
-        first = false;
-        out += *entry.frame;
-    }
-    out += "]}";
+    std::string out;
+    protocol::JsonWriter json(out);
+    json.begin_object().member("kind", "state").key("matches").begin_array();
+    for (const auto& [id, entry] : matches_) json.raw(*entry.frame);
+    json.end_array().end_object();
     return out;
 }
 
@@ -76,17 +71,22 @@ std::optional<std::string> LatestUpdates::render_timeline_json(std::uint64_t mat
     auto found = matches_.find(match_id);
     if (found == matches_.end()) return std::nullopt;
     std::string out;
-    auto it = std::back_inserter(out);
-    fmt::format_to(it, R"({{"kind":"timeline","match_id":{},"points":[)", match_id);
-    bool first = true;
+    protocol::JsonWriter json(out);
+    json.begin_object().member("kind", "timeline").member("match_id", match_id).key("points").begin_array();
     for (const auto& p : found->second.timeline) {
-        fmt::format_to(it, "{}[{},{},{},{},{},{},{},{},{}]", first ? "" : ",",
-                       static_cast<unsigned>(p.period), p.clock_ms, p.p_home, p.p_draw, p.p_away,
-                       p.home_goals, p.away_goals, static_cast<unsigned>(p.home_reds),
-                       static_cast<unsigned>(p.away_reds));
-        first = false;
+        json.begin_array()
+            .value(static_cast<unsigned>(p.period))
+            .value(p.clock_ms)
+            .value(p.p_home)
+            .value(p.p_draw)
+            .value(p.p_away)
+            .value(p.home_goals)
+            .value(p.away_goals)
+            .value(static_cast<unsigned>(p.home_reds))
+            .value(static_cast<unsigned>(p.away_reds))
+            .end_array();
     }
-    out += "]}";
+    json.end_array().end_object();
     return out;
 }
 

@@ -1,13 +1,13 @@
 #include "websocket_session.hpp"
 
 #include <boost/asio/buffer.hpp>
-#include <fmt/format.h>
 
 #include <algorithm>
 #include <variant>
 #include <vector>
 
 #include "liveprob/gateway/client_request.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace liveprob::gateway {
 
@@ -66,7 +66,9 @@ void WebSocketSession::handle_request(std::string_view text) {
     auto parsed = parse_client_request(text);
     if (auto* error = std::get_if<RequestError>(&parsed)) {
         ++hub_.counters.bad_requests;
-        return queue_reply(fmt::format(R"({{"kind":"error","reason":{}}})", json_quoted(error->reason)));
+        std::string reply;
+        protocol::JsonWriter(reply).begin_object().member("kind", "error").member("reason", error->reason).end_object();
+        return queue_reply(std::move(reply));
     }
     const auto& request = std::get<WatchRequest>(parsed);
     std::vector<std::uint64_t> newly_watched;
@@ -94,8 +96,12 @@ void WebSocketSession::handle_request(std::string_view text) {
 
     std::vector<std::uint64_t> listed(watched_.begin(), watched_.end());
     std::sort(listed.begin(), listed.end());
-    queue_reply(fmt::format(R"({{"kind":"watching","all":{},"match_ids":[{}]}})", watch_all_,
-                            fmt::join(listed, ",")));
+    std::string reply;
+    protocol::JsonWriter json(reply);
+    json.begin_object().member("kind", "watching").member("all", watch_all_).key("match_ids").begin_array();
+    for (const std::uint64_t id : listed) json.value(id);
+    json.end_array().end_object();
+    queue_reply(std::move(reply));
     // A late joiner gets the latest state of each newly watched match straight away.
     for (std::uint64_t id : newly_watched) {
         if (Frame frame = hub_.latest.latest(id)) offer(id, frame);

@@ -16,7 +16,8 @@ namespace {
 constexpr std::array<std::string_view, backtest::kForecasters> kForecasterColour{"#1f5fa8", "#9a9a9a", "#d08a1e"};
 constexpr std::array<std::string_view, scoring::kOutcomes> kOutcomeColour{"#1f5fa8", "#7a7a7a", "#b8322a"};
 
-std::string escape(std::string_view text) {
+// The one HTML escape: text placed in the page's elements and attributes.
+std::string html_escape(std::string_view text) {
     std::string out;
     for (const char c : text) {
         switch (c) {
@@ -81,7 +82,7 @@ std::string reliability_chart(const scoring::ReliabilityDiagram& diagram, scorin
     auto flip = [&](double v) { return size - pos(v); };
     std::uint64_t most = 1;
     for (const auto& bin : diagram) most = std::max(most, bin.count);
-    std::string out = fmt::format("<svg width=\"{0}\" height=\"{0}\" role=\"img\"><title>{1}</title>", size, escape(caption));
+    std::string out = fmt::format("<svg width=\"{0}\" height=\"{0}\" role=\"img\"><title>{1}</title>", size, html_escape(caption));
     out += fmt::format("<rect x=\"{0}\" y=\"{0}\" width=\"{1}\" height=\"{1}\" fill=\"none\" stroke=\"#bbb\"/>", pad, size - 2 * pad);
     out += fmt::format("<line x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" stroke=\"#bbb\" stroke-dasharray=\"3\"/>", pos(0), flip(0), pos(1), flip(1));
     for (const auto& bin : diagram) {
@@ -91,7 +92,7 @@ std::string reliability_chart(const scoring::ReliabilityDiagram& diagram, scorin
                            pos(bin.mean_forecast()), flip(bin.observed_rate()), radius,
                            kOutcomeColour[static_cast<std::size_t>(outcome)], bin.count, bin.mean_forecast(), bin.observed_rate());
     }
-    out += fmt::format("<text x=\"{}\" y=\"12\" font-size=\"11\">{}</text>", pad, escape(caption));
+    out += fmt::format("<text x=\"{}\" y=\"12\" font-size=\"11\">{}</text>", pad, html_escape(caption));
     return out + "</svg>";
 }
 
@@ -101,8 +102,8 @@ std::string timeline_chart(const backtest::Timeline& t) {
     for (const auto& p : t.points) last = std::max(last, p.minute);
     auto x = [&](double minute) { return left + (width - left - 10) * minute / last; };
     auto y = [&](double p) { return top + (height - top - bottom) * (1.0 - p); };
-    std::string out = fmt::format("<svg width=\"{}\" height=\"{}\" role=\"img\"><title>{} v {}</title>", width, height, escape(t.home_name), escape(t.away_name));
-    out += fmt::format("<text x=\"{}\" y=\"14\" font-size=\"12\">{} v {}</text>", left, escape(t.home_name), escape(t.away_name));
+    std::string out = fmt::format("<svg width=\"{}\" height=\"{}\" role=\"img\"><title>{} v {}</title>", width, height, html_escape(t.home_name), html_escape(t.away_name));
+    out += fmt::format("<text x=\"{}\" y=\"14\" font-size=\"12\">{} v {}</text>", left, html_escape(t.home_name), html_escape(t.away_name));
     for (const double minute : {0.0, 45.0, 90.0}) {
         out += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#ddd\"/><text x=\"{0:.1f}\" y=\"{3}\" font-size=\"10\" text-anchor=\"middle\">{4}</text>",
                            x(minute), top, height - bottom, height - 8, minute);
@@ -126,14 +127,14 @@ std::string timeline_chart(const backtest::Timeline& t) {
 }  // namespace
 
 std::string report_html(const backtest::BacktestResult& r, const ReportHeading& heading) {
-    std::string out = "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>" + escape(heading.title) +
+    std::string out = "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>" + html_escape(heading.title) +
                       "</title><style>body{font-family:sans-serif;margin:2em;color:#222;max-width:1100px}"
                       "table{border-collapse:collapse;font-size:13px}td,th{border:1px solid #ccc;padding:3px 6px;text-align:right}"
                       ".note{background:#f6f1e3;padding:8px;border-left:4px solid #d08a1e}.grid svg{margin:2px}</style></head><body>\n";
-    out += "<h1>" + escape(heading.title) + "</h1>\n";
+    out += "<h1>" + html_escape(heading.title) + "</h1>\n";
     out += "<p class=\"note\">Every figure here is a model estimate scored after the fact, not a fact and not advice.</p>\n";
     out += fmt::format("<p>{}<br>Matches: {} scored, {} abandoned, {} unfinished, {} unusable. Messages: {} ({} refused by the engine, {} duplicates, {} late).</p>\n",
-                       escape(heading.source), r.scored, r.abandoned, r.unfinished, r.unusable, r.messages, r.rejected, r.duplicates, r.late);
+                       html_escape(heading.source), r.scored, r.abandoned, r.unfinished, r.unusable, r.messages, r.rejected, r.duplicates, r.late);
     out += "<h2>Scores by minute</h2><p>Lower is better. <b>fixed_prior</b>: the pre-match forecast held all match; <b>uniform_timing_no_state</b>: the engine with a flat goal-timing profile and no score-state or red-card effects.</p>\n";
     out += rps_chart(r) + score_table(r);
     out += "<h2>Reliability of the model</h2><p>Observed frequency against forecast probability, ten bins; on the dashed line a forecast of p happens p of the time. Dot size grows with the bin's count.</p><div class=\"grid\">\n";

@@ -1,66 +1,97 @@
 #include "liveprob/report/report_json.hpp"
 
-#include <fmt/format.h>
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace liveprob::report {
 
 namespace {
 
-// Shortest text that reads back to the same double.
-std::string number(double x) { return fmt::format("{}", x); }
+using protocol::JsonWriter;
 
-void append_calibration(std::string& out, const scoring::CalibrationTable& table) {
-    out += "\"calibration\":{";
+void write_calibration(JsonWriter& json, const scoring::CalibrationTable& table) {
+    json.key("calibration").begin_object();
     for (int k = 0; k < scoring::kOutcomes; ++k) {
         const auto outcome = static_cast<scoring::Outcome>(k);
-        out += fmt::format("{}\"{}\":[", k ? "," : "", scoring::outcome_name(outcome));
+        json.key(scoring::outcome_name(outcome)).begin_array();
         const auto& diagram = table.diagram(outcome);
         for (int b = 0; b < scoring::kReliabilityBins; ++b) {
             const auto& bin = diagram[static_cast<std::size_t>(b)];
-            out += fmt::format("{}{{\"bin\":{},\"low\":{},\"high\":{},\"n\":{},\"mean_forecast\":{},\"observed_rate\":{}}}",
-                               b ? "," : "", b, number(b / 10.0), number((b + 1) / 10.0), bin.count,
-                               number(bin.mean_forecast()), number(bin.observed_rate()));
+            json.begin_object()
+                .member("bin", b)
+                .member("low", b / 10.0)
+                .member("high", (b + 1) / 10.0)
+                .member("n", bin.count)
+                .member("mean_forecast", bin.mean_forecast())
+                .member("observed_rate", bin.observed_rate())
+                .end_object();
         }
-        out += "]";
+        json.end_array();
     }
-    out += "}";
+    json.end_object();
 }
 
-void append_scores(std::string& out, const scoring::ScoreAccumulator& acc) {
+void write_scores(JsonWriter& json, const scoring::ScoreAccumulator& acc) {
     const auto& cal = acc.calibration();
-    out += fmt::format("{{\"n\":{},\"brier\":{},\"log_loss\":{},\"rps\":{},\"ece\":{},", acc.count(),
-                       number(acc.mean_brier()), number(acc.mean_log_loss()), number(acc.mean_rps()),
-                       number(cal.expected_calibration_error()));
-    out += fmt::format("\"ece_by_outcome\":{{\"home\":{},\"draw\":{},\"away\":{}}},",
-                       number(cal.expected_calibration_error(scoring::Outcome::home)),
-                       number(cal.expected_calibration_error(scoring::Outcome::draw)),
-                       number(cal.expected_calibration_error(scoring::Outcome::away)));
-    append_calibration(out, cal);
-    out += "}";
+    json.begin_object()
+        .member("n", acc.count())
+        .member("brier", acc.mean_brier())
+        .member("log_loss", acc.mean_log_loss())
+        .member("rps", acc.mean_rps())
+        .member("ece", cal.expected_calibration_error());
+    json.key("ece_by_outcome")
+        .begin_object()
+        .member("home", cal.expected_calibration_error(scoring::Outcome::home))
+        .member("draw", cal.expected_calibration_error(scoring::Outcome::draw))
+        .member("away", cal.expected_calibration_error(scoring::Outcome::away))
+        .end_object();
+    write_calibration(json, cal);
+    json.end_object();
 }
 
 }  // namespace
 
 std::string report_json(const backtest::BacktestResult& r) {
-    std::string out = "{\"kind\":\"liveprob-replay-report\",\"version\":1,\n";
-    out += fmt::format("\"matches\":{{\"total\":{},\"scored\":{},\"abandoned\":{},\"unfinished\":{},\"unusable\":{}}},\n",
-                       r.matches, r.scored, r.abandoned, r.unfinished, r.unusable);
-    out += fmt::format("\"messages\":{{\"total\":{},\"rejected\":{},\"duplicates\":{},\"late\":{}}},\n",
-                       r.messages, r.rejected, r.duplicates, r.late);
-    out += "\"forecasters\":[";
-    for (int f = 0; f < backtest::kForecasters; ++f) out += fmt::format("{}\"{}\"", f ? "," : "", backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
-    out += "],\n\"buckets\":[\n";
-    for (int b = 0; b < scoring::kBuckets; ++b) {
-        out += fmt::format("{}{{\"minute\":{},\"label\":\"{}\",\"n\":{}", b ? ",\n" : "",
-                           scoring::kBucketMinutes[static_cast<std::size_t>(b)], scoring::bucket_label(b),
-                           r.at(b, backtest::Forecaster::model).count());
-        for (int f = 0; f < backtest::kForecasters; ++f) {
-            out += fmt::format(",\"{}\":", backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
-            append_scores(out, r.at(b, static_cast<backtest::Forecaster>(f)));
-        }
-        out += "}";
+    std::string out;
+    // Compact, with a line per section and per bucket for a person skimming the file.
+    JsonWriter json(out);
+    json.begin_object().member("kind", "liveprob-replay-report").member("version", 1).line_break();
+    json.key("matches")
+        .begin_object()
+        .member("total", r.matches)
+        .member("scored", r.scored)
+        .member("abandoned", r.abandoned)
+        .member("unfinished", r.unfinished)
+        .member("unusable", r.unusable)
+        .end_object()
+        .line_break();
+    json.key("messages")
+        .begin_object()
+        .member("total", r.messages)
+        .member("rejected", r.rejected)
+        .member("duplicates", r.duplicates)
+        .member("late", r.late)
+        .end_object()
+        .line_break();
+    json.key("forecasters").begin_array();
+    for (int f = 0; f < backtest::kForecasters; ++f) {
+        json.value(backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
     }
-    out += "\n]}\n";
+    json.end_array().line_break();
+    json.key("buckets").begin_array();
+    for (int b = 0; b < scoring::kBuckets; ++b) {
+        json.line_break().begin_object()
+            .member("minute", scoring::kBucketMinutes[static_cast<std::size_t>(b)])
+            .member("label", scoring::bucket_label(b))
+            .member("n", r.at(b, backtest::Forecaster::model).count());
+        for (int f = 0; f < backtest::kForecasters; ++f) {
+            const auto forecaster = static_cast<backtest::Forecaster>(f);
+            json.key(backtest::forecaster_name(forecaster));
+            write_scores(json, r.at(b, forecaster));
+        }
+        json.end_object();
+    }
+    json.line_break().end_array().end_object();
+    out.push_back('\n');
     return out;
 }
 

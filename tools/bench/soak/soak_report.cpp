@@ -1,5 +1,7 @@
 #include "soak_report.hpp"
 
+#include "liveprob/protocol/json_writer.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -93,28 +95,57 @@ std::string markdown_report(const std::string& description, const PhaseResult& s
 
 std::string json_report(const std::string& description, const PhaseResult& soak, const PhaseResult* baseline,
                         double warmup) {
+    // Times and shares rounded to what the measurement can tell (ms to 4 places, seconds to 3).
+    const auto rounded = [](double x, double places) {
+        const double scale = std::pow(10.0, places);
+        return std::round(x * scale) / scale;
+    };
+    std::string out;
+    protocol::JsonWriter json(out);
     const auto phase = [&](const PhaseResult& r) {
         const LatencyTails t = tails(r.arrivals, warmup, 1e300);
-        std::string samples;
-        for (const Sample& s : r.samples) {
-            std::string procs;
-            for (const auto& p : s.processes) {
-                procs += fmt::format("{}{{\"name\":\"{}\",\"rss_kib\":{},\"cpu_share\":{:.4f}}}", procs.empty() ? "" : ",",
-                                     p.name, p.rss_kib, p.cpu_share);
+        json.begin_object()
+            .member("backend", r.settings.backend == Backend::serve ? "serve" : "bare_forwarder")
+            .member("rate", r.settings.rate)
+            .member("seconds", r.settings.seconds)
+            .member("shards", r.settings.shards)
+            .member("sent", r.sent)
+            .member("send_seconds", rounded(r.send_seconds, 3))
+            .member("event_updates", r.arrivals.size())
+            .member("missing", missing(r))
+            .member("tick_updates", r.tick_times.size())
+            .member("duplicates", r.duplicates)
+            .member("accepted", r.accepted)
+            .member("rejected", r.rejected);
+        json.key("latency_ms")
+            .begin_object()
+            .member("p50", rounded(t.p50_ms, 4))
+            .member("p99", rounded(t.p99_ms, 4))
+            .member("p99_9", rounded(t.p999_ms, 4))
+            .member("max", rounded(t.max_ms, 4))
+            .end_object();
+        json.key("samples").begin_array();
+        for (const Sample& sample : r.samples) {
+            json.begin_object().member("t", rounded(sample.at_seconds, 3)).key("processes").begin_array();
+            for (const auto& p : sample.processes) {
+                json.begin_object()
+                    .member("name", p.name)
+                    .member("rss_kib", p.rss_kib)
+                    .member("cpu_share", rounded(p.cpu_share, 4))
+                    .end_object();
             }
-            samples += fmt::format("{}{{\"t\":{:.3f},\"processes\":[{}]}}", samples.empty() ? "" : ",", s.at_seconds, procs);
+            json.end_array().end_object();
         }
-        return fmt::format(
-            "{{\"backend\":\"{}\",\"rate\":{},\"seconds\":{},\"shards\":{},\"sent\":{},\"send_seconds\":{:.3f},"
-            "\"event_updates\":{},\"missing\":{},\"tick_updates\":{},\"duplicates\":{},\"accepted\":{},"
-            "\"rejected\":{},\"latency_ms\":{{\"p50\":{:.4f},\"p99\":{:.4f},\"p99_9\":{:.4f},\"max\":{:.4f}}},"
-            "\"samples\":[{}]}}",
-            r.settings.backend == Backend::serve ? "serve" : "bare_forwarder", r.settings.rate, r.settings.seconds,
-            r.settings.shards, r.sent, r.send_seconds, r.arrivals.size(), missing(r), r.tick_times.size(),
-            r.duplicates, r.accepted, r.rejected, t.p50_ms, t.p99_ms, t.p999_ms, t.max_ms, samples);
+        json.end_array().end_object();
     };
-    return fmt::format("{{\"description\":\"{}\",\"warmup_seconds\":{},\"soak\":{},\"baseline\":{}}}\n", description,
-                       warmup, phase(soak), baseline ? phase(*baseline) : "null");
+    json.begin_object().member("description", description).member("warmup_seconds", warmup).key("soak");
+    phase(soak);
+    json.key("baseline");
+    if (baseline) phase(*baseline);
+    else json.null();
+    json.end_object();
+    out.push_back('\n');
+    return out;
 }
 
 }  // namespace liveprob::soak

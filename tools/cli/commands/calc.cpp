@@ -14,6 +14,7 @@
 #include "command_registry.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/core/position.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace {
 
@@ -123,40 +124,46 @@ lp::core::MatchClock parse_minute(const std::string& text, const lp::core::Compe
     throw UsageError("--minute: beyond the end of extra time (use 120+S for its stoppage)");
 }
 
-std::string num(double v) { return fmt::format("{:.17g}", v); }
 std::string pct(double v) { return fmt::format("{:5.1f}%", 100.0 * v); }
 
 void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& position, const std::string& format_name) {
-    std::string s = "{";
-    s += fmt::format("\"home\":{},\"draw\":{},\"away\":{},", num(o.p_home), num(o.p_draw), num(o.p_away));
+    std::string s;
+    lp::protocol::JsonWriter json(s);
+    auto home_away = [&](std::string_view name, double home, double away) {
+        json.key(name).begin_object().member("home", home).member("away", away).end_object();
+    };
+    json.begin_object().member("home", o.p_home).member("draw", o.p_draw).member("away", o.p_away);
     if (o.has_advance) {
-        s += fmt::format("\"advance\":{{\"home\":{},\"away\":{}}},", num(o.p_advance_home), num(o.p_advance_away));
+        home_away("advance", o.p_advance_home, o.p_advance_away);
     } else {
-        s += "\"advance\":null,";
+        json.key("advance").null();
     }
-    s += fmt::format("\"expected_goals\":{{\"home\":{},\"away\":{}}},", num(o.expected_home_goals),
-                     num(o.expected_away_goals));
-    s += fmt::format("\"next_goal\":{{\"home\":{},\"away\":{},\"none\":{}}},", num(o.next_goal_home),
-                     num(o.next_goal_away), num(o.next_goal_none));
-    s += "\"over\":{";
+    home_away("expected_goals", o.expected_home_goals, o.expected_away_goals);
+    json.key("next_goal")
+        .begin_object()
+        .member("home", o.next_goal_home)
+        .member("away", o.next_goal_away)
+        .member("none", o.next_goal_none)
+        .end_object();
+    json.key("over").begin_object();
     for (int i = 0; i < lp::core::kTotalsLines; ++i) {
-        s += fmt::format("{}\"{:.1f}\":{}", i ? "," : "", lp::core::totals_line(i), num(o.p_over[static_cast<std::size_t>(i)]));
+        json.member(fmt::format("{:.1f}", lp::core::totals_line(i)), o.p_over[static_cast<std::size_t>(i)]);
     }
-    s += fmt::format("}},\"both_score\":{},\"tail_mass\":{},", num(o.p_both_score), num(o.tail_mass));
-    s += "\"goals_added\":[";
-    for (std::size_t i = 0; i < o.goals_added.size(); ++i) {
-        if (i) s += ',';
-        s += '[';
-        for (std::size_t j = 0; j < o.goals_added[i].size(); ++j) {
-            if (j) s += ',';
-            s += num(o.goals_added[i][j]);
-        }
-        s += ']';
+    json.end_object().member("both_score", o.p_both_score).member("tail_mass", o.tail_mass);
+    json.key("goals_added").begin_array();
+    for (const auto& row : o.goals_added) {
+        json.begin_array();
+        for (const double p : row) json.value(p);
+        json.end_array();
     }
-    s += fmt::format("],\"position\":{{\"period\":\"{}\",\"clock_ms\":{},\"score\":[{},{}],\"reds\":[{},{}],"
-                     "\"format\":\"{}\"}}}}",
-                     lp::core::period_name(position.clock.period), position.clock.clock_ms, position.score[0],
-                     position.score[1], position.reds[0], position.reds[1], format_name);
+    json.end_array();
+    json.key("position")
+        .begin_object()
+        .member("period", lp::core::period_name(position.clock.period))
+        .member("clock_ms", position.clock.clock_ms);
+    json.key("score").begin_array().value(position.score[0]).value(position.score[1]).end_array();
+    json.key("reds").begin_array().value(position.reds[0]).value(position.reds[1]).end_array();
+    json.member("format", format_name).end_object().end_object();
     fmt::print("{}\n", s);
 }
 

@@ -9,11 +9,13 @@
 
 #include "command_registry.hpp"
 #include "liveprob/fit/prices_to_prior.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 
 namespace {
 
 using liveprob::cli::UsageError;
 namespace fit = liveprob::fit;
+namespace protocol = liveprob::protocol;
 
 struct PricesOptions {
     std::vector<double> three_way;
@@ -39,11 +41,19 @@ int run_prices(const PricesOptions& o) {
         throw UsageError(e.what());
     }
     if (o.json) {
-        std::cout << fmt::format(
-            "{{\"lambda_home\": {:.17g}, \"lambda_away\": {:.17g}, \"fair_home\": {:.17g}, \"fair_draw\": {:.17g}, "
-            "\"fair_away\": {:.17g}, \"overround\": {:.17g}, \"insider_share\": {:.17g}, \"residual\": {:.3g}}}\n",
-            r.lambda_home, r.lambda_away, r.fair_home, r.fair_draw, r.fair_away, r.overround_1x2, r.insider_share,
-            r.residual);
+        std::string out;
+        protocol::JsonWriter(out, protocol::JsonLayout::spaced)
+            .begin_object()
+            .member("lambda_home", r.lambda_home)
+            .member("lambda_away", r.lambda_away)
+            .member("fair_home", r.fair_home)
+            .member("fair_draw", r.fair_draw)
+            .member("fair_away", r.fair_away)
+            .member("overround", r.overround_1x2)
+            .member("insider_share", r.insider_share)
+            .member("residual", r.residual)
+            .end_object();
+        std::cout << out << '\n';
     } else {
         std::cout << fmt::format("fair probabilities {:.4f} / {:.4f} / {:.4f} (margin {:.2f}%, {} removal)\n",
                                  r.fair_home, r.fair_draw, r.fair_away, 100.0 * r.overround_1x2, o.method);

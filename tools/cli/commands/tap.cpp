@@ -15,6 +15,7 @@
 #include "command_registry.hpp"
 #include "liveprob/clients/snapshot_client.hpp"
 #include "liveprob/clients/update_subscriber.hpp"
+#include "liveprob/protocol/json_writer.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
 namespace liveprob::cli {
@@ -38,25 +39,45 @@ struct TapFlags {
     std::string client_key;
 };
 
-// Doubles with 17 significant digits: the text gives back the exact published value.
+// Doubles in their shortest exact form: the text gives back the exact published value.
 std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
     const core::Outputs& o = u.outputs;
-    std::string over;
-    for (std::size_t i = 0; i < o.p_over.size(); ++i) over += fmt::format("{}{:.17g}", i ? "," : "", o.p_over[i]);
-    return fmt::format(
-        "{{\"source\":\"{}\",\"match\":{},\"output_seq\":{},\"input_seq\":{},\"tick\":{},\"status\":\"{}\","
-        "\"period\":\"{}\",\"clock_ms\":{},\"home_goals\":{},\"away_goals\":{},\"home_reds\":{},\"away_reds\":{},"
-        "\"p_home\":{:.17g},\"p_draw\":{:.17g},\"p_away\":{:.17g},\"has_advance\":{},\"p_advance_home\":{:.17g},"
-        "\"p_advance_away\":{:.17g},\"expected_home_goals\":{:.17g},\"expected_away_goals\":{:.17g},"
-        "\"next_goal_home\":{:.17g},\"next_goal_away\":{:.17g},\"next_goal_none\":{:.17g},\"p_over\":[{}],"
-        "\"p_both_score\":{:.17g},\"events_applied\":{},\"receive_time_us\":{},\"publish_time_us\":{},"
-        "\"compute_ns\":{}}}",
-        source, u.meta.match_id, u.meta.output_seq, u.meta.input_seq, u.meta.receive_time_us == 0 ? "true" : "false",
-        status_name(o.status), period_name(o.clock.period), o.clock.clock_ms, o.home_goals, o.away_goals, o.home_reds,
-        o.away_reds, o.p_home, o.p_draw, o.p_away, o.has_advance ? "true" : "false", o.p_advance_home,
-        o.p_advance_away, o.expected_home_goals, o.expected_away_goals, o.next_goal_home, o.next_goal_away,
-        o.next_goal_none, over, o.p_both_score, o.events_applied, u.meta.receive_time_us, u.meta.publish_time_us,
-        u.meta.compute_ns);
+    std::string out;
+    protocol::JsonWriter json(out);
+    json.begin_object()
+        .member("source", source)
+        .member("match", u.meta.match_id)
+        .member("output_seq", u.meta.output_seq)
+        .member("input_seq", u.meta.input_seq)
+        .member("tick", u.meta.receive_time_us == 0)
+        .member("status", core::status_name(o.status))
+        .member("period", core::period_name(o.clock.period))
+        .member("clock_ms", o.clock.clock_ms)
+        .member("home_goals", o.home_goals)
+        .member("away_goals", o.away_goals)
+        .member("home_reds", o.home_reds)
+        .member("away_reds", o.away_reds)
+        .member("p_home", o.p_home)
+        .member("p_draw", o.p_draw)
+        .member("p_away", o.p_away)
+        .member("has_advance", o.has_advance)
+        .member("p_advance_home", o.p_advance_home)
+        .member("p_advance_away", o.p_advance_away)
+        .member("expected_home_goals", o.expected_home_goals)
+        .member("expected_away_goals", o.expected_away_goals)
+        .member("next_goal_home", o.next_goal_home)
+        .member("next_goal_away", o.next_goal_away)
+        .member("next_goal_none", o.next_goal_none);
+    json.key("p_over").begin_array();
+    for (const double p : o.p_over) json.value(p);
+    json.end_array()
+        .member("p_both_score", o.p_both_score)
+        .member("events_applied", o.events_applied)
+        .member("receive_time_us", u.meta.receive_time_us)
+        .member("publish_time_us", u.meta.publish_time_us)
+        .member("compute_ns", u.meta.compute_ns)
+        .end_object();
+    return out;
 }
 
 std::string table_row(const protocol::DecodedUpdate& u) {

@@ -25,7 +25,4 @@ struct RequestError {
 
 std::variant<WatchRequest, RequestError> parse_client_request(std::string_view text);
 
-// `text` as a JSON string literal, quotes included (for replies that echo client input).
-std::string json_quoted(std::string_view text);
-
 }  // namespace liveprob::gateway
