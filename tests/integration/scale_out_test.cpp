@@ -25,6 +25,7 @@
 #include "liveprob/clients/snapshot_client.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/protocol/sharding.hpp"
+#include "liveprob/system/wall_clock.hpp"
 
 using namespace liveprob;
 
@@ -39,10 +40,6 @@ constexpr std::uint64_t kFirstMatch = 7001;
 constexpr std::uint64_t kVariants = 10;
 constexpr std::uint32_t kKilled = 1;
 
-std::int64_t wall_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(std::chrono::system_clock::now().time_since_epoch())
-        .count();
-}
 
 std::uint64_t variant_of(std::uint64_t match_id) { return match_id % kVariants; }
 
@@ -121,7 +118,7 @@ public:
                 auto decoded = protocol::decode_update({body.data<std::uint8_t>(), body.size()});
                 REQUIRE(decoded.ok());
                 const std::uint64_t id = decoded.value->meta.match_id;
-                seen_[id].push_back({std::move(*decoded.value), wall_us()});
+                seen_[id].push_back({std::move(*decoded.value), liveprob::system::wall_clock_us()});
                 ++total_;
             }
         }
@@ -365,7 +362,7 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
     const auto killed_endpoints = shards[kKilled]->endpoints();
     shards[kKilled]->process().signal(SIGKILL);
     REQUIRE(shards[kKilled]->process().wait(10s) == std::optional<int>(-SIGKILL));
-    const std::int64_t killed_at = wall_us();
+    const std::int64_t killed_at = liveprob::system::wall_clock_us();
 
     // Snapshots still reach the live owners; the dead one is named.
     const auto dead = ask(context, relay_snapshot, owned[kKilled].front());
@@ -393,7 +390,7 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
         };
     };
     REQUIRE(sub.read_until(complete(survivors), 180s));
-    const std::int64_t restarted_at = wall_us();
+    const std::int64_t restarted_at = liveprob::system::wall_clock_us();
 
     // The other shards never paused: all their second-half updates were published while shard
     // 1 was down. The largest gap between two of them is printed for the record.

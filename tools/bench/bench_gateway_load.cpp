@@ -28,6 +28,7 @@
 #include <vector>
 
 #include "harness/child_process.hpp"
+#include "liveprob/system/wall_clock.hpp"
 
 namespace {
 
@@ -38,10 +39,6 @@ namespace websocket = beast::websocket;
 using asio::ip::tcp;
 using namespace std::chrono_literals;
 
-std::int64_t now_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(
-               std::chrono::system_clock::now().time_since_epoch()).count();
-}
 
 std::string read_file(const std::filesystem::path& p) {
     std::ifstream in(p);
@@ -103,7 +100,7 @@ void read_loop(Client& c, std::vector<std::int64_t>& latencies) {
             c.closed = true;
             return;
         }
-        const auto received = now_us();
+        const auto received = liveprob::system::wall_clock_us();
         const std::string_view text(static_cast<const char*>(c.buffer.data().data()), c.buffer.size());
         const auto at = text.find("\"gateway_receive\":");
         if (at != std::string_view::npos) latencies.push_back(received - std::atoll(text.data() + at + 18));

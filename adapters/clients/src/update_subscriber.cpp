@@ -1,14 +1,11 @@
 #include "liveprob/clients/update_subscriber.hpp"
+#include "liveprob/system/wall_clock.hpp"
 
 #include "liveprob/transport/topics.hpp"
 
 namespace liveprob::clients {
 namespace {
 
-std::int64_t wall_now_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(std::chrono::system_clock::now().time_since_epoch())
-        .count();
-}
 
 }  // namespace
 
@@ -29,7 +26,7 @@ std::optional<ReceivedMessage> UpdateSubscriber::receive() {
     zmq::message_t topic;
     if (!socket_.recv(topic, zmq::recv_flags::none)) return std::nullopt;
     ReceivedMessage out;
-    out.arrived_us = wall_now_us();
+    out.arrived_us = system::wall_clock_us();
     zmq::message_t body;
     if (!topic.more() || !socket_.recv(body, zmq::recv_flags::none)) {
         out.kind = ReceivedMessage::Kind::undecodable;

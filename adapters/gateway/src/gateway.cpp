@@ -22,6 +22,7 @@
 #include "liveprob/transport/reactor_socket.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/system/wall_clock.hpp"
 #include "update_intake.hpp"
 #include "websocket_session.hpp"
 
@@ -58,11 +59,6 @@ GatewayHub make_hub(GatewayConfig config) {
     return GatewayHub(std::move(config), std::move(files));
 }
 
-std::int64_t wall_clock_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(
-               std::chrono::system_clock::now().time_since_epoch())
-        .count();
-}
 
 }  // namespace
 
@@ -153,7 +149,7 @@ void Gateway::Impl::drain_feed(zmq::socket_t& socket) {
 }
 
 void Gateway::Impl::take(std::span<const std::uint8_t> payload) {
-    Intake intake = take_in(payload, wall_clock_us());
+    Intake intake = take_in(payload, system::wall_clock_us());
     if (intake.kind == Intake::Kind::rejected) {
         if (hub.counters.updates_rejected++ < 10) {
             spdlog::warn("gateway: rejected a feed message: {}", intake.detail);
@@ -184,7 +180,7 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
             spdlog::warn("gateway: snapshot failed: {}", decoded.ok() ? decoded.value->error : decoded.detail);
             continue;
         }
-        const std::int64_t now = wall_clock_us();
+        const std::int64_t now = system::wall_clock_us();
         for (const auto& u : decoded.value->updates) {
             apply(GatewayUpdate{u.meta.match_id, u.meta.output_seq, u.meta.input_seq,
                                 u.meta.receive_time_us, u.meta.publish_time_us, now, u.outputs});

@@ -17,6 +17,7 @@
 #include "liveprob/service/match_registry.hpp"
 #include "liveprob/transport/reactor_socket.hpp"
 #include "liveprob/service/service_counters.hpp"
+#include "liveprob/system/wall_clock.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "liveprob/transport/zap_authenticator.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
@@ -36,11 +37,6 @@ constexpr int kDrainBatch = 512;
 // between the decoder's own limit and this are received, counted as oversize and dropped.
 constexpr std::int64_t kMaxIngestMessageBytes = 1 << 20;
 
-std::int64_t wall_time_us() {
-    return std::chrono::duration_cast<std::chrono::microseconds>(
-               std::chrono::system_clock::now().time_since_epoch())
-        .count();
-}
 
 void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, const char* domain) {
     socket.set(zmq::sockopt::zap_domain, domain);
@@ -161,7 +157,7 @@ void LiveService::Impl::replay() {
     // microseconds have passed since its own start, so the sequence only rises across restarts
     // and a subscriber that skips updates "not newer" than the last (protocol/README.md) takes
     // the restarted service's updates at once; it sees one forward jump, like a gap.
-    const auto restart_seq = static_cast<std::uint64_t>(wall_time_us());
+    const auto restart_seq = static_cast<std::uint64_t>(system::wall_clock_us());
     for (auto& [id, m] : registry.matches()) m.output_seq = restart_seq;
     counters.journal_replayed = report.frames;
     counters.journal_torn_bytes = report.torn_bytes;
@@ -226,7 +222,7 @@ void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
 
 void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal) {
     const auto received_at = SteadyClock::now();
-    const std::int64_t receive_us = wall_time_us();
+    const std::int64_t receive_us = system::wall_clock_us();
     protocol::FeedDecodeResult decoded = protocol::decode_feed_message(bytes);
     if (!decoded.message) {
         const auto kind = static_cast<std::size_t>(decoded.error);
@@ -294,7 +290,7 @@ void LiveService::Impl::publish(LiveMatch& m, bool tick, SteadyClock::time_point
     if (tick) meta.receive_time_us = 0;
     meta.compute_ns = static_cast<std::uint32_t>(std::min<std::int64_t>(
         std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count(), 0xFFFF'FFFF));
-    meta.publish_time_us = wall_time_us();
+    meta.publish_time_us = system::wall_clock_us();
     const auto bytes = encoder.encode(meta, outputs);
     const transport::MatchTopic topic = transport::match_topic(meta.match_id);
     // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
@@ -341,7 +337,7 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
         } else {
             snapshot_reply.error = fmt::format("unknown match {}", *wanted.value);
         }
-        const std::int64_t now_us = wall_time_us();
+        const std::int64_t now_us = system::wall_clock_us();
         for (auto& u : snapshot_reply.updates) u.meta.publish_time_us = now_us;
         const std::vector<std::uint8_t> reply = protocol::encode_snapshot_reply(snapshot_reply);
         socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
@@ -373,7 +369,7 @@ void LiveService::Impl::publish_counters() {
         counters.curve_refused = zap->refused();
     }
     list_counters(counters, registry.totals(), counter_set.values);
-    counter_set.publish_time_us = wall_time_us();
+    counter_set.publish_time_us = system::wall_clock_us();
     const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set);
     publisher.send(zmq::const_buffer(transport::kCountersTopic.data(), transport::kCountersTopic.size()),
                    zmq::send_flags::sndmore | zmq::send_flags::dontwait);

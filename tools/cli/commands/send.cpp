@@ -18,6 +18,7 @@
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
 #include "liveprob/protocol/whole_file.hpp"
+#include "liveprob/system/wall_clock.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
@@ -97,9 +98,7 @@ int run_send(const SendFlags& f) {
         pacer.wait_for(messages[i]);
         core::InboundMessage& m = messages[i];
         if (f.stamp) {
-            m.header.source_time_us = std::chrono::duration_cast<std::chrono::microseconds>(
-                                          std::chrono::system_clock::now().time_since_epoch())
-                                          .count();
+            m.header.source_time_us = liveprob::system::wall_clock_us();
         }
         const std::vector<std::uint8_t> bytes = protocol::encode_feed_message(m);
         sender.send(m.header.match_id, bytes);
