@@ -3,8 +3,10 @@
 
 #include <filesystem>
 #include <fstream>
+#include <set>
 
 #include "liveprob/files/journal.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/service/service_config.hpp"
 #include "test_env.hpp"
 
@@ -60,6 +62,52 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     ServiceConfig same;
     same.publish_endpoint = same.ingest_endpoint;
     CHECK_THROWS_AS(validate_service_config(same), ConfigError);
+}
+
+TEST_CASE("configuration: flags and file values are checked alike, by the one key table", "[unit][serve]") {
+    ServiceConfig c;
+    const auto key = [](std::string_view name) {
+        for (const ConfigKey& k : config_keys()) {
+            if (k.name == name) return k;
+        }
+        FAIL("no key " << name);
+        return ConfigKey{};
+    };
+    set_config_value(c, key("tick_interval_ms"), "250", "--tick-ms");
+    CHECK(c.tick_interval_ms == 250);
+    set_config_value(c, key("journal_sync"), "none", "--journal-sync");
+    CHECK(c.journal_sync == liveprob::files::JournalSync::none);
+    set_config_value(c, key("curve_publish"), "true", "--encrypt-publish");
+    CHECK(c.curve_publish);
+    CHECK_THROWS_WITH(set_config_value(c, key("tick_interval_ms"), "5", "--tick-ms"),
+                      "--tick-ms: must be between 10 and 3600000, got 5");
+    CHECK_THROWS_WITH(set_config_value(c, key("tick_interval_ms"), "5s", "--tick-ms"), "--tick-ms: must be a whole number");
+    CHECK_THROWS_WITH(set_config_value(c, key("shard"), "3/3", "--shard"), Catch::StartsWith("--shard: "));
+    CHECK_THROWS_WITH(set_config_value(c, key("log_level"), "loud", "--log-level"),
+                      R"(--log-level: must be one of trace, debug, info, warn, error, off, got "loud")");
+
+    // Every key once: names and flags unique, every member of ServiceConfig reachable.
+    std::set<std::string_view> names, flags;
+    for (const ConfigKey& k : config_keys()) {
+        CHECK(names.insert(k.name).second);
+        CHECK(flags.insert(k.flag).second);
+    }
+    CHECK(names.size() == 17);
+}
+
+TEST_CASE("configuration: the README's table of keys is the key table", "[unit][serve]") {
+    const std::string readme =
+        liveprob::protocol::read_whole_file(liveprob::test::source_dir() / "adapters/service/README.md");
+    const std::string begin = "<!-- config-keys:begin (made from config_keys(); a test checks it) -->\n";
+    const std::string end = "<!-- config-keys:end -->";
+    const auto from = readme.find(begin);
+    const auto to = readme.find(end);
+    REQUIRE(from != std::string::npos);
+    REQUIRE(to != std::string::npos);
+    const std::string table = readme.substr(from + begin.size(), to - from - begin.size());
+    INFO("the table config_key_table_markdown() makes, to paste into adapters/service/README.md:\n"
+         << config_key_table_markdown());
+    CHECK(table == config_key_table_markdown());
 }
 
 TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, nothing earlier lost", "[unit][serve]") {

@@ -15,13 +15,10 @@
 namespace liveprob::files {
 
 const char* journal_sync_name(JournalSync s) noexcept {
-    switch (s) {
-        case JournalSync::none: return "none";
-        case JournalSync::interval: return "interval";
-        case JournalSync::every_message: return "every_message";
-    }
-    return "unknown";
+    const auto i = static_cast<std::size_t>(s);
+    return i < kJournalSyncNames.size() ? kJournalSyncNames[i].data() : "unknown";
 }
+
 
 namespace {
 

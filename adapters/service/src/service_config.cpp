@@ -3,120 +3,189 @@
 #include <fmt/format.h>
 #include <simdjson.h>
 
-#include <limits>
-#include <string_view>
+#include <array>
+#include <charconv>
 
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
 namespace liveprob::service {
 
-files::JournalSync parse_journal_sync(const std::string& text, const std::string& key) {
-    if (text == "none") return files::JournalSync::none;
-    if (text == "interval") return files::JournalSync::interval;
-    if (text == "every_message") return files::JournalSync::every_message;
-    throw ConfigError(fmt::format("{}: must be one of none, interval, every_message, got \"{}\"",
-                                  key, text));
-}
-
 namespace {
 
-using simdjson::dom::element;
-using simdjson::dom::element_type;
+using S = ServiceConfig;
 
-// Reads one key's value with its type and range checked; every error names origin and key.
-class KeyReader {
+constexpr std::uint64_t kMaxMilliseconds = 3'600'000;
+constexpr std::uint64_t kMaxHighWaterMark = 10'000'000;
+constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info", "warn", "error", "off"};
+
+// The one table of keys.
+const std::array<ConfigKey, 17> kKeys = {{
+    {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint, "PULL socket feeds push to"},
+    {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint, "PUB socket subscribers connect to"},
+    {"snapshot_endpoint", "--snapshot", ConfigValue::endpoint, &S::snapshot_endpoint,
+     "ROUTER socket answering late joiners"},
+    {"endpoints_file", "--endpoints-file", ConfigValue::text, &S::endpoints_file,
+     "where to write the bound endpoints (`ingest=...` lines); use with `*` ports", 0, 0, {}, "none"},
+    {"tick_interval_ms", "--tick-ms", ConfigValue::whole, &S::tick_interval_ms,
+     "republish every live match this often (ms)", 10, kMaxMilliseconds},
+    {"counters_interval_ms", "--counters-ms", ConfigValue::whole, &S::counters_interval_ms,
+     "counters topic and log line interval (ms)", 100, kMaxMilliseconds},
+    {"journal_path", "--journal", ConfigValue::text, &S::journal_path,
+     "journal file, replayed at start and appended while running; none: no recovery", 0, 0, {}, "none"},
+    {"journal_sync", "--journal-sync", ConfigValue::choice, &S::journal_sync,
+     "`none` (the OS flushes), `interval`, `every_message` (fsync before applying)", 0, 0, files::kJournalSyncNames},
+    {"journal_sync_interval_ms", "--journal-sync-ms", ConfigValue::whole, &S::journal_sync_interval_ms,
+     "fsync interval for `interval` (ms)", 1, kMaxMilliseconds},
+    {"publish_high_water_mark", "--publish-hwm", ConfigValue::whole, &S::publish_high_water_mark,
+     "messages queued per subscriber before dropping", 1, kMaxHighWaterMark},
+    {"ingest_high_water_mark", "--ingest-hwm", ConfigValue::whole, &S::ingest_high_water_mark,
+     "inbound messages queued before feeds wait", 1, kMaxHighWaterMark},
+    {"params_file", "--params", ConfigValue::text, &S::params_file,
+     "model parameter file (adapters/files/params_file.hpp)", 0, 0, {}, "built-in"},
+    {"shard", "--shard", ConfigValue::shard, &S::shard,
+     "own the match ids of shard K of N (protocol/sharding.hpp); others are counted "
+     "(`ingest.not_our_shard`) and dropped"},
+    {"curve_secret_key_file", "--server-secret-key", ConfigValue::text, &S::curve_secret_key_file,
+     "the service's `.secret` file; turns CURVE on for ingest", 0, 0, {}, "none"},
+    {"curve_allowed_keys_file", "--allowed-feed-keys", ConfigValue::text, &S::curve_allowed_keys_file,
+     "feed public keys allowed in, one per line (`#` comments)", 0, 0, {}, "none"},
+    {"curve_publish", "--encrypt-publish", ConfigValue::flag, &S::curve_publish,
+     "CURVE on the publish and snapshot sockets too (any client key)"},
+    {"log_level", "--log-level", ConfigValue::choice, &S::log_level, "how much to log", 0, 0, kLogLevels},
+}};
+
+std::string choice_list(const ConfigKey& key) {
+    return fmt::format("{}", fmt::join(key.choices, ", "));
+}
+
+// Stores a checked value in the key's member.
+class Setter {
 public:
-    KeyReader(std::string origin, std::string key, element value)
-        : origin_(std::move(origin)), key_(std::move(key)), value_(value) {}
+    Setter(ServiceConfig& config, const ConfigKey& key, std::string_view where)
+        : config_(config), key_(key), where_(where) {}
 
-    std::string text() const {
-        std::string_view v;
-        if (value_.get_string().get(v) != simdjson::SUCCESS) fail("must be a string");
-        return std::string(v);
-    }
-    bool flag() const {
-        bool v = false;
-        if (value_.get_bool().get(v) != simdjson::SUCCESS) fail("must be true or false");
-        return v;
-    }
-    std::uint64_t whole(std::uint64_t lowest, std::uint64_t highest) const {
-        std::uint64_t v = 0;
-        if (value_.get_uint64().get(v) != simdjson::SUCCESS) fail("must be a whole number");
-        if (v < lowest || v > highest) {
-            fail(fmt::format("must be between {} and {}, got {}", lowest, highest, v));
-        }
-        return v;
-    }
     [[noreturn]] void fail(const std::string& reason) const {
-        throw ConfigError(fmt::format("{}: {}: {}", origin_, key_, reason));
+        throw ConfigError(fmt::format("{}: {}", where_, reason));
     }
+
+    void text(std::string_view value) const {
+        switch (key_.value) {
+            case ConfigValue::endpoint:
+                if (value.find("://") == std::string_view::npos) {
+                    fail("must be an endpoint such as tcp://127.0.0.1:7430");
+                }
+                break;
+            case ConfigValue::shard:
+                try {
+                    protocol::parse_shard_spec(std::string(value));
+                } catch (const std::invalid_argument& e) {
+                    fail(e.what());
+                }
+                break;
+            case ConfigValue::choice: choice(value); return;
+            case ConfigValue::text: break;
+            default: fail("must not be a string");
+        }
+        config_.*std::get<std::string ServiceConfig::*>(key_.member) = std::string(value);
+    }
+
+    void whole(std::uint64_t value) const {
+        if (value < key_.lowest || value > key_.highest) {
+            fail(fmt::format("must be between {} and {}, got {}", key_.lowest, key_.highest, value));
+        }
+        std::visit(
+            [&](auto member) {
+                using T = std::remove_reference_t<decltype(config_.*member)>;
+                if constexpr (std::is_integral_v<T> && !std::is_same_v<T, bool>) {
+                    config_.*member = static_cast<T>(value);
+                }
+            },
+            key_.member);
+    }
+
+    void flag(bool value) const { config_.*std::get<bool ServiceConfig::*>(key_.member) = value; }
 
 private:
-    std::string origin_;
-    std::string key_;
-    element value_;
+    void choice(std::string_view value) const {
+        std::size_t index = 0;
+        while (index < key_.choices.size() && key_.choices[index] != value) ++index;
+        if (index == key_.choices.size()) {
+            fail(fmt::format("must be one of {}, got \"{}\"", choice_list(key_), value));
+        }
+        if (const auto* text = std::get_if<std::string ServiceConfig::*>(&key_.member)) {
+            config_.**text = std::string(value);
+        } else {
+            config_.*std::get<files::JournalSync ServiceConfig::*>(key_.member) = static_cast<files::JournalSync>(index);
+        }
+    }
+
+    ServiceConfig& config_;
+    const ConfigKey& key_;
+    std::string_view where_;
 };
 
-std::string endpoint(const KeyReader& r) {
-    std::string e = r.text();
-    if (e.find("://") == std::string::npos) r.fail("must be an endpoint such as tcp://127.0.0.1:7430");
-    return e;
-}
-
-std::uint32_t milliseconds(const KeyReader& r, std::uint64_t lowest) {
-    return static_cast<std::uint32_t>(r.whole(lowest, 3'600'000));
-}
-
-std::int32_t high_water_mark(const KeyReader& r) {
-    return static_cast<std::int32_t>(r.whole(1, 10'000'000));
-}
-
-void apply_key(ServiceConfig& c, std::string_view key, const KeyReader& r) {
-    if (key == "ingest_endpoint") c.ingest_endpoint = endpoint(r);
-    else if (key == "publish_endpoint") c.publish_endpoint = endpoint(r);
-    else if (key == "snapshot_endpoint") c.snapshot_endpoint = endpoint(r);
-    else if (key == "endpoints_file") c.endpoints_file = r.text();
-    else if (key == "tick_interval_ms") c.tick_interval_ms = milliseconds(r, 10);
-    else if (key == "counters_interval_ms") c.counters_interval_ms = milliseconds(r, 100);
-    else if (key == "journal_path") c.journal_path = r.text();
-    else if (key == "journal_sync") {
-        try {
-            c.journal_sync = parse_journal_sync(r.text(), "journal_sync");
-        } catch (const ConfigError& e) {
-            r.fail(std::string(e.what()).substr(std::string("journal_sync: ").size()));
-        }
-    } else if (key == "journal_sync_interval_ms") c.journal_sync_interval_ms = milliseconds(r, 1);
-    else if (key == "publish_high_water_mark") c.publish_high_water_mark = high_water_mark(r);
-    else if (key == "ingest_high_water_mark") c.ingest_high_water_mark = high_water_mark(r);
-    else if (key == "params_file") c.params_file = r.text();
-    else if (key == "shard") {
-        c.shard = r.text();
-        try {
-            protocol::parse_shard_spec(c.shard);
-        } catch (const std::invalid_argument& e) {
-            r.fail(e.what());
-        }
+const ConfigKey* find_key(std::string_view name) {
+    for (const ConfigKey& key : kKeys) {
+        if (key.name == name) return &key;
     }
-    else if (key == "curve_secret_key_file") c.curve_secret_key_file = r.text();
-    else if (key == "curve_allowed_keys_file") c.curve_allowed_keys_file = r.text();
-    else if (key == "curve_publish") c.curve_publish = r.flag();
-    else if (key == "log_level") {
-        c.log_level = r.text();
-        static constexpr std::string_view kLevels[] = {"trace", "debug", "info", "warn", "error", "off"};
-        bool known = false;
-        for (auto level : kLevels) known = known || level == c.log_level;
-        if (!known) r.fail("must be one of trace, debug, info, warn, error, off");
-    } else {
-        r.fail("unknown key");
+    return nullptr;
+}
+
+// The README's "default" cell: the value a default ServiceConfig holds.
+std::string default_text(const ConfigKey& key) {
+    const ServiceConfig defaults;
+    return std::visit(
+        [&](auto member) -> std::string {
+            const auto& value = defaults.*member;
+            using T = std::remove_cvref_t<decltype(value)>;
+            if constexpr (std::is_same_v<T, std::string>) {
+                return value.empty() ? std::string(key.unset) : fmt::format("`{}`", value);
+            } else if constexpr (std::is_same_v<T, bool>) {
+                return value ? "true" : "false";
+            } else if constexpr (std::is_same_v<T, files::JournalSync>) {
+                return fmt::format("`{}`", files::journal_sync_name(value));
+            } else {
+                return fmt::format("{}", value);
+            }
+        },
+        key.member);
+}
+
+std::string allowed_text(const ConfigKey& key) {
+    switch (key.value) {
+        case ConfigValue::text: return "a path";
+        case ConfigValue::endpoint: return "an endpoint";
+        case ConfigValue::whole: return fmt::format("{} .. {}", key.lowest, key.highest);
+        case ConfigValue::flag: return "true, false";
+        case ConfigValue::choice: return choice_list(key);
+        case ConfigValue::shard: return "K/N, K < N";
     }
+    return "";
 }
 
 }  // namespace
 
+std::span<const ConfigKey> config_keys() { return kKeys; }
+
+void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text, std::string_view where) {
+    const Setter setter(config, key, where);
+    if (key.value == ConfigValue::whole) {
+        std::uint64_t value = 0;
+        const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
+        if (ec != std::errc() || end != text.data() + text.size()) setter.fail("must be a whole number");
+        setter.whole(value);
+    } else if (key.value == ConfigValue::flag) {
+        if (text != "true" && text != "false") setter.fail("must be true or false");
+        setter.flag(text == "true");
+    } else {
+        setter.text(text);
+    }
+}
+
 ServiceConfig parse_service_config(const std::string& json_text, const std::string& origin) {
     simdjson::dom::parser parser;
-    element doc;
+    simdjson::dom::element doc;
     if (auto error = parser.parse(json_text).get(doc); error != simdjson::SUCCESS) {
         throw ConfigError(fmt::format("{}: not valid JSON: {}", origin, simdjson::error_message(error)));
     }
@@ -126,8 +195,29 @@ ServiceConfig parse_service_config(const std::string& json_text, const std::stri
     }
     ServiceConfig config;
     for (auto field : object) {
-        const std::string key(field.key);
-        apply_key(config, field.key, KeyReader(origin, key, field.value));
+        const std::string where = fmt::format("{}: {}", origin, field.key);
+        const ConfigKey* key = find_key(field.key);
+        if (key == nullptr) throw ConfigError(where + ": unknown key");
+        const Setter setter(config, *key, where);
+        switch (key->value) {
+            case ConfigValue::whole: {
+                std::uint64_t value = 0;
+                if (field.value.get_uint64().get(value) != simdjson::SUCCESS) setter.fail("must be a whole number");
+                setter.whole(value);
+                break;
+            }
+            case ConfigValue::flag: {
+                bool value = false;
+                if (field.value.get_bool().get(value) != simdjson::SUCCESS) setter.fail("must be true or false");
+                setter.flag(value);
+                break;
+            }
+            default: {
+                std::string_view value;
+                if (field.value.get_string().get(value) != simdjson::SUCCESS) setter.fail("must be a string");
+                setter.text(value);
+            }
+        }
     }
     return config;
 }
@@ -160,6 +250,19 @@ void validate_service_config(const ServiceConfig& c) {
         clash(c.publish_endpoint, c.snapshot_endpoint)) {
         throw ConfigError("snapshot_endpoint: ingest, publish and snapshot need three different endpoints");
     }
+}
+
+std::string config_key_help(const ConfigKey& key) {
+    return fmt::format("{} ({}; default {})", key.meaning, allowed_text(key), default_text(key));
+}
+
+std::string config_key_table_markdown() {
+    std::string out = "| key | flag | default | allowed | meaning |\n|---|---|---|---|---|\n";
+    for (const ConfigKey& key : kKeys) {
+        out += fmt::format("| `{}` | `{}` | {} | {} | {} |\n", key.name, key.flag, default_text(key), allowed_text(key),
+                           key.meaning);
+    }
+    return out;
 }
 
 }  // namespace liveprob::service

@@ -5,12 +5,14 @@
 
 #include <sys/types.h>
 
+#include <array>
 #include <chrono>
 #include <cstdint>
 #include <functional>
 #include <span>
 #include <stdexcept>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace liveprob::files {
@@ -21,6 +23,8 @@ enum class JournalSync : std::uint8_t {
     interval,       // write each frame at once, fsync at most every `journal_sync_interval_ms`
     every_message,  // fsync after every frame, before the message is applied
 };
+// The policies' names, in the enum's order (configuration values and logs).
+inline constexpr std::array<std::string_view, 3> kJournalSyncNames = {"none", "interval", "every_message"};
 const char* journal_sync_name(JournalSync s) noexcept;
 
 struct JournalError : std::runtime_error {

@@ -1,26 +1,29 @@
 // Settings of `liveprob serve`. One JSON file holds them all (every key optional); every key is
 // also a command-line flag, and a flag given on the command line overrides the file.
-// Keys, defaults and meaning are documented in adapters/service/README.md ("Configuration").
+// config_keys() is the one table of keys: name, flag, allowed values, meaning and member. The
+// file's reader, serve's flags and the table in adapters/service/README.md all come from it
+// (a unit test checks the README against config_key_table_markdown()).
 #pragma once
 
 #include <cstdint>
+#include <span>
 #include <stdexcept>
 #include <string>
+#include <string_view>
+#include <variant>
+#include <vector>
 
 #include "liveprob/files/journal.hpp"
 #include "liveprob/files/one_line.hpp"
 
 namespace liveprob::service {
 
-// A bad configuration: the message names the key and the reason, e.g.
+// A bad configuration: the message names the key (or flag) and the reason, e.g.
 // "service.json: tick_interval_ms: must be between 10 and 3600000, got 0". Always one line:
 // control bytes quoted from the file are shown escaped.
 struct ConfigError : std::runtime_error {
     explicit ConfigError(const std::string& what) : std::runtime_error(files::one_line(what)) {}
 };
-
-// Throws ConfigError naming `key` when `text` is not a journal sync policy (files/journal.hpp).
-files::JournalSync parse_journal_sync(const std::string& text, const std::string& key);
 
 struct ServiceConfig {
     // Endpoints default to loopback. A "*" port binds an ephemeral port; the bound endpoints
@@ -60,6 +63,38 @@ struct ServiceConfig {
     bool curve_enabled() const noexcept { return !curve_secret_key_file.empty(); }
 };
 
+// What a key holds, and so how its value is read and checked.
+enum class ConfigValue : std::uint8_t {
+    text,      // any string
+    endpoint,  // a ZeroMQ endpoint, "transport://address"
+    whole,     // a whole number in [lowest, highest]
+    flag,      // true or false (on the command line: the flag alone)
+    choice,    // one of `choices`
+    shard,     // "K/N" (protocol/sharding.hpp)
+};
+
+struct ConfigKey {
+    using Member = std::variant<std::string ServiceConfig::*, std::uint32_t ServiceConfig::*,
+                                std::int32_t ServiceConfig::*, bool ServiceConfig::*,
+                                files::JournalSync ServiceConfig::*>;
+    std::string_view name;        // the JSON key
+    std::string_view flag;        // serve's flag
+    ConfigValue value;
+    Member member;
+    std::string_view meaning;     // the flag's help and the README's meaning column
+    std::uint64_t lowest = 0;     // whole numbers
+    std::uint64_t highest = 0;
+    std::span<const std::string_view> choices = {};  // choice; an enum member's i-th name is value i
+    std::string_view unset = {};  // how the README shows an empty default ("none", "built-in")
+};
+
+// Every key, in the order the README lists them.
+std::span<const ConfigKey> config_keys();
+
+// Sets `key` in `config` from text (a command-line value; "true"/"false" for a flag), checked
+// exactly as the file's value is. Throws ConfigError "<where>: <reason>".
+void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text, std::string_view where);
+
 // Reads a configuration file over the defaults. Unknown keys are errors (a typo must not be
 // silently ignored).
 ServiceConfig load_service_config(const std::string& path);
@@ -67,5 +102,10 @@ ServiceConfig parse_service_config(const std::string& json_text, const std::stri
 
 // Cross-checks that no single key can: e.g. an allow-list without a server key.
 void validate_service_config(const ServiceConfig& config);
+
+// The README's table of keys (Markdown, one row per key), made from config_keys().
+std::string config_key_table_markdown();
+// A key's flag help: its meaning, what it allows and its default.
+std::string config_key_help(const ConfigKey& key);
 
 }  // namespace liveprob::service
