@@ -75,7 +75,8 @@ void check_frames(std::span<const std::uint8_t> bytes, FeedCheckSummary& summary
             count_message(*decoded.message, summary, watch);
         } else {
             ++summary.bad;
-            report(fmt::format("frame {} at offset {}: {}", summary.units, frame->offset, decoded.detail));
+            report(fmt::format("frame {} at offset {}: {}", summary.units, frame->offset,
+                               decoded.detail));
         }
     }
     if (cursor.end() != StreamEnd::clean) {
@@ -115,7 +116,9 @@ std::string summary_json(const FeedCheckSummary& s) {
     json.key("kinds").begin_object();
     for (const auto& [kind, count] : s.kinds) json.member(kind, count);
     json.end_object();
-    json.member("repeated_seq", s.repeated_seq).member("out_of_order_seq", s.out_of_order_seq).end_object();
+    json.member("repeated_seq", s.repeated_seq)
+        .member("out_of_order_seq", s.out_of_order_seq)
+        .end_object();
     return out;
 }
 

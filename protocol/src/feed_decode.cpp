@@ -42,7 +42,8 @@ Problem read_setup(const w::Setup& in, core::MessageBody& body) {
     out.away_name = str(in.away_name());
     out.neutral_venue = in.neutral_venue();
     if (const auto* p = in.prior()) out.prior = core::PriorMeans{p->home_goals(), p->away_goals()};
-    if (const auto* r = in.ratings()) out.ratings = core::RatingReference{str(r->home_key()), str(r->away_key())};
+    if (const auto* r = in.ratings())
+        out.ratings = core::RatingReference{str(r->home_key()), str(r->away_key())};
     if (const auto* f = in.format()) {
         out.format.half_minutes = f->half_minutes();
         out.format.extra_time = f->extra_time();
@@ -93,7 +94,8 @@ Problem read_body(const w::FeedMessage& m, core::MessageBody& body) {
         case w::Body::NONE:
             return MessageProblem{DecodeError::missing_field, "type", "the message has no body"};
         case w::Body::Setup:
-            return read_as(m.body_as_Setup(), [&](const w::Setup& s) { return read_setup(s, body); });
+            return read_as(m.body_as_Setup(),
+                           [&](const w::Setup& s) { return read_setup(s, body); });
         case w::Body::PeriodStart:
             return read_as(m.body_as_PeriodStart(), [&](const w::PeriodStart& s) {
                 return read_period_body<core::PeriodStart>(s, "starts", body);
@@ -104,7 +106,8 @@ Problem read_body(const w::FeedMessage& m, core::MessageBody& body) {
             });
         case w::Body::Goal:
             return read_as(m.body_as_Goal(), [&](const w::Goal& g) {
-                return read_side_body(g, body, core::Goal{core::Side::home, g.penalty(), g.own_goal()});
+                return read_side_body(g, body,
+                                      core::Goal{core::Side::home, g.penalty(), g.own_goal()});
             });
         case w::Body::GoalCancelled:
             return read_as(m.body_as_GoalCancelled(), [&](const w::GoalCancelled& g) {
@@ -170,14 +173,16 @@ FeedDecodeResult decode_feed_message(std::span<const std::uint8_t> bytes) {
     const w::Header* h = m.header();  // `required`, so the verifier has seen it; checked anyway
     if (!h) return reject({DecodeError::missing_field, "match", "the message has no header"});
     const w::MatchClock* clock = h->clock();
-    if (!clock) return reject({DecodeError::missing_field, "clock", "the header has no match clock"});
+    if (!clock)
+        return reject({DecodeError::missing_field, "clock", "the header has no match clock"});
 
     core::InboundMessage message;
     message.header.match_id = h->match_id();
     message.header.source_seq = h->source_seq();
     message.header.source_time_us = h->source_time_us();
     message.header.clock.clock_ms = clock->clock_ms();
-    if (auto p = read_period(clock->period(), "period", message.header.clock.period)) return reject(*p);
+    if (auto p = read_period(clock->period(), "period", message.header.clock.period))
+        return reject(*p);
     if (auto p = read_body(m, message.body)) return reject(*p);
     if (auto p = check_message(message)) return reject(*p);
     return FeedDecodeResult{std::move(message), DecodeError::none, {}};

@@ -1,6 +1,6 @@
 // InboundMessage -> FeedMessage buffer, written as it is: checks belong to the reader.
-#include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/core/overloaded.hpp"
+#include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/wire/feed_generated.h"
 
 namespace liveprob::protocol {
@@ -11,7 +11,9 @@ namespace w = liveprob::wire;
 using BodyRef = std::pair<w::Body, flatbuffers::Offset<void>>;
 
 w::Side wire_side(core::Side s) { return static_cast<w::Side>(static_cast<std::uint8_t>(s)); }
-w::Period wire_period(core::Period p) { return static_cast<w::Period>(static_cast<std::uint8_t>(p)); }
+w::Period wire_period(core::Period p) {
+    return static_cast<w::Period>(static_cast<std::uint8_t>(p));
+}
 
 template <class T>
 BodyRef ref(w::Body type, flatbuffers::Offset<T> offset) {
@@ -31,7 +33,8 @@ BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const core::MatchSetup&
     }
     const core::CompetitionFormat& f = s.format;
     flatbuffers::Offset<w::FirstLeg> first_leg;
-    if (f.first_leg) first_leg = w::CreateFirstLeg(fbb, f.first_leg->home_goals, f.first_leg->away_goals);
+    if (f.first_leg)
+        first_leg = w::CreateFirstLeg(fbb, f.first_leg->home_goals, f.first_leg->away_goals);
     const auto format = w::CreateFormat(fbb, f.half_minutes, f.extra_time, f.extra_half_minutes,
                                         f.shootout, first_leg);
     return ref(w::Body::Setup, w::CreateSetup(fbb, home, away, s.neutral_venue, prior, ratings,
@@ -49,13 +52,15 @@ BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const core::MessageBody&
                 return ref(w::Body::PeriodEnd, w::CreatePeriodEnd(fbb, wire_period(m.period)));
             },
             [&](const core::Goal& m) {
-                return ref(w::Body::Goal, w::CreateGoal(fbb, wire_side(m.side), m.penalty, m.own_goal));
+                return ref(w::Body::Goal,
+                           w::CreateGoal(fbb, wire_side(m.side), m.penalty, m.own_goal));
             },
             [&](const core::GoalCancelled& m) {
                 return ref(w::Body::GoalCancelled, w::CreateGoalCancelled(fbb, m.goal_seq));
             },
             [&](const core::RedCard& m) {
-                return ref(w::Body::RedCard, w::CreateRedCard(fbb, wire_side(m.side), m.second_yellow));
+                return ref(w::Body::RedCard,
+                           w::CreateRedCard(fbb, wire_side(m.side), m.second_yellow));
             },
             [&](const core::CardRescinded& m) {
                 return ref(w::Body::CardRescinded, w::CreateCardRescinded(fbb, m.card_seq));
@@ -69,7 +74,8 @@ BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const core::MessageBody&
                            w::CreateScoreCorrection(fbb, m.home_goals, m.away_goals));
             },
             [&](const core::ShootoutKick& m) {
-                return ref(w::Body::ShootoutKick, w::CreateShootoutKick(fbb, wire_side(m.side), m.scored));
+                return ref(w::Body::ShootoutKick,
+                           w::CreateShootoutKick(fbb, wire_side(m.side), m.scored));
             },
             [&](const core::ShotXg& m) {
                 return ref(w::Body::ShotXg, w::CreateShotXg(fbb, wire_side(m.side), m.xg));

@@ -19,8 +19,8 @@ std::uint32_t read_le32(const std::uint8_t* p) noexcept {
 void append_frame(std::vector<std::uint8_t>& stream, std::span<const std::uint8_t> payload,
                   std::size_t max_payload) {
     if (payload.size() > max_payload) {
-        throw std::length_error(fmt::format("frame of {} bytes exceeds the limit of {}",
-                                            payload.size(), max_payload));
+        throw std::length_error(
+            fmt::format("frame of {} bytes exceeds the limit of {}", payload.size(), max_payload));
     }
     const auto n = static_cast<std::uint32_t>(payload.size());
     const std::uint8_t prefix[kFramePrefixBytes] = {
@@ -91,7 +91,8 @@ bool looks_like_frame_stream(std::span<const std::uint8_t> bytes) noexcept {
     // prefix (4) + root offset (4) + identifier (4)
     if (bytes.size() < 12) return false;
     const std::uint32_t first = read_le32(bytes.data());
-    return first >= 8 && first <= kMaxFeedMessageBytes && std::memcmp(bytes.data() + 8, "LPF1", 4) == 0;
+    return first >= 8 && first <= kMaxFeedMessageBytes &&
+           std::memcmp(bytes.data() + 8, "LPF1", 4) == 0;
 }
 
 }  // namespace liveprob::protocol

@@ -17,16 +17,19 @@ using detail::FieldError;
 using detail::JsonFields;
 
 // Period and side names as the JSON form spells them (the engine's own stable names).
-const std::vector<std::string_view> kPeriods{"pre_match",    "first_half", "second_half", "extra_first",
-                                             "extra_second", "shootout",   "finished"};
+const std::vector<std::string_view> kPeriods{"pre_match",   "first_half",   "second_half",
+                                             "extra_first", "extra_second", "shootout",
+                                             "finished"};
 const std::vector<std::string_view> kSides{"home", "away"};
 // In the order of MessageBody's alternatives, so a kind's index here is its alternative's index.
-const std::vector<std::string_view> kKinds{
-    "setup",           "period_start",  "period_end",    "goal",     "goal_cancelled",
-    "red_card",        "card_rescinded", "stoppage",     "score_correction",
-    "shootout_kick",   "shot_xg",       "abandoned",     "final_whistle", "clock"};
+const std::vector<std::string_view> kKinds{"setup",          "period_start",   "period_end",
+                                           "goal",           "goal_cancelled", "red_card",
+                                           "card_rescinded", "stoppage",       "score_correction",
+                                           "shootout_kick",  "shot_xg",        "abandoned",
+                                           "final_whistle",  "clock"};
 
-template <class T, class Variant> struct alternative_index;
+template <class T, class Variant>
+struct alternative_index;
 template <class T, class... Ts>
 struct alternative_index<T, std::variant<Ts...>> {
     static constexpr std::size_t value = [] {
@@ -54,8 +57,9 @@ core::Period period_or(const JsonFields& f, std::string_view name, core::Period 
 constexpr std::string_view kHeaderFields[] = {"match", "seq", "time_us", "period", "clock", "type"};
 
 core::MatchSetup read_setup(const JsonFields& f) {
-    f.only(kHeaderFields, {"home", "away", "neutral", "prior", "ratings", "kickoff_us",
-            "half_minutes", "extra_time", "extra_half_minutes", "shootout", "first_leg"},
+    f.only(kHeaderFields,
+           {"home", "away", "neutral", "prior", "ratings", "kickoff_us", "half_minutes",
+            "extra_time", "extra_half_minutes", "shootout", "first_leg"},
            "a 'setup' message");
     core::MatchSetup s;
     s.home_name = f.text("home");
@@ -96,7 +100,8 @@ core::MessageBody read_body(const JsonFields& f, std::size_t kind, core::Period 
             return core::PeriodEnd{period_or(f, "ends", clock_period)};
         case kind_of<core::Goal>:
             f.only(kHeaderFields, {"side", "penalty", "own_goal"}, context);
-            return core::Goal{side(f), f.boolean_or("penalty", false), f.boolean_or("own_goal", false)};
+            return core::Goal{side(f), f.boolean_or("penalty", false),
+                              f.boolean_or("own_goal", false)};
         case kind_of<core::GoalCancelled>:
             f.only(kHeaderFields, {"goal_seq"}, context);
             return core::GoalCancelled{f.u64("goal_seq")};
@@ -108,7 +113,8 @@ core::MessageBody read_body(const JsonFields& f, std::size_t kind, core::Period 
             return core::CardRescinded{f.u64("card_seq")};
         case kind_of<core::StoppageAnnounced>:
             f.only(kHeaderFields, {"minutes", "for_period"}, context);
-            return core::StoppageAnnounced{period_or(f, "for_period", clock_period), f.u16("minutes")};
+            return core::StoppageAnnounced{period_or(f, "for_period", clock_period),
+                                           f.u16("minutes")};
         case kind_of<core::ScoreCorrection>:
             f.only(kHeaderFields, {"home_goals", "away_goals"}, context);
             return core::ScoreCorrection{f.u16("home_goals"), f.u16("away_goals")};
@@ -140,7 +146,8 @@ core::InboundMessage read_message(const JsonFields& f, std::string& kind_hint) {
     m.header.clock.period = period(f, "period");
     const std::string clock = f.text("clock");
     const auto clock_ms = parse_match_clock(clock);
-    if (!clock_ms) f.fail("clock", fmt::format("expected minutes:seconds like \"67:12\", got \"{}\"", clock));
+    if (!clock_ms)
+        f.fail("clock", fmt::format("expected minutes:seconds like \"67:12\", got \"{}\"", clock));
     m.header.clock.clock_ms = *clock_ms;
     m.body = read_body(f, kind, m.header.clock.period);
     return m;
@@ -169,14 +176,15 @@ JsonLineResult JsonFeedReader::read_line(std::string_view line, std::size_t line
         result.kind = JsonLineKind::bad;
         result.field = std::move(field);
         result.reason = std::move(reason);
-        result.error = result.field.empty()
-                           ? fmt::format("line {}: {}", line_number, result.reason)
-                           : fmt::format("line {}: field '{}': {}", line_number, result.field, result.reason);
+        result.error = result.field.empty() ? fmt::format("line {}: {}", line_number, result.reason)
+                                            : fmt::format("line {}: field '{}': {}", line_number,
+                                                          result.field, result.reason);
         return result;
     };
 
     simdjson::dom::element doc;
-    if (const auto err = parser_->dom.parse(line.data(), line.size()).get(doc); err != simdjson::SUCCESS) {
+    if (const auto err = parser_->dom.parse(line.data(), line.size()).get(doc);
+        err != simdjson::SUCCESS) {
         return refuse("", fmt::format("not valid JSON ({})", simdjson::error_message(err)));
     }
     simdjson::dom::object object;
@@ -186,7 +194,8 @@ JsonLineResult JsonFeedReader::read_line(std::string_view line, std::size_t line
     try {
         const JsonFields fields(object, "");
         core::InboundMessage message = read_message(fields, result.kind_hint);
-        if (const auto problem = check_message(message)) return refuse(problem->field, problem->reason);
+        if (const auto problem = check_message(message))
+            return refuse(problem->field, problem->reason);
         result.kind = JsonLineKind::message;
         result.message = std::move(message);
         return result;

@@ -17,9 +17,13 @@ public:
     explicit LineWriter(JsonWriter& json) : json_(json) {}
     void text(std::string_view name, std::string_view value) { json_.member(name, value); }
     void flag(std::string_view name, bool value) { json_.member(name, value); }
-    void flag_if(std::string_view name, bool value) { if (value) flag(name, true); }
+    void flag_if(std::string_view name, bool value) {
+        if (value) flag(name, true);
+    }
     template <class N>
-    void number(std::string_view name, N value) { json_.member(name, value); }
+    void number(std::string_view name, N value) {
+        json_.member(name, value);
+    }
     template <class V>
     void pair(std::string_view name, const V& home, const V& away) {
         json_.key(name).begin_object().member("home", home).member("away", away).end_object();
@@ -37,7 +41,8 @@ void write_setup(LineWriter& w, const core::MatchSetup& s) {
     if (s.prior) w.pair("prior", s.prior->home_goals, s.prior->away_goals);
     if (s.ratings) w.pair("ratings", s.ratings->home_key, s.ratings->away_key);
     if (s.scheduled_kickoff_us != 0) w.number("kickoff_us", s.scheduled_kickoff_us);
-    if (s.format.half_minutes != defaults.half_minutes) w.number("half_minutes", s.format.half_minutes);
+    if (s.format.half_minutes != defaults.half_minutes)
+        w.number("half_minutes", s.format.half_minutes);
     w.flag_if("extra_time", s.format.extra_time);
     if (s.format.extra_half_minutes != defaults.extra_half_minutes) {
         w.number("extra_half_minutes", s.format.extra_half_minutes);
@@ -49,7 +54,8 @@ void write_setup(LineWriter& w, const core::MatchSetup& s) {
 }
 
 // A period field that defaults to the clock's period is written only when it differs.
-void period_unless(LineWriter& w, std::string_view name, core::Period value, core::Period clock_period) {
+void period_unless(LineWriter& w, std::string_view name, core::Period value,
+                   core::Period clock_period) {
     if (value != clock_period) w.text(name, period_name(value));
 }
 
@@ -100,42 +106,47 @@ std::string to_json_line(const core::InboundMessage& message) {
         .member("type", kind_name(message.body));
     LineWriter w(json);
     const core::Period clock_period = h.clock.period;
-    std::visit(core::overloaded{
-                   [&](const core::MatchSetup& m) { write_setup(w, m); },
-                   [&](const core::PeriodStart& m) { period_unless(w, "starts", m.period, clock_period); },
-                   [&](const core::PeriodEnd& m) { period_unless(w, "ends", m.period, clock_period); },
-                   [&](const core::Goal& m) {
-                       w.text("side", side_name(m.side));
-                       w.flag_if("penalty", m.penalty);
-                       w.flag_if("own_goal", m.own_goal);
-                   },
-                   [&](const core::GoalCancelled& m) { w.number("goal_seq", m.goal_seq); },
-                   [&](const core::RedCard& m) {
-                       w.text("side", side_name(m.side));
-                       w.flag_if("second_yellow", m.second_yellow);
-                   },
-                   [&](const core::CardRescinded& m) { w.number("card_seq", m.card_seq); },
-                   [&](const core::StoppageAnnounced& m) {
-                       w.number("minutes", m.minutes);
-                       period_unless(w, "for_period", m.period, clock_period);
-                   },
-                   [&](const core::ScoreCorrection& m) {
-                       w.number("home_goals", m.home_goals);
-                       w.number("away_goals", m.away_goals);
-                   },
-                   [&](const core::ShootoutKick& m) {
-                       w.text("side", side_name(m.side));
-                       w.flag("scored", m.scored);
-                   },
-                   [&](const core::ShotXg& m) {
-                       w.text("side", side_name(m.side));
-                       w.number("xg", m.xg);
-                   },
-                   [&](const core::MatchAbandoned& m) { if (!m.reason.empty()) w.text("reason", m.reason); },
-                   [](const core::FinalWhistle&) {},
-                   [&](const core::ClockSync& m) { if (!m.running) w.flag("running", false); },
-               },
-               message.body);
+    std::visit(
+        core::overloaded{
+            [&](const core::MatchSetup& m) { write_setup(w, m); },
+            [&](const core::PeriodStart& m) { period_unless(w, "starts", m.period, clock_period); },
+            [&](const core::PeriodEnd& m) { period_unless(w, "ends", m.period, clock_period); },
+            [&](const core::Goal& m) {
+                w.text("side", side_name(m.side));
+                w.flag_if("penalty", m.penalty);
+                w.flag_if("own_goal", m.own_goal);
+            },
+            [&](const core::GoalCancelled& m) { w.number("goal_seq", m.goal_seq); },
+            [&](const core::RedCard& m) {
+                w.text("side", side_name(m.side));
+                w.flag_if("second_yellow", m.second_yellow);
+            },
+            [&](const core::CardRescinded& m) { w.number("card_seq", m.card_seq); },
+            [&](const core::StoppageAnnounced& m) {
+                w.number("minutes", m.minutes);
+                period_unless(w, "for_period", m.period, clock_period);
+            },
+            [&](const core::ScoreCorrection& m) {
+                w.number("home_goals", m.home_goals);
+                w.number("away_goals", m.away_goals);
+            },
+            [&](const core::ShootoutKick& m) {
+                w.text("side", side_name(m.side));
+                w.flag("scored", m.scored);
+            },
+            [&](const core::ShotXg& m) {
+                w.text("side", side_name(m.side));
+                w.number("xg", m.xg);
+            },
+            [&](const core::MatchAbandoned& m) {
+                if (!m.reason.empty()) w.text("reason", m.reason);
+            },
+            [](const core::FinalWhistle&) {},
+            [&](const core::ClockSync& m) {
+                if (!m.running) w.flag("running", false);
+            },
+        },
+        message.body);
     json.end_object();
     return out;
 }

@@ -34,11 +34,12 @@ void JsonFields::fail(std::string_view name, std::string reason) const {
 }
 
 bool JsonFields::has(std::string_view name) const {
-    return std::any_of(entries_.begin(), entries_.end(), [&](const auto& e) { return e.first == name; });
+    return std::any_of(entries_.begin(), entries_.end(),
+                       [&](const auto& e) { return e.first == name; });
 }
 
-void JsonFields::only(std::span<const std::string_view> common, std::initializer_list<std::string_view> own,
-                      std::string_view context) const {
+void JsonFields::only(std::span<const std::string_view> common,
+                      std::initializer_list<std::string_view> own, std::string_view context) const {
     for (const auto& [key, value] : entries_) {
         if (std::find(common.begin(), common.end(), key) == common.end() &&
             std::find(own.begin(), own.end(), key) == own.end()) {
@@ -66,7 +67,8 @@ std::uint64_t JsonFields::u64(std::string_view name) const {
 std::uint16_t JsonFields::u16(std::string_view name) const {
     const dom::element v = get(name);
     std::uint64_t out = 0;
-    if (v.get_uint64().get(out) != simdjson::SUCCESS || out > std::numeric_limits<std::uint16_t>::max()) {
+    if (v.get_uint64().get(out) != simdjson::SUCCESS ||
+        out > std::numeric_limits<std::uint16_t>::max()) {
         fail(name, fmt::format("expected a whole number 0..65535, got {}", shown(v)));
     }
     return static_cast<std::uint16_t>(out);
@@ -133,7 +135,8 @@ std::string JsonFields::text_or(std::string_view name, std::string fallback) con
     return has(name) ? text(name) : fallback;
 }
 
-std::size_t JsonFields::choice(std::string_view name, const std::vector<std::string_view>& choices) const {
+std::size_t JsonFields::choice(std::string_view name,
+                               const std::vector<std::string_view>& choices) const {
     const std::string value = text(name);
     const auto it = std::find(choices.begin(), choices.end(), value);
     if (it != choices.end()) return static_cast<std::size_t>(it - choices.begin());

@@ -97,13 +97,15 @@ void append_json_number(std::string& out, double number) {
     if (!std::isfinite(number)) throw std::invalid_argument("JSON has no NaN or infinity");
     // The shortest digits that read back to `number`, as d.ddde±x; then laid out.
     char buffer[32];
-    const auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, number, std::chars_format::scientific);
+    const auto [end, ec] =
+        std::to_chars(buffer, buffer + sizeof buffer, number, std::chars_format::scientific);
     if (ec != std::errc()) throw std::logic_error("to_chars failed on a finite double");
     const std::string_view text(buffer, static_cast<std::size_t>(end - buffer));
     const std::size_t e_at = text.find('e');
     std::string_view mantissa = text.substr(0, e_at);
     int exponent = 0;
-    std::from_chars(text.data() + e_at + 1 + (text[e_at + 1] == '+' ? 1 : 0), text.data() + text.size(), exponent);
+    std::from_chars(text.data() + e_at + 1 + (text[e_at + 1] == '+' ? 1 : 0),
+                    text.data() + text.size(), exponent);
     if (!mantissa.empty() && mantissa.front() == '-') {
         out.push_back('-');
         mantissa.remove_prefix(1);
@@ -174,7 +176,8 @@ void JsonWriter::before_value() {
     }
     Level& level = levels_.back();
     if (level.container == Container::object) {
-        if (!level.key_written) throw std::logic_error("JsonWriter: a value in an object needs its key first");
+        if (!level.key_written)
+            throw std::logic_error("JsonWriter: a value in an object needs its key first");
         level.key_written = false;
         return;
     }

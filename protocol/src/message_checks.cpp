@@ -1,8 +1,8 @@
 #include "liveprob/protocol/message_checks.hpp"
 #include "liveprob/core/overloaded.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 
 namespace liveprob::protocol {
 
@@ -103,12 +103,12 @@ Problem check_body(const core::MessageBody& body) {
             },
             [](const core::StoppageAnnounced& m) -> Problem {
                 if (!is_playing_period(m.period)) {
-                    return bad("for_period", fmt::format("'{}' has no stoppage time",
-                                                         period_name(m.period)));
+                    return bad("for_period",
+                               fmt::format("'{}' has no stoppage time", period_name(m.period)));
                 }
                 if (m.minutes > kMaxStoppageMinutes) {
-                    return bad("minutes", fmt::format("must be 0..{}, got {}",
-                                                      kMaxStoppageMinutes, m.minutes));
+                    return bad("minutes", fmt::format("must be 0..{}, got {}", kMaxStoppageMinutes,
+                                                      m.minutes));
                 }
                 return std::nullopt;
             },

@@ -60,7 +60,8 @@ std::vector<std::uint8_t> encode_snapshot_reply(const SnapshotReplyContents& rep
     flatbuffers::FlatBufferBuilder fbb(1024 + reply.updates.size() * 2600);
     std::vector<flatbuffers::Offset<w::Update>> updates;
     updates.reserve(reply.updates.size());
-    for (const auto& u : reply.updates) updates.push_back(detail::write_update(fbb, u.meta, u.outputs));
+    for (const auto& u : reply.updates)
+        updates.push_back(detail::write_update(fbb, u.meta, u.outputs));
     const auto error = fbb.CreateString(reply.error);
     const auto list = fbb.CreateVector(updates);
     fbb.Finish(w::CreateSnapshotReply(fbb, kSchemaMajor, kSchemaMinor, error, list),
@@ -78,10 +79,12 @@ Decoded<SnapshotReplyContents> decode_snapshot_reply(std::span<const std::uint8_
         reply.updates.resize(updates->size());
         for (flatbuffers::uoffset_t i = 0; i < updates->size(); ++i) {
             const w::Update* update = updates->Get(i);
-            if (!update) return reject<SnapshotReplyContents>(DecodeError::missing_field, fmt::format("update {} is absent", i));
+            if (!update)
+                return reject<SnapshotReplyContents>(DecodeError::missing_field,
+                                                     fmt::format("update {} is absent", i));
             if (auto problem = detail::read_update(*update, reply.updates[i])) {
-                return reject<SnapshotReplyContents>(problem->error,
-                                                     fmt::format("update {}: {}", i, problem->describe()));
+                return reject<SnapshotReplyContents>(
+                    problem->error, fmt::format("update {}: {}", i, problem->describe()));
             }
         }
     }
@@ -111,7 +114,8 @@ Decoded<CounterSet> decode_counters(std::span<const std::uint8_t> bytes) {
     counters.publish_time_us = verified.root->publish_time_us();
     if (const auto* values = verified.root->values()) {
         for (const w::Counter* c : *values) {
-            if (!c || !c->name()) return reject<CounterSet>(DecodeError::missing_field, "a counter has no name");
+            if (!c || !c->name())
+                return reject<CounterSet>(DecodeError::missing_field, "a counter has no name");
             counters.values.emplace_back(c->name()->str(), c->value());
         }
     }

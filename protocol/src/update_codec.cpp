@@ -14,7 +14,8 @@ constexpr std::size_t kInitialUpdateBytes = 4096;
 
 UpdateEncoder::UpdateEncoder() : builder_(kInitialUpdateBytes) {}
 
-std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta, const core::Outputs& outputs) {
+std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta,
+                                                    const core::Outputs& outputs) {
     builder_.Clear();  // keeps the buffer it has grown
     builder_.Finish(detail::write_update(builder_, meta, outputs), wire::UpdateIdentifier());
     return {builder_.GetBufferPointer(), builder_.GetSize()};

@@ -47,12 +47,16 @@ std::size_t used_grid_size(const core::Outputs& o) {
 }
 
 Problem read_probabilities(const w::Update& in, core::Outputs& o) {
-    const std::pair<const char*, double> probabilities[] = {
-        {"p_home", in.p_home()}, {"p_draw", in.p_draw()}, {"p_away", in.p_away()},
-        {"p_advance_home", in.p_advance_home()}, {"p_advance_away", in.p_advance_away()},
-        {"next_goal_home", in.next_goal_home()}, {"next_goal_away", in.next_goal_away()},
-        {"next_goal_none", in.next_goal_none()}, {"p_both_score", in.p_both_score()},
-        {"tail_mass", in.tail_mass()}};
+    const std::pair<const char*, double> probabilities[] = {{"p_home", in.p_home()},
+                                                            {"p_draw", in.p_draw()},
+                                                            {"p_away", in.p_away()},
+                                                            {"p_advance_home", in.p_advance_home()},
+                                                            {"p_advance_away", in.p_advance_away()},
+                                                            {"next_goal_home", in.next_goal_home()},
+                                                            {"next_goal_away", in.next_goal_away()},
+                                                            {"next_goal_none", in.next_goal_none()},
+                                                            {"p_both_score", in.p_both_score()},
+                                                            {"tail_mass", in.tail_mass()}};
     for (const auto& [field, p] : probabilities) {
         if (auto problem = check_probability(field, p)) return problem;
     }
@@ -78,7 +82,8 @@ Problem read_vectors(const w::Update& in, core::Outputs& o) {
     const auto* over = in.p_over();
     if (!over) return MessageProblem{DecodeError::missing_field, "p_over", "absent"};
     if (over->size() != core::kTotalsLines) {
-        return bad("p_over", fmt::format("{} lines, expected {}", over->size(), core::kTotalsLines));
+        return bad("p_over",
+                   fmt::format("{} lines, expected {}", over->size(), core::kTotalsLines));
     }
     for (flatbuffers::uoffset_t i = 0; i < over->size(); ++i) {
         if (auto p = check_probability("p_over", over->Get(i))) return p;
@@ -111,7 +116,8 @@ flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
     const std::size_t n = used_grid_size(o);
     double* cells = nullptr;
     const auto grid = fbb.CreateUninitializedVector(n * n, &cells);
-    for (std::size_t i = 0; i < n; ++i) std::memcpy(cells + i * n, o.goals_added[i].data(), n * sizeof(double));
+    for (std::size_t i = 0; i < n; ++i)
+        std::memcpy(cells + i * n, o.goals_added[i].data(), n * sizeof(double));
 
     const w::MatchClock clock(static_cast<w::Period>(o.clock.period), o.clock.clock_ms);
     w::UpdateBuilder b(fbb);
@@ -151,8 +157,9 @@ flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
 
 std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& out) {
     if (in.schema_major() != kSchemaMajor) {
-        return MessageProblem{DecodeError::wrong_schema_version, "schema_major",
-                              fmt::format("{}, this build reads {}", in.schema_major(), kSchemaMajor)};
+        return MessageProblem{
+            DecodeError::wrong_schema_version, "schema_major",
+            fmt::format("{}, this build reads {}", in.schema_major(), kSchemaMajor)};
     }
     const auto status = static_cast<std::uint8_t>(in.status());
     if (status > static_cast<std::uint8_t>(core::MatchStatus::abandoned)) {
@@ -164,8 +171,8 @@ std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& ou
     if (!is_known_period(period)) return bad("clock", fmt::format("{} is not a period", period));
 
     out = DecodedUpdate{};
-    out.meta = UpdateMeta{in.match_id(), in.output_seq(), in.input_seq(), in.receive_time_us(),
-                          in.publish_time_us(), in.compute_ns()};
+    out.meta = UpdateMeta{in.match_id(),        in.output_seq(),      in.input_seq(),
+                          in.receive_time_us(), in.publish_time_us(), in.compute_ns()};
     core::Outputs& o = out.outputs;
     o.status = static_cast<core::MatchStatus>(status);
     o.clock = core::MatchClock{static_cast<core::Period>(period), clock->clock_ms()};

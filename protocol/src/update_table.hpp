@@ -11,7 +11,8 @@
 namespace liveprob::protocol::detail {
 
 flatbuffers::Offset<wire::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
-                                               const UpdateMeta& meta, const core::Outputs& outputs);
+                                               const UpdateMeta& meta,
+                                               const core::Outputs& outputs);
 
 // Range checks every field (enums known, numbers finite, probabilities in [0, 1], vectors of
 // the right length) and fills `out`; the problem names the field by its schema name.

@@ -29,30 +29,32 @@ std::string error_detail(DecodeError error, const std::string& text) {
 }
 
 std::string schema_version_detail(std::uint16_t major) {
-    return error_detail(DecodeError::wrong_schema_version,
-                        fmt::format("schema major version {}, this build reads {}", major,
-                                    kSchemaMajor));
+    return error_detail(
+        DecodeError::wrong_schema_version,
+        fmt::format("schema major version {}, this build reads {}", major, kSchemaMajor));
 }
 
 DecodeError check_envelope(std::span<const std::uint8_t>& bytes, const EnvelopeLimits& limits,
                            std::string& detail) {
     if (bytes.size() > limits.max_bytes) {
-        detail = error_detail(DecodeError::oversize, fmt::format("{} bytes, limit {}",
-                                                                 bytes.size(), limits.max_bytes));
+        detail = error_detail(DecodeError::oversize,
+                              fmt::format("{} bytes, limit {}", bytes.size(), limits.max_bytes));
         return DecodeError::oversize;
     }
-    constexpr std::size_t kHeaderBytes = sizeof(flatbuffers::uoffset_t) + flatbuffers::kFileIdentifierLength;
+    constexpr std::size_t kHeaderBytes =
+        sizeof(flatbuffers::uoffset_t) + flatbuffers::kFileIdentifierLength;
     if (bytes.size() < kHeaderBytes) {
-        detail = error_detail(DecodeError::too_small,
-                              fmt::format("{} bytes, a buffer needs at least {}", bytes.size(),
-                                          kHeaderBytes));
+        detail = error_detail(
+            DecodeError::too_small,
+            fmt::format("{} bytes, a buffer needs at least {}", bytes.size(), kHeaderBytes));
         return DecodeError::too_small;
     }
-    const auto id = bytes.subspan(sizeof(flatbuffers::uoffset_t), flatbuffers::kFileIdentifierLength);
+    const auto id =
+        bytes.subspan(sizeof(flatbuffers::uoffset_t), flatbuffers::kFileIdentifierLength);
     if (std::memcmp(id.data(), limits.identifier, id.size()) != 0) {
-        detail = error_detail(DecodeError::wrong_identifier,
-                              fmt::format("expected '{}', got '{}'", limits.identifier,
-                                          printable_identifier(id)));
+        detail = error_detail(
+            DecodeError::wrong_identifier,
+            fmt::format("expected '{}', got '{}'", limits.identifier, printable_identifier(id)));
         return DecodeError::wrong_identifier;
     }
     constexpr std::uintptr_t kAlign = alignof(std::uint64_t);

@@ -17,9 +17,9 @@ namespace liveprob::protocol::detail {
 
 struct EnvelopeLimits {
     std::size_t max_bytes;
-    const char* identifier;   // four characters
-    unsigned max_depth;       // nesting of tables and vectors
-    unsigned max_tables;      // tables visited by the verifier
+    const char* identifier;  // four characters
+    unsigned max_depth;      // nesting of tables and vectors
+    unsigned max_tables;     // tables visited by the verifier
 };
 
 template <class Root>

@@ -15,10 +15,10 @@ namespace liveprob::protocol {
 
 namespace {
 
-[[noreturn]] void fail(const std::filesystem::path& path, std::string_view action, std::string_view what,
-                       const std::string& reason) {
-    throw std::runtime_error(path.string() + ": cannot " + std::string(action) + " " + std::string(what) + ": " +
-                             reason);
+[[noreturn]] void fail(const std::filesystem::path& path, std::string_view action,
+                       std::string_view what, const std::string& reason) {
+    throw std::runtime_error(path.string() + ": cannot " + std::string(action) + " " +
+                             std::string(what) + ": " + reason);
 }
 
 // Closes a descriptor on every path out of a function.
@@ -76,12 +76,13 @@ std::string read_whole_file(const std::filesystem::path& path, std::string_view 
     return read_all<std::string>(path, what);
 }
 
-std::vector<std::uint8_t> read_whole_file_bytes(const std::filesystem::path& path, std::string_view what) {
+std::vector<std::uint8_t> read_whole_file_bytes(const std::filesystem::path& path,
+                                                std::string_view what) {
     return read_all<std::vector<std::uint8_t>>(path, what);
 }
 
-void write_file_atomically(const std::filesystem::path& path, std::span<const std::uint8_t> contents,
-                           std::string_view what) {
+void write_file_atomically(const std::filesystem::path& path,
+                           std::span<const std::uint8_t> contents, std::string_view what) {
     // A name no other writer (thread or process) picks: the process id and a counter.
     static std::atomic<unsigned> counter{0};
     std::filesystem::path temporary = path;
@@ -92,20 +93,25 @@ void write_file_atomically(const std::filesystem::path& path, std::span<const st
         write_all(fd.get(), contents);
         if (::fsync(fd.get()) != 0) throw std::system_error(errno, std::generic_category());
         if (::close(fd.release()) != 0) throw std::system_error(errno, std::generic_category());
-        if (::rename(temporary.c_str(), path.c_str()) != 0) throw std::system_error(errno, std::generic_category());
+        if (::rename(temporary.c_str(), path.c_str()) != 0)
+            throw std::system_error(errno, std::generic_category());
     } catch (const std::system_error& e) {
         ::unlink(temporary.c_str());
         fail(path, "write", what, std::strerror(e.code().value()));
     }
     // The rename is durable once the folder's entry is: flush the folder too.
-    const std::filesystem::path folder = path.has_parent_path() ? path.parent_path() : std::filesystem::path(".");
+    const std::filesystem::path folder =
+        path.has_parent_path() ? path.parent_path() : std::filesystem::path(".");
     Descriptor dir(::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC));
-    if (dir.get() < 0 || ::fsync(dir.get()) != 0) fail(path, "flush the folder of", what, std::strerror(errno));
+    if (dir.get() < 0 || ::fsync(dir.get()) != 0)
+        fail(path, "flush the folder of", what, std::strerror(errno));
 }
 
-void write_file_atomically(const std::filesystem::path& path, std::string_view contents, std::string_view what) {
-    write_file_atomically(path, std::span(reinterpret_cast<const std::uint8_t*>(contents.data()), contents.size()),
-                          what);
+void write_file_atomically(const std::filesystem::path& path, std::string_view contents,
+                           std::string_view what) {
+    write_file_atomically(
+        path, std::span(reinterpret_cast<const std::uint8_t*>(contents.data()), contents.size()),
+        what);
 }
 
 }  // namespace liveprob::protocol

@@ -11,27 +11,30 @@
 #include "heap_allocation_counter.hpp"
 #include "liveprob/core/match.hpp"
 
-
 using namespace liveprob;
-
 
 using namespace liveprob::core;
 using liveprob::test::at_minute;
 
-TEST_CASE("applying messages in feed order and reading the outputs allocates nothing", "[match][allocation]") {
+TEST_CASE("applying messages in feed order and reading the outputs allocates nothing",
+          "[match][allocation]") {
     MatchSetup setup;
     setup.prior = PriorMeans{1.5, 1.2};
     setup.format.extra_time = true;
     setup.format.shootout = true;
-    Match match(3, setup, ModelParams{});  // full model: score effects, reds, Gamma mixture, knock-out
+    Match match(3, setup,
+                ModelParams{});  // full model: score effects, reds, Gamma mixture, knock-out
     test::FeedBuilder feed(3);
     const std::vector<InboundMessage> stream = {
-        feed.start(Period::first_half, 0), feed.goal(Side::home, Period::first_half, 10),
-        feed.shot(Side::away, 0.2, Period::first_half, 12), feed.red(Side::away, Period::first_half, 20),
+        feed.start(Period::first_half, 0),
+        feed.goal(Side::home, Period::first_half, 10),
+        feed.shot(Side::away, 0.2, Period::first_half, 12),
+        feed.red(Side::away, Period::first_half, 20),
         feed.next(ClockSync{true}, at_minute(Period::first_half, 25)),
         feed.goal(Side::away, Period::first_half, 30),
         feed.next(StoppageAnnounced{Period::first_half, 2}, at_minute(Period::first_half, 45)),
-        feed.end(Period::first_half, 47), feed.start(Period::second_half, 45),
+        feed.end(Period::first_half, 47),
+        feed.start(Period::second_half, 45),
         feed.goal(Side::home, Period::second_half, 60)};
     // Warm up: the first pricing of each kind of state may size caches.
     (void)match.outputs();

@@ -6,14 +6,12 @@
 #include <cstdlib>
 #include <new>
 
+#include "heap_allocation_counter.hpp"
 #include "liveprob/core/intensity.hpp"
 #include "liveprob/core/pricing.hpp"
-#include "heap_allocation_counter.hpp"
 #include "pricing_fixtures.hpp"
 
-
 using namespace liveprob;
-
 
 using namespace liveprob::core;
 
@@ -29,7 +27,8 @@ TEST_CASE("pricing allocates nothing per update, plain and full model") {
     for (const bool full : {false, true}) {
         const ModelParams params = full ? ModelParams{} : ModelParams::plain_poisson();
         PricingModel model(params);
-        PricingState st = test::pricing_state(1.5, 1.1, test::at_minute(Period::first_half, 10), 0, 0);
+        PricingState st =
+            test::pricing_state(1.5, 1.1, test::at_minute(Period::first_half, 10), 0, 0);
         if (full) {
             st.format.extra_time = st.format.shootout = true;
             st.reds = {0, 1};
@@ -41,7 +40,8 @@ TEST_CASE("pricing allocates nothing per update, plain and full model") {
         model.price(st, out);  // warm-up: caches the quadrature nodes
         const long before = test::heap_allocations();
         for (int minute = 11; minute < 90; ++minute) {
-            st.clock = test::at_minute(minute < 45 ? Period::first_half : Period::second_half, minute);
+            st.clock =
+                test::at_minute(minute < 45 ? Period::first_half : Period::second_half, minute);
             if (minute == 60) st.goals[0] = 1;
             if (minute == 60 && full) st.theta_shape[0] += 1;  // new shape: nodes recomputed
             st.theta_rate[0] += 0.01;

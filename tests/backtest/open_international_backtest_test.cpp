@@ -7,8 +7,8 @@
 // from 15 minutes on (the flat profile: up to 85, see below), and expected calibration error at
 // most 0.03 at every bucket. The table is
 // printed whatever the outcome. Data: the open international dataset (its licence beside it).
-#include <catch2/catch.hpp>
 #include <simdjson.h>
+#include <catch2/catch.hpp>
 
 #include <chrono>
 #include <iostream>
@@ -32,8 +32,10 @@ struct BucketFigures {
 double run_step(const std::string& what, const std::string& command) {
     const auto start = std::chrono::steady_clock::now();
     const auto result = liveprob::test::run_command(command);
-    const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    std::cout << fmt::format("-- {} ({:.1f} s): {}\n{}", what, seconds, command, result.out) << std::flush;
+    const double seconds =
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    std::cout << fmt::format("-- {} ({:.1f} s): {}\n{}", what, seconds, command, result.out)
+              << std::flush;
     INFO(command);
     REQUIRE(result.exit_code == 0);
     return seconds;
@@ -72,40 +74,48 @@ std::vector<BucketFigures> read_report(const std::filesystem::path& path) {
 
 }  // namespace
 
-TEST_CASE("open international backtest: from minute 15 the model beats both baselines on RPS, and ECE <= 0.03 "
-          "at every bucket",
-          "[backtest][open-data]") {
+TEST_CASE(
+    "open international backtest: from minute 15 the model beats both baselines on RPS, and ECE <= "
+    "0.03 "
+    "at every bucket",
+    "[backtest][open-data]") {
     const auto data = liveprob::test::open_data_dir() / "international";
     const auto dir = liveprob::test::scratch_dir("backtest-international");
     const std::string bin = liveprob::test::liveprob_binary().string();
     const auto params = dir / "params.json", streams = dir / "streams", report = dir / "report";
 
     double total = 0.0;
-    total += run_step("in-play parameters", fmt::format("{} fit-inplay --international {} --out {}", bin, data.string(),
-                                                       params.string()));
+    total += run_step("in-play parameters", fmt::format("{} fit-inplay --international {} --out {}",
+                                                        bin, data.string(), params.string()));
     total += run_step("import with walk-forward priors",
-                      fmt::format("{} import --international {} --out {} --quiet", bin, data.string(), streams.string()));
-    total += run_step("replay", fmt::format("{} replay {} --report {} --params {} --quiet", bin, streams.string(),
-                                            report.string(), params.string()));
+                      fmt::format("{} import --international {} --out {} --quiet", bin,
+                                  data.string(), streams.string()));
+    total += run_step("replay", fmt::format("{} replay {} --report {} --params {} --quiet", bin,
+                                            streams.string(), report.string(), params.string()));
     std::cout << fmt::format("-- whole backtest: {:.1f} s\n", total);
 
     const auto buckets = read_report(report / "report.json");
     REQUIRE(buckets.size() == 8);
-    std::cout << fmt::format("{:>5} {:>6} {:>9} {:>9} {:>9} {:>10} {:>10} {:>7}\n", "min", "n", "model", "fixed",
-                             "uniform", "vs fixed", "vs uniform", "ece");
+    std::cout << fmt::format("{:>5} {:>6} {:>9} {:>9} {:>9} {:>10} {:>10} {:>7}\n", "min", "n",
+                             "model", "fixed", "uniform", "vs fixed", "vs uniform", "ece");
     for (const auto& b : buckets) {
-        std::cout << fmt::format("{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>+10.5f} {:>+10.5f} {:>7.4f}\n", b.label, b.n,
-                                 b.rps_model, b.rps_fixed, b.rps_uniform, b.rps_model - b.rps_fixed,
-                                 b.rps_model - b.rps_uniform, b.ece_model);
+        std::cout << fmt::format(
+            "{:>5} {:>6} {:>9.5f} {:>9.5f} {:>9.5f} {:>+10.5f} {:>+10.5f} {:>7.4f}\n", b.label, b.n,
+            b.rps_model, b.rps_fixed, b.rps_uniform, b.rps_model - b.rps_fixed,
+            b.rps_model - b.rps_uniform, b.ece_model);
     }
     const auto& last = buckets.back();
-    std::cout << fmt::format("not asserted: at {} the model against the flat profile ({:+.5f}); the streams put the "
-                             "source's whole minute 90 after 90:00 (see below)\n",
-                             last.label, last.rps_model - last.rps_uniform)
+    std::cout << fmt::format(
+                     "not asserted: at {} the model against the flat profile ({:+.5f}); the "
+                     "streams put the "
+                     "source's whole minute 90 after 90:00 (see below)\n",
+                     last.label, last.rps_model - last.rps_uniform)
               << std::flush;
     for (const auto& b : buckets) {
-        INFO(fmt::format("bucket {}: n {}, RPS model {:.5f}, fixed prior {:.5f}, uniform timing/no state {:.5f}, ECE {:.4f}",
-                         b.label, b.n, b.rps_model, b.rps_fixed, b.rps_uniform, b.ece_model));
+        INFO(
+            fmt::format("bucket {}: n {}, RPS model {:.5f}, fixed prior {:.5f}, uniform timing/no "
+                        "state {:.5f}, ECE {:.4f}",
+                        b.label, b.n, b.rps_model, b.rps_fixed, b.rps_uniform, b.ece_model));
         CHECK(b.n > 12'000);  // every imported match reaches every bucket
         if (b.minute >= 15) CHECK(b.rps_model < b.rps_fixed);
         // At 90:00 the streams hold every goal of the source's minute 90 in stoppage (so none is

@@ -1,7 +1,7 @@
 // Fuzz the two configuration readers (service settings and model parameters): any text is
 // either read or refused with one line naming the file and the problem (ConfigError,
-// ParamsFileError) — never a crash, a hang or another kind of exception — and model parameters that were read write back
-// to a file that reads back to the same parameters.
+// ParamsFileError) — never a crash, a hang or another kind of exception — and model parameters that
+// were read write back to a file that reads back to the same parameters.
 #include <cstddef>
 #include <cstdint>
 #include <cstdlib>
@@ -31,12 +31,16 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         }
     } catch (const ConfigError& e) {
         require_one_line(e);
-        if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();  // names the file
+        if (std::string(e.what()).find("fuzz.json") == std::string::npos)
+            std::abort();  // names the file
     }
     try {
-        const liveprob::core::ModelParams params = liveprob::files::parse_params_json(text, "fuzz.json");
-        const liveprob::core::ModelParams again = liveprob::files::parse_params_json(liveprob::files::params_to_json(params), "again.json");
-        if (liveprob::files::params_to_json(again) != liveprob::files::params_to_json(params)) std::abort();
+        const liveprob::core::ModelParams params =
+            liveprob::files::parse_params_json(text, "fuzz.json");
+        const liveprob::core::ModelParams again = liveprob::files::parse_params_json(
+            liveprob::files::params_to_json(params), "again.json");
+        if (liveprob::files::params_to_json(again) != liveprob::files::params_to_json(params))
+            std::abort();
     } catch (const liveprob::files::ParamsFileError& e) {
         require_one_line(e);
         if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();

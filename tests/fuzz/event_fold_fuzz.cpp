@@ -34,8 +34,9 @@ void require(bool ok) {
 bool near_one(double x) { return std::abs(x - 1.0) < 1e-9; }
 
 void check_outputs(const Outputs& o) {
-    const double ps[] = {o.p_home, o.p_draw, o.p_away, o.next_goal_home, o.next_goal_away,
-                         o.next_goal_none, o.p_both_score, o.p_advance_home, o.p_advance_away};
+    const double ps[] = {o.p_home,         o.p_draw,         o.p_away,
+                         o.next_goal_home, o.next_goal_away, o.next_goal_none,
+                         o.p_both_score,   o.p_advance_home, o.p_advance_away};
     for (double p : ps) require(p >= -1e-12 && p <= 1.0 + 1e-12);
     require(near_one(o.p_home + o.p_draw + o.p_away));
     require(near_one(o.next_goal_home + o.next_goal_away + o.next_goal_none));
@@ -60,8 +61,14 @@ InboundMessage make_message(ByteReader& in, std::uint64_t match_id) {
         case 3: m.body = GoalCancelled{in.next() % 64u}; break;
         case 4: m.body = RedCard{side, (in.next() & 1) != 0}; break;
         case 5: m.body = CardRescinded{in.next() % 64u}; break;
-        case 6: m.body = StoppageAnnounced{static_cast<Period>(in.next() % 7), static_cast<std::uint16_t>(in.next() % 40)}; break;
-        case 7: m.body = ScoreCorrection{static_cast<std::uint16_t>(in.next() % 20), static_cast<std::uint16_t>(in.next() % 20)}; break;
+        case 6:
+            m.body = StoppageAnnounced{static_cast<Period>(in.next() % 7),
+                                       static_cast<std::uint16_t>(in.next() % 40)};
+            break;
+        case 7:
+            m.body = ScoreCorrection{static_cast<std::uint16_t>(in.next() % 20),
+                                     static_cast<std::uint16_t>(in.next() % 20)};
+            break;
         case 8: m.body = ShootoutKick{side, (in.next() & 1) != 0}; break;
         case 9: m.body = ShotXg{side, (in.next() - 20) / 100.0}; break;
         case 10: m.body = MatchAbandoned{"fuzz"}; break;
@@ -83,7 +90,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     const std::uint8_t format = in.next();
     setup.format.extra_time = (format & 1) != 0;
     setup.format.shootout = (format & 2) != 0;
-    if (format & 4) setup.format.first_leg = FirstLegResult{static_cast<std::uint16_t>(format >> 5 & 3), static_cast<std::uint16_t>(format >> 3 & 3)};
+    if (format & 4)
+        setup.format.first_leg = FirstLegResult{static_cast<std::uint16_t>(format >> 5 & 3),
+                                                static_cast<std::uint16_t>(format >> 3 & 3)};
 
     constexpr std::uint64_t kMatch = 7;
     Match arrival_order(kMatch, setup);
@@ -92,7 +101,8 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         sent.push_back(make_message(in, kMatch));
         arrival_order.apply(sent.back());
         check_outputs(arrival_order.outputs());
-        require(arrival_order.outputs().home_goals < 1000 && arrival_order.outputs().away_goals < 1000);
+        require(arrival_order.outputs().home_goals < 1000 &&
+                arrival_order.outputs().away_goals < 1000);
         if (in.next() % 4 == 0) {
             MatchClock later = sent.back().header.clock;
             later.clock_ms += 60'000;
@@ -104,9 +114,10 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     // The same messages sorted by sequence number (stable: copies of one sequence number keep
     // their relative order, so the same copy is the one that counts).
     std::vector<InboundMessage> ordered = sent;
-    std::stable_sort(ordered.begin(), ordered.end(), [](const InboundMessage& a, const InboundMessage& b) {
-        return a.header.source_seq < b.header.source_seq;
-    });
+    std::stable_sort(ordered.begin(), ordered.end(),
+                     [](const InboundMessage& a, const InboundMessage& b) {
+                         return a.header.source_seq < b.header.source_seq;
+                     });
     Match in_order(kMatch, setup);
     for (const auto& m : ordered) in_order.apply(m);
     require(in_order.state() == arrival_order.state());

@@ -13,7 +13,8 @@
 
 namespace {
 void write_file(const std::filesystem::path& path, const void* data, std::size_t size) {
-    std::ofstream(path, std::ios::binary).write(static_cast<const char*>(data), static_cast<std::streamsize>(size));
+    std::ofstream(path, std::ios::binary)
+        .write(static_cast<const char*>(data), static_cast<std::streamsize>(size));
 }
 }  // namespace
 
@@ -28,7 +29,8 @@ int main(int argc, char** argv) {
     int n = 0;
     for (const auto& message : liveprob::test::sample_messages()) {
         char name[64];
-        std::snprintf(name, sizeof name, "seed-%02d-%s", n++, liveprob::core::kind_name(message.body));
+        std::snprintf(name, sizeof name, "seed-%02d-%s", n++,
+                      liveprob::core::kind_name(message.body));
         const auto bytes = liveprob::protocol::encode_feed_message(message);
         write_file(root / "feed_decode" / name, bytes.data(), bytes.size());
         const std::string line = liveprob::protocol::to_json_line(message);

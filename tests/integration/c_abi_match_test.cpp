@@ -139,7 +139,8 @@ TEST_CASE("a knock-out match through the C ABI equals the C++ engine at every st
     period_event(LIVEPROB_EVENT_PERIOD_END, Period::extra_first, 106);
     period_event(LIVEPROB_EVENT_PERIOD_START, Period::extra_second, 105);
     {
-        liveprob_event e = c_event(++seq, LIVEPROB_EVENT_SCORE_CORRECTION, Period::extra_second, 110);
+        liveprob_event e =
+            c_event(++seq, LIVEPROB_EVENT_SCORE_CORRECTION, Period::extra_second, 110);
         e.home_goals = 2;
         e.away_goals = 2;
         add(e, ScoreCorrection{2, 2});
@@ -161,7 +162,8 @@ TEST_CASE("a knock-out match through the C ABI equals the C++ engine at every st
         InboundMessage m;
         m.header.match_id = kMatch;
         m.header.source_seq = step.c.source_seq;
-        m.header.clock = MatchClock{static_cast<Period>(step.c.clock.period), step.c.clock.clock_ms};
+        m.header.clock =
+            MatchClock{static_cast<Period>(step.c.clock.period), step.c.clock.clock_ms};
         m.body = step.body;
         const ApplyResult expected = reference.apply(m);
         CHECK(result.verdict == static_cast<int32_t>(expected.verdict));
@@ -173,8 +175,10 @@ TEST_CASE("a knock-out match through the C ABI equals the C++ engine at every st
         if (step.c.kind == LIVEPROB_EVENT_GOAL) {
             // The clock runs between events in both.
             int32_t moved = -1;
-            const MatchClock later{static_cast<Period>(step.c.clock.period), step.c.clock.clock_ms + 60'000};
-            REQUIRE(liveprob_match_advance(handle, {step.c.clock.period, later.clock_ms}, &moved) == LIVEPROB_OK);
+            const MatchClock later{static_cast<Period>(step.c.clock.period),
+                                   step.c.clock.clock_ms + 60'000};
+            REQUIRE(liveprob_match_advance(handle, {step.c.clock.period, later.clock_ms}, &moved) ==
+                    LIVEPROB_OK);
             CHECK(moved == (reference.advance_to(later) ? 1 : 0));
             CHECK(moved == 1);
             REQUIRE(liveprob_match_outputs(handle, &out) == LIVEPROB_OK);

@@ -7,8 +7,8 @@
 #include <regex>
 #include <string>
 
-#include "liveprob/files/params_file.hpp"
 #include "liveprob/core/position.hpp"
+#include "liveprob/files/params_file.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
@@ -44,7 +44,8 @@ MatchPosition position(double h, double a, Period p, double minute, std::array<i
 TEST_CASE("calc --json equals the in-process engine at the same position", "[calc]") {
     const auto r = calc("--prior 1.6,1.1 --minute 67 --score 1-0 --reds 0-1 --json");
     REQUIRE(r.exit_code == 0);
-    const Match m = match_at(position(1.6, 1.1, Period::second_half, 67, {1, 0}, {0, 1}), ModelParams{});
+    const Match m =
+        match_at(position(1.6, 1.1, Period::second_half, 67, {1, 0}, {0, 1}), ModelParams{});
     const Outputs& o = m.outputs();
     CHECK(json_number(r.out, "home") == o.p_home);
     CHECK(json_number(r.out, "draw") == o.p_draw);
@@ -80,11 +81,13 @@ TEST_CASE("calc reads a parameter file", "[calc]") {
     const auto dir = test::scratch_dir("calc-params");
     ModelParams plain = ModelParams::plain_poisson();
     save_params_file(plain, (dir / "plain.json").string());
-    const auto r = calc("--prior 1.4,1.2 --minute 30 --params " + (dir / "plain.json").string() + " --json");
+    const auto r =
+        calc("--prior 1.4,1.2 --minute 30 --params " + (dir / "plain.json").string() + " --json");
     REQUIRE(r.exit_code == 0);
     const Match m = match_at(position(1.4, 1.2, Period::first_half, 30, {0, 0}, {0, 0}), plain);
     CHECK(json_number(r.out, "home") == m.outputs().p_home);
-    const Match full = match_at(position(1.4, 1.2, Period::first_half, 30, {0, 0}, {0, 0}), ModelParams{});
+    const Match full =
+        match_at(position(1.4, 1.2, Period::first_half, 30, {0, 0}, {0, 0}), ModelParams{});
     CHECK(json_number(r.out, "home") != full.outputs().p_home);  // the file made a difference
 }
 

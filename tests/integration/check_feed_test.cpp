@@ -7,10 +7,10 @@
 #include <sstream>
 #include <vector>
 
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "sample_messages.hpp"
 #include "test_env.hpp"
 
@@ -64,11 +64,12 @@ TEST_CASE("check-feed reports every bad line of the fixture, in order", "[check_
 TEST_CASE("check-feed summarises the fixture as JSON", "[check_feed]") {
     const auto summary = stdout_of("check-feed --json " + quoted(kFixture));
     CHECK(summary.exit_code == 1);
-    CHECK(summary.out ==
-          "{\"form\": \"json_lines\", \"units\": 18, \"ok\": 10, \"skipped\": 2, \"bad\": 6, "
-          "\"kinds\": {\"final_whistle\": 1, \"goal\": 2, \"goal_cancelled\": 1, \"period_end\": 1, "
-          "\"period_start\": 2, \"setup\": 1, \"shot_xg\": 1, \"stoppage\": 1}, "
-          "\"repeated_seq\": 1, \"out_of_order_seq\": 0}\n");
+    CHECK(
+        summary.out ==
+        "{\"form\": \"json_lines\", \"units\": 18, \"ok\": 10, \"skipped\": 2, \"bad\": 6, "
+        "\"kinds\": {\"final_whistle\": 1, \"goal\": 2, \"goal_cancelled\": 1, \"period_end\": 1, "
+        "\"period_start\": 2, \"setup\": 1, \"shot_xg\": 1, \"stoppage\": 1}, "
+        "\"repeated_seq\": 1, \"out_of_order_seq\": 0}\n");
     const auto text = stdout_of("check-feed " + quoted(kFixture));
     CHECK(text.out.find("18 lines: 10 ok, 2 skipped, 6 bad") != std::string::npos);
 }
@@ -84,7 +85,8 @@ TEST_CASE("check-feed passes a clean feed with exit 0", "[check_feed]") {
     std::filesystem::remove_all(dir);
 }
 
-TEST_CASE("check-feed reads a size-prefixed stream and reports a bad frame and a torn tail", "[check_feed]") {
+TEST_CASE("check-feed reads a size-prefixed stream and reports a bad frame and a torn tail",
+          "[check_feed]") {
     const auto dir = scratch_dir("check-feed-stream");
     std::vector<std::uint8_t> stream;
     const auto messages = sample_messages();
@@ -105,10 +107,17 @@ TEST_CASE("check-feed reads a size-prefixed stream and reports a bad frame and a
     CHECK(errors.exit_code == 1);
     const auto got = lines_of(errors.out);
     REQUIRE(got.size() == 2);
-    CHECK(got[0] == fmt::format("frame 3 at offset {}: wrong_identifier: expected 'LPF1', got 'XPF1'", bad_offset));
-    CHECK(got[1] == fmt::format("after frame 5: torn_payload: frame at offset {} declares 64 bytes, only 2 remain", tail_offset));
+    CHECK(got[0] ==
+          fmt::format("frame 3 at offset {}: wrong_identifier: expected 'LPF1', got 'XPF1'",
+                      bad_offset));
+    CHECK(got[1] ==
+          fmt::format(
+              "after frame 5: torn_payload: frame at offset {} declares 64 bytes, only 2 remain",
+              tail_offset));
     const auto summary = stdout_of("check-feed --json " + quoted(dir / "journal.lpf"));
-    CHECK(summary.out.rfind("{\"form\": \"frame_stream\", \"units\": 6, \"ok\": 4, \"skipped\": 0, \"bad\": 2,", 0) == 0);
+    CHECK(summary.out.rfind(
+              "{\"form\": \"frame_stream\", \"units\": 6, \"ok\": 4, \"skipped\": 0, \"bad\": 2,",
+              0) == 0);
     std::filesystem::remove_all(dir);
 }
 
@@ -116,7 +125,8 @@ TEST_CASE("check-feed: usage errors exit 2, an unreadable file exits 1", "[check
     const auto no_file = stderr_of("check-feed");
     CHECK(no_file.exit_code == 2);
     CHECK(lines_of(no_file.out).size() == 1);
-    const auto missing = stderr_of("check-feed " + quoted(source_dir() / "tests/data/no-such-feed.jsonl"));
+    const auto missing =
+        stderr_of("check-feed " + quoted(source_dir() / "tests/data/no-such-feed.jsonl"));
     CHECK(missing.exit_code == 1);
     CHECK(missing.out.find("cannot open") != std::string::npos);
     CHECK(lines_of(missing.out).size() == 1);

@@ -28,7 +28,9 @@ test::CommandResult liveprob_run(const std::string& args) {
     return test::run_command(fmt::format("{} {} 2>&1", test::liveprob_binary().string(), args));
 }
 
-std::string example(const char* name) { return (test::source_dir() / "tests/data" / name).string(); }
+std::string example(const char* name) {
+    return (test::source_dir() / "tests/data" / name).string();
+}
 
 // The diagnostics the ratings file carries beside the ratings (the part `prior` does not read).
 struct FileDiagnostics {
@@ -56,7 +58,8 @@ FileDiagnostics diagnostics_in(const std::string& path) {
 TEST_CASE("fit on the project's results CSV writes a ratings file that prior reads") {
     const auto dir = test::scratch_dir("fit_cli_example");
     const auto ratings_path = (dir / "ratings.json").string();
-    const auto run = liveprob_run(fmt::format("fit --results {} --out {}", example("results_example.csv"), ratings_path));
+    const auto run = liveprob_run(
+        fmt::format("fit --results {} --out {}", example("results_example.csv"), ratings_path));
     INFO(run.out);
     REQUIRE(run.exit_code == 0);
     const fit::Ratings r = liveprob::files::load_ratings_file(ratings_path);
@@ -89,9 +92,10 @@ TEST_CASE("fit on the project's results CSV writes a ratings file that prior rea
     CHECK(std::abs(defence) < 1e-9);
 
     // prior: a feed name through the alias file, and the setup line the feed reader accepts.
-    const auto prior = liveprob_run(fmt::format("prior --ratings {} --home \"Harbour T.\" --away \"Hill Rovers\" "
-                                                "--aliases {} --setup-message --match-id 77",
-                                                ratings_path, example("aliases_example.csv")));
+    const auto prior =
+        liveprob_run(fmt::format("prior --ratings {} --home \"Harbour T.\" --away \"Hill Rovers\" "
+                                 "--aliases {} --setup-message --match-id 77",
+                                 ratings_path, example("aliases_example.csv")));
     INFO(prior.out);
     REQUIRE(prior.exit_code == 0);
     liveprob::protocol::JsonFeedReader reader;
@@ -100,21 +104,23 @@ TEST_CASE("fit on the project's results CSV writes a ratings file that prior rea
     CHECK(read.message->header.match_id == 77);
     const auto& setup = std::get<liveprob::core::MatchSetup>(read.message->body);
     REQUIRE(setup.prior);
-    const auto expected = fit::expected_goals(r, *r.find("Harbour Town"), *r.find("Hill Rovers"), false);
+    const auto expected =
+        fit::expected_goals(r, *r.find("Harbour Town"), *r.find("Hill Rovers"), false);
     CHECK(setup.prior->home_goals == Approx(expected.home).epsilon(1e-12));
     CHECK(setup.prior->away_goals == Approx(expected.away).epsilon(1e-12));
 
     // An unknown name is an error listing the closest known names.
-    const auto unknown = liveprob_run(fmt::format("prior --ratings {} --home \"Harbor Town\" --away \"Hill Rovers\"",
-                                                  ratings_path));
+    const auto unknown = liveprob_run(fmt::format(
+        "prior --ratings {} --home \"Harbor Town\" --away \"Hill Rovers\"", ratings_path));
     CHECK(unknown.exit_code == 1);
     CHECK_THAT(unknown.out, Catch::Contains("Harbour Town"));
 }
 
 TEST_CASE("fit: the as-of cut, and a malformed row named by file and line") {
     const auto dir = test::scratch_dir("fit_cli_errors");
-    const auto before_all = liveprob_run(fmt::format("fit --results {} --as-of 2000-01-01 --out {}",
-                                                     example("results_example.csv"), (dir / "r.json").string()));
+    const auto before_all =
+        liveprob_run(fmt::format("fit --results {} --as-of 2000-01-01 --out {}",
+                                 example("results_example.csv"), (dir / "r.json").string()));
     CHECK(before_all.exit_code == 1);
     CHECK_THAT(before_all.out, Catch::Contains("as-of"));
 
@@ -122,18 +128,21 @@ TEST_CASE("fit: the as-of cut, and a malformed row named by file and line") {
     std::ofstream(bad) << "date,home,away,home_goals,away_goals,neutral\n"
                        << "2031-08-09,North,South,2,1,0\n"
                        << "2031-08-16,South,North,two,1,0\n";
-    const auto run = liveprob_run(fmt::format("fit --results {} --out {}", bad.string(), (dir / "r.json").string()));
+    const auto run = liveprob_run(
+        fmt::format("fit --results {} --out {}", bad.string(), (dir / "r.json").string()));
     CHECK(run.exit_code == 1);
     CHECK_THAT(run.out, Catch::Contains("bad.csv") && Catch::Contains("3"));
     CHECK_FALSE(std::filesystem::exists(dir / "r.json"));
 }
 
-TEST_CASE("fit reads the open datasets' formats: a league file and the international results as of a date") {
+TEST_CASE(
+    "fit reads the open datasets' formats: a league file and the international results as of a "
+    "date") {
     const auto data = test::open_data_dir();
     const auto dir = test::scratch_dir("fit_cli_open");
-    const auto league = liveprob_run(fmt::format("fit --results {} --half-life 240 --low-score-correction --out {}",
-                                                 (data / "leagues/2015-16/de.1.json").string(),
-                                                 (dir / "league.json").string()));
+    const auto league = liveprob_run(
+        fmt::format("fit --results {} --half-life 240 --low-score-correction --out {}",
+                    (data / "leagues/2015-16/de.1.json").string(), (dir / "league.json").string()));
     INFO(league.out);
     REQUIRE(league.exit_code == 0);
     const fit::Ratings l = liveprob::files::load_ratings_file((dir / "league.json").string());
@@ -144,12 +153,13 @@ TEST_CASE("fit reads the open datasets' formats: a league file and the internati
     CHECK(ld.rho_se > 0.0);
     CHECK(l.xi == Approx(std::log(2.0) / 240.0));
 
-    const auto international = liveprob_run(fmt::format("fit --results {} --as-of 2010-06-11 --half-life 730 --out {}",
-                                                        (data / "international/results.csv").string(),
-                                                        (dir / "international.json").string()));
+    const auto international = liveprob_run(fmt::format(
+        "fit --results {} --as-of 2010-06-11 --half-life 730 --out {}",
+        (data / "international/results.csv").string(), (dir / "international.json").string()));
     INFO(international.out);
     REQUIRE(international.exit_code == 0);
-    const fit::Ratings i = liveprob::files::load_ratings_file((dir / "international.json").string());
+    const fit::Ratings i =
+        liveprob::files::load_ratings_file((dir / "international.json").string());
     REQUIRE(i.as_of_day);
     CHECK(*i.as_of_day == *fit::parse_iso_date("2010-06-11"));
     CHECK(diagnostics_in((dir / "international.json").string()).converged);

@@ -25,14 +25,23 @@ const char* kChromium = "/usr/bin/chromium";
 
 // Headless Chromium with everything that would reach outside the machine turned off.
 std::vector<std::string> chromium_args(const std::filesystem::path& profile) {
-    return {kChromium, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
-            "--no-first-run", "--disable-background-networking", "--disable-component-update",
-            "--disable-sync", "--disable-dev-shm-usage", "--hide-scrollbars",
+    return {kChromium,
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--disable-dev-shm-usage",
+            "--hide-scrollbars",
             "--user-data-dir=" + profile.string()};
 }
 
 // Plays a short match: setup, kick-off, a goal, a red card, more play.
-std::uint64_t play(test::LiveStack& stack, std::uint64_t match_id, double home_mean, double away_mean) {
+std::uint64_t play(test::LiveStack& stack, std::uint64_t match_id, double home_mean,
+                   double away_mean) {
     test::FeedBuilder feed(match_id);
     MatchSetup setup;
     setup.home_name = fmt::format("Home side {}", match_id);
@@ -57,13 +66,16 @@ struct ShownFigures {
 // The figures in the card of `match_id` in the page's DOM.
 ShownFigures shown_for(const std::string& dom, std::uint64_t match_id) {
     ShownFigures shown;
-    const std::regex card(fmt::format(R"re(<section class="match" data-match-id="{}" data-update-seq="(\d+)"[^>]*>([\s\S]*?)</section>)re", match_id));
+    const std::regex card(fmt::format(
+        R"re(<section class="match" data-match-id="{}" data-update-seq="(\d+)"[^>]*>([\s\S]*?)</section>)re",
+        match_id));
     std::smatch m;
     if (!std::regex_search(dom, m, card)) return shown;
     shown.update_seq = m[1];
     const std::string body = m[2];
     for (const char* side : {"home", "draw", "away"}) {
-        const std::regex figure(fmt::format(R"re(<dd class="p p-{}" data-value="([^"]+)">([^<]*)</dd>)re", side));
+        const std::regex figure(
+            fmt::format(R"re(<dd class="p p-{}" data-value="([^"]+)">([^<]*)</dd>)re", side));
         std::smatch f;
         if (std::regex_search(body, f, figure)) shown.p[side] = {f[1], f[2]};
     }
@@ -72,7 +84,8 @@ ShownFigures shown_for(const std::string& dom, std::uint64_t match_id) {
 
 }  // namespace
 
-TEST_CASE("the page shows what the engine published, in a real browser", "[gateway][browser][sockets]") {
+TEST_CASE("the page shows what the engine published, in a real browser",
+          "[gateway][browser][sockets]") {
     REQUIRE(std::filesystem::exists(kChromium));  // tools/setup/install-deps.sh installs it
     const auto dir = test::scratch_dir("gateway-browser");
     test::LiveStack stack(dir);

@@ -5,13 +5,13 @@
 // idle time-out, and rejected feed input.
 #include <catch2/catch.hpp>
 
+#include <fmt/format.h>
 #include <boost/asio/connect.hpp>
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/beast/core.hpp>
 #include <boost/beast/http.hpp>
 #include <boost/beast/websocket.hpp>
-#include <fmt/format.h>
 #include <zmq.hpp>
 
 #include <chrono>
@@ -22,8 +22,8 @@
 #include <vector>
 
 #include "liveprob/gateway/gateway.hpp"
-#include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/transport/topics.hpp"
 #include "test_env.hpp"
 
 namespace {
@@ -46,7 +46,8 @@ public:
     }
     const std::string& endpoint() const { return endpoint_; }
 
-    void publish(std::uint64_t match_id, std::uint64_t seq, double p_home, std::uint16_t home_goals = 0) {
+    void publish(std::uint64_t match_id, std::uint64_t seq, double p_home,
+                 std::uint16_t home_goals = 0) {
         liveprob::protocol::UpdateMeta meta;
         meta.match_id = match_id;
         meta.output_seq = seq;
@@ -54,7 +55,8 @@ public:
         meta.publish_time_us = 1'700'000'000'000'000;
         liveprob::core::Outputs o;
         o.status = liveprob::core::MatchStatus::in_play;
-        o.clock = {liveprob::core::Period::second_half, static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
+        o.clock = {liveprob::core::Period::second_half,
+                   static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
         o.home_goals = home_goals;
         o.p_home = p_home;
         o.p_draw = (1.0 - p_home) * 0.5;
@@ -108,7 +110,8 @@ struct HttpAnswer {
     std::string body;
 };
 
-HttpAnswer http_get(std::uint16_t port, const std::string& target, http::verb verb = http::verb::get) {
+HttpAnswer http_get(std::uint16_t port, const std::string& target,
+                    http::verb verb = http::verb::get) {
     asio::io_context io;
     beast::tcp_stream stream(io);
     stream.expires_after(5s);
@@ -145,8 +148,8 @@ bool eventually(const std::function<bool()>& condition, std::chrono::millisecond
 void wait_for_feed(FakeServe& serve, std::uint16_t port, std::uint64_t match_id) {
     REQUIRE(eventually([&] {
         serve.publish(match_id, 1, 0.5);
-        return http_get(port, "/api/matches").body.find(fmt::format("\"match_id\":{},", match_id)) !=
-               std::string::npos;
+        return http_get(port, "/api/matches")
+                   .body.find(fmt::format("\"match_id\":{},", match_id)) != std::string::npos;
     }));
 }
 
@@ -159,7 +162,8 @@ public:
         : ws_(io_) {
         auto& socket = beast::get_lowest_layer(ws_).socket();
         socket.open(tcp::v4());
-        if (receive_buffer > 0) socket.set_option(asio::socket_base::receive_buffer_size(receive_buffer));
+        if (receive_buffer > 0)
+            socket.set_option(asio::socket_base::receive_buffer_size(receive_buffer));
         socket.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
         ws_.set_option(websocket::stream_base::decorator([origin](websocket::request_type& r) {
             if (origin) r.set(http::field::origin, *origin);
@@ -172,13 +176,20 @@ public:
     unsigned handshake_status() const { return response_.result_int(); }
 
     void send(const std::string& text) {
-        const auto ec = run([&](auto done) { ws_.async_write(asio::buffer(text), [done](beast::error_code e, std::size_t) { done(e); }); });
+        const auto ec = run([&](auto done) {
+            ws_.async_write(asio::buffer(text),
+                            [done](beast::error_code e, std::size_t) { done(e); });
+        });
         REQUIRE_FALSE(ec);
     }
     // The next text message, or nothing when the connection ends (see error()) or time runs out.
     std::optional<std::string> receive(std::chrono::milliseconds limit = 5000ms) {
         beast::flat_buffer buffer;
-        error_ = run([&](auto done) { ws_.async_read(buffer, [done](beast::error_code e, std::size_t) { done(e); }); }, limit);
+        error_ = run(
+            [&](auto done) {
+                ws_.async_read(buffer, [done](beast::error_code e, std::size_t) { done(e); });
+            },
+            limit);
         if (error_) return std::nullopt;
         return beast::buffers_to_string(buffer.data());
     }
@@ -216,7 +227,9 @@ private:
     beast::error_code error_;
 };
 
-bool has(const std::string& frame, const std::string& part) { return frame.find(part) != std::string::npos; }
+bool has(const std::string& frame, const std::string& part) {
+    return frame.find(part) != std::string::npos;
+}
 
 }  // namespace
 
@@ -242,12 +255,14 @@ TEST_CASE("a client receives the matches it watches and no others", "[gateway][s
     REQUIRE(next);
     CHECK(has(*next, R"("match_id":7,"update_seq":2,)"));
     // Exactly the published double: 0.625, (1 - 0.625) / 2 = 0.1875 and the remainder.
-    CHECK(has(*next, fmt::format(R"("full_time":{{"home":{},"draw":{},"away":{}}})", 0.625, 0.1875, 1.0 - 0.625 - 0.1875)));
+    CHECK(has(*next, fmt::format(R"("full_time":{{"home":{},"draw":{},"away":{}}})", 0.625, 0.1875,
+                                 1.0 - 0.625 - 0.1875)));
     CHECK(has(*next, R"("period":"second_half","clock_ms":2702000,)"));
     CHECK_FALSE(client.receive_update(300ms));  // nothing of match 8 came through
 }
 
-TEST_CASE("watching all delivers every match, including ones that start later", "[gateway][sockets]") {
+TEST_CASE("watching all delivers every match, including ones that start later",
+          "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 1);
@@ -265,7 +280,8 @@ TEST_CASE("watching all delivers every match, including ones that start later", 
     CHECK_FALSE(client.receive_update(300ms));
 }
 
-TEST_CASE("a bad request gets an error reply and the connection stays usable", "[gateway][sockets]") {
+TEST_CASE("a bad request gets an error reply and the connection stays usable",
+          "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 3);
@@ -281,7 +297,8 @@ TEST_CASE("a bad request gets an error reply and the connection stays usable", "
     CHECK(counter(gateway.port(), "bad_requests") == 2);
 }
 
-TEST_CASE("a slow reader gets the latest value of each match, not every value", "[gateway][sockets]") {
+TEST_CASE("a slow reader gets the latest value of each match, not every value",
+          "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
@@ -296,8 +313,10 @@ TEST_CASE("a slow reader gets the latest value of each match, not every value", 
     // socket buffers hold, so the gateway must conflate.
     constexpr std::uint64_t kLast = 3001;
     for (std::uint64_t seq = 2; seq <= kLast; ++seq) serve.publish(5, seq, 0.5);
-    REQUIRE(eventually([&] { return http_get(gateway.port(), "/api/matches").body.find(
-                                        fmt::format("\"update_seq\":{},", kLast)) != std::string::npos; }));
+    REQUIRE(eventually([&] {
+        return http_get(gateway.port(), "/api/matches")
+                   .body.find(fmt::format("\"update_seq\":{},", kLast)) != std::string::npos;
+    }));
     std::uint64_t received = 0;
     std::string last;
     while (auto frame = client.receive_update(500ms)) {
@@ -309,7 +328,8 @@ TEST_CASE("a slow reader gets the latest value of each match, not every value", 
     CHECK(counter(gateway.port(), "frames_conflated") > 0);
 }
 
-TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on", "[gateway][sockets]") {
+TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on",
+          "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
@@ -336,8 +356,7 @@ TEST_CASE("a client past the send-queue cap is closed with code 4001 while other
     CHECK(has(last, R"("match_id":1,"update_seq":200,)"));
 
     // The stalled client reads what was already on its way, then the close frame.
-    while (stalled.receive(2000ms)) {
-    }
+    while (stalled.receive(2000ms)) {}
     CHECK(stalled.error() == websocket::error::closed);
     CHECK(stalled.close_code() == liveprob::gateway::kCloseSendQueueFull);
 }
@@ -359,7 +378,8 @@ TEST_CASE("an origin outside the allow-list cannot open the feed", "[gateway][so
     CHECK(counter(gateway.port(), "origins_rejected") == 1);
 }
 
-TEST_CASE("a client message over the size limit closes the client with code 1009", "[gateway][sockets]") {
+TEST_CASE("a client message over the size limit closes the client with code 1009",
+          "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.max_client_message_bytes = 256;
@@ -372,7 +392,8 @@ TEST_CASE("a client message over the size limit closes the client with code 1009
     CHECK(counter(gateway.port(), "clients_closed_oversize") == 1);
 }
 
-TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[gateway][sockets]") {
+TEST_CASE("a client that answers nothing is cut off after the idle time-out",
+          "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.idle_timeout = 400ms;
@@ -384,7 +405,8 @@ TEST_CASE("a client that answers nothing is cut off after the idle time-out", "[
     CHECK_FALSE(silent.receive(1000ms));
 }
 
-TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded", "[gateway][sockets]") {
+TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded",
+          "[gateway][sockets]") {
     FakeServe serve;
     RunningGateway gateway(test_config(serve));
     wait_for_feed(serve, gateway.port(), 9);
@@ -396,11 +418,13 @@ TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not for
     // sent before it has been handled, including any extra copies of update 1 that
     // wait_for_feed sent (those are stale too), so the stale count is then settled.
     REQUIRE(eventually([&] {
-        return has(http_get(gateway.port(), "/api/matches").body, R"("match_id":9,"update_seq":5,)");
+        return has(http_get(gateway.port(), "/api/matches").body,
+                   R"("match_id":9,"update_seq":5,)");
     }));
     const auto stale_before = counter(gateway.port(), "updates_stale");
     serve.publish(9, 4, 0.5);  // late: older than what the gateway holds
-    REQUIRE(eventually([&] { return counter(gateway.port(), "updates_stale") == stale_before + 1; }));
+    REQUIRE(
+        eventually([&] { return counter(gateway.port(), "updates_stale") == stale_before + 1; }));
     CHECK(counter(gateway.port(), "updates_rejected") == 1);
     CHECK(counter(gateway.port(), "update_gaps") == 1);
     CHECK(has(http_get(gateway.port(), "/api/matches").body, R"("match_id":9,"update_seq":5,)"));
@@ -416,8 +440,12 @@ TEST_CASE("plain HTTP serves the page, the match state and the timeline", "[gate
     CHECK(page.status == 200);
     CHECK(has(page.body, "not advice"));
     CHECK(http_get(gateway.port(), "/app.js").status == 200);
-    REQUIRE(eventually([&] { return has(http_get(gateway.port(), "/api/timeline?match=4").body, "],[2,2702000,0.5,"); }));
-    CHECK(has(http_get(gateway.port(), "/api/timeline?match=4").body, R"({"kind":"timeline","match_id":4,"points":[[2,2701000,0.5,0.25,0.25,0,0,0,0],[2,2702000,0.5,0.25,0.25,1,0,0,0]]})"));
+    REQUIRE(eventually([&] {
+        return has(http_get(gateway.port(), "/api/timeline?match=4").body, "],[2,2702000,0.5,");
+    }));
+    CHECK(has(
+        http_get(gateway.port(), "/api/timeline?match=4").body,
+        R"({"kind":"timeline","match_id":4,"points":[[2,2701000,0.5,0.25,0.25,0,0,0,0],[2,2702000,0.5,0.25,0.25,1,0,0,0]]})"));
     CHECK(http_get(gateway.port(), "/api/timeline?match=99").status == 404);
     CHECK(http_get(gateway.port(), "/../CMakeLists.txt").status == 404);
     CHECK(http_get(gateway.port(), "/api/matches", http::verb::post).status == 405);

@@ -4,8 +4,8 @@
 // because the streams carry a clock reading at every bucket minute; serve's journal afterwards
 // holds exactly the messages sent, in the recorded-stream format; and a paced run never sends
 // faster than the chosen speed.
-#include <catch2/catch.hpp>
 #include <simdjson.h>
+#include <catch2/catch.hpp>
 
 #include <algorithm>
 #include <iostream>
@@ -16,8 +16,8 @@
 
 #include "child_process.hpp"
 #include "liveprob/backtest/backtest.hpp"
-#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
@@ -74,36 +74,38 @@ liveprob::test::CommandResult run(const std::string& command) {
 
 }  // namespace
 
-TEST_CASE("replay --live through serve scores what a subscriber received: equal to the in-process replay",
-          "[replay][live][sockets]") {
+TEST_CASE(
+    "replay --live through serve scores what a subscriber received: equal to the in-process replay",
+    "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay");
     const auto season = demo::simulate_demo_season(demo::make_demo_league(11), 11);
     std::filesystem::create_directories(dir / "streams");
     // The first two rounds of the league (20 matches, interleaved by kick-off) and the whole cup.
     for (std::size_t i = 0; i < 20; ++i) {
-        backtest::write_stream(dir / "streams" / fmt::format("league-{}.stream", i), season.league[i].messages,
-                             backtest::StreamForm::frames);
+        backtest::write_stream(dir / "streams" / fmt::format("league-{}.stream", i),
+                               season.league[i].messages, backtest::StreamForm::frames);
     }
     for (std::size_t i = 0; i < season.cup.size(); ++i) {
-        backtest::write_stream(dir / "streams" / fmt::format("cup-{}.jsonl", i), season.cup[i].messages,
-                             backtest::StreamForm::json_lines);
+        backtest::write_stream(dir / "streams" / fmt::format("cup-{}.jsonl", i),
+                               season.cup[i].messages, backtest::StreamForm::json_lines);
     }
     const std::string bin = liveprob::test::liveprob_binary().string();
-    liveprob::test::ChildProcess serve({bin, "serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
-                                        "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
-                                        (dir / "serve.endpoints").string(), "--journal", (dir / "journal.lpj").string(),
-                                        "--tick-ms", "50", "--log-level", "warn"},
-                                       dir / "serve.log");
+    liveprob::test::ChildProcess serve(
+        {bin, "serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
+         "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file", (dir / "serve.endpoints").string(),
+         "--journal", (dir / "journal.lpj").string(), "--tick-ms", "50", "--log-level", "warn"},
+        dir / "serve.log");
     liveprob::test::wait_for_file(dir / "serve.endpoints");
 
-    const auto fast = run(fmt::format("{} replay {} --report {} --quiet", bin, (dir / "streams").string(),
-                                      (dir / "fast").string()));
+    const auto fast = run(fmt::format("{} replay {} --report {} --quiet", bin,
+                                      (dir / "streams").string(), (dir / "fast").string()));
     const auto live = run(fmt::format("{} replay {} --report {} --quiet --live --endpoints {}", bin,
                                       (dir / "streams").string(), (dir / "live").string(),
                                       (dir / "serve.endpoints").string()));
     std::cout << fast.out << live.out;
     CHECK(live.out.find(" 0 missed, 0 undecodable") != std::string::npos);
-    CHECK(live.out.find("largest difference from the in-process forecasts 0)") != std::string::npos);
+    CHECK(live.out.find("largest difference from the in-process forecasts 0)") !=
+          std::string::npos);
 
     const auto a = read_scores(dir / "fast"), b = read_scores(dir / "live");
     REQUIRE(a.size() == b.size());
@@ -147,7 +149,8 @@ TEST_CASE("replay --live through serve scores what a subscriber received: equal 
                          }));
 }
 
-TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps", "[replay][live][sockets]") {
+TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps",
+          "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay-paced");
     const auto season = demo::simulate_demo_season(demo::make_demo_league(12), 12);
     std::filesystem::create_directories(dir / "streams");
@@ -155,21 +158,24 @@ TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps",
     std::int64_t first = INT64_MAX, last = INT64_MIN;
     for (std::size_t i = 0; i < 10; ++i) {
         const auto& messages = season.league[i].messages;
-        backtest::write_stream(dir / "streams" / fmt::format("m{}.stream", i), messages, backtest::StreamForm::frames);
+        backtest::write_stream(dir / "streams" / fmt::format("m{}.stream", i), messages,
+                               backtest::StreamForm::frames);
         first = std::min(first, messages.front().header.source_time_us);
         last = std::max(last, messages.back().header.source_time_us);
     }
     const std::string bin = liveprob::test::liveprob_binary().string();
-    liveprob::test::ChildProcess serve({bin, "serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
-                                        "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
-                                        (dir / "serve.endpoints").string(), "--log-level", "warn"},
-                                       dir / "serve.log");
+    liveprob::test::ChildProcess serve(
+        {bin, "serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
+         "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file", (dir / "serve.endpoints").string(),
+         "--log-level", "warn"},
+        dir / "serve.log");
     const auto endpoints = liveprob::test::wait_for_file(dir / "serve.endpoints");
     const double speed = 4000.0;
-    const auto live = run(fmt::format("{} replay {} --report {} --quiet --live --ingest {} --publish {} --speed {}", bin,
-                                      (dir / "streams").string(), (dir / "live").string(),
-                                      liveprob::test::key_value(endpoints, "ingest"),
-                                      liveprob::test::key_value(endpoints, "publish"), speed));
+    const auto live = run(
+        fmt::format("{} replay {} --report {} --quiet --live --ingest {} --publish {} --speed {}",
+                    bin, (dir / "streams").string(), (dir / "live").string(),
+                    liveprob::test::key_value(endpoints, "ingest"),
+                    liveprob::test::key_value(endpoints, "publish"), speed));
     std::cout << live.out;
     // "N messages sent in S s": never faster than the recording at this speed.
     const auto at = live.out.find(" messages sent in ");
@@ -179,17 +185,21 @@ TEST_CASE("replay --live at a chosen speed is paced by the streams' timestamps",
     CHECK(read_scores(dir / "live").front().n == 10);
     // The timer's updates between messages lag the sped-up clock; the readings at the bucket
     // minutes still come from the feed's clock readings there, as in process.
-    CHECK(live.out.find("largest difference from the in-process forecasts 0)") != std::string::npos);
+    CHECK(live.out.find("largest difference from the in-process forecasts 0)") !=
+          std::string::npos);
 }
 
-TEST_CASE("replay --live against an endpoint where nothing answers fails with a clear error", "[replay][live][sockets]") {
+TEST_CASE("replay --live against an endpoint where nothing answers fails with a clear error",
+          "[replay][live][sockets]") {
     const auto dir = liveprob::test::scratch_dir("live-replay-nothing");
     const auto season = demo::simulate_demo_season(demo::make_demo_league(13), 13);
-    backtest::write_stream(dir / "m.stream", season.league[0].messages, backtest::StreamForm::frames);
+    backtest::write_stream(dir / "m.stream", season.league[0].messages,
+                           backtest::StreamForm::frames);
     const std::string bin = liveprob::test::liveprob_binary().string();
     // Ports nobody listens on (serve not started): the setup is queued, no update ever comes.
     const auto result = liveprob::test::run_command(
-        fmt::format("{} replay {} --report {} --quiet --live --ingest tcp://127.0.0.1:1 --publish tcp://127.0.0.1:2 "
+        fmt::format("{} replay {} --report {} --quiet --live --ingest tcp://127.0.0.1:1 --publish "
+                    "tcp://127.0.0.1:2 "
                     "--wait-ms 1000 2>&1",
                     bin, (dir / "m.stream").string(), (dir / "live").string()));
     CHECK(result.exit_code == 1);

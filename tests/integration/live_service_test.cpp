@@ -34,8 +34,8 @@ std::vector<std::string> update_lines(const std::string& text) {
 std::string bin() { return liveprob_binary().string(); }
 
 // Sends a feed file through `liveprob send` and waits for it to finish.
-void send_file(const std::filesystem::path& dir, const std::string& endpoint, const std::filesystem::path& feed,
-               std::vector<std::string> extra = {}) {
+void send_file(const std::filesystem::path& dir, const std::string& endpoint,
+               const std::filesystem::path& feed, std::vector<std::string> extra = {}) {
     std::vector<std::string> args = {bin(), "send", "--to", endpoint, feed.string()};
     args.insert(args.end(), extra.begin(), extra.end());
     ChildProcess send(args, dir / "send.out", dir / "send.err");
@@ -60,14 +60,17 @@ protocol::SnapshotReplyContents snapshot(const ServeProcess& serve, std::uint64_
 }
 
 // Polls the snapshot until the match has folded `events` messages (serve works asynchronously).
-protocol::DecodedUpdate wait_for_events(const ServeProcess& serve, std::uint64_t match_id, std::uint64_t events) {
+protocol::DecodedUpdate wait_for_events(const ServeProcess& serve, std::uint64_t match_id,
+                                        std::uint64_t events) {
     const auto deadline = std::chrono::steady_clock::now() + 20s;
     for (;;) {
         const auto reply = snapshot(serve, match_id);
-        if (reply.error.empty() && reply.updates.size() == 1 && reply.updates[0].outputs.events_applied >= events) {
+        if (reply.error.empty() && reply.updates.size() == 1 &&
+            reply.updates[0].outputs.events_applied >= events) {
             return reply.updates[0];
         }
-        if (std::chrono::steady_clock::now() > deadline) FAIL("match " << match_id << " never reached " << events);
+        if (std::chrono::steady_clock::now() > deadline)
+            FAIL("match " << match_id << " never reached " << events);
         std::this_thread::sleep_for(50ms);
     }
 }
@@ -83,9 +86,10 @@ TEST_CASE("a whole match sent through send and serve reaches tap exactly as the 
     REQUIRE(expected.size() > 20);
 
     ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
-    ChildProcess tap({bin(), "tap", "--from", serve.publish(), "--match", "101", "--format", "jsonl",
-                      "--events-only", "--counters", "--count", std::to_string(expected.size())},
-                     dir / "tap.out", dir / "tap.err");
+    ChildProcess tap(
+        {bin(), "tap", "--from", serve.publish(), "--match", "101", "--format", "jsonl",
+         "--events-only", "--counters", "--count", std::to_string(expected.size())},
+        dir / "tap.out", dir / "tap.err");
     // Counters reaching tap prove its subscription is live before anything is sent.
     const auto ready_by = std::chrono::steady_clock::now() + 20s;
     while (tap.output().find("counters:") == std::string::npos) {
@@ -118,7 +122,8 @@ TEST_CASE("a whole match sent through send and serve reaches tap exactly as the 
     CHECK(json_number(lines.back(), "away_goals") == 1);
 }
 
-TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket", "[integration][serve][sockets]") {
+TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket",
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-late-joiner");
     const auto feed = invented_match(202);
     const std::vector<InboundMessage> first_half(feed.begin(), feed.begin() + 14);
@@ -130,8 +135,8 @@ TEST_CASE("a subscriber that joins late gets the current state from the snapshot
     wait_for_events(serve, 202, expected.back().outputs.events_applied);
 
     // The late joiner: `tap --snapshot` prints the state it has missed, then exits.
-    ChildProcess tap({bin(), "tap", "--from", serve.publish(), "--snapshot", serve.snapshot(), "--match", "202",
-                      "--format", "jsonl", "--snapshot-only"},
+    ChildProcess tap({bin(), "tap", "--from", serve.publish(), "--snapshot", serve.snapshot(),
+                      "--match", "202", "--format", "jsonl", "--snapshot-only"},
                      dir / "tap.out", dir / "tap.err");
     REQUIRE(tap.wait(20s) == std::optional<int>(0));
     const auto lines = update_lines(tap.output());
@@ -147,30 +152,35 @@ TEST_CASE("a subscriber that joins late gets the current state from the snapshot
     CHECK(none.error.find("999") != std::string::npos);
 }
 
-TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed key's are", "[integration][serve][sockets]") {
+TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed key's are",
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-curve");
     for (const char* name : {"server", "listed", "unlisted"}) {
-        ChildProcess keys({bin(), "keys", "--dir", dir.string(), "--name", name}, dir / "keys.out", dir / "keys.err");
+        ChildProcess keys({bin(), "keys", "--dir", dir.string(), "--name", name}, dir / "keys.out",
+                          dir / "keys.err");
         REQUIRE(keys.wait(10s) == std::optional<int>(0));
     }
     {
         std::ofstream allow(dir / "allowed.keys");
         allow << "# feeds allowed in\n" << read_whole_file(dir / "listed.public");
     }
-    ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100", "--server-secret-key",
-                                      (dir / "server.secret").string(), "--allowed-feed-keys",
-                                      (dir / "allowed.keys").string()});
+    ServeProcess serve(
+        dir, "serve",
+        {"--tick-ms", "600000", "--counters-ms", "100", "--server-secret-key",
+         (dir / "server.secret").string(), "--allowed-feed-keys", (dir / "allowed.keys").string()});
     const auto listed_feed = invented_match(301);
     const auto unlisted_feed = invented_match(302);
     write_frames(dir / "listed.lpf", listed_feed);
     write_frames(dir / "unlisted.lpf", unlisted_feed);
     const std::string server_key = (dir / "server.public").string();
-    send_file(dir, serve.ingest(), dir / "listed.lpf", {"--server-key", server_key, "--client-key",
-                                                         (dir / "listed.secret").string()});
+    send_file(dir, serve.ingest(), dir / "listed.lpf",
+              {"--server-key", server_key, "--client-key", (dir / "listed.secret").string()});
     // The unlisted feed's handshake is refused: its messages never leave its own queue.
-    send_file(dir, serve.ingest(), dir / "unlisted.lpf", {"--server-key", server_key, "--client-key",
-                                                           (dir / "unlisted.secret").string(), "--linger-ms", "1500"});
-    const auto listed = wait_for_events(serve, 301, engine_outputs(listed_feed).back().outputs.events_applied);
+    send_file(dir, serve.ingest(), dir / "unlisted.lpf",
+              {"--server-key", server_key, "--client-key", (dir / "unlisted.secret").string(),
+               "--linger-ms", "1500"});
+    const auto listed =
+        wait_for_events(serve, 301, engine_outputs(listed_feed).back().outputs.events_applied);
     CHECK(listed.outputs.home_goals == 2);
     CHECK(listed.outputs.away_goals == 1);
     const auto refused = snapshot(serve, 302);
@@ -185,7 +195,8 @@ TEST_CASE("CURVE: goals from an unlisted feed key are never applied, a listed ke
     CHECK(counter(*counters, "matches") == 1);
 }
 
-TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupted run's", "[integration][serve][sockets]") {
+TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupted run's",
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-crash");
     const auto feed = invented_match(404);
     const std::size_t split = 20;
@@ -195,8 +206,9 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     write_frames(dir / "after.lpf", after);
     const auto uninterrupted = engine_outputs(feed);
     const auto before_outputs = engine_outputs(before);
-    const std::vector<std::string> journal = {"--journal", (dir / "journal.lpf").string(), "--journal-sync",
-                                              "every_message", "--tick-ms", "600000"};
+    const std::vector<std::string> journal = {"--journal",      (dir / "journal.lpf").string(),
+                                              "--journal-sync", "every_message",
+                                              "--tick-ms",      "600000"};
 
     std::map<std::string, std::string> endpoints;
     {
@@ -238,7 +250,8 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     }
 }
 
-TEST_CASE("garbage frames are counted and dropped and the service keeps serving", "[integration][serve][sockets]") {
+TEST_CASE("garbage frames are counted and dropped and the service keeps serving",
+          "[integration][serve][sockets]") {
     const auto dir = scratch_dir("serve-garbage");
     ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
     zmq::context_t context(1);
@@ -255,10 +268,10 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
         push.send(zmq::buffer(noise));
     }
     const auto valid = protocol::encode_feed_message(invented_match(505).front());
-    push.send(zmq::buffer(valid.data(), valid.size() / 2));   // truncated
-    push.send(zmq::buffer(valid.data(), 3));                  // too small
+    push.send(zmq::buffer(valid.data(), valid.size() / 2));  // truncated
+    push.send(zmq::buffer(valid.data(), 3));                 // too small
     std::vector<std::uint8_t> wrong_id = valid;
-    for (std::size_t k = 4; k < 8; ++k) wrong_id.at(k) = 'X';   // the file identifier's place
+    for (std::size_t k = 4; k < 8; ++k) wrong_id.at(k) = 'X';  // the file identifier's place
     push.send(zmq::buffer(wrong_id));
     std::vector<std::uint8_t> oversize(protocol::kMaxFeedMessageBytes + 100, 0);
     std::copy(valid.begin(), valid.end(), oversize.begin());
@@ -283,7 +296,8 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
     do {
         counters = sub.next_counters(5s);
         REQUIRE(counters.has_value());
-    } while (counter(*counters, "engine.accepted") < expected.size() - 1 && std::chrono::steady_clock::now() < deadline);
+    } while (counter(*counters, "engine.accepted") < expected.size() - 1 &&
+             std::chrono::steady_clock::now() < deadline);
     CHECK(counter(*counters, "ingest.rejected") >= 25);
     CHECK(counter(*counters, "ingest.rejected.oversize") == 1);
     CHECK(counter(*counters, "ingest.rejected.too_small") >= 1);
@@ -305,7 +319,8 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
 #endif
     // Ticks every 10 ms over 50 live matches: about 5,000 updates a second with no new state,
     // so serve's memory can only grow through what it queues for subscribers.
-    ServeProcess serve(dir, "serve", {"--tick-ms", "10", "--counters-ms", "200", "--publish-hwm", "500"});
+    ServeProcess serve(dir, "serve",
+                       {"--tick-ms", "10", "--counters-ms", "200", "--publish-hwm", "500"});
     zmq::context_t context(1);
     zmq::socket_t stalled(context, zmq::socket_type::sub);  // never reads
     stalled.set(zmq::sockopt::rcvhwm, 10);
@@ -321,16 +336,20 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
     constexpr std::uint64_t kMatches = 50;
     for (std::uint64_t id = 1; id <= kMatches; ++id) {
         const auto feed = invented_match(id);
-        for (std::size_t i = 0; i < 10; ++i) push.send(zmq::buffer(protocol::encode_feed_message(feed[i])));
+        for (std::size_t i = 0; i < 10; ++i)
+            push.send(zmq::buffer(protocol::encode_feed_message(feed[i])));
     }
-    const auto rss_kib = [&] { return static_cast<long>(harness::memory_kib(serve.process().pid())); };
+    const auto rss_kib = [&] {
+        return static_cast<long>(harness::memory_kib(serve.process().pid()));
+    };
     // Warm up (every match created, queues to the stalled subscriber full), then measure.
     REQUIRE(reader.updates(2000, 30s, false).size() == 2000);
     const long rss_before = rss_kib();
     const auto received = reader.updates(15000, 60s, false);
     const long rss_after = rss_kib();
 
-    INFO("RSS " << rss_before << " -> " << rss_after << " KiB over " << received.size() << " updates");
+    INFO("RSS " << rss_before << " -> " << rss_after << " KiB over " << received.size()
+                << " updates");
     // The reading subscriber keeps receiving while the stalled one's queue is full.
     REQUIRE(received.size() == 15000);
     // Memory: bounded by the high-water mark, far below the updates the stalled one never read.
@@ -338,12 +357,14 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
     CHECK(serve.process().wait(0ms) == std::nullopt);
 }
 
-TEST_CASE("disk full for the journal: messages are counted and not applied, and serve keeps serving",
-          "[integration][serve][sockets]") {
+TEST_CASE(
+    "disk full for the journal: messages are counted and not applied, and serve keeps serving",
+    "[integration][serve][sockets]") {
     // /dev/full accepts the open and fails every write with ENOSPC, as a full disk does.
     const auto dir = scratch_dir("serve-disk-full");
-    ServeProcess serve(dir, "serve", {"--journal", "/dev/full", "--journal-sync", "every_message",
-                                      "--tick-ms", "600000", "--counters-ms", "100"});
+    ServeProcess serve(dir, "serve",
+                       {"--journal", "/dev/full", "--journal-sync", "every_message", "--tick-ms",
+                        "600000", "--counters-ms", "100"});
     zmq::context_t context(1);
     TestSubscriber sub(context, serve.publish(), "match.");
     REQUIRE(sub.next_counters(20s).has_value());
@@ -359,11 +380,13 @@ TEST_CASE("disk full for the journal: messages are counted and not applied, and 
     do {
         counters = sub.next_counters(5s);
         REQUIRE(counters.has_value());
-    } while (counter(*counters, "journal.write_failed") < feed.size() && std::chrono::steady_clock::now() < deadline);
+    } while (counter(*counters, "journal.write_failed") < feed.size() &&
+             std::chrono::steady_clock::now() < deadline);
     CHECK(counter(*counters, "journal.write_failed") == feed.size());
     CHECK(counter(*counters, "journal.frames") == 0);
-    CHECK(counter(*counters, "engine.accepted") == 0);  // nothing applied that a restart could not rebuild
-    CHECK(sub.updates(1, 500ms).empty());                // so nothing was published for the match
-    CHECK(serve.process().wait(0ms) == std::nullopt);   // still running
+    CHECK(counter(*counters, "engine.accepted") ==
+          0);                              // nothing applied that a restart could not rebuild
+    CHECK(sub.updates(1, 500ms).empty());  // so nothing was published for the match
+    CHECK(serve.process().wait(0ms) == std::nullopt);  // still running
     CHECK(serve.log().find("No space left on device") != std::string::npos);
 }

@@ -13,8 +13,8 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
 #include "test_env.hpp"
 
 namespace {
@@ -57,32 +57,38 @@ TerminalRun run_on_terminal(const std::vector<std::string>& argv) {
 
 }  // namespace
 
-TEST_CASE("progress bar: rate and ETA on a terminal, nothing with --quiet or when not a terminal", "[progress]") {
+TEST_CASE("progress bar: rate and ETA on a terminal, nothing with --quiet or when not a terminal",
+          "[progress]") {
     const auto dir = liveprob::test::scratch_dir("progress-bar");
-    const auto season = liveprob::demo::simulate_demo_season(liveprob::demo::make_demo_league(4), 4);
+    const auto season =
+        liveprob::demo::simulate_demo_season(liveprob::demo::make_demo_league(4), 4);
     std::vector<liveprob::core::InboundMessage> all;
     for (const auto& m : season.league) all.insert(all.end(), m.messages.begin(), m.messages.end());
-    liveprob::backtest::write_stream(dir / "season.stream", all, liveprob::backtest::StreamForm::frames);
+    liveprob::backtest::write_stream(dir / "season.stream", all,
+                                     liveprob::backtest::StreamForm::frames);
     const std::string bin = liveprob::test::liveprob_binary().string();
 
-    const auto shown = run_on_terminal({bin, "replay", (dir / "season.stream").string(), "--report", (dir / "a").string()});
+    const auto shown = run_on_terminal(
+        {bin, "replay", (dir / "season.stream").string(), "--report", (dir / "a").string()});
     INFO(shown.screen);
     CHECK(shown.exit_code == 0);
-    CHECK(shown.screen.find("replay [########################] 380/380 matches") != std::string::npos);
+    CHECK(shown.screen.find("replay [########################] 380/380 matches") !=
+          std::string::npos);
     CHECK(shown.screen.find("matches/s  ETA 0:00") != std::string::npos);
 
-    const auto quiet = run_on_terminal(
-        {bin, "replay", (dir / "season.stream").string(), "--report", (dir / "b").string(), "--quiet"});
+    const auto quiet = run_on_terminal({bin, "replay", (dir / "season.stream").string(), "--report",
+                                        (dir / "b").string(), "--quiet"});
     CHECK(quiet.exit_code == 0);
     CHECK(quiet.screen.find("ETA") == std::string::npos);
     CHECK(quiet.screen.find("378 matches scored (2 abandoned") != std::string::npos);
 
     // Standard error to a file, standard output a pipe: not a terminal.
-    const auto piped = liveprob::test::run_command(fmt::format("{} replay {} --report {} 2>{}", bin,
-                                                               (dir / "season.stream").string(),
-                                                               (dir / "c").string(), (dir / "stderr.txt").string()));
+    const auto piped = liveprob::test::run_command(
+        fmt::format("{} replay {} --report {} 2>{}", bin, (dir / "season.stream").string(),
+                    (dir / "c").string(), (dir / "stderr.txt").string()));
     CHECK(piped.exit_code == 0);
-    CHECK(liveprob::test::run_command(fmt::format("cat {}", (dir / "stderr.txt").string())).out.empty());
+    CHECK(liveprob::test::run_command(fmt::format("cat {}", (dir / "stderr.txt").string()))
+              .out.empty());
 
     // The import's walk-forward fits (a short span of the open data).
     const auto data = liveprob::test::open_data_dir() / "international";
@@ -90,6 +96,7 @@ TEST_CASE("progress bar: rate and ETA on a terminal, nothing with --quiet or whe
                                          (dir / "imported").string(), "--from", "2015-09-01"});
     INFO(import.screen);
     CHECK(import.exit_code == 0);
-    CHECK(import.screen.find("import: walk-forward fits [########################]") != std::string::npos);
+    CHECK(import.screen.find("import: walk-forward fits [########################]") !=
+          std::string::npos);
     CHECK(import.screen.find("fits/s  ETA 0:00") != std::string::npos);
 }

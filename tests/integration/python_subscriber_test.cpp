@@ -36,7 +36,8 @@ TEST_CASE("the Python subscriber prints what serve published", "[python][gateway
     stack.send(feed.start(Period::first_half, 0.0));
     REQUIRE(stack.await_update(55, feed.last_seq()));  // the snapshot will hold this one
 
-    const std::string script = (test::source_dir() / "tools" / "python" / "liveprob_subscribe.py").string();
+    const std::string script =
+        (test::source_dir() / "tools" / "python" / "liveprob_subscribe.py").string();
     const std::string command = fmt::format(
         "{} {} --modules {} --feed {} --snapshot {} --match 55 --count 3 --seconds 20 2>{}",
         test::system_python(), script, python_modules().string(), stack.publish_endpoint(),
@@ -62,8 +63,11 @@ TEST_CASE("the Python subscriber prints what serve published", "[python][gateway
     // The last line is serve's last update, to the last bit (Python's repr of a float is the
     // shortest round-trip form too).
     const auto& last = stack.latest().at(55);
-    CHECK(printed[2].find(fmt::format(R"("update_seq": {},)", last.meta.output_seq)) != std::string::npos);
-    CHECK(printed[2].find(fmt::format(R"("p_home": {},)", last.outputs.p_home)) != std::string::npos);
-    CHECK(printed[2].find(fmt::format(R"("p_away": {},)", last.outputs.p_away)) != std::string::npos);
+    CHECK(printed[2].find(fmt::format(R"("update_seq": {},)", last.meta.output_seq)) !=
+          std::string::npos);
+    CHECK(printed[2].find(fmt::format(R"("p_home": {},)", last.outputs.p_home)) !=
+          std::string::npos);
+    CHECK(printed[2].find(fmt::format(R"("p_away": {},)", last.outputs.p_away)) !=
+          std::string::npos);
     CHECK(test::read_whole_file(dir / "python.err").find(R"("rejected": 0)") != std::string::npos);
 }

@@ -8,8 +8,8 @@
 #include <fmt/format.h>
 
 #include "liveprob/backtest/backtest.hpp"
-#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/report/report_html.hpp"
 #include "liveprob/report/report_json.hpp"
 #include "test_env.hpp"
@@ -22,14 +22,16 @@ using namespace liveprob::demo;
 using namespace liveprob::report;
 using namespace liveprob::scoring;
 
-TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 threads", "[replay][threads]") {
+TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 threads",
+          "[replay][threads]") {
     const auto league = make_demo_league(5);
     const auto season = simulate_demo_season(league, 5);
     const auto dir = liveprob::test::scratch_dir("replay-report");
     std::vector<InboundMessage> all;
     for (std::size_t i = 0; i < 40; ++i) {
         const auto path = dir / fmt::format("m{}.{}", i, i % 2 ? "jsonl" : "stream");
-        write_stream(path, season.league[i].messages, i % 2 ? StreamForm::json_lines : StreamForm::frames);
+        write_stream(path, season.league[i].messages,
+                     i % 2 ? StreamForm::json_lines : StreamForm::frames);
         auto contents = read_stream(path);
         CHECK(contents.bad_records == 0);
         CHECK(contents.messages == season.league[i].messages);  // both forms round-trip
@@ -51,7 +53,8 @@ TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 th
     for (int k = 0; k < kBuckets; ++k) {
         // Every finished match reaches every bucket, 90:00 included.
         CHECK(a.at(k, Forecaster::model).count() == finished);
-        CHECK(a.at(k, Forecaster::fixed_prior).mean_rps() == Approx(a.at(0, Forecaster::model).mean_rps()));
+        CHECK(a.at(k, Forecaster::fixed_prior).mean_rps() ==
+              Approx(a.at(0, Forecaster::model).mean_rps()));
     }
     // Late in the match the live model knows far more than the kick-off forecast.
     CHECK(a.at(6, Forecaster::model).mean_rps() < a.at(6, Forecaster::fixed_prior).mean_rps());
@@ -60,8 +63,9 @@ TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 th
     std::ifstream json(dir / "report" / "report.json");
     std::stringstream text;
     text << json.rdbuf();
-    for (const char* key : {"\"buckets\"", "\"label\":\"90+\"", "\"fixed_prior\"", "\"uniform_timing_no_state\"",
-                            "\"calibration\"", "\"observed_rate\"", "\"rps\"", "\"log_loss\"", "\"brier\"", "\"ece\""}) {
+    for (const char* key : {"\"buckets\"", "\"label\":\"90+\"", "\"fixed_prior\"",
+                            "\"uniform_timing_no_state\"", "\"calibration\"", "\"observed_rate\"",
+                            "\"rps\"", "\"log_loss\"", "\"brier\"", "\"ece\""}) {
         CHECK(text.str().find(key) != std::string::npos);
     }
     CHECK(std::filesystem::file_size(dir / "report" / "index.html") > 1000);

@@ -40,7 +40,6 @@ constexpr std::uint64_t kFirstMatch = 7001;
 constexpr std::uint64_t kVariants = 10;
 constexpr std::uint32_t kKilled = 1;
 
-
 std::uint64_t variant_of(std::uint64_t match_id) { return match_id % kVariants; }
 
 // Ten kinds of match: the invented match with a prior and a goal that differ by kind, so the
@@ -49,7 +48,8 @@ std::vector<InboundMessage> varied_match(std::uint64_t match_id) {
     std::vector<InboundMessage> feed = invented_match(match_id);
     const std::uint64_t v = variant_of(match_id);
     const double shift = static_cast<double>(v);
-    std::get<MatchSetup>(feed.front().body).prior = PriorMeans{1.05 + 0.09 * shift, 1.45 - 0.07 * shift};
+    std::get<MatchSetup>(feed.front().body).prior =
+        PriorMeans{1.05 + 0.09 * shift, 1.45 - 0.07 * shift};
     for (auto& m : feed) {
         if (auto* goal = std::get_if<Goal>(&m.body); goal && v % 3 == 1) goal->side = Side::away;
         if (auto* red = std::get_if<RedCard>(&m.body); red && v % 2 == 1) red->side = Side::home;
@@ -60,7 +60,9 @@ std::vector<InboundMessage> varied_match(std::uint64_t match_id) {
 // Where the second half starts (the message after the first half's end).
 std::size_t second_half_start(const std::vector<InboundMessage>& feed) {
     for (std::size_t i = 0; i < feed.size(); ++i) {
-        if (const auto* s = std::get_if<PeriodStart>(&feed[i].body); s && s->period == Period::second_half) return i;
+        if (const auto* s = std::get_if<PeriodStart>(&feed[i].body);
+            s && s->period == Period::second_half)
+            return i;
     }
     throw std::runtime_error("no second half");
 }
@@ -96,7 +98,8 @@ struct Seen {
 // The one subscriber, on the relay: every match update it reads, per match, in arrival order.
 class RelaySubscriber {
 public:
-    RelaySubscriber(zmq::context_t& context, const std::string& endpoint) : socket_(context, zmq::socket_type::sub) {
+    RelaySubscriber(zmq::context_t& context, const std::string& endpoint)
+        : socket_(context, zmq::socket_type::sub) {
         socket_.set(zmq::sockopt::linger, 0);
         socket_.set(zmq::sockopt::rcvhwm, 0);  // keep everything: the test counts every update
         socket_.set(zmq::sockopt::subscribe, std::string(transport::kMatchTopicPrefix));
@@ -137,8 +140,10 @@ private:
 std::string bin() { return liveprob_binary().string(); }
 
 std::vector<std::string> shard_args(const std::filesystem::path& dir, std::uint32_t k) {
-    return {"--shard", fmt::format("{}/{}", k, kShards), "--journal", (dir / fmt::format("shard-{}.lpf", k)).string(),
-            "--tick-ms", "3600000", "--counters-ms", "200"};
+    return {"--shard",       fmt::format("{}/{}", k, kShards),
+            "--journal",     (dir / fmt::format("shard-{}.lpf", k)).string(),
+            "--tick-ms",     "3600000",
+            "--counters-ms", "200"};
 }
 
 enum class FeedFormat { frames, json_lines };
@@ -168,14 +173,17 @@ std::string send_routed(const std::filesystem::path& dir, const std::string& nam
 // subscription has reached it, so nothing is sent to a shard until this holds.)
 class RouteProbe {
 public:
-    RouteProbe(zmq::context_t& context, const std::vector<std::string>& ingest) : sender_(context, ingest) {
+    RouteProbe(zmq::context_t& context, const std::vector<std::string>& ingest)
+        : sender_(context, ingest) {
         for (std::uint32_t k = 0; k < kShards; ++k) {
             std::uint64_t id = 900'000;
             while (shard_of(id) != k) ++id;
             ids_.push_back(id);
         }
     }
-    bool is_probe(std::uint64_t id) const { return std::find(ids_.begin(), ids_.end(), id) != ids_.end(); }
+    bool is_probe(std::uint64_t id) const {
+        return std::find(ids_.begin(), ids_.end(), id) != ids_.end();
+    }
 
     void await_route(std::uint32_t shard, RelaySubscriber& sub) {
         const std::uint64_t id = ids_[shard];
@@ -196,7 +204,8 @@ public:
 
 private:
     void send(std::uint64_t id, std::uint32_t shard, MessageBody body) {
-        const auto message = feed_message(id, next_seq_[shard]++, Period::pre_match, 0, std::move(body));
+        const auto message =
+            feed_message(id, next_seq_[shard]++, Period::pre_match, 0, std::move(body));
         sender_.send(id, protocol::encode_feed_message(message));
     }
     clients::ShardSender sender_;
@@ -204,7 +213,8 @@ private:
     std::array<std::uint64_t, kShards> next_seq_{1, 1, 1};
 };
 
-protocol::SnapshotReplyContents ask(zmq::context_t& context, const std::string& endpoint, std::uint64_t match_id) {
+protocol::SnapshotReplyContents ask(zmq::context_t& context, const std::string& endpoint,
+                                    std::uint64_t match_id) {
     return clients::request_snapshot(context, endpoint, match_id, 10s);
 }
 
@@ -212,22 +222,26 @@ protocol::SnapshotReplyContents ask(zmq::context_t& context, const std::string& 
 std::map<std::string, std::string> read_endpoints(const std::filesystem::path& path) {
     const auto deadline = std::chrono::steady_clock::now() + 20s;
     while (!std::filesystem::exists(path)) {
-        if (std::chrono::steady_clock::now() > deadline) throw std::runtime_error("no " + path.string());
+        if (std::chrono::steady_clock::now() > deadline)
+            throw std::runtime_error("no " + path.string());
         std::this_thread::sleep_for(20ms);
     }
     std::map<std::string, std::string> out;
     std::istringstream lines(read_whole_file(path));
     for (std::string line; std::getline(lines, line);) {
-        if (const auto eq = line.find('='); eq != std::string::npos) out[line.substr(0, eq)] = line.substr(eq + 1);
+        if (const auto eq = line.find('='); eq != std::string::npos)
+            out[line.substr(0, eq)] = line.substr(eq + 1);
     }
     return out;
 }
 
 }  // namespace
 
-TEST_CASE("three shards behind a relay: every update once, snapshots routed, a killed shard recovers while the "
-          "others carry on",
-          "[integration][sockets][scale-out]") {
+TEST_CASE(
+    "three shards behind a relay: every update once, snapshots routed, a killed shard recovers "
+    "while the "
+    "others carry on",
+    "[integration][sockets][scale-out]") {
     const auto dir = scratch_dir("scale-out");
     zmq::context_t context(1);
 
@@ -241,26 +255,32 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
 
     // What the engine gives for each kind of match, message by message.
     std::vector<std::vector<ReferenceOutput>> reference;
-    for (std::uint64_t v = 0; v < kVariants; ++v) reference.push_back(engine_outputs(varied_match(kFirstMatch - kFirstMatch % kVariants + v)));
+    for (std::uint64_t v = 0; v < kVariants; ++v)
+        reference.push_back(
+            engine_outputs(varied_match(kFirstMatch - kFirstMatch % kVariants + v)));
     const auto reference_of = [&](std::uint64_t id) -> const std::vector<ReferenceOutput>& {
         return reference[variant_of(id)];
     };
     // Every kind of match has the same shape: its second half starts at the same message, and
     // message i has sequence number i + 1.
     const std::size_t cut = second_half_start(varied_match(kFirstMatch));
-    for (std::uint64_t v = 0; v < kVariants; ++v) REQUIRE(second_half_start(varied_match(kFirstMatch + v)) == cut);
-    const auto in_second_half = [&](const protocol::DecodedUpdate& u) { return u.meta.input_seq > cut; };
+    for (std::uint64_t v = 0; v < kVariants; ++v)
+        REQUIRE(second_half_start(varied_match(kFirstMatch + v)) == cut);
+    const auto in_second_half = [&](const protocol::DecodedUpdate& u) {
+        return u.meta.input_seq > cut;
+    };
     // Updates of the first half: the setup's and one per message accepted before the second half.
     const auto first_half_updates = [&](std::uint64_t id) {
         const auto& ref = reference_of(id);
-        return static_cast<std::size_t>(
-            std::count_if(ref.begin(), ref.end(), [&](const ReferenceOutput& r) { return r.input_seq <= cut; }));
+        return static_cast<std::size_t>(std::count_if(
+            ref.begin(), ref.end(), [&](const ReferenceOutput& r) { return r.input_seq <= cut; }));
     };
 
     // The shards and the relay.
     std::vector<std::unique_ptr<ServeProcess>> shards;
     for (std::uint32_t k = 0; k < kShards; ++k) {
-        shards.push_back(std::make_unique<ServeProcess>(dir, fmt::format("shard-{}", k), shard_args(dir, k)));
+        shards.push_back(
+            std::make_unique<ServeProcess>(dir, fmt::format("shard-{}", k), shard_args(dir, k)));
     }
     std::vector<std::string> ingest, publish, snapshot;
     for (const auto& s : shards) {
@@ -269,11 +289,12 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
         snapshot.push_back(s->snapshot());
     }
     const std::string ingest_list = fmt::format("{}", fmt::join(ingest, ","));
-    ChildProcess relay({bin(), "relay", "--shard-publish", fmt::format("{}", fmt::join(publish, ",")),
-                        "--shard-snapshot", fmt::format("{}", fmt::join(snapshot, ",")), "--publish",
-                        "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
-                        (dir / "relay.endpoints").string(), "--shard-timeout-ms", "500"},
-                       dir / "relay.out", dir / "relay.err");
+    ChildProcess relay(
+        {bin(), "relay", "--shard-publish", fmt::format("{}", fmt::join(publish, ",")),
+         "--shard-snapshot", fmt::format("{}", fmt::join(snapshot, ",")), "--publish",
+         "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
+         (dir / "relay.endpoints").string(), "--shard-timeout-ms", "500"},
+        dir / "relay.out", dir / "relay.err");
     const auto relay_endpoints = read_endpoints(dir / "relay.endpoints");
     const std::string relay_publish = relay_endpoints.at("publish");
     const std::string relay_snapshot = relay_endpoints.at("snapshot");
@@ -283,13 +304,16 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
     for (std::uint32_t k = 0; k < kShards; ++k) probe.await_route(k, sub);
 
     // 1. First halves of all 300 matches, through send's routing.
-    const auto first_halves = interleaved(ids, [](const auto&) { return std::size_t{0}; },
-                                          [](const auto& feed) { return second_half_start(feed); });
-    const std::string sent = send_routed(dir, "first-halves", first_halves, ingest_list, FeedFormat::frames);
+    const auto first_halves = interleaved(
+        ids, [](const auto&) { return std::size_t{0}; },
+        [](const auto& feed) { return second_half_start(feed); });
+    const std::string sent =
+        send_routed(dir, "first-halves", first_halves, ingest_list, FeedFormat::frames);
     std::array<std::size_t, kShards> per_shard{};
     for (const auto& m : first_halves) ++per_shard[shard_of(m.header.match_id)];
-    CHECK(sent.find(fmt::format("sent {} messages to 3 shards ({}, {}, {} each", first_halves.size(), per_shard[0],
-                                per_shard[1], per_shard[2])) != std::string::npos);
+    CHECK(sent.find(fmt::format("sent {} messages to 3 shards ({}, {}, {} each",
+                                first_halves.size(), per_shard[0], per_shard[1], per_shard[2])) !=
+          std::string::npos);
     const auto have_first_halves = [&] {
         return std::all_of(ids.begin(), ids.end(), [&](std::uint64_t id) {
             return sub.of(id).size() >= first_half_updates(id);
@@ -338,9 +362,11 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
         do {
             seen = counters.next_counters(5s);
             REQUIRE(seen.has_value());
-        } while (counter(*seen, "ingest.not_our_shard") == 0 && std::chrono::steady_clock::now() < deadline);
+        } while (counter(*seen, "ingest.not_our_shard") == 0 &&
+                 std::chrono::steady_clock::now() < deadline);
         CHECK(counter(*seen, "ingest.not_our_shard") == 1);
-        CHECK(ask(context, shards[2]->snapshot(), stray).error == fmt::format("unknown match {}", stray));
+        CHECK(ask(context, shards[2]->snapshot(), stray).error ==
+              fmt::format("unknown match {}", stray));
     }
     // A request the relay cannot read gets an error reply, not silence.
     {
@@ -351,7 +377,8 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
         dealer.send(zmq::str_buffer("not a snapshot request"));
         zmq::message_t reply;
         REQUIRE(dealer.recv(reply));
-        const auto decoded = protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
+        const auto decoded =
+            protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
         REQUIRE(decoded.ok());
         CHECK(decoded.value->error.rfind("bad request", 0) == 0);
     }
@@ -379,13 +406,14 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
     const auto to_end = [](const auto& feed) { return feed.size(); };
     const auto from_second_half = [](const auto& feed) { return second_half_start(feed); };
     // (As JSON lines: send is also the JSON feed adapter, and routes the same way.)
-    send_routed(dir, "survivors-second-halves", interleaved(survivors, from_second_half, to_end), ingest_list,
-                FeedFormat::json_lines, {"--rate", "2000"});
+    send_routed(dir, "survivors-second-halves", interleaved(survivors, from_second_half, to_end),
+                ingest_list, FeedFormat::json_lines, {"--rate", "2000"});
     const auto complete = [&](const std::vector<std::uint64_t>& which) {
         return [&, which] {
             return std::all_of(which.begin(), which.end(), [&](std::uint64_t id) {
                 const auto& s = sub.of(id);
-                return !s.empty() && s.back().update.meta.input_seq == reference_of(id).back().input_seq;
+                return !s.empty() &&
+                       s.back().update.meta.input_seq == reference_of(id).back().input_seq;
             });
         };
     };
@@ -405,14 +433,16 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
     CHECK(published.front() > killed_at);
     CHECK(published.back() < restarted_at);
     std::int64_t widest = 0;
-    for (std::size_t i = 1; i < published.size(); ++i) widest = std::max(widest, published[i] - published[i - 1]);
-    WARN(fmt::format("survivors during the outage: {} updates over {:.2f} s, widest gap {:.1f} ms", published.size(),
+    for (std::size_t i = 1; i < published.size(); ++i)
+        widest = std::max(widest, published[i] - published[i - 1]);
+    WARN(fmt::format("survivors during the outage: {} updates over {:.2f} s, widest gap {:.1f} ms",
+                     published.size(),
                      static_cast<double>(published.back() - published.front()) / 1e6,
                      static_cast<double>(widest) / 1e3));
 
     // 4. Restart shard 1 on its old endpoints with its journal.
-    shards[kKilled] = std::make_unique<ServeProcess>(dir, "shard-1-restarted", shard_args(dir, kKilled),
-                                                     killed_endpoints);
+    shards[kKilled] = std::make_unique<ServeProcess>(dir, "shard-1-restarted",
+                                                     shard_args(dir, kKilled), killed_endpoints);
     probe.await_route(kKilled, sub);
     for (const std::uint64_t id : owned[kKilled]) {
         const auto restored = ask(context, relay_snapshot, id);
@@ -420,11 +450,13 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
         INFO("match " << id);
         CHECK(restored.updates[0].meta.input_seq == before_kill[id].meta.input_seq);
         CHECK(same_outputs(restored.updates[0].outputs, before_kill[id].outputs));
-        CHECK(restored.updates[0].meta.output_seq > before_kill[id].meta.output_seq);  // never goes back
+        CHECK(restored.updates[0].meta.output_seq >
+              before_kill[id].meta.output_seq);  // never goes back
     }
 
     // 5. Second halves of shard 1's matches.
-    send_routed(dir, "restarted-second-halves", interleaved(owned[kKilled], from_second_half, to_end), ingest_list,
+    send_routed(dir, "restarted-second-halves",
+                interleaved(owned[kKilled], from_second_half, to_end), ingest_list,
                 FeedFormat::frames);
     REQUIRE(sub.read_until(complete(ids), 180s));
 
@@ -444,7 +476,8 @@ TEST_CASE("three shards behind a relay: every update once, snapshots routed, a k
                 if (u.meta.output_seq != prev + 1) ++jumps;
                 // The restarted shard republishes each rebuilt state once; it may reach the
                 // relay or not (see the top of the file), and repeats the last input.
-                if (u.meta.output_seq != prev + 1 && r > 0 && u.meta.input_seq == ref[r - 1].input_seq) {
+                if (u.meta.output_seq != prev + 1 && r > 0 &&
+                    u.meta.input_seq == ref[r - 1].input_seq) {
                     CHECK(same_outputs(u.outputs, ref[r - 1].outputs));
                     continue;
                 }

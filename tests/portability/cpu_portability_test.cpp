@@ -23,7 +23,8 @@ std::string calc(const std::string& runner, const std::string& args) {
 
 }  // namespace
 
-TEST_CASE("an emulated processor with AVX2 and FMA, one without, and this one print identical figures") {
+TEST_CASE(
+    "an emulated processor with AVX2 and FMA, one without, and this one print identical figures") {
 #if !defined(__x86_64__)
     FAIL("this check is written for x86-64 hosts");
 #endif

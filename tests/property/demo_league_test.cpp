@@ -36,7 +36,8 @@ TEST_CASE("double round robin: each pair meets twice with home and away swapped"
             CHECK(clubs_per_round[f.round].insert(f.away).second);
             last_round = std::max(last_round, f.round);
         }
-        CHECK(ordered_pairs.size() == static_cast<std::size_t>(n * (n - 1)));  // every (home, away) once
+        CHECK(ordered_pairs.size() ==
+              static_cast<std::size_t>(n * (n - 1)));  // every (home, away) once
         CHECK(last_round == 2 * (n - 1));
         for (int c = 0; c < n; ++c) {
             CHECK(matches_per_club[c] == 2 * (n - 1));
@@ -62,7 +63,8 @@ TEST_CASE("the demo league is the same from the same seed and differs from anoth
 
     const auto s1 = simulate_demo_season(a, 7), s2 = simulate_demo_season(b, 7);
     REQUIRE(s1.league.size() == s2.league.size());
-    for (std::size_t i = 0; i < s1.league.size(); ++i) CHECK(s1.league[i].messages == s2.league[i].messages);
+    for (std::size_t i = 0; i < s1.league.size(); ++i)
+        CHECK(s1.league[i].messages == s2.league[i].messages);
     REQUIRE(s1.cup.size() == s2.cup.size());
     for (std::size_t i = 0; i < s1.cup.size(); ++i) CHECK(s1.cup[i].messages == s2.cup[i].messages);
 }
@@ -88,8 +90,11 @@ TEST_CASE("a demo season sends every kind of feed message and the engine accepts
         // The engine's fold agrees with the simulator about the score that stood.
         CHECK(match.state().regulation_goals == sim.regulation_goals);
         CHECK(match.state().extra_time_goals == sim.extra_time_goals);
-        CHECK(match.outputs().status == (sim.abandoned ? MatchStatus::abandoned : MatchStatus::finished));
-        if (sim.extra_time_goals[0] + sim.extra_time_goals[1] > 0 || match.state().period >= Period::extra_first) ++extra_time;
+        CHECK(match.outputs().status ==
+              (sim.abandoned ? MatchStatus::abandoned : MatchStatus::finished));
+        if (sim.extra_time_goals[0] + sim.extra_time_goals[1] > 0 ||
+            match.state().period >= Period::extra_first)
+            ++extra_time;
         if (match.state().shootout.taken[0] > 0) ++shootouts;
         goals += sim.regulation_goals[0] + sim.regulation_goals[1];
     };
@@ -113,7 +118,8 @@ TEST_CASE("a demo season sends every kind of feed message and the engine accepts
     CHECK(extra_time > 0);
     CHECK(shootouts > 0);
     // Goals per league match in the range football shows (common practice: about 2.5 to 3).
-    const double per_match = goals / static_cast<double>(season.league.size() + season.cup.size() + 200);
+    const double per_match =
+        goals / static_cast<double>(season.league.size() + season.cup.size() + 200);
     CHECK(per_match > 2.2);
     CHECK(per_match < 3.3);
 }

@@ -24,7 +24,8 @@ struct Tally {
 
 // Decodes `size` bytes copied into a fresh allocation of exactly that size; returns the
 // message when it was accepted.
-std::optional<InboundMessage> decode_exact(const std::uint8_t* data, std::size_t size, Tally& tally) {
+std::optional<InboundMessage> decode_exact(const std::uint8_t* data, std::size_t size,
+                                           Tally& tally) {
     auto block = std::make_unique<std::uint8_t[]>(size == 0 ? 1 : size);
     std::copy(data, data + size, block.get());
     const auto result = decode_feed_message({block.get(), size});
@@ -64,12 +65,14 @@ TEST_CASE("every byte of every kind set to every value is handled", "[feed_codec
     }
 }
 
-TEST_CASE("every truncation of every kind is rejected or loses nothing", "[feed_codec][corruption]") {
+TEST_CASE("every truncation of every kind is rejected or loses nothing",
+          "[feed_codec][corruption]") {
     for (const auto& message : test::sample_messages()) {
         const auto valid = encode_feed_message(message);
         Tally tally;
         for (std::size_t size = 0; size < valid.size(); ++size) {
-            INFO("kind " << kind_name(message.body) << ", cut to " << size << " of " << valid.size());
+            INFO("kind " << kind_name(message.body) << ", cut to " << size << " of "
+                         << valid.size());
             // Only trailing alignment padding may be cut and still verify; then nothing is lost.
             if (const auto decoded = decode_exact(valid.data(), size, tally)) {
                 CHECK(*decoded == message);

@@ -27,10 +27,11 @@ constexpr double kSumTolerance = 1e-12;
 
 bool bitwise_same(const Outputs& a, const Outputs& b) {
     return a.status == b.status && a.clock == b.clock && a.home_goals == b.home_goals &&
-           a.away_goals == b.away_goals && a.home_reds == b.home_reds && a.away_reds == b.away_reds &&
-           a.p_home == b.p_home && a.p_draw == b.p_draw && a.p_away == b.p_away &&
-           a.has_advance == b.has_advance && a.p_advance_home == b.p_advance_home &&
-           a.p_advance_away == b.p_advance_away && a.expected_home_goals == b.expected_home_goals &&
+           a.away_goals == b.away_goals && a.home_reds == b.home_reds &&
+           a.away_reds == b.away_reds && a.p_home == b.p_home && a.p_draw == b.p_draw &&
+           a.p_away == b.p_away && a.has_advance == b.has_advance &&
+           a.p_advance_home == b.p_advance_home && a.p_advance_away == b.p_advance_away &&
+           a.expected_home_goals == b.expected_home_goals &&
            a.expected_away_goals == b.expected_away_goals && a.next_goal_home == b.next_goal_home &&
            a.next_goal_away == b.next_goal_away && a.next_goal_none == b.next_goal_none &&
            a.p_over == b.p_over && a.p_both_score == b.p_both_score &&
@@ -54,13 +55,14 @@ void check_distributions(const Outputs& o) {
     CHECK(std::abs(grid - 1.0) <= kSumTolerance);
     if (o.has_advance) CHECK(std::abs(o.p_advance_home + o.p_advance_away - 1.0) <= kSumTolerance);
     // Never below zero, not even by a rounding error (screens print what they get).
-    for (double p : {o.p_home, o.p_draw, o.p_away, o.next_goal_home, o.next_goal_away, o.next_goal_none,
-                     o.p_both_score, o.p_advance_home, o.p_advance_away}) {
+    for (double p : {o.p_home, o.p_draw, o.p_away, o.next_goal_home, o.next_goal_away,
+                     o.next_goal_none, o.p_both_score, o.p_advance_home, o.p_advance_away}) {
         CHECK(p >= 0.0);
         CHECK(p <= 1.0 + kSumTolerance);
     }
     for (double p : o.p_over) CHECK(p >= 0.0);
-    for (std::size_t i = 1; i < o.p_over.size(); ++i) CHECK(o.p_over[i] <= o.p_over[i - 1] + kSumTolerance);
+    for (std::size_t i = 1; i < o.p_over.size(); ++i)
+        CHECK(o.p_over[i] <= o.p_over[i - 1] + kSumTolerance);
 }
 
 Match replay(const RandomStream& s, std::size_t count) {
@@ -149,7 +151,8 @@ TEST_CASE("at 0-0 the draw grows as the clock runs", "[property]") {
         // Across the whole match through positions, and within a half by advancing the clock.
         double previous = -1.0;
         for (double minute : {0.0, 10.0, 30.0, 44.0, 46.0, 60.0, 75.0, 85.0, 89.0, 92.0}) {
-            pos.clock = liveprob::test::at_minute(minute < 45.0 ? Period::first_half : Period::second_half, minute);
+            pos.clock = liveprob::test::at_minute(
+                minute < 45.0 ? Period::first_half : Period::second_half, minute);
             ModelParams params;
             params.quadrature_nodes = 2 + n % 5;
             Match m = match_at(pos, params);
@@ -168,7 +171,8 @@ TEST_CASE("at 0-0 the draw grows as the clock runs", "[property]") {
     }
 }
 
-TEST_CASE("any permutation and duplication of a stream gives the identical state and outputs", "[property]") {
+TEST_CASE("any permutation and duplication of a stream gives the identical state and outputs",
+          "[property]") {
     StreamGenerator gen(31337, kMatch);
     const int streams = 1000 / kStreamScale;
     int late_seen = 0;

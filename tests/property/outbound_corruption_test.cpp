@@ -59,9 +59,15 @@ void corrupt_everywhere(const std::vector<std::uint8_t>& valid, const Probe& p) 
     std::vector<std::uint8_t> mutated = valid;
     for (std::size_t pos = 0; pos < valid.size(); ++pos) {
         const std::uint8_t original = valid[pos];
-        const std::uint8_t spread[] = {0x00, 0xFF, 0x01, 0x7F, 0x80, static_cast<std::uint8_t>(original ^ 0x01),
+        const std::uint8_t spread[] = {0x00,
+                                       0xFF,
+                                       0x01,
+                                       0x7F,
+                                       0x80,
+                                       static_cast<std::uint8_t>(original ^ 0x01),
                                        static_cast<std::uint8_t>(original ^ 0x80),
-                                       static_cast<std::uint8_t>(original + 1), static_cast<std::uint8_t>(original - 1)};
+                                       static_cast<std::uint8_t>(original + 1),
+                                       static_cast<std::uint8_t>(original - 1)};
         auto one = [&](std::uint8_t value) {
             mutated[pos] = value;
             (run_exact(p, mutated.data(), mutated.size()) ? accepted : rejected) += 1;
@@ -88,7 +94,9 @@ TEST_CASE("corrupted and truncated updates never crash the decoder", "[update_co
     UpdateEncoder encoder;
     const auto bytes = encoder.encode({4242, 1, 2, 3, 4, 5}, test::sample_outputs());
     corrupt_everywhere({bytes.begin(), bytes.end()},
-                       probe<DecodedUpdate>(decode_update, [](const DecodedUpdate& u) { check_outputs(u.outputs); }));
+                       probe<DecodedUpdate>(decode_update, [](const DecodedUpdate& u) {
+                           check_outputs(u.outputs);
+                       }));
 }
 
 TEST_CASE("corrupted and truncated snapshot requests never crash", "[snapshot_codec][corruption]") {
@@ -97,16 +105,20 @@ TEST_CASE("corrupted and truncated snapshot requests never crash", "[snapshot_co
 }
 
 TEST_CASE("corrupted and truncated snapshot replies never crash", "[snapshot_codec][corruption]") {
-    SnapshotReplyContents reply{"", {{{4242, 1, 2, 3, 4, 5}, test::sample_outputs()}, {{7, 1, 2, 3, 4, 5}, Outputs{}}}};
-    corrupt_everywhere(encode_snapshot_reply(reply),
-                       probe<SnapshotReplyContents>(decode_snapshot_reply, [](const SnapshotReplyContents& r) {
-                           for (const auto& u : r.updates) check_outputs(u.outputs);
-                       }));
+    SnapshotReplyContents reply{
+        "", {{{4242, 1, 2, 3, 4, 5}, test::sample_outputs()}, {{7, 1, 2, 3, 4, 5}, Outputs{}}}};
+    corrupt_everywhere(
+        encode_snapshot_reply(reply),
+        probe<SnapshotReplyContents>(decode_snapshot_reply, [](const SnapshotReplyContents& r) {
+            for (const auto& u : r.updates) check_outputs(u.outputs);
+        }));
 }
 
 TEST_CASE("corrupted and truncated counters never crash", "[counters_codec][corruption]") {
     const CounterSet counters{99, {{"inbound_accepted", 1200}, {"inbound_malformed", 3}}};
-    corrupt_everywhere(encode_counters(counters), probe<CounterSet>(decode_counters, [](const CounterSet& c) {
-                           for (const auto& [name, value] : c.values) REQUIRE(name.size() < kMaxCountersBytes);
+    corrupt_everywhere(encode_counters(counters),
+                       probe<CounterSet>(decode_counters, [](const CounterSet& c) {
+                           for (const auto& [name, value] : c.values)
+                               REQUIRE(name.size() < kMaxCountersBytes);
                        }));
 }

@@ -11,10 +11,10 @@
 #include <vector>
 
 #include "feed_builder.hpp"
-#include "test_env.hpp"
 #include "liveprob/core/match_state.hpp"
 #include "liveprob/core/messages.hpp"
 #include "liveprob/core/params.hpp"
+#include "test_env.hpp"
 
 namespace liveprob::test {
 
@@ -57,7 +57,9 @@ private:
         std::array<int, 2> score{};
 
         void emit(core::InboundMessage m) { out.push_back(std::move(m)); }
-        core::Side side() { return g.uniform(0.0, 1.0) < 0.55 ? core::Side::home : core::Side::away; }
+        core::Side side() {
+            return g.uniform(0.0, 1.0) < 0.55 ? core::Side::home : core::Side::away;
+        }
         int aggregate_diff() const {
             int d = score[0] - score[1];
             if (format.first_leg) d += format.first_leg->home_goals - format.first_leg->away_goals;
@@ -71,11 +73,13 @@ private:
             const double stoppage = std::round(g.uniform(0.0, 7.0) * 10.0) / 10.0;
             emit(feed.start(p, start));
             bool announced = false;
-            for (double t = start + g.exponential(3.0); t < end + stoppage; t += g.exponential(3.0)) {
+            for (double t = start + g.exponential(3.0); t < end + stoppage;
+                 t += g.exponential(3.0)) {
                 const double u = g.uniform(0.0, 1.0);
                 if (!announced && t > end - 1.0) {
-                    emit(feed.next(core::StoppageAnnounced{p, static_cast<std::uint16_t>(std::ceil(stoppage))},
-                                   at_minute(p, t)));
+                    emit(feed.next(
+                        core::StoppageAnnounced{p, static_cast<std::uint16_t>(std::ceil(stoppage))},
+                        at_minute(p, t)));
                     announced = true;
                 } else if (u < 0.10) {
                     const core::Side s = side();
@@ -99,7 +103,8 @@ private:
                 } else if (u < 0.41) {
                     score = {static_cast<int>(g.count(4)), static_cast<int>(g.count(4))};
                     emit(feed.next(core::ScoreCorrection{static_cast<std::uint16_t>(score[0]),
-                                                   static_cast<std::uint16_t>(score[1])}, at_minute(p, t)));
+                                                         static_cast<std::uint16_t>(score[1])},
+                                   at_minute(p, t)));
                 } else if (u < 0.44) {
                     emit_impossible(p, t);
                 } else if (u < 0.445) {
@@ -117,9 +122,15 @@ private:
             switch (g.count(5)) {
                 case 0: emit(feed.kick(side(), true)); break;
                 case 1: emit(feed.goal(side(), core::Period::extra_second, 110)); break;
-                case 2: emit(feed.shot(side(), std::numeric_limits<double>::quiet_NaN(), p, t)); break;
-                case 3: emit(feed.next(core::GoalCancelled{feed.last_seq() + 1000}, at_minute(p, t))); break;
-                default: emit(feed.next(core::PeriodStart{core::Period::first_half}, at_minute(p, t))); break;
+                case 2:
+                    emit(feed.shot(side(), std::numeric_limits<double>::quiet_NaN(), p, t));
+                    break;
+                case 3:
+                    emit(feed.next(core::GoalCancelled{feed.last_seq() + 1000}, at_minute(p, t)));
+                    break;
+                default:
+                    emit(feed.next(core::PeriodStart{core::Period::first_half}, at_minute(p, t)));
+                    break;
             }
         }
 
@@ -166,8 +177,12 @@ private:
         return p;
     }
 
-    double uniform(double a, double b) { return std::uniform_real_distribution<double>(a, b)(rng_); }
-    double exponential(double mean) { return std::exponential_distribution<double>(1.0 / mean)(rng_); }
+    double uniform(double a, double b) {
+        return std::uniform_real_distribution<double>(a, b)(rng_);
+    }
+    double exponential(double mean) {
+        return std::exponential_distribution<double>(1.0 / mean)(rng_);
+    }
     std::uint16_t count(int n) {
         return static_cast<std::uint16_t>(std::uniform_int_distribution<int>(0, n - 1)(rng_));
     }

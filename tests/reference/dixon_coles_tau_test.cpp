@@ -13,10 +13,11 @@ namespace fit = liveprob::fit;
 TEST_CASE("tau matches the 1997 formula on a worked example") {
     // λ = 1.5 (home), μ = 1.1 (away), ρ = −0.1, worked by hand from the formula.
     const double l = 1.5, m = 1.1, rho = -0.1;
-    CHECK(fit::dixon_coles_tau(0, 0, l, m, rho) == Approx(1.165).epsilon(1e-15));  // 1 − 1.5·1.1·(−0.1)
-    CHECK(fit::dixon_coles_tau(0, 1, l, m, rho) == Approx(0.85).epsilon(1e-15));   // 1 + 1.5·(−0.1)
-    CHECK(fit::dixon_coles_tau(1, 0, l, m, rho) == Approx(0.89).epsilon(1e-15));   // 1 + 1.1·(−0.1)
-    CHECK(fit::dixon_coles_tau(1, 1, l, m, rho) == Approx(1.1).epsilon(1e-15));    // 1 − (−0.1)
+    CHECK(fit::dixon_coles_tau(0, 0, l, m, rho) ==
+          Approx(1.165).epsilon(1e-15));  // 1 − 1.5·1.1·(−0.1)
+    CHECK(fit::dixon_coles_tau(0, 1, l, m, rho) == Approx(0.85).epsilon(1e-15));  // 1 + 1.5·(−0.1)
+    CHECK(fit::dixon_coles_tau(1, 0, l, m, rho) == Approx(0.89).epsilon(1e-15));  // 1 + 1.1·(−0.1)
+    CHECK(fit::dixon_coles_tau(1, 1, l, m, rho) == Approx(1.1).epsilon(1e-15));  // 1 − (−0.1)
     CHECK(fit::dixon_coles_tau(2, 0, l, m, rho) == 1.0);
     CHECK(fit::dixon_coles_tau(1, 2, l, m, rho) == 1.0);
     CHECK(fit::dixon_coles_tau(0, 0, l, m, 0.0) == 1.0);
@@ -30,8 +31,8 @@ TEST_CASE("tau keeps the Poisson margins (Dixon & Coles 1997), with Boost.Math's
         for (int x = 0; x <= 40; ++x) {
             double row = 0.0;
             for (int y = 0; y <= 40; ++y) {
-                const double cell = fit::dixon_coles_tau(x, y, l, m, rho) * boost::math::pdf(home, x) *
-                                    boost::math::pdf(away, y);
+                const double cell = fit::dixon_coles_tau(x, y, l, m, rho) *
+                                    boost::math::pdf(home, x) * boost::math::pdf(away, y);
                 row += cell;
                 grid_total += cell;
             }
@@ -43,8 +44,8 @@ TEST_CASE("tau keeps the Poisson margins (Dixon & Coles 1997), with Boost.Math's
         double h = 0.0, d = 0.0;
         for (int x = 0; x <= 40; ++x)
             for (int y = 0; y <= 40; ++y) {
-                const double cell = fit::dixon_coles_tau(x, y, l, m, rho) * boost::math::pdf(home, x) *
-                                    boost::math::pdf(away, y);
+                const double cell = fit::dixon_coles_tau(x, y, l, m, rho) *
+                                    boost::math::pdf(home, x) * boost::math::pdf(away, y);
                 if (x > y) h += cell;
                 if (x == y) d += cell;
             }

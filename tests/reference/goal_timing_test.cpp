@@ -20,11 +20,13 @@ TEST_CASE("the fitted timing profile reproduces the second-half share of the goa
     REQUIRE(read.matches.size() > 5000);
     const auto counts = liveprob::datasets::regulation_minute_counts(read.matches);
     const auto fit = liveprob::fit::fit_goal_timing(counts, liveprob::core::TimingProfile{});
-    std::cout << "matches " << read.matches.size() << " (left out " << read.skipped.total() << "), goals " << fit.goals
-              << ", data second-half share " << fit.data_second_half_share << ", fitted " << fit.second_half_share
-              << " (se " << fit.second_half_share_se << "), profile " << fit.profile.first_half_start << " "
+    std::cout << "matches " << read.matches.size() << " (left out " << read.skipped.total()
+              << "), goals " << fit.goals << ", data second-half share "
+              << fit.data_second_half_share << ", fitted " << fit.second_half_share << " (se "
+              << fit.second_half_share_se << "), profile " << fit.profile.first_half_start << " "
               << fit.profile.first_half_end << " " << fit.profile.second_half_start << " "
-              << fit.profile.second_half_end << " stoppage factor " << fit.profile.stoppage_factor << "\n";
+              << fit.profile.second_half_end << " stoppage factor " << fit.profile.stoppage_factor
+              << "\n";
     REQUIRE(fit.converged);
     // Common practice: more goals after half-time than before.
     CHECK(fit.data_second_half_share > 0.5);
@@ -34,20 +36,24 @@ TEST_CASE("the fitted timing profile reproduces the second-half share of the goa
     CHECK(fit.profile.second_half_end > fit.profile.first_half_start);
 }
 
-TEST_CASE("the stoppage factor from the championship files: the multinomial maximum, near the half's end rate") {
+TEST_CASE(
+    "the stoppage factor from the championship files: the multinomial maximum, near the half's end "
+    "rate") {
     const auto dir = liveprob::test::open_data_dir() / "euro";
     liveprob::datasets::StoppageCounts counts;
     for (const char* year : {"2020", "2024"}) {
-        const auto read = liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
+        const auto read =
+            liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
         const auto more = liveprob::datasets::stoppage_counts(read.matches);
         counts.regulation_goals += more.regulation_goals;
         counts.stoppage_goals += more.stoppage_goals;
     }
     REQUIRE(counts.stoppage_goals > 10);
     const liveprob::core::TimingProfile shape;
-    const auto fit = liveprob::fit::fit_stoppage_factor(counts.regulation_goals, counts.stoppage_goals, shape);
-    std::cout << counts.stoppage_goals << " of " << counts.regulation_goals << " goals in stoppage: factor "
-              << fit.factor << " (se " << fit.factor_se << ")\n";
+    const auto fit =
+        liveprob::fit::fit_stoppage_factor(counts.regulation_goals, counts.stoppage_goals, shape);
+    std::cout << counts.stoppage_goals << " of " << counts.regulation_goals
+              << " goals in stoppage: factor " << fit.factor << " (se " << fit.factor_se << ")\n";
     // The closed form is the maximum of the multinomial likelihood of the engine's minute shares,
     // with the stoppage goals in their own two cells (found here by golden-section search).
     auto log_likelihood = [&](double factor) {

@@ -43,7 +43,8 @@ const Sample& open_data_sample() {
     static const Sample sample = [] {
         const auto dir = test::open_data_dir() / "international";
         const auto read = datasets::read_international_timelines(dir.string());
-        const auto results = liveprob::datasets::read_international_results((dir / "results.csv").string());
+        const auto results =
+            liveprob::datasets::read_international_results((dir / "results.csv").string());
         fit::RatingsFitOptions options;
         options.xi = std::log(2.0) / 730.0;
         options.min_matches = 6.0;
@@ -55,11 +56,14 @@ const Sample& open_data_sample() {
         Sample s;
         const liveprob::core::TimingProfile timing;
         for (const auto& t : read.matches) {
-            const int decade_end = fit::day_number(std::min(10 * (std::stoi(fit::iso_date(t.day).substr(0, 4)) / 10) + 10, 2016), 1, 1);
+            const int decade_end = fit::day_number(
+                std::min(10 * (std::stoi(fit::iso_date(t.day).substr(0, 4)) / 10) + 10, 2016), 1,
+                1);
             auto it = by_decade.find(decade_end);
             if (it == by_decade.end()) {
                 options.as_of_day = decade_end;
-                it = by_decade.emplace(decade_end, fit::fit_ratings(results.matches, options)).first;
+                it =
+                    by_decade.emplace(decade_end, fit::fit_ratings(results.matches, options)).first;
             }
             const fit::Ratings& r = it->second;
             const fit::TeamRating* home = r.find(t.home);
@@ -68,24 +72,27 @@ const Sample& open_data_sample() {
             const auto e = fit::expected_goals(r, *home, *away, t.neutral);
             const auto match = datasets::inplay_match(t, {e.home, e.away}, false);
             s.regulation.push_back(fit::regulation_record(match, timing));
-            if (t.extra_time && t.day >= fit::day_number(1970, 1, 1)) s.extra_time.push_back(fit::extra_time_record(match, timing));
+            if (t.extra_time && t.day >= fit::day_number(1970, 1, 1))
+                s.extra_time.push_back(fit::extra_time_record(match, timing));
         }
         return s;
     }();
     return sample;
 }
 
-std::map<std::string, test::ReferenceValue> statsmodels(const std::string& kind, const std::filesystem::path& csv) {
+std::map<std::string, test::ReferenceValue> statsmodels(const std::string& kind,
+                                                        const std::filesystem::path& csv) {
     const auto script = test::source_dir() / "tests/reference/inplay_glm_reference.py";
-    const auto result =
-        test::run_command(fmt::format("{} {} {} {}", test::system_python(), script.string(), kind, csv.string()));
+    const auto result = test::run_command(
+        fmt::format("{} {} {} {}", test::system_python(), script.string(), kind, csv.string()));
     REQUIRE(result.exit_code == 0);
     return test::parse_reference_lines(result.out);
 }
 
 }  // namespace
 
-TEST_CASE("score-state multipliers with kappa = infinity equal statsmodels' Poisson GLM with offsets") {
+TEST_CASE(
+    "score-state multipliers with kappa = infinity equal statsmodels' Poisson GLM with offsets") {
     const auto& sample = open_data_sample();
     REQUIRE(sample.regulation.size() > 5000);
     fit::ScoreStateFitOptions options;
@@ -99,7 +106,8 @@ TEST_CASE("score-state multipliers with kappa = infinity equal statsmodels' Pois
         for (const auto& side : r.sides)
             for (int s = 0; s < fit::kScoreStates; ++s)
                 if (side.exposure[static_cast<std::size_t>(s)] > 0.0)
-                    out << fmt::format("{},{},{:.17g},{:.17g}\n", s, side.goals[static_cast<std::size_t>(s)], side.prior,
+                    out << fmt::format("{},{},{:.17g},{:.17g}\n", s,
+                                       side.goals[static_cast<std::size_t>(s)], side.prior,
                                        side.exposure[static_cast<std::size_t>(s)]);
     out.close();
     const auto ref = statsmodels("states", csv);
@@ -109,11 +117,13 @@ TEST_CASE("score-state multipliers with kappa = infinity equal statsmodels' Pois
     // Standard errors on the log scale: se(m) / m.
     CHECK(fitted.leading_se / fitted.effects.leading == Approx(ref.at("leading").se).margin(1e-6));
     CHECK(fitted.level_se / fitted.effects.level == Approx(ref.at("level").se).margin(1e-6));
-    CHECK(fitted.trailing_se / fitted.effects.trailing == Approx(ref.at("trailing").se).margin(1e-6));
+    CHECK(fitted.trailing_se / fitted.effects.trailing ==
+          Approx(ref.at("trailing").se).margin(1e-6));
     CHECK(fitted.log_likelihood == Approx(ref.at("loglik").value).epsilon(1e-9));
 }
 
-TEST_CASE("with one multiplier for all states, kappa equals statsmodels' negative-binomial regression") {
+TEST_CASE(
+    "with one multiplier for all states, kappa equals statsmodels' negative-binomial regression") {
     const auto& sample = open_data_sample();
     fit::ScoreStateFitOptions options;
     options.common_multiplier = true;
@@ -125,7 +135,8 @@ TEST_CASE("with one multiplier for all states, kappa equals statsmodels' negativ
     std::ofstream out(csv);
     for (const auto& r : sample.regulation)
         for (const auto& side : r.sides)
-            out << fmt::format("{},{:.17g},{:.17g}\n", side.total_goals(), side.prior, side.total_exposure());
+            out << fmt::format("{},{:.17g},{:.17g}\n", side.total_goals(), side.prior,
+                               side.total_exposure());
     out.close();
     const auto ref = statsmodels("totals", csv);
     CHECK(std::log(fitted.effects.level) == Approx(ref.at("intercept").value).margin(1e-6));
@@ -133,10 +144,12 @@ TEST_CASE("with one multiplier for all states, kappa equals statsmodels' negativ
     CHECK(1.0 / fitted.kappa == Approx(ref.at("alpha").value).margin(1e-6));
     CHECK(fitted.level_se / fitted.effects.level == Approx(ref.at("intercept").se).margin(1e-6));
     // se(α) = se(κ) / κ² (delta method).
-    CHECK(fitted.kappa_se / (fitted.kappa * fitted.kappa) == Approx(ref.at("alpha").se).margin(1e-6));
+    CHECK(fitted.kappa_se / (fitted.kappa * fitted.kappa) ==
+          Approx(ref.at("alpha").se).margin(1e-6));
 }
 
-TEST_CASE("the extra-time factor with kappa = infinity is the closed form and statsmodels' Poisson GLM") {
+TEST_CASE(
+    "the extra-time factor with kappa = infinity is the closed form and statsmodels' Poisson GLM") {
     const auto& sample = open_data_sample();
     REQUIRE(sample.extra_time.size() > 50);
     const liveprob::core::ScoreStateEffects effects{0.95, 1.0, 1.08};
@@ -148,7 +161,8 @@ TEST_CASE("the extra-time factor with kappa = infinity is the closed form and st
     std::ofstream out(csv);
     double exposure = 0.0;
     for (const auto& r : sample.extra_time) {
-        const double rate = (r.regulation.sides[0].prior + r.regulation.sides[1].prior) * effects.level;
+        const double rate =
+            (r.regulation.sides[0].prior + r.regulation.sides[1].prior) * effects.level;
         exposure += rate * r.exposure_to_first_goal;
         out << fmt::format("{},{:.17g}\n", r.first_scorer ? 1 : 0, rate * r.exposure_to_first_goal);
     }

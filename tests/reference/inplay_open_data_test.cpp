@@ -40,15 +40,17 @@ const FittedFile& fitted() {
     static const FittedFile file = [] {
         const auto data = test::open_data_dir();
         const auto out = test::scratch_dir("fit_inplay_open") / "params.json";
-        const auto result = test::run_command(fmt::format(
-            "{} fit-inplay --international {} --championship {} {} --out {}", test::liveprob_binary().string(),
-            (data / "international").string(), (data / "euro/2020/euro.json").string(),
-            (data / "euro/2024/euro.json").string(), out.string()));
+        const auto result = test::run_command(
+            fmt::format("{} fit-inplay --international {} --championship {} {} --out {}",
+                        test::liveprob_binary().string(), (data / "international").string(),
+                        (data / "euro/2020/euro.json").string(),
+                        (data / "euro/2024/euro.json").string(), out.string()));
         std::cout << result.out << std::flush;
         REQUIRE(result.exit_code == 0);
         FittedFile f;
         f.output = result.out;
-        f.params = liveprob::files::load_params_file(out.string());  // what calc, serve and replay read
+        f.params =
+            liveprob::files::load_params_file(out.string());  // what calc, serve and replay read
         REQUIRE(f.parser.load(out.string()).get(f.root) == simdjson::SUCCESS);
         return f;
     }();
@@ -57,12 +59,14 @@ const FittedFile& fitted() {
 
 }  // namespace
 
-TEST_CASE("fit-inplay on the open data: every fitted value names its source and has a standard error") {
+TEST_CASE(
+    "fit-inplay on the open data: every fitted value names its source and has a standard error") {
     const auto& f = fitted();
-    for (const char* key : {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end",
-                            "timing.stoppage_factor", "timing.extra_time_factor", "score_state.leading",
-                            "score_state.level", "score_state.trailing", "kappa", "shootout.conversion",
-                            "shootout.first_kicker_edge"}) {
+    for (const char* key :
+         {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end",
+          "timing.stoppage_factor", "timing.extra_time_factor", "score_state.leading",
+          "score_state.level", "score_state.trailing", "kappa", "shootout.conversion",
+          "shootout.first_kicker_edge"}) {
         INFO(key);
         CHECK_THAT(f.note(key), Catch::StartsWith("fitted by fit-inplay"));
         CHECK(f.se(key) > 0.0);
@@ -71,7 +75,9 @@ TEST_CASE("fit-inplay on the open data: every fitted value names its source and 
     CHECK_THAT(f.note("timing.expected_stoppage_second"), Catch::Contains("from memory"));
 }
 
-TEST_CASE("fit-inplay on the open data: score states, dispersion, extra time and shoot-outs in their bands") {
+TEST_CASE(
+    "fit-inplay on the open data: score states, dispersion, extra time and shoot-outs in their "
+    "bands") {
     const auto& f = fitted();
     const auto& p = f.params;
     // Common practice (score dependence, reported since Dixon & Robinson 1998): a trailing side

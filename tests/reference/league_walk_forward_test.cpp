@@ -41,9 +41,11 @@ struct SeasonResult {
 constexpr int kRefitDays = 7;
 
 SeasonResult predict_season(const std::string& league, const std::string& season,
-                            const std::vector<fit::MatchResult>& history, std::vector<fit::MatchResult> games) {
+                            const std::vector<fit::MatchResult>& history,
+                            std::vector<fit::MatchResult> games) {
     SeasonResult out{league, season, {}, {}, {}};
-    std::sort(games.begin(), games.end(), [](const auto& a, const auto& b) { return a.day < b.day; });
+    std::sort(games.begin(), games.end(),
+              [](const auto& a, const auto& b) { return a.day < b.day; });
     std::vector<fit::MatchResult> known = history;
     fit::RatingsFitOptions options;
     options.xi = std::log(2.0) / 240.0;  // half-life 240 days: the project's choice
@@ -66,14 +68,17 @@ SeasonResult predict_season(const std::string& league, const std::string& season
         // Base rates of the training window (matches before today).
         std::array<double, 3> counts{0, 0, 0};
         for (const auto& k : known)
-            if (k.day < g.day) counts[static_cast<std::size_t>(scoring::outcome_of(k.home_goals, k.away_goals))] += 1;
+            if (k.day < g.day)
+                counts[static_cast<std::size_t>(scoring::outcome_of(k.home_goals, k.away_goals))] +=
+                    1;
         const double total = counts[0] + counts[1] + counts[2];
         out.base_rates.add({counts[0] / total, counts[1] / total, counts[2] / total}, outcome);
 
         const fit::TeamRating average{};
         const fit::TeamRating* home = ratings->find(g.home);
         const fit::TeamRating* away = ratings->find(g.away);
-        const auto e = fit::expected_goals(*ratings, home ? *home : average, away ? *away : average, false);
+        const auto e =
+            fit::expected_goals(*ratings, home ? *home : average, away ? *away : average, false);
         const auto p = fit::outcome_probabilities(e.home, e.away, ratings->rho);
         out.ratings.add({p.home, p.draw, p.away}, outcome);
         const auto q = fit::expected_goals(*ratings, average, average, false);
@@ -88,7 +93,8 @@ SeasonResult predict_season(const std::string& league, const std::string& season
 
 TEST_CASE("ratings beat the league base rates and equal teams in every season, walk-forward") {
     const auto root = liveprob::test::open_data_dir() / "leagues";
-    std::map<std::string, std::vector<std::pair<std::string, std::vector<fit::MatchResult>>>> leagues;
+    std::map<std::string, std::vector<std::pair<std::string, std::vector<fit::MatchResult>>>>
+        leagues;
     std::vector<std::string> seasons;
     for (const auto& entry : std::filesystem::directory_iterator(root))
         if (entry.is_directory()) seasons.push_back(entry.path().filename().string());
@@ -104,7 +110,8 @@ TEST_CASE("ratings beat the league base rates and equal teams in every season, w
 
     std::vector<SeasonResult> results;
     for (const auto& [league, list] : leagues) {
-        std::vector<fit::MatchResult> history = list.front().second;  // the first season only trains
+        std::vector<fit::MatchResult> history =
+            list.front().second;  // the first season only trains
         for (std::size_t s = 1; s < list.size(); ++s) {
             if (list[s].second.size() < 40) continue;  // a season barely begun
             results.push_back(predict_season(league, list[s].first, history, list[s].second));
@@ -112,13 +119,15 @@ TEST_CASE("ratings beat the league base rates and equal teams in every season, w
         }
     }
     std::cout << fmt::format("{:<6} {:<8} {:>5}  {:>23}  {:>23}  {:>23}\n", "league", "season", "n",
-                             "ratings RPS/Brier/LL", "base rates RPS/Brier/LL", "equal teams RPS/Brier/LL");
+                             "ratings RPS/Brier/LL", "base rates RPS/Brier/LL",
+                             "equal teams RPS/Brier/LL");
     auto cell = [](const Scores& s) {
         return fmt::format("{:.4f} {:.4f} {:.4f}", s.rps / s.n, s.brier / s.n, s.log_loss / s.n);
     };
     for (const auto& r : results)
-        std::cout << fmt::format("{:<6} {:<8} {:>5}  {:>23}  {:>23}  {:>23}\n", r.league, r.season, r.ratings.n,
-                                 cell(r.ratings), cell(r.base_rates), cell(r.equal_teams));
+        std::cout << fmt::format("{:<6} {:<8} {:>5}  {:>23}  {:>23}  {:>23}\n", r.league, r.season,
+                                 r.ratings.n, cell(r.ratings), cell(r.base_rates),
+                                 cell(r.equal_teams));
     CHECK(results.size() >= 40);
     for (const auto& r : results) {
         INFO(r.league << " " << r.season);

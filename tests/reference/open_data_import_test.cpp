@@ -12,9 +12,9 @@
 
 #include <fmt/format.h>
 
+#include "liveprob/core/match.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
-#include "liveprob/core/match.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
@@ -46,11 +46,13 @@ std::vector<std::string> split(const std::string& text, char sep) {
     return out;
 }
 
-std::filesystem::path run_script(const std::string& script, const std::filesystem::path& input, const std::string& name) {
+std::filesystem::path run_script(const std::string& script, const std::filesystem::path& input,
+                                 const std::string& name) {
     const auto out = liveprob::test::scratch_dir(name) / "out.tsv";
-    const auto command = fmt::format("{} {} {} {}", liveprob::test::system_python(),
-                                     (liveprob::test::source_dir() / "tests/reference/scripts" / script).string(),
-                                     input.string(), out.string());
+    const auto command =
+        fmt::format("{} {} {} {}", liveprob::test::system_python(),
+                    (liveprob::test::source_dir() / "tests/reference/scripts" / script).string(),
+                    input.string(), out.string());
     REQUIRE(liveprob::test::run_command(command).exit_code == 0);
     return out;
 }
@@ -69,7 +71,8 @@ Folded fold(const MatchTimeline& t, std::uint64_t id) {
     for (std::size_t i = 1; i < feed.size(); ++i) {
         const auto r = match.apply(feed[i]);
         if (r.verdict == Verdict::rejected && out.rejected++ == 0) {
-            out.first_rejection = fmt::format("message {} ({}): {}", i, kind_name(feed[i].body), reject_reason_name(r.reason));
+            out.first_rejection = fmt::format("message {} ({}): {}", i, kind_name(feed[i].body),
+                                              reject_reason_name(r.reason));
         }
     }
     out.state = match.state();
@@ -78,8 +81,9 @@ Folded fold(const MatchTimeline& t, std::uint64_t id) {
 
 }  // namespace
 
-TEST_CASE("international import: the matches taken and each feed's folded score agree with the files",
-          "[import][open-data]") {
+TEST_CASE(
+    "international import: the matches taken and each feed's folded score agree with the files",
+    "[import][open-data]") {
     const auto dir = liveprob::test::open_data_dir() / "international";
     const auto read = datasets::read_international_timelines(dir.string());
     // line -> the Python reading of that row
@@ -108,7 +112,8 @@ TEST_CASE("international import: the matches taken and each feed's folded score 
         CHECK(f.state.goals(Side::away) == std::stoi(row[2]));
         for (const Side side : {Side::home, Side::away}) {
             int regulation = 0, extra = 0;
-            for (const auto& m : split(row[3 + static_cast<std::size_t>(index(side))], ',')) (std::stoi(m) <= 90 ? regulation : extra) += 1;
+            for (const auto& m : split(row[3 + static_cast<std::size_t>(index(side))], ','))
+                (std::stoi(m) <= 90 ? regulation : extra) += 1;
             CHECK(f.state.regulation_goals[static_cast<std::size_t>(index(side))] == regulation);
             CHECK(f.state.extra_time_goals[static_cast<std::size_t>(index(side))] == extra);
         }
@@ -125,14 +130,16 @@ TEST_CASE("international import: the matches taken and each feed's folded score 
     CHECK(with_shootout > 50);
 }
 
-TEST_CASE("championship import: extra time, shoot-out scores and a file error, as the file records them",
-          "[import][open-data]") {
+TEST_CASE(
+    "championship import: extra time, shoot-out scores and a file error, as the file records them",
+    "[import][open-data]") {
     for (const char* year : {"2020", "2024"}) {
         const auto file = liveprob::test::open_data_dir() / "euro" / year / "euro.json";
         INFO(file.string());
         const auto read = datasets::read_championship_timelines(file.string());
         std::map<std::uint32_t, std::vector<std::string>> python;
-        for (auto& row : read_tsv(run_script("championship_scores.py", file, std::string("import-championship-") + year))) {
+        for (auto& row : read_tsv(run_script("championship_scores.py", file,
+                                             std::string("import-championship-") + year))) {
             REQUIRE(row.size() == 6);
             python[static_cast<std::uint32_t>(std::stoul(row[0]))] = std::move(row);
         }
@@ -150,8 +157,10 @@ TEST_CASE("championship import: extra time, shoot-out scores and a file error, a
             const auto minutes_home = split(row[4], ','), minutes_away = split(row[5], ',');
             CHECK(f.state.goals(Side::home) == static_cast<int>(minutes_home.size()));
             CHECK(f.state.goals(Side::away) == static_cast<int>(minutes_away.size()));
-            const std::string final_score = fmt::format("{}-{}", f.state.goals(Side::home), f.state.goals(Side::away));
-            const std::string regulation = fmt::format("{}-{}", f.state.regulation_goals[0], f.state.regulation_goals[1]);
+            const std::string final_score =
+                fmt::format("{}-{}", f.state.goals(Side::home), f.state.goals(Side::away));
+            const std::string regulation =
+                fmt::format("{}-{}", f.state.regulation_goals[0], f.state.regulation_goals[1]);
             if (row[2] != "-") {
                 CHECK(row[1] == regulation);
                 CHECK(row[2] == final_score);
@@ -160,9 +169,11 @@ TEST_CASE("championship import: extra time, shoot-out scores and a file error, a
                 // after extra time in the two 2024 matches whose goal minutes show extra time).
                 CHECK(row[1] == final_score);
             }
-            CHECK(t.extra_time == (f.state.extra_time_goals != std::array<int, 2>{0, 0} || row[2] != "-"));
+            CHECK(t.extra_time ==
+                  (f.state.extra_time_goals != std::array<int, 2>{0, 0} || row[2] != "-"));
             if (row[3] != "-") {
-                CHECK(fmt::format("{}-{}", f.state.shootout.scored[0], f.state.shootout.scored[1]) == row[3]);
+                CHECK(fmt::format("{}-{}", f.state.shootout.scored[0],
+                                  f.state.shootout.scored[1]) == row[3]);
             }
         }
     }

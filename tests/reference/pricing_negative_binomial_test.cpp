@@ -36,7 +36,8 @@ std::string num(double v) {
 // Marginal of the grid for one side (rows for home, columns for away).
 double marginal(const Outputs& out, bool home, std::size_t k) {
     double m = 0.0;
-    for (std::size_t o = 0; o < kGrid; ++o) m += home ? out.goals_added[k][o] : out.goals_added[o][k];
+    for (std::size_t o = 0; o < kGrid; ++o)
+        m += home ? out.goals_added[k][o] : out.goals_added[o][k];
     return m;
 }
 
@@ -61,13 +62,16 @@ TEST_CASE("Gamma posterior, no state effects: goals to come are negative binomia
     const boost::math::negative_binomial_distribution<double> nh(st.theta_shape[0], p_h),
         na(st.theta_shape[1], p_a);
     // SciPy scipy.stats.nbinom(n, p), same parametrisation.
-    const auto sh = scipy_values("nbinom " + num(st.theta_shape[0]) + " " + num(p_h) + " " + std::to_string(kGrid - 1));
-    const auto sa = scipy_values("nbinom " + num(st.theta_shape[1]) + " " + num(p_a) + " " + std::to_string(kGrid - 1));
+    const auto sh = scipy_values("nbinom " + num(st.theta_shape[0]) + " " + num(p_h) + " " +
+                                 std::to_string(kGrid - 1));
+    const auto sa = scipy_values("nbinom " + num(st.theta_shape[1]) + " " + num(p_a) + " " +
+                                 std::to_string(kGrid - 1));
     REQUIRE(sh.size() == kGrid + 1);
     REQUIRE(sa.size() == kGrid + 1);
     for (std::size_t i = 0; i < kGrid; ++i) {
         for (std::size_t j = 0; j < kGrid; ++j) {
-            const double boost_cell = boost::math::pdf(nh, static_cast<double>(i)) * boost::math::pdf(na, static_cast<double>(j));
+            const double boost_cell = boost::math::pdf(nh, static_cast<double>(i)) *
+                                      boost::math::pdf(na, static_cast<double>(j));
             CHECK(out.goals_added[i][j] == Approx(boost_cell).margin(1e-12));
             CHECK(out.goals_added[i][j] == Approx(sh[i] * sa[j]).margin(1e-12));
         }
@@ -91,10 +95,12 @@ TEST_CASE("prior strength before kick-off: Gamma(kappa, kappa) gives NB with mea
     st.theta_rate = {params.kappa, params.kappa};
     Outputs out;
     model.price(st, out);
-    const boost::math::negative_binomial_distribution<double> nb(params.kappa, params.kappa / (params.kappa + 1.3));
+    const boost::math::negative_binomial_distribution<double> nb(
+        params.kappa, params.kappa / (params.kappa + 1.3));
     for (std::size_t i = 0; i < kGrid; ++i) {
         CHECK(out.goals_added[i][0] ==
-              Approx(boost::math::pdf(nb, static_cast<double>(i)) * boost::math::pdf(nb, 0.0)).margin(1e-12));
+              Approx(boost::math::pdf(nb, static_cast<double>(i)) * boost::math::pdf(nb, 0.0))
+                  .margin(1e-12));
     }
     CHECK(out.expected_home_goals == Approx(1.3).epsilon(1e-12));
     // Symmetric sides: home and away equally likely.

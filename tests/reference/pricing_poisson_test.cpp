@@ -91,8 +91,9 @@ TEST_CASE("plain model: grid, result and expectations against Boost.Math Poisson
                 (fh > fa ? home : fh < fa ? away : draw) += p;
                 if (fh >= 1 && fa >= 1) both += p;
                 if (i < kGrid && j < kGrid) {
-                    CHECK(out.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)] ==
-                          Approx(p).margin(1e-12));
+                    CHECK(
+                        out.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)] ==
+                        Approx(p).margin(1e-12));
                 }
             }
         }
@@ -125,9 +126,9 @@ TEST_CASE("score chain with constant rates equals the product of Poisson pmfs (B
     double sum = 0.0;
     for (std::size_t i = 0; i < kGrid; ++i) {
         for (std::size_t j = 0; j < kGrid; ++j) {
-            CHECK(grid.cell[i][j] ==
-                  Approx(boost::math::pdf(h, static_cast<double>(i)) * boost::math::pdf(a, static_cast<double>(j)))
-                      .margin(1e-12));
+            CHECK(grid.cell[i][j] == Approx(boost::math::pdf(h, static_cast<double>(i)) *
+                                            boost::math::pdf(a, static_cast<double>(j)))
+                                         .margin(1e-12));
             sum += grid.cell[i][j];
         }
     }

@@ -29,7 +29,8 @@ double mixture_error(double shape, double rate, double mean, int nodes) {
     for (int k = 0; k <= 40; ++k) {
         double mix = 0.0;
         for (int i = 0; i < q.count; ++i) {
-            const boost::math::poisson_distribution<double> pois(q.node[static_cast<std::size_t>(i)] / rate * mean);
+            const boost::math::poisson_distribution<double> pois(
+                q.node[static_cast<std::size_t>(i)] / rate * mean);
             mix += q.weight[static_cast<std::size_t>(i)] * boost::math::pdf(pois, k);
         }
         worst = std::max(worst, std::abs(mix - boost::math::pdf(exact, k)));
@@ -42,9 +43,11 @@ double largest_difference(const Outputs& a, const Outputs& b) {
                          std::abs(a.p_advance_home - b.p_advance_home),
                          std::abs(a.next_goal_home - b.next_goal_home)});
     for (std::size_t i = 0; i < kGrid; ++i) {
-        for (std::size_t j = 0; j < kGrid; ++j) m = std::max(m, std::abs(a.goals_added[i][j] - b.goals_added[i][j]));
+        for (std::size_t j = 0; j < kGrid; ++j)
+            m = std::max(m, std::abs(a.goals_added[i][j] - b.goals_added[i][j]));
     }
-    for (std::size_t k = 0; k < kTotalsLines; ++k) m = std::max(m, std::abs(a.p_over[k] - b.p_over[k]));
+    for (std::size_t k = 0; k < kTotalsLines; ++k)
+        m = std::max(m, std::abs(a.p_over[k] - b.p_over[k]));
     return m;
 }
 
@@ -52,7 +55,10 @@ double largest_difference(const Outputs& a, const Outputs& b) {
 
 TEST_CASE("6-node quadrature of Poisson counts against the exact negative binomial") {
     // Whole-match means 0.5 .. 3.5 goals; prior and after some play (shape and rate grown).
-    struct Bound { double kappa; double bound; };
+    struct Bound {
+        double kappa;
+        double bound;
+    };
     for (const Bound b : {Bound{10.0, 5e-6}, Bound{25.0, 5e-8}, Bound{50.0, 1e-9}}) {
         double worst = 0.0;
         for (double mean : {0.5, 1.5, 2.5, 3.5}) {
@@ -66,7 +72,8 @@ TEST_CASE("6-node quadrature of Poisson counts against the exact negative binomi
 
 TEST_CASE("16-node quadrature is converged: the reference for the full model below") {
     double worst = 0.0;
-    for (double mean : {0.5, 1.5, 2.5, 3.5}) worst = std::max(worst, mixture_error(25.0, 25.0, mean, 16));
+    for (double mean : {0.5, 1.5, 2.5, 3.5})
+        worst = std::max(worst, mixture_error(25.0, 25.0, mean, 16));
     INFO("largest error " << worst);
     CHECK(worst <= 1e-13);
 }
@@ -84,8 +91,11 @@ double full_model_error(double kappa) {
     for (double home : {0.6, 1.5, 3.0}) {
         for (double minute : {0.0, 30.0, 60.0, 85.0}) {
             for (int goals = 0; goals < 3; ++goals) {
-                const MatchClock clock = minute == 0.0 ? MatchClock{Period::pre_match, 0}
-                                                       : test::at_minute(minute <= 45 ? Period::first_half : Period::second_half, minute);
+                const MatchClock clock =
+                    minute == 0.0
+                        ? MatchClock{Period::pre_match, 0}
+                        : test::at_minute(minute <= 45 ? Period::first_half : Period::second_half,
+                                          minute);
                 PricingState st = test::pricing_state(home, 1.2, clock, goals, 1);
                 st.format.extra_time = st.format.shootout = true;
                 const StrengthPosterior h = strength_posterior(params, goals, home * minute / 95.0);
@@ -108,7 +118,8 @@ TEST_CASE("full model with the default nodes against 16 nodes") {
     // At the fitted default κ (more spread, so a harder integrand) and at κ = 25.
     const double at_default = full_model_error(ModelParams{}.kappa);
     const double at_25 = full_model_error(25.0);
-    INFO("largest difference " << at_default << " at the default kappa, " << at_25 << " at kappa 25");
+    INFO("largest difference " << at_default << " at the default kappa, " << at_25
+                               << " at kappa 25");
     CHECK(at_default <= 1e-6);
     CHECK(at_25 <= 1e-8);
 }

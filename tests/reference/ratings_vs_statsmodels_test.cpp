@@ -25,7 +25,8 @@ namespace {
 using Reference = test::ReferenceValue;
 
 std::map<std::string, Reference> statsmodels_fit(const std::vector<fit::MatchResult>& games,
-                                                 const fit::Ratings& ratings, double xi, int reference_day,
+                                                 const fit::Ratings& ratings, double xi,
+                                                 int reference_day,
                                                  const std::string& scratch_name) {
     const auto dir = test::scratch_dir(scratch_name);
     const auto csv = dir / "games.csv";
@@ -36,12 +37,13 @@ std::map<std::string, Reference> statsmodels_fit(const std::vector<fit::MatchRes
         return it - ratings.teams.begin();
     };
     for (const auto& g : games)
-        out << fmt::format("{},{},{},{},{},{:.17g}\n", index_of(g.home), index_of(g.away), g.home_goals,
-                           g.away_goals, g.neutral ? 1 : 0, std::exp(-xi * (reference_day - g.day)));
+        out << fmt::format("{},{},{},{},{},{:.17g}\n", index_of(g.home), index_of(g.away),
+                           g.home_goals, g.away_goals, g.neutral ? 1 : 0,
+                           std::exp(-xi * (reference_day - g.day)));
     out.close();
     const auto script = test::source_dir() / "tests/reference/poisson_glm_reference.py";
-    const auto result = test::run_command(fmt::format("{} {} {} {}", test::system_python(), script.string(),
-                                                      csv.string(), ratings.teams.size()));
+    const auto result = test::run_command(fmt::format(
+        "{} {} {} {}", test::system_python(), script.string(), csv.string(), ratings.teams.size()));
     REQUIRE(result.exit_code == 0);
     return test::parse_reference_lines(result.out);
 }
@@ -84,7 +86,8 @@ TEST_CASE("with xi = 0 and rho = 0 the rating fit equals statsmodels' Poisson GL
     check_against_reference(r, statsmodels_fit(games, r, 0.0, reference_day, "ratings_glm_plain"));
 }
 
-TEST_CASE("with time decay the rating fit equals statsmodels' GLM with the same frequency weights") {
+TEST_CASE(
+    "with time decay the rating fit equals statsmodels' GLM with the same frequency weights") {
     const auto games = league_season();
     fit::RatingsFitOptions options;
     options.xi = 0.004;  // per day: a half-life of about 173 days
@@ -93,5 +96,6 @@ TEST_CASE("with time decay the rating fit equals statsmodels' GLM with the same 
     options.as_of_day = reference_day;
     const fit::Ratings r = fit::fit_ratings(games, options);
     REQUIRE(r.diagnostics.converged);
-    check_against_reference(r, statsmodels_fit(games, r, options.xi, reference_day, "ratings_glm_decay"));
+    check_against_reference(
+        r, statsmodels_fit(games, r, options.xi, reference_day, "ratings_glm_decay"));
 }

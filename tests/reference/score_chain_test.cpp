@@ -49,10 +49,14 @@ void require_close(const Eigen::VectorXd& p, const ScoreGrid& g, double tol) {
     double worst = 0.0;
     for (int i = 0; i < kGrid; ++i) {
         for (int j = 0; j < kGrid; ++j) {
-            worst = std::max(worst, std::abs(p(cell(i, j)) - g.cell[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)]));
+            worst = std::max(
+                worst, std::abs(p(cell(i, j)) -
+                                g.cell[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)]));
         }
-        worst = std::max(worst, std::abs(p(home_overflow(i)) - g.home_overflow[static_cast<std::size_t>(i)]));
-        worst = std::max(worst, std::abs(p(away_overflow(i)) - g.away_overflow[static_cast<std::size_t>(i)]));
+        worst = std::max(
+            worst, std::abs(p(home_overflow(i)) - g.home_overflow[static_cast<std::size_t>(i)]));
+        worst = std::max(
+            worst, std::abs(p(away_overflow(i)) - g.away_overflow[static_cast<std::size_t>(i)]));
     }
     INFO("largest difference " << worst);
     CHECK(worst <= tol);
@@ -62,8 +66,10 @@ ClassRates effects_rates(double lambda_h, double lambda_a, int reds_h, int reds_
     const ModelParams params;  // default score-state and red-card effects
     ClassRates r;
     for (int c = 0; c < kDiffClasses; ++c) {
-        r.home[static_cast<std::size_t>(c)] = lambda_h * state_multiplier(params, Side::home, c - 1, reds_h, reds_a);
-        r.away[static_cast<std::size_t>(c)] = lambda_a * state_multiplier(params, Side::away, 1 - c, reds_a, reds_h);
+        r.home[static_cast<std::size_t>(c)] =
+            lambda_h * state_multiplier(params, Side::home, c - 1, reds_h, reds_a);
+        r.away[static_cast<std::size_t>(c)] =
+            lambda_a * state_multiplier(params, Side::away, 1 - c, reds_a, reds_h);
     }
     return r;
 }
@@ -71,7 +77,11 @@ ClassRates effects_rates(double lambda_h, double lambda_a, int reds_h, int reds_
 }  // namespace
 
 TEST_CASE("score chain equals Eigen's matrix exponential of the generator on constant rates") {
-    struct Piece { double lh, la; int rh, ra, start_diff; double exposure; };
+    struct Piece {
+        double lh, la;
+        int rh, ra, start_diff;
+        double exposure;
+    };
     const Piece pieces[] = {
         {1.5, 1.1, 0, 0, 0, 1.0},   // whole match from kick-off
         {2.8, 2.2, 0, 1, -1, 1.0},  // high-scoring, away a man down and leading
@@ -106,7 +116,9 @@ TEST_CASE("score chain in exposure equals a fine-step Runge-Kutta solution on th
         constexpr double kStep = 0.02;  // minutes
         const int steps = static_cast<int>(std::ceil((to_min - from_min) / kStep));
         const double h = (to_min - from_min) / steps;
-        auto rate_at = [&](double t) { return curve.rate({period, static_cast<std::uint32_t>(std::lround(t * 60'000.0))}); };
+        auto rate_at = [&](double t) {
+            return curve.rate({period, static_cast<std::uint32_t>(std::lround(t * 60'000.0))});
+        };
         // r jumps to the stoppage rate at the nominal end: the last stage takes the limit from
         // the left, extrapolated exactly from two readings before it (r is linear there).
         auto rate_before_end = [&](double t) {

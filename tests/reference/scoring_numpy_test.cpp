@@ -33,7 +33,11 @@ TEST_CASE("scores and calibration match numpy on 5000 random forecasts", "[scori
         for (int i = 0; i < 5000; ++i) {
             // Forecasts spread over the simplex, a few exactly at 0 or 1 to reach the edges.
             double a = unit_uniform(rng), b = unit_uniform(rng), c = unit_uniform(rng);
-            if (i % 97 == 0) { a = 1.0; b = 0.0; c = 0.0; }
+            if (i % 97 == 0) {
+                a = 1.0;
+                b = 0.0;
+                c = 0.0;
+            }
             const double sum = a + b + c;
             const Forecast f{a / sum, b / sum, c / sum};
             const auto observed = static_cast<Outcome>(rng() % 3);

@@ -15,9 +15,9 @@
 #include <functional>
 #include <map>
 
+#include "liveprob/core/shootout.hpp"
 #include "liveprob/datasets/inplay_records.hpp"
 #include "liveprob/fit/shootout_fit.hpp"
-#include "liveprob/core/shootout.hpp"
 #include "test_env.hpp"
 
 namespace fit = liveprob::fit;
@@ -32,7 +32,8 @@ using Tallies = std::map<std::pair<int, int>, double>;  // (first scored, second
 // k + j after j rounds both score and any number both miss, with probability
 // (p₁p₂)^j p₁(1 − p₂) / (1 − (1 − p₁)(1 − p₂))^{j+1} (a negative-binomial series); likewise the
 // second kicker.
-void walk(int fk, int fs, int sk, int ss, double prob, double p_first, double p_second, Tallies& out) {
+void walk(int fk, int fs, int sk, int ss, double prob, double p_first, double p_second,
+          Tallies& out) {
     constexpr int kFive = 5;
     if (fs > ss + (kFive - sk) || ss > fs + (kFive - fk)) {
         out[{fs, ss}] += prob;
@@ -84,7 +85,8 @@ TEST_CASE("tally probabilities equal a brute-force walk over every kick sequence
         for (int b = 0; b <= 60; ++b) {
             const double p = fit::shootout_tally_probability(p_first, p_second, a, b);
             const auto it = reference.find({a, b});
-            INFO("tally " << a << "-" << b << ": " << p << " vs " << (it == reference.end() ? 0.0 : it->second));
+            INFO("tally " << a << "-" << b << ": " << p << " vs "
+                          << (it == reference.end() ? 0.0 : it->second));
             CHECK(p == Approx(it == reference.end() ? 0.0 : it->second).margin(1e-13));
             total += p;
             if (a > b) first_wins += p;
@@ -93,13 +95,17 @@ TEST_CASE("tally probabilities equal a brute-force walk over every kick sequence
     // The engine's shoot-out model gives the same chance to the first kicker.
     liveprob::core::ShootoutState start;
     start.first = Side::home;
-    CHECK(first_wins == Approx(liveprob::core::shootout_home_win({p_second, p_first - p_second}, start)).margin(1e-12));
+    CHECK(first_wins ==
+          Approx(liveprob::core::shootout_home_win({p_second, p_first - p_second}, start))
+              .margin(1e-12));
 }
 
 TEST_CASE("winner and first kicker only: the binomial closed form, and the conversion is held") {
     std::vector<fit::ShootoutRecord> records;
-    for (int i = 0; i < 130; ++i) records.push_back({i < 70 ? Side::home : Side::away, Side::home, std::nullopt});
-    for (int i = 0; i < 40; ++i) records.push_back({Side::away, std::nullopt, std::nullopt});  // winner only
+    for (int i = 0; i < 130; ++i)
+        records.push_back({i < 70 ? Side::home : Side::away, Side::home, std::nullopt});
+    for (int i = 0; i < 40; ++i)
+        records.push_back({Side::away, std::nullopt, std::nullopt});  // winner only
     const liveprob::core::ShootoutParams start{0.75, 0.0};
     const auto f = fit::fit_shootout(records, start);
     REQUIRE(f.converged);
@@ -109,19 +115,23 @@ TEST_CASE("winner and first kicker only: the binomial closed form, and the conve
     CHECK(f.uninformative == 40);
     const double q = 70.0 / 130.0;
     CHECK(f.first_kicker_win_probability == Approx(q).margin(1e-9));
-    CHECK(f.first_kicker_win_probability_se == Approx(std::sqrt(q * (1 - q) / 130.0)).epsilon(1e-4));
+    CHECK(f.first_kicker_win_probability_se ==
+          Approx(std::sqrt(q * (1 - q) / 130.0)).epsilon(1e-4));
     CHECK(f.params.first_kicker_edge > 0.0);
     // With no edge the first kicker wins half the time whatever the conversion.
     liveprob::core::ShootoutState state;
     state.first = Side::home;
-    for (double p : {0.6, 0.75, 0.9}) CHECK(liveprob::core::shootout_home_win({p, 0.0}, state) == Approx(0.5).margin(1e-14));
+    for (double p : {0.6, 0.75, 0.9})
+        CHECK(liveprob::core::shootout_home_win({p, 0.0}, state) == Approx(0.5).margin(1e-14));
 }
 
-TEST_CASE("the conversion from the championship files' tallies is the brute-force likelihood's maximum") {
+TEST_CASE(
+    "the conversion from the championship files' tallies is the brute-force likelihood's maximum") {
     const auto dir = liveprob::test::open_data_dir() / "euro";
     std::vector<fit::ShootoutRecord> records;
     for (const char* year : {"2020", "2024"}) {
-        const auto read = liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
+        const auto read =
+            liveprob::datasets::read_championship_timelines((dir / year / "euro.json").string());
         const auto more = liveprob::datasets::shootout_records(read.matches);
         records.insert(records.end(), more.records.begin(), more.records.end());
     }
@@ -148,6 +158,7 @@ TEST_CASE("the conversion from the championship files' tallies is the brute-forc
     const double p = golden_section_max(log_likelihood, 0.3, 0.99);
     CHECK(f.params.conversion == Approx(p).margin(1e-6));
     const double h = 1e-4;
-    const double curvature = (log_likelihood(p + h) - 2 * log_likelihood(p) + log_likelihood(p - h)) / (h * h);
+    const double curvature =
+        (log_likelihood(p + h) - 2 * log_likelihood(p) + log_likelihood(p - h)) / (h * h);
     CHECK(f.conversion_se == Approx(1.0 / std::sqrt(-curvature)).epsilon(1e-3));
 }

@@ -35,8 +35,13 @@ int winner(std::vector<bool> const& kicks, int ft, int fs, int st, int ss) {
             return fs > ss ? 1 : 2;  // a sudden-death round ended unequal
         }
         if (next == kicks.size()) return 0;
-        if (ft == st) { ++ft; fs += kicks[next++] ? 1 : 0; }
-        else { ++st; ss += kicks[next++] ? 1 : 0; }
+        if (ft == st) {
+            ++ft;
+            fs += kicks[next++] ? 1 : 0;
+        } else {
+            ++st;
+            ss += kicks[next++] ? 1 : 0;
+        }
     }
 }
 
@@ -102,10 +107,12 @@ TEST_CASE("shoot-out from every partial state of the best of five equals enumera
             for (int fs = 0; fs <= ft; ++fs) {
                 for (int ss = 0; ss <= st; ++ss) {
                     if (shootout_outcome(ft, fs, st, ss) != ShootoutOutcome::undecided) continue;
-                    const int left = (5 - ft) + (5 - st) + 8;  // the rest plus 4 sudden-death rounds
+                    const int left =
+                        (5 - ft) + (5 - st) + 8;  // the rest plus 4 sudden-death rounds
                     const Tally t = enumerate(pf, ps, ft, fs, st, ss, left);
                     const double round_first = pf * (1 - ps), round_second = (1 - pf) * ps;
-                    const double split = t.first + t.unresolved * round_first / (round_first + round_second);
+                    const double split =
+                        t.first + t.unresolved * round_first / (round_first + round_second);
                     ShootoutState state;
                     state.first = Side::away;  // the away side kicks first here
                     state.taken = {st, ft};
@@ -130,6 +137,6 @@ TEST_CASE("shoot-out in sudden death, kick by kick") {
     CHECK(shootout_home_win(params, s) == Approx(0.25 + 0.75 * 0.5).margin(1e-15));
     s.scored = {4, 4};  // home missed its sixth: away wins by scoring
     CHECK(shootout_home_win(params, s) == Approx(0.25 * 0.5).margin(1e-15));
-    s.taken = {7, 5};   // not reachable in ABAB order
+    s.taken = {7, 5};  // not reachable in ABAB order
     CHECK_THROWS_AS(shootout_home_win(params, s), std::invalid_argument);
 }

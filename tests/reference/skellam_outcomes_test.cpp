@@ -13,12 +13,15 @@
 
 namespace fit = liveprob::fit;
 
-TEST_CASE("independent Poisson W/D/L equals SciPy's Skellam distribution, and over 2.5 its Poisson") {
-    const std::vector<std::pair<double, double>> cases{{1.45, 1.1}, {2.8, 0.4}, {0.3, 0.35}, {4.2, 3.1}};
+TEST_CASE(
+    "independent Poisson W/D/L equals SciPy's Skellam distribution, and over 2.5 its Poisson") {
+    const std::vector<std::pair<double, double>> cases{
+        {1.45, 1.1}, {2.8, 0.4}, {0.3, 0.35}, {4.2, 3.1}};
     std::string script = "import scipy.stats as s\n";
     for (const auto& [lh, la] : cases)
         script += fmt::format(
-            "print(repr(s.skellam.sf(0,{0},{1})), repr(s.skellam.pmf(0,{0},{1})), repr(s.skellam.cdf(-1,{0},{1})), "
+            "print(repr(s.skellam.sf(0,{0},{1})), repr(s.skellam.pmf(0,{0},{1})), "
+            "repr(s.skellam.cdf(-1,{0},{1})), "
             "repr(s.poisson.sf(2,{0}+{1})))\n",
             lh, la);
     const auto dir = liveprob::test::scratch_dir("skellam_outcomes");
@@ -27,7 +30,8 @@ TEST_CASE("independent Poisson W/D/L equals SciPy's Skellam distribution, and ov
         std::ofstream out(path);
         out << script;
     }
-    const auto result = liveprob::test::run_command(liveprob::test::system_python() + " " + path.string());
+    const auto result =
+        liveprob::test::run_command(liveprob::test::system_python() + " " + path.string());
     REQUIRE(result.exit_code == 0);
     std::istringstream in(result.out);
     for (const auto& [lh, la] : cases) {

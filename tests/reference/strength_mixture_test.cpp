@@ -54,8 +54,10 @@ Reference product_reference(const ModelParams& prm, const PricingState& st) {
     const double shootout_home = shootout_home_win_before_toss(prm.shootout);
     ClassRates base;
     for (int c = 0; c < kDiffClasses; ++c) {
-        base.home[at(c)] = st.prior.home_goals * state_multiplier(prm, Side::home, c - 1, st.reds[0], st.reds[1]);
-        base.away[at(c)] = st.prior.away_goals * state_multiplier(prm, Side::away, 1 - c, st.reds[1], st.reds[0]);
+        base.home[at(c)] =
+            st.prior.home_goals * state_multiplier(prm, Side::home, c - 1, st.reds[0], st.reds[1]);
+        base.away[at(c)] =
+            st.prior.away_goals * state_multiplier(prm, Side::away, 1 - c, st.reds[1], st.reds[0]);
     }
     GammaQuadrature qh, qa;
     gamma_quadrature(st.theta_shape[0], 16, qh);
@@ -79,9 +81,9 @@ Reference product_reference(const ModelParams& prm, const PricingState& st) {
             for (int i = 0; i <= kGrid; ++i) {
                 for (int j = 0; j <= kGrid; ++j) {
                     if (i == kGrid && j == kGrid) continue;
-                    const double v = i == kGrid ? g.home_overflow[at(j)]
-                                   : j == kGrid ? g.away_overflow[at(i)]
-                                                : g.cell[at(i)][at(j)];
+                    const double v = i == kGrid   ? g.home_overflow[at(j)]
+                                     : j == kGrid ? g.away_overflow[at(i)]
+                                                  : g.cell[at(i)][at(j)];
                     if (i < kGrid && j < kGrid) ref.grid.cell[at(i)][at(j)] += wt * v;
                     if (i == kGrid) ref.grid.home_overflow[at(j)] += wt * v;
                     if (j == kGrid) ref.grid.away_overflow[at(i)] += wt * v;
@@ -91,7 +93,8 @@ Reference product_reference(const ModelParams& prm, const PricingState& st) {
                 }
             }
             const DifferenceOutcome et = solve_difference(r, 0, extra);
-            ref.advance_home += wt * (tie_home + tie_level * (et.home_ahead + et.level * shootout_home));
+            ref.advance_home +=
+                wt * (tie_home + tie_level * (et.home_ahead + et.level * shootout_home));
             const double a = base.home[c0] * th;
             const double b = base.away[c0] * ta;
             const double any = -std::expm1(-(a + b) * now);
@@ -108,7 +111,8 @@ double largest_difference(const Outputs& out, const Reference& ref) {
                          std::abs(out.next_goal_away - ref.next_away),
                          std::abs(out.tail_mass - ref.grid.overflow_total())});
     for (std::size_t i = 0; i < kGrid; ++i) {
-        for (std::size_t j = 0; j < kGrid; ++j) m = std::max(m, std::abs(out.goals_added[i][j] - ref.grid.cell[i][j]));
+        for (std::size_t j = 0; j < kGrid; ++j)
+            m = std::max(m, std::abs(out.goals_added[i][j] - ref.grid.cell[i][j]));
     }
     return m;
 }
@@ -116,17 +120,24 @@ double largest_difference(const Outputs& out, const Reference& ref) {
 // Knock-out states over the match: priors, minutes, scores, red cards, strength evidence.
 std::vector<PricingState> knockout_states(const ModelParams& params) {
     std::vector<PricingState> states;
-    for (const auto& [home, away] : {std::pair{0.6, 1.2}, std::pair{1.5, 1.1}, std::pair{3.0, 0.8}}) {
+    for (const auto& [home, away] :
+         {std::pair{0.6, 1.2}, std::pair{1.5, 1.1}, std::pair{3.0, 0.8}}) {
         for (double minute : {0.0, 30.0, 60.0, 85.0}) {
             for (const auto& [gh, ga] : {std::pair{0, 0}, std::pair{1, 0}, std::pair{0, 2}}) {
                 for (int red_home : {0, 1}) {
-                    const MatchClock clock = minute == 0.0 ? MatchClock{Period::pre_match, 0}
-                                                           : test::at_minute(minute <= 45 ? Period::first_half : Period::second_half, minute);
-                    PricingState st = test::pricing_state(home, away, clock, minute == 0.0 ? 0 : gh, minute == 0.0 ? 0 : ga);
+                    const MatchClock clock =
+                        minute == 0.0
+                            ? MatchClock{Period::pre_match, 0}
+                            : test::at_minute(
+                                  minute <= 45 ? Period::first_half : Period::second_half, minute);
+                    PricingState st = test::pricing_state(home, away, clock, minute == 0.0 ? 0 : gh,
+                                                          minute == 0.0 ? 0 : ga);
                     st.reds = {minute == 0.0 ? 0 : red_home, 0};
                     st.format.extra_time = st.format.shootout = true;
-                    const StrengthPosterior h = strength_posterior(params, st.goals[0], home * minute / 95.0);
-                    const StrengthPosterior a = strength_posterior(params, st.goals[1], away * minute / 95.0);
+                    const StrengthPosterior h =
+                        strength_posterior(params, st.goals[0], home * minute / 95.0);
+                    const StrengthPosterior a =
+                        strength_posterior(params, st.goals[1], away * minute / 95.0);
                     st.theta_shape = {h.shape, a.shape};
                     st.theta_rate = {h.rate, a.rate};
                     states.push_back(st);
@@ -140,10 +151,12 @@ std::vector<PricingState> knockout_states(const ModelParams& params) {
 }  // namespace
 
 TEST_CASE("Beta quadrature nodes and weights equal SciPy's Gauss-Jacobi rule") {
-    for (const auto& [a, b] : {std::pair{26.0, 25.0}, std::pair{25.5, 27.25}, std::pair{3.0, 7.0}, std::pair{180.0, 200.0}}) {
+    for (const auto& [a, b] : {std::pair{26.0, 25.0}, std::pair{25.5, 27.25}, std::pair{3.0, 7.0},
+                               std::pair{180.0, 200.0}}) {
         for (int n : {1, 4, 6, 12}) {
-            const std::vector<double> scipy = test::scipy_values("beta_rule " + std::to_string(a) + " " +
-                                                                 std::to_string(b) + " " + std::to_string(n));
+            const std::vector<double> scipy =
+                test::scipy_values("beta_rule " + std::to_string(a) + " " + std::to_string(b) +
+                                   " " + std::to_string(n));
             REQUIRE(scipy.size() == 2 * at(n));
             QuadratureRule rule;
             beta_quadrature(a, b, n, rule);
@@ -158,14 +171,16 @@ TEST_CASE("Beta quadrature nodes and weights equal SciPy's Gauss-Jacobi rule") {
 }
 
 TEST_CASE("Beta quadrature reproduces the Beta moments up to degree 2n - 1") {
-    for (const auto& [a, b] : {std::pair{26.0, 25.0}, std::pair{2.5, 0.7}, std::pair{400.0, 35.0}}) {
+    for (const auto& [a, b] :
+         {std::pair{26.0, 25.0}, std::pair{2.5, 0.7}, std::pair{400.0, 35.0}}) {
         for (int n : {2, 5, 8}) {
             QuadratureRule rule;
             beta_quadrature(a, b, n, rule);
             double exact = 1.0;  // E[ρ^m] = Π_{r<m} (a + r) / (a + b + r)
             for (int m = 0; m < 2 * n; ++m) {
                 double rule_moment = 0.0;
-                for (int k = 0; k < n; ++k) rule_moment += rule.weight[at(k)] * std::pow(rule.node[at(k)], m);
+                for (int k = 0; k < n; ++k)
+                    rule_moment += rule.weight[at(k)] * std::pow(rule.node[at(k)], m);
                 INFO("Beta(" << a << ", " << b << ") " << n << " nodes, moment " << m);
                 CHECK(std::abs(rule_moment - exact) <= 1e-13 * std::max(1.0, exact));
                 exact *= (a + m) / (a + b + m);
@@ -182,13 +197,15 @@ TEST_CASE("jump weights equal Boost.Math's Poisson and negative binomial pmfs") 
         double total = 0.0;
         for (std::size_t k = 0; k < n; ++k) {
             total += w[k];
-            const double exact = mean == 0.0 ? (k == 0 ? 1.0 : 0.0) : boost::math::pdf(pois, static_cast<double>(k));
+            const double exact =
+                mean == 0.0 ? (k == 0 ? 1.0 : 0.0) : boost::math::pdf(pois, static_cast<double>(k));
             INFO("Poisson(" << mean << ") at " << k);
             CHECK(std::abs(w[k] - exact) <= 1e-13 * std::max(exact, 1e-3));
         }
         CHECK(std::abs(total - 1.0) <= 1e-13);
     }
-    for (const auto& [shape, scale] : {std::pair{51.0, 0.093}, std::pair{2.0, 1.5}, std::pair{0.6, 3.0}, std::pair{5000.0, 0.1}}) {
+    for (const auto& [shape, scale] : {std::pair{51.0, 0.093}, std::pair{2.0, 1.5},
+                                       std::pair{0.6, 3.0}, std::pair{5000.0, 0.1}}) {
         const std::size_t n = jump_weights(JumpCounts::negative_binomial(shape, scale), 1.0, w);
         const boost::math::negative_binomial_distribution<double> nb(shape, 1.0 / (1.0 + scale));
         double total = 0.0;
@@ -206,7 +223,8 @@ TEST_CASE("a score chain with a Gamma rate factor equals the negative multinomia
     // No score-state effect, so the two counts are Poisson(s·x) and Poisson(s·y) given s, and
     // s ~ Gamma(A, 1) mixes them into the negative multinomial.
     ScoreChain chain;
-    for (const auto& [shape, x, y] : {std::tuple{51.0, 1.6, 1.1}, std::tuple{8.0, 0.4, 2.2}, std::tuple{300.0, 3.0, 2.5}}) {
+    for (const auto& [shape, x, y] :
+         {std::tuple{51.0, 1.6, 1.1}, std::tuple{8.0, 0.4, 2.2}, std::tuple{300.0, 3.0, 2.5}}) {
         ClassRates r;
         r.home.fill(x / shape);  // per unit of s, whose mean is `shape`
         r.away.fill(y / shape);
@@ -216,9 +234,10 @@ TEST_CASE("a score chain with a Gamma rate factor equals the negative multinomia
         for (int i = 0; i < kGrid; ++i) {
             for (int j = 0; j < kGrid; ++j) {
                 const double u = x / shape, v = y / shape;
-                const double log_p = boost::math::lgamma(shape + i + j) - boost::math::lgamma(shape) -
-                                     boost::math::lgamma(i + 1.0) - boost::math::lgamma(j + 1.0) +
-                                     i * std::log(u) + j * std::log(v) - (shape + i + j) * std::log1p(u + v);
+                const double log_p = boost::math::lgamma(shape + i + j) -
+                                     boost::math::lgamma(shape) - boost::math::lgamma(i + 1.0) -
+                                     boost::math::lgamma(j + 1.0) + i * std::log(u) +
+                                     j * std::log(v) - (shape + i + j) * std::log1p(u + v);
                 worst = std::max(worst, std::abs(g.cell[at(i)][at(j)] - std::exp(log_p)));
             }
         }
@@ -245,7 +264,8 @@ TEST_CASE("full model: the ratio rule agrees with the brute-force product of 16-
                 model.price(states[s], out);
                 worst = std::max(worst, largest_difference(out, refs[s]));
             }
-            WARN("kappa " << kappa << ", " << nodes << " ratio nodes: largest difference " << worst);
+            WARN("kappa " << kappa << ", " << nodes << " ratio nodes: largest difference "
+                          << worst);
             // Bounds about 5x the errors measured when this test was written.
             if (kappa == 25.0 && nodes == 5) CHECK(worst <= 1e-8);
             if (kappa == 25.0 && nodes == 6) CHECK(worst <= 2.5e-10);

@@ -25,8 +25,9 @@ inline std::string read_whole_file(const std::filesystem::path& path) {
 }
 
 // The file's contents once it exists (written whole, then renamed, by the programs here).
-inline std::string wait_for_file(const std::filesystem::path& path,
-                                 std::chrono::milliseconds limit = std::chrono::milliseconds(10000)) {
+inline std::string wait_for_file(
+    const std::filesystem::path& path,
+    std::chrono::milliseconds limit = std::chrono::milliseconds(10000)) {
     const auto deadline = std::chrono::steady_clock::now() + limit;
     while (!std::filesystem::exists(path)) {
         if (std::chrono::steady_clock::now() > deadline) {

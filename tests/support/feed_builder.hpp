@@ -23,23 +23,39 @@ public:
     core::InboundMessage next(core::MessageBody body, core::MatchClock clock) {
         return with_seq(next_seq_++, std::move(body), clock);
     }
-    core::InboundMessage with_seq(std::uint64_t seq, core::MessageBody body, core::MatchClock clock) const {
+    core::InboundMessage with_seq(std::uint64_t seq, core::MessageBody body,
+                                  core::MatchClock clock) const {
         core::InboundMessage m;
         m.header.match_id = match_id_;
         m.header.source_seq = seq;
-        m.header.source_time_us = 1'800'000'000'000'000 + static_cast<std::int64_t>(seq) * 1'000'000;
+        m.header.source_time_us =
+            1'800'000'000'000'000 + static_cast<std::int64_t>(seq) * 1'000'000;
         m.header.clock = clock;
         m.body = std::move(body);
         return m;
     }
 
-    core::InboundMessage start(core::Period p, double minute) { return next(core::PeriodStart{p}, at_minute(p, minute)); }
-    core::InboundMessage end(core::Period p, double minute) { return next(core::PeriodEnd{p}, at_minute(p, minute)); }
-    core::InboundMessage goal(core::Side s, core::Period p, double minute) { return next(core::Goal{s, false, false}, at_minute(p, minute)); }
-    core::InboundMessage red(core::Side s, core::Period p, double minute) { return next(core::RedCard{s, false}, at_minute(p, minute)); }
-    core::InboundMessage shot(core::Side s, double xg, core::Period p, double minute) { return next(core::ShotXg{s, xg}, at_minute(p, minute)); }
-    core::InboundMessage kick(core::Side s, bool scored) { return next(core::ShootoutKick{s, scored}, core::MatchClock{core::Period::shootout, 0}); }
-    core::InboundMessage whistle(core::Period p, double minute) { return next(core::FinalWhistle{}, at_minute(p, minute)); }
+    core::InboundMessage start(core::Period p, double minute) {
+        return next(core::PeriodStart{p}, at_minute(p, minute));
+    }
+    core::InboundMessage end(core::Period p, double minute) {
+        return next(core::PeriodEnd{p}, at_minute(p, minute));
+    }
+    core::InboundMessage goal(core::Side s, core::Period p, double minute) {
+        return next(core::Goal{s, false, false}, at_minute(p, minute));
+    }
+    core::InboundMessage red(core::Side s, core::Period p, double minute) {
+        return next(core::RedCard{s, false}, at_minute(p, minute));
+    }
+    core::InboundMessage shot(core::Side s, double xg, core::Period p, double minute) {
+        return next(core::ShotXg{s, xg}, at_minute(p, minute));
+    }
+    core::InboundMessage kick(core::Side s, bool scored) {
+        return next(core::ShootoutKick{s, scored}, core::MatchClock{core::Period::shootout, 0});
+    }
+    core::InboundMessage whistle(core::Period p, double minute) {
+        return next(core::FinalWhistle{}, at_minute(p, minute));
+    }
 
     std::uint64_t last_seq() const noexcept { return next_seq_ - 1; }
     std::uint64_t match_id() const noexcept { return match_id_; }

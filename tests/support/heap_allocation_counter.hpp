@@ -7,5 +7,7 @@
 
 namespace liveprob::test {
 inline std::atomic<long> g_heap_allocations{0};
-inline long heap_allocations() noexcept { return g_heap_allocations.load(std::memory_order_relaxed); }
+inline long heap_allocations() noexcept {
+    return g_heap_allocations.load(std::memory_order_relaxed);
+}
 }  // namespace liveprob::test

@@ -24,12 +24,13 @@ namespace liveprob::test {
 class LiveStack {
 public:
     // `tick_ms`: serve republishes live matches this often (large = a stable final state).
-    explicit LiveStack(const std::filesystem::path& dir, std::uint32_t tick_ms = 3'600'000) : dir_(dir) {
+    explicit LiveStack(const std::filesystem::path& dir, std::uint32_t tick_ms = 3'600'000)
+        : dir_(dir) {
         serve_ = std::make_unique<ChildProcess>(
-            std::vector<std::string>{liveprob_binary().string(), "serve", "--ingest", "tcp://127.0.0.1:*",
-                                     "--publish", "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*",
-                                     "--endpoints-file", (dir / "serve.endpoints").string(), "--tick-ms",
-                                     std::to_string(tick_ms)},
+            std::vector<std::string>{
+                liveprob_binary().string(), "serve", "--ingest", "tcp://127.0.0.1:*", "--publish",
+                "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
+                (dir / "serve.endpoints").string(), "--tick-ms", std::to_string(tick_ms)},
             dir / "serve.log");
         const std::string endpoints = wait_for_file(dir / "serve.endpoints");
         ingest_ = key_value(endpoints, "ingest");
@@ -40,18 +41,26 @@ public:
         push_.connect(ingest_);
         sub_.set(zmq::sockopt::subscribe, "match.");
         sub_.connect(publish_);
-        std::this_thread::sleep_for(std::chrono::milliseconds(300));  // let the subscription reach serve
+        std::this_thread::sleep_for(
+            std::chrono::milliseconds(300));  // let the subscription reach serve
     }
 
     // Starts the gateway against this serve; returns its HTTP port.
     std::uint16_t start_gateway(const std::vector<std::string>& extra = {}) {
-        std::vector<std::string> argv{liveprob_binary().string(), "gateway", "--serve-endpoints",
-                                      (dir_ / "serve.endpoints").string(), "--port", "0", "--port-file",
-                                      (dir_ / "gateway.port").string(), "--page-dir",
+        std::vector<std::string> argv{liveprob_binary().string(),
+                                      "gateway",
+                                      "--serve-endpoints",
+                                      (dir_ / "serve.endpoints").string(),
+                                      "--port",
+                                      "0",
+                                      "--port-file",
+                                      (dir_ / "gateway.port").string(),
+                                      "--page-dir",
                                       (source_dir() / "adapters" / "gateway" / "web").string()};
         argv.insert(argv.end(), extra.begin(), extra.end());
         gateway_ = std::make_unique<ChildProcess>(argv, dir_ / "gateway.log");
-        const auto port = static_cast<std::uint16_t>(std::stoi(wait_for_file(dir_ / "gateway.port")));
+        const auto port =
+            static_cast<std::uint16_t>(std::stoi(wait_for_file(dir_ / "gateway.port")));
         // The gateway's subscription needs a moment to reach serve; updates published before
         // that would only reach it through its start-up snapshot.
         std::this_thread::sleep_for(std::chrono::milliseconds(500));
@@ -69,7 +78,8 @@ public:
                       std::chrono::milliseconds limit = std::chrono::milliseconds(10000)) {
         const auto deadline = std::chrono::steady_clock::now() + limit;
         while (std::chrono::steady_clock::now() < deadline) {
-            if (auto it = latest_.find(match_id); it != latest_.end() && it->second.meta.input_seq >= input_seq) {
+            if (auto it = latest_.find(match_id);
+                it != latest_.end() && it->second.meta.input_seq >= input_seq) {
                 return true;
             }
             zmq::pollitem_t item{static_cast<void*>(sub_), 0, ZMQ_POLLIN, 0};

@@ -12,11 +12,13 @@
 
 namespace liveprob::test {
 
-inline core::PricingState pricing_state(double home_goals, double away_goals, core::MatchClock clock,
-                                  int home_score = 0, int away_score = 0) {
+inline core::PricingState pricing_state(double home_goals, double away_goals,
+                                        core::MatchClock clock, int home_score = 0,
+                                        int away_score = 0) {
     core::PricingState s;
     s.prior = {home_goals, away_goals};
-    s.status = clock.period == core::Period::pre_match ? core::MatchStatus::not_started : core::MatchStatus::in_play;
+    s.status = clock.period == core::Period::pre_match ? core::MatchStatus::not_started
+                                                       : core::MatchStatus::in_play;
     s.clock = clock;
     s.goals = {home_score, away_score};
     const double inf = std::numeric_limits<double>::infinity();

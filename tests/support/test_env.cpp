@@ -1,11 +1,11 @@
 #include "test_env.hpp"
 
+#include <sys/wait.h>
+#include <unistd.h>
 #include <array>
 #include <cstdio>
 #include <cstdlib>
 #include <stdexcept>
-#include <sys/wait.h>
-#include <unistd.h>
 
 namespace liveprob::test {
 
@@ -31,7 +31,8 @@ CommandResult run_command(const std::string& command) {
     if (!pipe) throw std::runtime_error("cannot run: " + command);
     std::array<char, 4096> buffer{};
     size_t n = 0;
-    while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0) result.out.append(buffer.data(), n);
+    while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0)
+        result.out.append(buffer.data(), n);
     const int status = ::pclose(pipe);
     result.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
     return result;
@@ -41,8 +42,10 @@ std::filesystem::path scratch_dir(const std::string& name) {
     // mkdtemp makes a directory nobody else holds. A name from the process id alone is not
     // enough: ids are reused within minutes here (pid_max 32768, several builds at once), and a
     // test in another work tree that drew the same id used to clear this one's folder mid-run.
-    std::string path = (std::filesystem::temp_directory_path() / ("liveprob-test-" + name + "-XXXXXX")).string();
-    if (::mkdtemp(path.data()) == nullptr) throw std::runtime_error("cannot create a scratch folder " + path);
+    std::string path =
+        (std::filesystem::temp_directory_path() / ("liveprob-test-" + name + "-XXXXXX")).string();
+    if (::mkdtemp(path.data()) == nullptr)
+        throw std::runtime_error("cannot create a scratch folder " + path);
     return path;
 }
 

@@ -18,9 +18,13 @@ using namespace liveprob::protocol;
 
 namespace {
 
-FeedDecodeResult decode(const std::vector<std::uint8_t>& bytes) { return decode_feed_message(bytes); }
+FeedDecodeResult decode(const std::vector<std::uint8_t>& bytes) {
+    return decode_feed_message(bytes);
+}
 
-InboundMessage goal_message() { return test::sample_message(4, Period::first_half, 754'000, Goal{Side::home, false, false}); }
+InboundMessage goal_message() {
+    return test::sample_message(4, Period::first_half, 754'000, Goal{Side::home, false, false});
+}
 
 // A FeedMessage built by hand, for buffers the project's encoder would never write.
 std::vector<std::uint8_t> hand_built(std::uint16_t major, bool with_body, bool with_clock) {
@@ -29,10 +33,10 @@ std::vector<std::uint8_t> hand_built(std::uint16_t major, bool with_body, bool w
     const auto goal = w::CreateGoal(fbb, w::Side::Away);
     const w::MatchClock clock(w::Period::FirstHalf, 1000);
     const auto header = w::CreateHeader(fbb, 9, 1, 0, with_clock ? &clock : nullptr);
-    fbb.Finish(w::CreateFeedMessage(fbb, major, 0, header,
-                                    with_body ? w::Body::Goal : w::Body::NONE,
-                                    with_body ? goal.Union() : 0),
-               w::FeedMessageIdentifier());
+    fbb.Finish(
+        w::CreateFeedMessage(fbb, major, 0, header, with_body ? w::Body::Goal : w::Body::NONE,
+                             with_body ? goal.Union() : 0),
+        w::FeedMessageIdentifier());
     return {fbb.GetBufferPointer(), fbb.GetBufferPointer() + fbb.GetSize()};
 }
 

@@ -26,7 +26,8 @@ std::vector<fit::MatchResult> simulated(int teams, int seasons, unsigned seed, d
                 const double aj = 0.04 * (j - teams / 2), di = 0.03 * (i % 5 - 2);
                 std::poisson_distribution<int> gh(std::exp(0.1 + home + ai - dj));
                 std::poisson_distribution<int> ga(std::exp(0.1 + aj - di));
-                out.push_back({day++, "side " + std::to_string(i), "side " + std::to_string(j), gh(rng), ga(rng), false});
+                out.push_back({day++, "side " + std::to_string(i), "side " + std::to_string(j),
+                               gh(rng), ga(rng), false});
             }
     return out;
 }
@@ -72,7 +73,8 @@ TEST_CASE("fitting as of a date never uses a match on or after it") {
     const fit::Ratings after = fit::fit_ratings(games, options);
     CHECK(after.intercept == before.intercept);
     CHECK(after.home_advantage == before.home_advantage);
-    for (std::size_t i = 0; i < before.teams.size(); ++i) CHECK(after.teams[i].attack == before.teams[i].attack);
+    for (std::size_t i = 0; i < before.teams.size(); ++i)
+        CHECK(after.teams[i].attack == before.teams[i].attack);
     // And a match the day before the cut does count.
     games[59].home_goals += 3;
     CHECK(fit::fit_ratings(games, options).intercept != before.intercept);
@@ -127,9 +129,10 @@ TEST_CASE("the fitted rho is where the Dixon-Coles log-likelihood peaks") {
         double total = 0.0;
         for (const auto& g : games) {
             const auto e = fit::expected_goals(r, *r.find(g.home), *r.find(g.away), g.neutral);
-            total += g.home_goals * std::log(e.home) - e.home - std::lgamma(g.home_goals + 1.0) +
-                     g.away_goals * std::log(e.away) - e.away - std::lgamma(g.away_goals + 1.0) +
-                     std::log(fit::dixon_coles_tau(g.home_goals, g.away_goals, e.home, e.away, rho));
+            total +=
+                g.home_goals * std::log(e.home) - e.home - std::lgamma(g.home_goals + 1.0) +
+                g.away_goals * std::log(e.away) - e.away - std::lgamma(g.away_goals + 1.0) +
+                std::log(fit::dixon_coles_tau(g.home_goals, g.away_goals, e.home, e.away, rho));
         }
         return total;
     };
@@ -147,7 +150,8 @@ TEST_CASE("no usable match is a clear error") {
     CHECK_THROWS_WITH(fit::fit_ratings(games, options), Catch::Contains("as-of"));
 }
 
-TEST_CASE("two groups of teams that never met: a warning, and each group rated as if fitted alone") {
+TEST_CASE(
+    "two groups of teams that never met: a warning, and each group rated as if fitted alone") {
     // Neutral venues: the home advantage, shared by both groups, would otherwise tie them.
     auto east = simulated(6, 2, 21);
     auto west = simulated(5, 2, 22);
@@ -169,7 +173,8 @@ TEST_CASE("two groups of teams that never met: a warning, and each group rated a
         for (const auto& a : alone.teams) {
             if (h.name == a.name) continue;
             const auto e_alone = fit::expected_goals(alone, h, a, true);
-            const auto e_joint = fit::expected_goals(joint, *joint.find(h.name), *joint.find(a.name), true);
+            const auto e_joint =
+                fit::expected_goals(joint, *joint.find(h.name), *joint.find(a.name), true);
             CHECK(e_joint.home == Approx(e_alone.home).epsilon(1e-5));
             CHECK(e_joint.away == Approx(e_alone.away).epsilon(1e-5));
         }
@@ -177,7 +182,8 @@ TEST_CASE("two groups of teams that never met: a warning, and each group rated a
 
 TEST_CASE("a warm start from a fit that could not converge falls back to a cold start") {
     // One goalless match: no finite maximum, the fit runs off toward zero goals.
-    std::vector<fit::MatchResult> games = {{fit::day_number(2001, 1, 1), "side 0", "side 1", 0, 0, false}};
+    std::vector<fit::MatchResult> games = {
+        {fit::day_number(2001, 1, 1), "side 0", "side 1", 0, 0, false}};
     const fit::Ratings diverged = fit::fit_ratings(games, {});
     CHECK_FALSE(diverged.diagnostics.converged);
     auto more = simulated(6, 1, 31);
@@ -186,13 +192,15 @@ TEST_CASE("a warm start from a fit that could not converge falls back to a cold 
     options.start = &diverged;
     const fit::Ratings warm = fit::fit_ratings(games, options);
     CHECK(warm.diagnostics.converged);
-    CHECK(warm.diagnostics.log_likelihood == Approx(fit::fit_ratings(games, {}).diagnostics.log_likelihood).epsilon(1e-10));
+    CHECK(warm.diagnostics.log_likelihood ==
+          Approx(fit::fit_ratings(games, {}).diagnostics.log_likelihood).epsilon(1e-10));
 }
 
 TEST_CASE("dates round-trip through day numbers and bad dates are refused") {
     CHECK(fit::day_number(1970, 1, 1) == 0);
     CHECK(fit::parse_iso_date("2000-03-01") == fit::day_number(2000, 3, 1));
-    CHECK(*fit::parse_iso_date("2000-03-01") - *fit::parse_iso_date("2000-02-28") == 2);  // leap year
+    CHECK(*fit::parse_iso_date("2000-03-01") - *fit::parse_iso_date("2000-02-28") ==
+          2);  // leap year
     CHECK(fit::iso_date(fit::day_number(1872, 11, 30)) == "1872-11-30");
     CHECK_FALSE(fit::parse_iso_date("1999-02-29"));
     CHECK_FALSE(fit::parse_iso_date("2001-13-01"));

@@ -4,8 +4,8 @@
 
 #include <fmt/format.h>
 
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "sample_messages.hpp"
 #include "test_env.hpp"
 
@@ -61,17 +61,21 @@ TEST_CASE("a torn tail is reported precisely", "[framing]") {
     const std::size_t second_end = ends.at(1);
 
     SECTION("stray bytes too few for a prefix") {
-        std::vector<std::uint8_t> cut(stream.begin(), stream.begin() + static_cast<std::ptrdiff_t>(second_end + 3));
+        std::vector<std::uint8_t> cut(stream.begin(),
+                                      stream.begin() + static_cast<std::ptrdiff_t>(second_end + 3));
         FrameCursor cursor(cut);
         int frames = 0;
         while (cursor.next()) ++frames;
         CHECK(frames == 2);
         CHECK(cursor.end() == StreamEnd::torn_prefix);
         CHECK(cursor.end_offset() == second_end);
-        CHECK(cursor.end_detail() == fmt::format("torn_prefix: 3 stray bytes at offset {}, too few for a length", second_end));
+        CHECK(cursor.end_detail() ==
+              fmt::format("torn_prefix: 3 stray bytes at offset {}, too few for a length",
+                          second_end));
     }
     SECTION("a frame cut short") {
-        std::vector<std::uint8_t> cut(stream.begin(), stream.begin() + static_cast<std::ptrdiff_t>(second_end + 10));
+        std::vector<std::uint8_t> cut(
+            stream.begin(), stream.begin() + static_cast<std::ptrdiff_t>(second_end + 10));
         FrameCursor cursor(cut);
         int frames = 0;
         while (cursor.next()) ++frames;
@@ -105,7 +109,9 @@ TEST_CASE("every cut of a stream keeps exactly the frames before the cut", "[fra
         REQUIRE(frames == complete);
         const std::size_t start = complete == 0 ? 0 : ends[complete - 1];
         const std::size_t left = size - start;
-        const StreamEnd expected = left == 0 ? StreamEnd::clean : left < 4 ? StreamEnd::torn_prefix : StreamEnd::torn_payload;
+        const StreamEnd expected = left == 0  ? StreamEnd::clean
+                                   : left < 4 ? StreamEnd::torn_prefix
+                                              : StreamEnd::torn_payload;
         REQUIRE(cursor.end() == expected);
     }
 }
@@ -135,7 +141,8 @@ TEST_CASE("a stream survives a real file and is told apart from text", "[framing
     CHECK(read_whole_file_bytes(dir / "feed.lpf") == stream);
     CHECK(looks_like_frame_stream(stream));
     const std::string text = "{\"match\": 7, \"seq\": 1}\n";
-    CHECK_FALSE(looks_like_frame_stream({reinterpret_cast<const std::uint8_t*>(text.data()), text.size()}));
+    CHECK_FALSE(
+        looks_like_frame_stream({reinterpret_cast<const std::uint8_t*>(text.data()), text.size()}));
     CHECK_THROWS_WITH(read_whole_file_bytes(dir / "absent.lpf"),
                       Catch::Matchers::Contains("absent.lpf: cannot open the file: No such file"));
     std::filesystem::remove_all(dir);

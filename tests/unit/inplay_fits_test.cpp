@@ -7,10 +7,10 @@
 #include <cmath>
 #include <random>
 
+#include "liveprob/core/timing.hpp"
 #include "liveprob/fit/extra_time_fit.hpp"
 #include "liveprob/fit/inplay_sample.hpp"
 #include "liveprob/fit/score_state_fit.hpp"
-#include "liveprob/core/timing.hpp"
 
 namespace fit = liveprob::fit;
 using liveprob::core::Side;
@@ -33,7 +33,8 @@ struct Truth {
     double kappa = 8.0;
 };
 
-std::vector<fit::RegulationRecord> simulate(const Truth& truth, int matches, unsigned seed, int* goalless = nullptr) {
+std::vector<fit::RegulationRecord> simulate(const Truth& truth, int matches, unsigned seed,
+                                            int* goalless = nullptr) {
     std::mt19937_64 rng(seed);
     std::uniform_real_distribution<double> prior(0.4, 2.6);
     std::gamma_distribution<double> theta(truth.kappa, 1.0 / truth.kappa);
@@ -50,7 +51,11 @@ std::vector<fit::RegulationRecord> simulate(const Truth& truth, int matches, uns
         std::array<int, 2> score{0, 0};
         double t = 0.0;
         while (true) {
-            auto state = [&](std::size_t s) { return score[s] > score[1 - s] ? kLeading : score[s] < score[1 - s] ? kTrailing : kLevel; };
+            auto state = [&](std::size_t s) {
+                return score[s] > score[1 - s]   ? kLeading
+                       : score[s] < score[1 - s] ? kTrailing
+                                                 : kLevel;
+            };
             const double h0 = rate[0] * truth.m[state(0)], h1 = rate[1] * truth.m[state(1)];
             const double next = t + clock(rng) / (h0 + h1);
             const double until = std::min(next, 1.0);
@@ -73,7 +78,9 @@ std::vector<fit::RegulationRecord> simulate(const Truth& truth, int matches, uns
 
 }  // namespace
 
-TEST_CASE("state exposures: a side's exposures sum to the match's, each goal counts in the state it was scored from") {
+TEST_CASE(
+    "state exposures: a side's exposures sum to the match's, each goal counts in the state it was "
+    "scored from") {
     const liveprob::core::TimingProfile timing;
     // 1-0 at 30', 1-1 at 60', 2-1 at 88'.
     const auto r = fit::regulation_record(
@@ -87,11 +94,13 @@ TEST_CASE("state exposures: a side's exposures sum to the match's, each goal cou
     const liveprob::core::TimingCurve curve(timing, liveprob::core::CompetitionFormat{});
     auto at = [&](liveprob::core::Period p, int minute) {
         auto to = [&](int m) {
-            return curve.exposure({liveprob::core::Period::first_half, 0}, {p, static_cast<std::uint32_t>(m * 60'000)});
+            return curve.exposure({liveprob::core::Period::first_half, 0},
+                                  {p, static_cast<std::uint32_t>(m * 60'000)});
         };
         return 0.5 * (to(minute - 1) + to(minute));
     };
-    const double level = at(liveprob::core::Period::first_half, 30) + at(liveprob::core::Period::second_half, 88) -
+    const double level = at(liveprob::core::Period::first_half, 30) +
+                         at(liveprob::core::Period::second_half, 88) -
                          at(liveprob::core::Period::second_half, 60);
     CHECK(r.sides[0].exposure[kLevel] == Approx(level).epsilon(1e-9));
 }
@@ -111,7 +120,8 @@ TEST_CASE("goals of one minute share it: never zero exposure between them") {
 
 TEST_CASE("extra time: the exposure before its first goal, with that goal's scorer") {
     const liveprob::core::TimingProfile timing;
-    fit::InplayMatch m = match_with({{Side::home, 10}, {Side::away, 70}, {Side::away, 110}, {Side::home, 115}});
+    fit::InplayMatch m =
+        match_with({{Side::home, 10}, {Side::away, 70}, {Side::away, 110}, {Side::home, 115}});
     m.extra_time = true;
     const auto r = fit::extra_time_record(m, timing);
     REQUIRE(r.first_scorer);
@@ -120,10 +130,13 @@ TEST_CASE("extra time: the exposure before its first goal, with that goal's scor
     CHECK(r.exposure_to_first_goal < r.extra_time_exposure);
     CHECK(r.regulation.sides[0].total_goals() == 1);  // extra-time goals are not regulation's
     m.goals.resize(2);
-    CHECK(fit::extra_time_record(m, timing).exposure_to_first_goal == Approx(r.extra_time_exposure).epsilon(1e-12));
+    CHECK(fit::extra_time_record(m, timing).exposure_to_first_goal ==
+          Approx(r.extra_time_exposure).epsilon(1e-12));
 }
 
-TEST_CASE("simulated matches listed for their goals: the conditioned fit recovers the effects and kappa") {
+TEST_CASE(
+    "simulated matches listed for their goals: the conditioned fit recovers the effects and "
+    "kappa") {
     const Truth truth;
     int goalless = 0;
     const auto records = simulate(truth, 20000, 42, &goalless);
@@ -171,11 +184,13 @@ TEST_CASE("simulated extra time with strength posteriors: the factor is recovere
             side.exposure[kLevel] = 1.0;  // state effects of 1: only the goals matter
             side.goals[kLevel] = std::poisson_distribution<int>(rate[s])(rng);
         }
-        if (r.regulation.sides[0].goals[kLevel] != r.regulation.sides[1].goals[kLevel]) continue;  // not level
+        if (r.regulation.sides[0].goals[kLevel] != r.regulation.sides[1].goals[kLevel])
+            continue;  // not level
         r.extra_time_exposure = extra;
         const double wait = clock(rng) / (factor * (rate[0] + rate[1]));
         r.exposure_to_first_goal = std::min(wait, extra);
-        if (wait < extra) r.first_scorer = unit(rng) * (rate[0] + rate[1]) < rate[0] ? Side::home : Side::away;
+        if (wait < extra)
+            r.first_scorer = unit(rng) * (rate[0] + rate[1]) < rate[0] ? Side::home : Side::away;
         records.push_back(r);
     }
     const auto f = fit::fit_extra_time_factor(records, {1.0, 1.0, 1.0}, kappa);

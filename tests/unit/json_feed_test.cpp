@@ -63,9 +63,11 @@ TEST_CASE("a hand-typed line reads as documented", "[json_feed]") {
 
     // Period fields of period_start / stoppage default to the clock's period.
     const auto stoppage = reader.read_line(
-        R"({"match": 7, "seq": 13, "time_us": 0, "period": "second_half", "clock": "90:00", "type": "stoppage", "minutes": 5})", 2);
+        R"({"match": 7, "seq": 13, "time_us": 0, "period": "second_half", "clock": "90:00", "type": "stoppage", "minutes": 5})",
+        2);
     REQUIRE(stoppage.message.has_value());
-    CHECK(std::get<StoppageAnnounced>(stoppage.message->body) == StoppageAnnounced{Period::second_half, 5});
+    CHECK(std::get<StoppageAnnounced>(stoppage.message->body) ==
+          StoppageAnnounced{Period::second_half, 5});
 }
 
 TEST_CASE("blank lines, comments and CRLF endings", "[json_feed]") {
@@ -81,44 +83,73 @@ TEST_CASE("each class of error names the line and the field", "[json_feed]") {
     CHECK(error_of("{\"match\": 7,", 3).rfind("line 3: not valid JSON (", 0) == 0);
     CHECK(error_of("[1, 2]", 4) == "line 4: expected one JSON object, got [1,2]");
     // Wrong choice of a named value.
-    CHECK(error_of(R"({"match": 7, "seq": 12, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "hme"})") ==
-          "line 12: field 'side': expected 'home' or 'away', got 'hme'");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 12, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "hme"})") ==
+        "line 12: field 'side': expected 'home' or 'away', got 'hme'");
     // Unknown field (a typo must not pass).
-    CHECK(error_of(R"({"match": 7, "seq": 12, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "home", "penalti": true})") ==
-          "line 12: field 'penalti': unknown field for a 'goal' message");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 12, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "home", "penalti": true})") ==
+        "line 12: field 'penalti': unknown field for a 'goal' message");
     // Missing required field.
-    CHECK(error_of(R"({"match": 7, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "home"})") ==
-          "line 12: field 'seq': required but missing");
+    CHECK(
+        error_of(
+            R"({"match": 7, "time_us": 0, "period": "second_half", "clock": "67:12", "type": "goal", "side": "home"})") ==
+        "line 12: field 'seq': required but missing");
     // Repeated field.
-    CHECK(error_of(R"({"match": 7, "match": 8, "seq": 1})") == "line 12: field 'match': given more than once");
+    CHECK(error_of(R"({"match": 7, "match": 8, "seq": 1})") ==
+          "line 12: field 'match': given more than once");
     // Wrong JSON type.
-    CHECK(error_of(R"({"match": "seven", "seq": 12, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})") ==
-          "line 12: field 'match': expected a whole number of 0 or more, got \"seven\"");
-    CHECK(error_of(R"({"match": 7, "seq": 1.5, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})") ==
-          "line 12: field 'seq': expected a whole number of 0 or more, got 1.5");
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "shootout_kick", "side": "home", "scored": "yes"})") ==
-          "line 12: field 'scored': expected true or false, got \"yes\"");
+    CHECK(
+        error_of(
+            R"({"match": "seven", "seq": 12, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})") ==
+        "line 12: field 'match': expected a whole number of 0 or more, got \"seven\"");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1.5, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})") ==
+        "line 12: field 'seq': expected a whole number of 0 or more, got 1.5");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "shootout_kick", "side": "home", "scored": "yes"})") ==
+        "line 12: field 'scored': expected true or false, got \"yes\"");
     // Out of range for its type.
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "score_correction", "home_goals": 70000, "away_goals": 0})") ==
-          "line 12: field 'home_goals': expected a whole number 0..65535, got 70000");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "score_correction", "home_goals": 70000, "away_goals": 0})") ==
+        "line 12: field 'home_goals': expected a whole number 0..65535, got 70000");
     // Bad clock text.
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "12:75", "type": "final_whistle"})") ==
-          "line 12: field 'clock': expected minutes:seconds like \"67:12\", got \"12:75\"");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "12:75", "type": "final_whistle"})") ==
+        "line 12: field 'clock': expected minutes:seconds like \"67:12\", got \"12:75\"");
     // Unknown kind.
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "corner"})")
-              .rfind("line 12: field 'type': expected 'setup', 'period_start', ", 0) == 0);
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "corner"})")
+            .rfind("line 12: field 'type': expected 'setup', 'period_start', ", 0) == 0);
     // Nested objects name the full path.
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B", "prior": {"home": 1.2, "awya": 1.0}})") ==
-          "line 12: field 'prior.awya': unknown field for 'prior'");
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B", "prior": {"home": 1.2}})") ==
-          "line 12: field 'prior.away': required but missing");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B", "prior": {"home": 1.2, "awya": 1.0}})") ==
+        "line 12: field 'prior.awya': unknown field for 'prior'");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B", "prior": {"home": 1.2}})") ==
+        "line 12: field 'prior.away': required but missing");
     // Semantic checks shared with the FlatBuffers decoder.
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "20:00", "type": "shot_xg", "side": "away", "xg": 1.5})") ==
-          "line 12: field 'xg': must be in [0, 1], got 1.5");
-    CHECK(error_of(R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B"})") ==
-          "line 12: field 'prior': a setup needs 'prior' or 'ratings'");
-    CHECK(error_of(R"({"match": 0, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})")
-              .rfind("line 12: field 'match': must not be 0", 0) == 0);
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "first_half", "clock": "20:00", "type": "shot_xg", "side": "away", "xg": 1.5})") ==
+        "line 12: field 'xg': must be in [0, 1], got 1.5");
+    CHECK(
+        error_of(
+            R"({"match": 7, "seq": 1, "time_us": 0, "period": "pre_match", "clock": "0:00", "type": "setup", "home": "A", "away": "B"})") ==
+        "line 12: field 'prior': a setup needs 'prior' or 'ratings'");
+    CHECK(
+        error_of(
+            R"({"match": 0, "seq": 1, "time_us": 0, "period": "first_half", "clock": "1:00", "type": "final_whistle"})")
+            .rfind("line 12: field 'match': must not be 0", 0) == 0);
 }
 
 TEST_CASE("the match clock's text form", "[json_feed]") {
@@ -129,7 +160,8 @@ TEST_CASE("the match clock's text form", "[json_feed]") {
     CHECK(parse_match_clock("67:12") == 4'032'000u);
     CHECK(parse_match_clock("1:05.5") == 65'500u);
     CHECK(parse_match_clock("105:00.001") == 6'300'001u);
-    for (const char* bad : {"", "67", ":12", "67:1", "67:60", "67:12.", "67:12.1234", "-1:00", "+1:00", "1:-5", "67:12 ", "a:00"}) {
+    for (const char* bad : {"", "67", ":12", "67:1", "67:60", "67:12.", "67:12.1234", "-1:00",
+                            "+1:00", "1:-5", "67:12 ", "a:00"}) {
         INFO(bad);
         CHECK_FALSE(parse_match_clock(bad).has_value());
     }

@@ -13,8 +13,8 @@ using namespace liveprob;
 using namespace liveprob::service;
 
 using namespace liveprob::core;
-using service::MessageOutcome;
 using service::MatchRegistry;
+using service::MessageOutcome;
 using test::at_minute;
 
 namespace {
@@ -25,7 +25,8 @@ InboundMessage setup_message(test::FeedBuilder& feed) {
 }
 }  // namespace
 
-TEST_CASE("messages for an unknown match wait for its setup and are then applied in order", "[match_registry]") {
+TEST_CASE("messages for an unknown match wait for its setup and are then applied in order",
+          "[match_registry]") {
     MatchRegistry registry{ModelParams{}};
     const auto now = std::chrono::steady_clock::now();
     std::vector<std::uint64_t> touched;
@@ -51,8 +52,9 @@ TEST_CASE("messages for an unknown match wait for its setup and are then applied
     CHECK(match.counters().rejected == 0);
 }
 
-TEST_CASE("the waiting room is bounded per match and in matches, and the excess is dropped and reported",
-          "[match_registry]") {
+TEST_CASE(
+    "the waiting room is bounded per match and in matches, and the excess is dropped and reported",
+    "[match_registry]") {
     MatchRegistry registry{ModelParams{}};
     const auto now = std::chrono::steady_clock::now();
     std::vector<std::uint64_t> touched;
@@ -60,8 +62,8 @@ TEST_CASE("the waiting room is bounded per match and in matches, and the excess 
     SECTION("one match with too many messages before its setup") {
         test::FeedBuilder feed(7, 2);
         for (std::size_t i = 0; i < service::kMaxWaitingPerMatch; ++i) {
-            REQUIRE(registry.handle(feed.shot(Side::home, 0.1, Period::first_half, 1), 1, now, touched) ==
-                    MessageOutcome::waiting);
+            REQUIRE(registry.handle(feed.shot(Side::home, 0.1, Period::first_half, 1), 1, now,
+                                    touched) == MessageOutcome::waiting);
         }
         CHECK(registry.handle(feed.shot(Side::home, 0.1, Period::first_half, 1), 1, now, touched) ==
               MessageOutcome::waiting_overflow);
@@ -70,14 +72,17 @@ TEST_CASE("the waiting room is bounded per match and in matches, and the excess 
     SECTION("too many unknown matches") {
         for (std::uint64_t id = 1; id <= service::kMaxWaitingMatches; ++id) {
             test::FeedBuilder feed(id, 2);
-            REQUIRE(registry.handle(feed.start(Period::first_half, 0), 1, now, touched) == MessageOutcome::waiting);
+            REQUIRE(registry.handle(feed.start(Period::first_half, 0), 1, now, touched) ==
+                    MessageOutcome::waiting);
         }
         test::FeedBuilder one_more(service::kMaxWaitingMatches + 1, 2);
-        CHECK(registry.handle(one_more.start(Period::first_half, 0), 1, now, touched) == MessageOutcome::waiting_overflow);
+        CHECK(registry.handle(one_more.start(Period::first_half, 0), 1, now, touched) ==
+              MessageOutcome::waiting_overflow);
         CHECK(registry.waiting_messages() == service::kMaxWaitingMatches);
         // A match already waiting still takes messages up to its own bound.
         test::FeedBuilder first(1, 3);
-        CHECK(registry.handle(first.goal(Side::home, Period::first_half, 5), 1, now, touched) == MessageOutcome::waiting);
+        CHECK(registry.handle(first.goal(Side::home, Period::first_half, 5), 1, now, touched) ==
+              MessageOutcome::waiting);
     }
     CHECK(touched.empty());
     CHECK(registry.matches().empty());

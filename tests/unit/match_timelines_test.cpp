@@ -6,10 +6,10 @@
 
 #include <fstream>
 
-#include "liveprob/datasets/match_timelines.hpp"
-#include "liveprob/datasets/timeline_feed.hpp"
 #include "liveprob/core/match.hpp"
 #include "liveprob/core/match_state.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
+#include "liveprob/datasets/timeline_feed.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
@@ -19,22 +19,30 @@ using namespace liveprob::datasets;
 
 namespace {
 
-void write(const std::filesystem::path& path, const std::string& text) { std::ofstream(path) << text; }
+void write(const std::filesystem::path& path, const std::string& text) {
+    std::ofstream(path) << text;
+}
 
 // Invented sides of the project's demo world.
 std::filesystem::path international_fixture() {
     const auto dir = liveprob::test::scratch_dir("timelines-international");
     write(dir / "results.csv",
           "date,home_team,away_team,home_score,away_score,tournament,city,country,neutral\n"
-          "2001-03-01,Harbour,Hillcrest,2,1,Coast Cup,Port,Harbour,FALSE\n"        // line 2: complete
-          "2001-03-02,Millbrook,Stonegate,0,0,Coast Cup,Mill,Millbrook,FALSE\n"    // 3: goalless, covered
-          "2001-03-03,Harbour,Stonegate,1,1,Coast Cup,Port,Harbour,TRUE\n"         // 4: shoot-out, ET goals none
-          "2001-03-04,Hillcrest,Millbrook,3,2,Coast Cup,Hill,Hillcrest,FALSE\n"    // 5: extra time 2-2 -> 3-2
-          "2001-03-05,Stonegate,Harbour,2,0,Coast Cup,Stone,Stonegate,FALSE\n"     // 6: second leg: ET after 1-0
-          "2001-04-01,Harbour,Millbrook,1,0,Friendly,Port,Harbour,FALSE\n"         // 7: no goal records
-          "2001-04-02,Hillcrest,Stonegate,0,0,Friendly,Hill,Hillcrest,FALSE\n"     // 8: goalless, not covered
-          "2001-04-03,Millbrook,Harbour,NA,NA,Friendly,Mill,Millbrook,FALSE\n"     // 9: no result
-          "2001-03-06,Millbrook,Hillcrest,2,0,Coast Cup,Mill,Millbrook,FALSE\n");  // 10: a goal without minute
+          "2001-03-01,Harbour,Hillcrest,2,1,Coast Cup,Port,Harbour,FALSE\n"      // line 2: complete
+          "2001-03-02,Millbrook,Stonegate,0,0,Coast Cup,Mill,Millbrook,FALSE\n"  // 3: goalless,
+                                                                                 // covered
+          "2001-03-03,Harbour,Stonegate,1,1,Coast Cup,Port,Harbour,TRUE\n"       // 4: shoot-out, ET
+                                                                                 // goals none
+          "2001-03-04,Hillcrest,Millbrook,3,2,Coast Cup,Hill,Hillcrest,FALSE\n"  // 5: extra time
+                                                                                 // 2-2 -> 3-2
+          "2001-03-05,Stonegate,Harbour,2,0,Coast Cup,Stone,Stonegate,FALSE\n"  // 6: second leg: ET
+                                                                                // after 1-0
+          "2001-04-01,Harbour,Millbrook,1,0,Friendly,Port,Harbour,FALSE\n"  // 7: no goal records
+          "2001-04-02,Hillcrest,Stonegate,0,0,Friendly,Hill,Hillcrest,FALSE\n"  // 8: goalless, not
+                                                                                // covered
+          "2001-04-03,Millbrook,Harbour,NA,NA,Friendly,Mill,Millbrook,FALSE\n"  // 9: no result
+          "2001-03-06,Millbrook,Hillcrest,2,0,Coast Cup,Mill,Millbrook,FALSE\n");  // 10: a goal
+                                                                                   // without minute
     write(dir / "goalscorers.csv",
           "date,home_team,away_team,team,scorer,minute,own_goal,penalty\n"
           "2001-03-01,Harbour,Hillcrest,Harbour,A,45,FALSE,FALSE\n"
@@ -59,8 +67,9 @@ std::filesystem::path international_fixture() {
 
 }  // namespace
 
-TEST_CASE("international timelines: complete records, covered goalless matches, extra time, second legs",
-          "[import]") {
+TEST_CASE(
+    "international timelines: complete records, covered goalless matches, extra time, second legs",
+    "[import]") {
     const auto read = read_international_timelines(international_fixture().string(), {0.5});
     // Coast Cup 2001: 5 scoring matches, 4 complete (80% >= 50%): covered. Friendly 2001: 0 of 1.
     REQUIRE(read.matches.size() == 4);
@@ -76,7 +85,7 @@ TEST_CASE("international timelines: complete records, covered goalless matches, 
     REQUIRE(first.goals.size() == 3);
     CHECK(first.goals[0].minute == 12);
     CHECK(first.goals[0].own_goal);
-    CHECK(first.goals[0].side == Side::away);  // credited side
+    CHECK(first.goals[0].side == Side::away);                              // credited side
     CHECK((first.goals[1].minute == 45 && first.goals[1].stoppage == 1));  // 45 read as 45+1
     CHECK((first.goals[2].minute == 90 && first.goals[2].stoppage == 1 && first.goals[2].penalty));
     CHECK_FALSE(first.extra_time);
@@ -93,8 +102,9 @@ TEST_CASE("international timelines: complete records, covered goalless matches, 
     CHECK(extra.extra_time_goals == std::array<int, 2>{1, 0});
 }
 
-TEST_CASE("a timeline's feed: goals at their clock, a reading every five minutes, the engine accepts all",
-          "[import]") {
+TEST_CASE(
+    "a timeline's feed: goals at their clock, a reading every five minutes, the engine accepts all",
+    "[import]") {
     const auto read = read_international_timelines(international_fixture().string(), {0.5});
     for (const MatchTimeline& t : read.matches) {
         const auto feed = feed_from_timeline(t, 77, PriorMeans{1.5, 1.0});
@@ -119,21 +129,23 @@ TEST_CASE("a timeline's feed: goals at their clock, a reading every five minutes
         if (std::holds_alternative<ClockSync>(m.body)) clocks.push_back(m.header.clock);
     }
     // Minute 12 at 11:30; "45+1" at 45:30 of the first half; "90+1" at 90:30.
-    CHECK(goals == std::vector<MatchClock>{{Period::first_half, 690'000}, {Period::first_half, 2'730'000},
+    CHECK(goals == std::vector<MatchClock>{{Period::first_half, 690'000},
+                                           {Period::first_half, 2'730'000},
                                            {Period::second_half, 5'430'000}});
     REQUIRE(clocks.size() == 18);  // 5, 10, ... 45 and 50, ... 90
     CHECK(clocks.front() == MatchClock{Period::first_half, 300'000});
     CHECK(clocks.back() == MatchClock{Period::second_half, 5'400'000});
 }
 
-TEST_CASE("shoot-out kicks: 5-4 for the winner when only the winner is known, else the recorded score",
-          "[import]") {
+TEST_CASE(
+    "shoot-out kicks: 5-4 for the winner when only the winner is known, else the recorded score",
+    "[import]") {
     auto tally_of = [](const std::vector<ShootoutKick>& kicks) {
         ShootoutTally t;
         for (std::size_t i = 0; i < kicks.size(); ++i) {
             if (i == 0) t.first = kicks[i].side;
             else CHECK(kicks[i].side == shootout_next_kicker(t));  // ABAB order
-            CHECK_FALSE(shootout_decided(t));                       // nothing after the decision
+            CHECK_FALSE(shootout_decided(t));                      // nothing after the decision
             t.taken[static_cast<std::size_t>(index(kicks[i].side))] += 1;
             t.scored[static_cast<std::size_t>(index(kicks[i].side))] += kicks[i].scored;
         }
@@ -148,16 +160,18 @@ TEST_CASE("shoot-out kicks: 5-4 for the winner when only the winner is known, el
             CHECK(t.scored[static_cast<std::size_t>(index(other(winner)))] == 4);
         }
     }
-    for (const std::array<int, 2> score : {std::array<int, 2>{1, 3}, {4, 2}, {3, 2}, {5, 3}, {8, 7}, {0, 3}}) {
+    for (const std::array<int, 2> score :
+         {std::array<int, 2>{1, 3}, {4, 2}, {3, 2}, {5, 3}, {8, 7}, {0, 3}}) {
         const Side winner = score[0] > score[1] ? Side::home : Side::away;
         CHECK(tally_of(reconstructed_kicks({winner, std::nullopt, score})).scored == score);
     }
     // A score no shoot-out can end with (decided long before): the winner-only reconstruction.
-    CHECK(tally_of(reconstructed_kicks({Side::home, std::nullopt, std::array<int, 2>{9, 0}})).scored ==
-          std::array<int, 2>{5, 4});
+    CHECK(tally_of(reconstructed_kicks({Side::home, std::nullopt, std::array<int, 2>{9, 0}}))
+              .scored == std::array<int, 2>{5, 4});
 }
 
-TEST_CASE("championship timelines: stoppage offsets, extra time and shoot-out score from the file", "[import]") {
+TEST_CASE("championship timelines: stoppage offsets, extra time and shoot-out score from the file",
+          "[import]") {
     const auto dir = liveprob::test::scratch_dir("timelines-championship");
     write(dir / "cup.json", R"({"name": "Coast Cup", "rounds": [{"name": "Final", "matches": [
       {"num": 7, "date": "2030-07-01", "time": "20:45", "team1": {"name": "Harbour"}, "team2": {"name": "Hillcrest"},
@@ -185,12 +199,13 @@ TEST_CASE("championship timelines: stoppage offsets, extra time and shoot-out sc
     std::vector<MatchClock> goals;
     for (const auto& m : feed)
         if (std::holds_alternative<Goal>(m.body)) goals.push_back(m.header.clock);
-    CHECK(goals == std::vector<MatchClock>{{Period::first_half, 2'790'000},     // 45+2 -> 46:30
-                                           {Period::second_half, 5'610'000},    // 90+4 -> 93:30
-                                           {Period::extra_first, 6'330'000},    // 105+1 -> 105:30
-                                           {Period::extra_second, 6'570'000}}); // 110 -> 109:30
+    CHECK(goals == std::vector<MatchClock>{{Period::first_half, 2'790'000},      // 45+2 -> 46:30
+                                           {Period::second_half, 5'610'000},     // 90+4 -> 93:30
+                                           {Period::extra_first, 6'330'000},     // 105+1 -> 105:30
+                                           {Period::extra_second, 6'570'000}});  // 110 -> 109:30
     Match match(5, std::get<MatchSetup>(feed.front().body));
-    for (std::size_t i = 1; i < feed.size(); ++i) CHECK(match.apply(feed[i]).verdict == Verdict::accepted);
+    for (std::size_t i = 1; i < feed.size(); ++i)
+        CHECK(match.apply(feed[i]).verdict == Verdict::accepted);
     CHECK(match.state().status == MatchStatus::finished);
     CHECK(match.state().shootout.scored == std::array<int, 2>{4, 3});
 }

@@ -10,9 +10,11 @@ using namespace liveprob;
 using namespace liveprob::core;
 
 TEST_CASE("every message kind has a distinct stable name", "[messages]") {
-    const MessageBody bodies[] = {MatchSetup{}, PeriodStart{}, PeriodEnd{}, Goal{}, GoalCancelled{},
-                                  RedCard{}, CardRescinded{}, StoppageAnnounced{}, ScoreCorrection{},
-                                  ShootoutKick{}, ShotXg{}, MatchAbandoned{}, FinalWhistle{}, ClockSync{}};
+    const MessageBody bodies[] = {
+        MatchSetup{},      PeriodStart{},  PeriodEnd{},     Goal{},
+        GoalCancelled{},   RedCard{},      CardRescinded{}, StoppageAnnounced{},
+        ScoreCorrection{}, ShootoutKick{}, ShotXg{},        MatchAbandoned{},
+        FinalWhistle{},    ClockSync{}};
     std::set<std::string> names;
     for (const auto& b : bodies) names.insert(kind_name(b));
     CHECK(names.size() == std::variant_size_v<MessageBody>);

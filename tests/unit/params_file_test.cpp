@@ -79,9 +79,11 @@ TEST_CASE("bad parameter files are errors naming the key and the reason") {
     CHECK_THAT(error_of(head + R"("timing":{"second_half_ending":1.2}})"),
                Catch::Contains("timing.second_half_ending") && Catch::Contains("unknown key"));
     CHECK_THAT(error_of(head + R"("colour":"red"})"), Catch::Contains("'colour': unknown key"));
-    CHECK_THAT(error_of(head + R"("col\nour":"red"})"), Catch::Contains(R"('col\nour': unknown key)"));
-    CHECK_THAT(error_of(head + R"("shootout":{"conversion":1.5}})"),
-               Catch::Contains("shootout.conversion") && Catch::Contains("outside the allowed range"));
+    CHECK_THAT(error_of(head + R"("col\nour":"red"})"),
+               Catch::Contains(R"('col\nour': unknown key)"));
+    CHECK_THAT(
+        error_of(head + R"("shootout":{"conversion":1.5}})"),
+        Catch::Contains("shootout.conversion") && Catch::Contains("outside the allowed range"));
     CHECK_THAT(error_of(head + R"("kappa":"lots"})"), Catch::Contains("'kappa'"));
     CHECK_THAT(error_of(head + R"("kappa":-1})"), Catch::Contains("'kappa'"));
     CHECK_THAT(error_of(head + R"("red_cards":{"max_cards":1.5}})"),
@@ -90,7 +92,8 @@ TEST_CASE("bad parameter files are errors naming the key and the reason") {
                Catch::Contains("timing.stoppage_factor") && Catch::Contains("expected a number"));
     CHECK_THAT(error_of(head + R"("timing":5})"), Catch::Contains("'timing': expected an object"));
     CHECK_THAT(error_of(R"({"version":1})"), Catch::Contains("'kind': missing"));
-    CHECK_THAT(error_of(R"({"kind":"liveprob-model-params","version":2})"), Catch::Contains("'version'"));
+    CHECK_THAT(error_of(R"({"kind":"liveprob-model-params","version":2})"),
+               Catch::Contains("'version'"));
     CHECK_THAT(error_of(head + R"("notes":{"kappa":3}})"), Catch::Contains("notes.kappa"));
     CHECK_THAT(error_of("{\"kind\": "), Catch::Contains("not valid JSON"));
     CHECK_THAT(error_of("[1,2]"), Catch::Contains("expected an object"));

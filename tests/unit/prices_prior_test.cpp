@@ -10,7 +10,8 @@
 namespace fit = liveprob::fit;
 
 namespace {
-const std::array<std::array<double, 2>, 5> kLambdas{{{1.45, 1.10}, {2.8, 0.4}, {0.6, 2.1}, {1.0, 1.0}, {3.5, 2.9}}};
+const std::array<std::array<double, 2>, 5> kLambdas{
+    {{1.45, 1.10}, {2.8, 0.4}, {0.6, 2.1}, {1.0, 1.0}, {3.5, 2.9}}};
 }
 
 TEST_CASE("proportional round trip: lambda -> fair prices -> lambda within 1e-9") {
@@ -80,10 +81,12 @@ TEST_CASE("the pre-match model is a parameter of the solver") {
 }
 
 TEST_CASE("unusable prices are refused with a reason") {
-    CHECK_THROWS_WITH(fit::prior_from_prices({1.0, 3.0, 4.0, std::nullopt}, fit::MarginMethod::proportional),
-                      Catch::Contains("above 1"));
-    CHECK_THROWS_WITH(fit::prior_from_prices({5.0, 5.0, 5.0, std::nullopt}, fit::MarginMethod::shin),
-                      Catch::Contains("less than 1"));
+    CHECK_THROWS_WITH(
+        fit::prior_from_prices({1.0, 3.0, 4.0, std::nullopt}, fit::MarginMethod::proportional),
+        Catch::Contains("above 1"));
+    CHECK_THROWS_WITH(
+        fit::prior_from_prices({5.0, 5.0, 5.0, std::nullopt}, fit::MarginMethod::shin),
+        Catch::Contains("less than 1"));
     fit::PriceBook with_whole_line{2.0, 3.5, 4.0, fit::PriceBook::TotalLine{2.0, 1.9, 1.9}};
     CHECK_THROWS_WITH(fit::prior_from_prices(with_whole_line, fit::MarginMethod::proportional),
                       Catch::Contains("half line"));

@@ -29,12 +29,17 @@ PricingState full_state(double lh, double la, MatchClock clock, int gh, int ga) 
 
 void check_distributions(const Outputs& out) {
     CHECK(out.p_home + out.p_draw + out.p_away == Approx(1.0).margin(1e-12));
-    CHECK(out.next_goal_home + out.next_goal_away + out.next_goal_none == Approx(1.0).margin(1e-12));
+    CHECK(out.next_goal_home + out.next_goal_away + out.next_goal_none ==
+          Approx(1.0).margin(1e-12));
     double grid = out.tail_mass;
-    for (const auto& row : out.goals_added) for (double v : row) grid += v;
+    for (const auto& row : out.goals_added)
+        for (double v : row) grid += v;
     CHECK(grid == Approx(1.0).margin(1e-12));
-    if (out.has_advance) CHECK(out.p_advance_home + out.p_advance_away == Approx(1.0).margin(1e-12));
-    for (int k = 1; k < kTotalsLines; ++k) CHECK(out.p_over[static_cast<std::size_t>(k)] <= out.p_over[static_cast<std::size_t>(k - 1)] + 1e-15);
+    if (out.has_advance)
+        CHECK(out.p_advance_home + out.p_advance_away == Approx(1.0).margin(1e-12));
+    for (int k = 1; k < kTotalsLines; ++k)
+        CHECK(out.p_over[static_cast<std::size_t>(k)] <=
+              out.p_over[static_cast<std::size_t>(k - 1)] + 1e-15);
 }
 
 }  // namespace
@@ -44,9 +49,12 @@ TEST_CASE("full model outputs are distributions in every phase") {
     CompetitionFormat knockout;
     knockout.extra_time = true;
     knockout.shootout = true;
-    const MatchClock clocks[] = {{Period::pre_match, 0}, at_minute(Period::first_half, 12),
-                                 at_minute(Period::second_half, 45), at_minute(Period::second_half, 93),
-                                 at_minute(Period::extra_first, 97), at_minute(Period::extra_second, 118)};
+    const MatchClock clocks[] = {{Period::pre_match, 0},
+                                 at_minute(Period::first_half, 12),
+                                 at_minute(Period::second_half, 45),
+                                 at_minute(Period::second_half, 93),
+                                 at_minute(Period::extra_first, 97),
+                                 at_minute(Period::extra_second, 118)};
     for (const MatchClock& c : clocks) {
         for (int gh = 0; gh <= 2; ++gh) {
             PricingState st = full_state(1.5, 1.2, c, gh, 1);
@@ -121,8 +129,8 @@ TEST_CASE("second leg: the aggregate decides who advances") {
     st.format.shootout = true;
     Outputs out;
     model.price(st, out);
-    CHECK(out.p_home > 0.8);             // winning this match
-    CHECK(out.p_advance_away > 0.8);     // but out on aggregate
+    CHECK(out.p_home > 0.8);          // winning this match
+    CHECK(out.p_advance_away > 0.8);  // but out on aggregate
     check_distributions(out);
 }
 
@@ -173,21 +181,24 @@ TEST_CASE("no published probability is negative, even by a rounding error") {
                 for (int minute = 0; minute <= 95; minute += 5) {
                     for (int goals = 0; goals <= 2; ++goals) {
                         for (bool cup : {false, true}) {
-                            const Period period = minute < 45 ? Period::first_half : Period::second_half;
-                            PricingState st = full_state(lh, la, at_minute(period, minute), goals, 0);
+                            const Period period =
+                                minute < 45 ? Period::first_half : Period::second_half;
+                            PricingState st =
+                                full_state(lh, la, at_minute(period, minute), goals, 0);
                             if (cup) st.format = knockout;
                             Outputs out;
                             model.price(st, out);
                             ++states;
-                            double lowest = std::min({out.p_home, out.p_draw, out.p_away, out.p_advance_home,
-                                                      out.p_advance_away, out.next_goal_home, out.next_goal_away,
-                                                      out.next_goal_none, out.p_both_score, out.tail_mass});
+                            double lowest = std::min(
+                                {out.p_home, out.p_draw, out.p_away, out.p_advance_home,
+                                 out.p_advance_away, out.next_goal_home, out.next_goal_away,
+                                 out.next_goal_none, out.p_both_score, out.tail_mass});
                             for (double p : out.p_over) lowest = std::min(lowest, p);
                             for (const auto& row : out.goals_added) {
                                 for (double p : row) lowest = std::min(lowest, p);
                             }
-                            INFO("prior " << lh << "," << la << " minute " << minute << " score " << goals
-                                          << "-0 " << (cup ? "knockout" : "league"));
+                            INFO("prior " << lh << "," << la << " minute " << minute << " score "
+                                          << goals << "-0 " << (cup ? "knockout" : "league"));
                             REQUIRE(lowest >= 0.0);
                         }
                     }

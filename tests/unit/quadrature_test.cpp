@@ -20,7 +20,9 @@ TEST_CASE("Gamma quadrature reproduces the moments of degree below 2n") {
             REQUIRE(q.count == n);
             for (int k = 0; k < 2 * n; ++k) {
                 double m = 0.0;
-                for (int i = 0; i < n; ++i) m += q.weight[static_cast<std::size_t>(i)] * std::pow(q.node[static_cast<std::size_t>(i)], k);
+                for (int i = 0; i < n; ++i)
+                    m += q.weight[static_cast<std::size_t>(i)] *
+                         std::pow(q.node[static_cast<std::size_t>(i)], k);
                 const double exact = boost::math::tgamma_ratio(shape + k, shape);  // Boost.Math
                 INFO("shape " << shape << " nodes " << n << " degree " << k);
                 CHECK(m == Approx(exact).epsilon(1e-10));

@@ -51,7 +51,8 @@ TEST_CASE("RPS rewards probability near the outcome and the Brier score does not
     CHECK(brier_score(near, Outcome::home) == Approx(brier_score(far, Outcome::home)));
 }
 
-TEST_CASE("reliability bin k holds k/10 up to (k+1)/10 and the last bin also holds 1.0", "[calibration]") {
+TEST_CASE("reliability bin k holds k/10 up to (k+1)/10 and the last bin also holds 1.0",
+          "[calibration]") {
     CHECK(reliability_bin_index(0.0) == 0);
     CHECK(reliability_bin_index(0.0999) == 0);
     CHECK(reliability_bin_index(0.1) == 1);

@@ -45,16 +45,21 @@ TEST_CASE("configuration: keys override defaults, endpoints default to loopback"
 TEST_CASE("configuration: every error names the key and the reason", "[unit][serve]") {
     CHECK(error_of(R"({"tick_interval_ms": 0})") ==
           "svc.json: tick_interval_ms: must be between 10 and 3600000, got 0");
-    CHECK(error_of(R"({"tick_interval_ms": "fast"})") == "svc.json: tick_interval_ms: must be a whole number");
+    CHECK(error_of(R"({"tick_interval_ms": "fast"})") ==
+          "svc.json: tick_interval_ms: must be a whole number");
     CHECK(error_of(R"({"tick_intervall_ms": 5})") == "svc.json: tick_intervall_ms: unknown key");
-    CHECK(error_of(R"({"journal_sync": "sometimes"})").find("svc.json: journal_sync: must be one of") == 0);
-    CHECK(error_of(R"({"ingest_endpoint": "localhost"})").find("svc.json: ingest_endpoint: must be an endpoint") == 0);
+    CHECK(error_of(R"({"journal_sync": "sometimes"})")
+              .find("svc.json: journal_sync: must be one of") == 0);
+    CHECK(error_of(R"({"ingest_endpoint": "localhost"})")
+              .find("svc.json: ingest_endpoint: must be an endpoint") == 0);
     CHECK(error_of(R"({"curve_publish": 1})") == "svc.json: curve_publish: must be true or false");
     CHECK(error_of("[1, 2]") == "svc.json: must hold one JSON object");
     CHECK(error_of("{").find("svc.json: not valid JSON") == 0);
     // A key or value holding a newline (JSON's "\n") is quoted escaped: the error stays one line.
-    CHECK(error_of(R"({"publish_\nendpoint": "tcp://127.0.0.1:1"})") == R"(svc.json: publish_\nendpoint: unknown key)");
-    CHECK(error_of(R"({"journal_sync": "none\u0001"})").find(R"(got "none\x01")") != std::string::npos);
+    CHECK(error_of(R"({"publish_\nendpoint": "tcp://127.0.0.1:1"})") ==
+          R"(svc.json: publish_\nendpoint: unknown key)");
+    CHECK(error_of(R"({"journal_sync": "none\u0001"})").find(R"(got "none\x01")") !=
+          std::string::npos);
 
     ServiceConfig c;
     c.curve_secret_key_file = "server.secret";
@@ -64,7 +69,8 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     CHECK_THROWS_AS(validate_service_config(same), ConfigError);
 }
 
-TEST_CASE("configuration: flags and file values are checked alike, by the one key table", "[unit][serve]") {
+TEST_CASE("configuration: flags and file values are checked alike, by the one key table",
+          "[unit][serve]") {
     ServiceConfig c;
     const auto key = [](std::string_view name) {
         for (const ConfigKey& k : config_keys()) {
@@ -81,10 +87,13 @@ TEST_CASE("configuration: flags and file values are checked alike, by the one ke
     CHECK(c.curve_publish);
     CHECK_THROWS_WITH(set_config_value(c, key("tick_interval_ms"), "5", "--tick-ms"),
                       "--tick-ms: must be between 10 and 3600000, got 5");
-    CHECK_THROWS_WITH(set_config_value(c, key("tick_interval_ms"), "5s", "--tick-ms"), "--tick-ms: must be a whole number");
-    CHECK_THROWS_WITH(set_config_value(c, key("shard"), "3/3", "--shard"), Catch::StartsWith("--shard: "));
-    CHECK_THROWS_WITH(set_config_value(c, key("log_level"), "loud", "--log-level"),
-                      R"(--log-level: must be one of trace, debug, info, warn, error, off, got "loud")");
+    CHECK_THROWS_WITH(set_config_value(c, key("tick_interval_ms"), "5s", "--tick-ms"),
+                      "--tick-ms: must be a whole number");
+    CHECK_THROWS_WITH(set_config_value(c, key("shard"), "3/3", "--shard"),
+                      Catch::StartsWith("--shard: "));
+    CHECK_THROWS_WITH(
+        set_config_value(c, key("log_level"), "loud", "--log-level"),
+        R"(--log-level: must be one of trace, debug, info, warn, error, off, got "loud")");
 
     // Every key once: names and flags unique, every member of ServiceConfig reachable.
     std::set<std::string_view> names, flags;
@@ -96,9 +105,10 @@ TEST_CASE("configuration: flags and file values are checked alike, by the one ke
 }
 
 TEST_CASE("configuration: the README's table of keys is the key table", "[unit][serve]") {
-    const std::string readme =
-        liveprob::protocol::read_whole_file(liveprob::test::source_dir() / "adapters/service/README.md");
-    const std::string begin = "<!-- config-keys:begin (made from config_keys(); a test checks it) -->\n";
+    const std::string readme = liveprob::protocol::read_whole_file(liveprob::test::source_dir() /
+                                                                   "adapters/service/README.md");
+    const std::string begin =
+        "<!-- config-keys:begin (made from config_keys(); a test checks it) -->\n";
     const std::string end = "<!-- config-keys:end -->";
     const auto from = readme.find(begin);
     const auto to = readme.find(end);
@@ -110,10 +120,12 @@ TEST_CASE("configuration: the README's table of keys is the key table", "[unit][
     CHECK(table == config_key_table_markdown());
 }
 
-TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, nothing earlier lost", "[unit][serve]") {
+TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, nothing earlier lost",
+          "[unit][serve]") {
     const auto dir = liveprob::test::scratch_dir("journal-tail");
     const std::string path = (dir / "journal.lpf").string();
-    const std::vector<std::vector<std::uint8_t>> frames = {{1, 2, 3}, {4}, std::vector<std::uint8_t>(1000, 7)};
+    const std::vector<std::vector<std::uint8_t>> frames = {
+        {1, 2, 3}, {4}, std::vector<std::uint8_t>(1000, 7)};
     {
         JournalWriter writer(path, JournalSync::every_message, std::chrono::milliseconds(10));
         for (const auto& f : frames) writer.append(f);
@@ -128,7 +140,8 @@ TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, not
     }
     std::vector<std::vector<std::uint8_t>> seen;
     const auto report = replay_journal(
-        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); }, true);
+        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); },
+        true);
     CHECK(seen == frames);
     CHECK(report.frames == 3);
     CHECK(report.torn_bytes == 6);
@@ -142,11 +155,13 @@ TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, not
     }
     seen.clear();
     const auto again = replay_journal(
-        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); }, true);
+        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); },
+        true);
     CHECK(again.frames == 4);
     CHECK(again.torn_bytes == 0);
     CHECK(seen.back() == std::vector<std::uint8_t>{5, 5});
 
     // A missing journal is an empty one.
-    CHECK(replay_journal((dir / "none.lpf").string(), [](std::span<const std::uint8_t>) {}, true).frames == 0);
+    CHECK(replay_journal((dir / "none.lpf").string(), [](std::span<const std::uint8_t>) {}, true)
+              .frames == 0);
 }

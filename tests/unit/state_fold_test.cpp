@@ -87,7 +87,8 @@ TEST_CASE("a league match folds to its score, cards and status", "[fold]") {
     CHECK(f.state.clock == at_minute(Period::second_half, 95));
 }
 
-TEST_CASE("corrections: a goal cancelled on review, a card rescinded, an absolute score", "[fold]") {
+TEST_CASE("corrections: a goal cancelled on review, a card rescinded, an absolute score",
+          "[fold]") {
     Folding f(league());
     f.ok(f.feed.start(Period::first_half, 0));
     f.ok(f.feed.goal(Side::home, Period::first_half, 10));
@@ -134,19 +135,24 @@ TEST_CASE("every reason a message is wrong in itself", "[fold][reject]") {
 
     FeedBuilder stranger(kMatch + 1, 100);
     f.refused(stranger.next(Goal{}, now), RejectReason::other_match);
-    f.refused(f.feed.next(Goal{static_cast<Side>(2), false, false}, now), RejectReason::unknown_side);
+    f.refused(f.feed.next(Goal{static_cast<Side>(2), false, false}, now),
+              RejectReason::unknown_side);
     f.refused(f.feed.next(RedCard{static_cast<Side>(9), false}, now), RejectReason::unknown_side);
-    f.refused(f.feed.next(ShootoutKick{static_cast<Side>(3), true}, now), RejectReason::unknown_side);
+    f.refused(f.feed.next(ShootoutKick{static_cast<Side>(3), true}, now),
+              RejectReason::unknown_side);
     f.refused(f.feed.next(ShotXg{static_cast<Side>(3), 0.1}, now), RejectReason::unknown_side);
     f.refused(f.feed.next(PeriodStart{static_cast<Period>(17)}, now), RejectReason::unknown_period);
     f.refused(f.feed.next(PeriodEnd{Period::finished}, now), RejectReason::unknown_period);
-    f.refused(f.feed.next(StoppageAnnounced{Period::shootout, 3}, now), RejectReason::unknown_period);
-    f.refused(f.feed.next(Goal{}, MatchClock{static_cast<Period>(40), 0}), RejectReason::unknown_period);
+    f.refused(f.feed.next(StoppageAnnounced{Period::shootout, 3}, now),
+              RejectReason::unknown_period);
+    f.refused(f.feed.next(Goal{}, MatchClock{static_cast<Period>(40), 0}),
+              RejectReason::unknown_period);
     for (double xg : {-0.01, 1.01, std::numeric_limits<double>::quiet_NaN(),
                       std::numeric_limits<double>::infinity()}) {
         f.refused(f.feed.next(ShotXg{Side::home, xg}, now), RejectReason::bad_xg);
     }
-    f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 31}, now), RejectReason::implausible_stoppage);
+    f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 31}, now),
+              RejectReason::implausible_stoppage);
     f.refused(f.feed.next(ScoreCorrection{100, 0}, now), RejectReason::implausible_score);
     f.refused(f.feed.next(MatchSetup{}, now), RejectReason::setup_in_stream);
     // Nothing above changed the state.
@@ -165,7 +171,8 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         f.refused(f.feed.next(ScoreCorrection{1, 0}, pre), RejectReason::before_kickoff);
         f.refused(f.feed.next(FinalWhistle{}, pre), RejectReason::before_kickoff);
         f.refused(f.feed.next(PeriodEnd{Period::first_half}, pre), RejectReason::before_kickoff);
-        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2}, pre), RejectReason::before_kickoff);
+        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2}, pre),
+                  RejectReason::before_kickoff);
         f.refused(f.feed.next(GoalCancelled{1}, pre), RejectReason::before_kickoff);
         f.refused(f.feed.next(CardRescinded{1}, pre), RejectReason::before_kickoff);
         f.refused(f.feed.kick(Side::home, true), RejectReason::kick_outside_shootout);
@@ -177,18 +184,24 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         f.ok(f.feed.start(Period::first_half, 0));
         f.refused(f.feed.start(Period::first_half, 1), RejectReason::period_out_of_order);
         f.refused(f.feed.end(Period::second_half, 90), RejectReason::period_out_of_order);
-        f.refused(f.feed.goal(Side::home, Period::second_half, 50), RejectReason::period_not_started);
-        f.refused(f.feed.next(StoppageAnnounced{Period::second_half, 4}, at_minute(Period::first_half, 44)),
+        f.refused(f.feed.goal(Side::home, Period::second_half, 50),
+                  RejectReason::period_not_started);
+        f.refused(f.feed.next(StoppageAnnounced{Period::second_half, 4},
+                              at_minute(Period::first_half, 44)),
                   RejectReason::period_not_started);
         f.refused(f.feed.next(ClockSync{true}, at_minute(Period::second_half, 46)),
                   RejectReason::period_not_started);
         f.ok(f.feed.end(Period::first_half, 46));
-        f.refused(f.feed.goal(Side::home, Period::first_half, 45.5), RejectReason::period_already_over);
-        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2}, at_minute(Period::first_half, 46)),
+        f.refused(f.feed.goal(Side::home, Period::first_half, 45.5),
+                  RejectReason::period_already_over);
+        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2},
+                              at_minute(Period::first_half, 46)),
                   RejectReason::period_already_over);
         f.ok(f.feed.start(Period::second_half, 45));
-        f.refused(f.feed.goal(Side::away, Period::first_half, 44), RejectReason::period_already_over);
-        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2}, at_minute(Period::second_half, 46)),
+        f.refused(f.feed.goal(Side::away, Period::first_half, 44),
+                  RejectReason::period_already_over);
+        f.refused(f.feed.next(StoppageAnnounced{Period::first_half, 2},
+                              at_minute(Period::second_half, 46)),
                   RejectReason::period_already_over);
         f.ok(f.feed.end(Period::second_half, 93));
         // A league plays no extra time and no shoot-out.
@@ -200,8 +213,10 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         f.ok(f.feed.start(Period::first_half, 0));
         f.ok(f.feed.end(Period::first_half, 45));
         f.ok(f.feed.start(Period::second_half, 45));
-        f.refused(f.feed.goal(Side::home, Period::second_half, 30), RejectReason::clock_outside_period);
-        f.refused(f.feed.goal(Side::home, Period::second_half, 121), RejectReason::clock_outside_period);
+        f.refused(f.feed.goal(Side::home, Period::second_half, 30),
+                  RejectReason::clock_outside_period);
+        f.refused(f.feed.goal(Side::home, Period::second_half, 121),
+                  RejectReason::clock_outside_period);
         f.refused(f.feed.next(ClockSync{true}, at_minute(Period::second_half, 10)),
                   RejectReason::clock_outside_period);
     }
@@ -209,12 +224,15 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         Folding f(league());
         f.ok(f.feed.start(Period::first_half, 0));
         f.ok(f.feed.goal(Side::home, Period::first_half, 5));
-        f.refused(f.feed.next(GoalCancelled{999}, at_minute(Period::first_half, 6)), RejectReason::unknown_goal);
+        f.refused(f.feed.next(GoalCancelled{999}, at_minute(Period::first_half, 6)),
+                  RejectReason::unknown_goal);
         // A card's sequence number does not name a goal, nor the reverse.
         f.ok(f.feed.red(Side::home, Period::first_half, 7));
         const std::uint64_t card = f.feed.last_seq();
-        f.refused(f.feed.next(GoalCancelled{card}, at_minute(Period::first_half, 8)), RejectReason::unknown_goal);
-        f.refused(f.feed.next(CardRescinded{card - 1}, at_minute(Period::first_half, 8)), RejectReason::unknown_card);
+        f.refused(f.feed.next(GoalCancelled{card}, at_minute(Period::first_half, 8)),
+                  RejectReason::unknown_goal);
+        f.refused(f.feed.next(CardRescinded{card - 1}, at_minute(Period::first_half, 8)),
+                  RejectReason::unknown_card);
     }
     SECTION("the shoot-out: outside it, out of turn, after it is decided, goals in it") {
         Folding f(knockout());
@@ -230,7 +248,8 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         f.ok(f.feed.start(Period::shootout, 120));
         CHECK(f.state.status == MatchStatus::shootout);
         f.refused(f.feed.goal(Side::home, Period::shootout, 120), RejectReason::goal_in_shootout);
-        f.refused(f.feed.shot(Side::home, 0.76, Period::shootout, 120), RejectReason::period_not_running);
+        f.refused(f.feed.shot(Side::home, 0.76, Period::shootout, 120),
+                  RejectReason::period_not_running);
         f.ok(f.feed.kick(Side::away, true));  // away kicks first
         f.refused(f.feed.kick(Side::away, true), RejectReason::kick_out_of_turn);
         f.refused(f.feed.end(Period::shootout, 120), RejectReason::period_out_of_order);
@@ -255,7 +274,8 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
         f.ok(f.feed.start(Period::second_half, 45));
         f.refused(f.feed.whistle(Period::second_half, 80), RejectReason::final_whistle_too_early);
         f.ok(f.feed.whistle(Period::second_half, 92));
-        f.refused(f.feed.goal(Side::home, Period::second_half, 93), RejectReason::after_final_whistle);
+        f.refused(f.feed.goal(Side::home, Period::second_half, 93),
+                  RejectReason::after_final_whistle);
         f.refused(f.feed.start(Period::extra_first, 90), RejectReason::after_final_whistle);
         f.refused(f.feed.next(ScoreCorrection{1, 1}, at_minute(Period::second_half, 95)),
                   RejectReason::after_final_whistle);
@@ -274,7 +294,8 @@ TEST_CASE("every reason a message is impossible where it stands", "[fold][reject
 TEST_CASE("a knock-out level after regulation goes on, one side ahead may end", "[fold]") {
     Folding level(knockout());
     level.play_regulation_level();
-    level.refused(level.feed.whistle(Period::second_half, 94), RejectReason::final_whistle_too_early);
+    level.refused(level.feed.whistle(Period::second_half, 94),
+                  RejectReason::final_whistle_too_early);
 
     Folding ahead(knockout());
     ahead.ok(ahead.feed.start(Period::first_half, 0));
@@ -321,7 +342,8 @@ TEST_CASE("stoppage, xG and the clock", "[fold]") {
 // stoppage carries exposure 1 (timing.hpp), which makes a check that does not use the fold's
 // own arithmetic: with no state effects and the halves ending at their expected stoppage, E_X
 // is exactly λ_X.
-TEST_CASE("the strength evidence integrates the prior rate over the states passed through", "[fold][exposure]") {
+TEST_CASE("the strength evidence integrates the prior rate over the states passed through",
+          "[fold][exposure]") {
     const ModelParams plain = ModelParams::plain_poisson();
     const double first_end = 45.0 + plain.timing.expected_stoppage_first;
     const double second_end = 90.0 + plain.timing.expected_stoppage_second;
@@ -364,7 +386,8 @@ TEST_CASE("the strength evidence integrates the prior rate over the states passe
 
 TEST_CASE("reject reason names are stable and distinct", "[fold][reject]") {
     std::set<std::string> names;
-    for (int i = 0; i < kRejectReasonCount; ++i) names.insert(reject_reason_name(static_cast<RejectReason>(i)));
+    for (int i = 0; i < kRejectReasonCount; ++i)
+        names.insert(reject_reason_name(static_cast<RejectReason>(i)));
     CHECK(names.size() == static_cast<std::size_t>(kRejectReasonCount));
     CHECK(names.count("unknown") == 0);
     CHECK(std::string(reject_reason_name(RejectReason::before_kickoff)) == "before_kickoff");

@@ -12,8 +12,9 @@ TEST_CASE("edit distance is the Levenshtein distance, ignoring case") {
 }
 
 TEST_CASE("names resolve exactly or through an alias, and unknown names list the closest") {
-    const fit::TeamNameResolver names({"Harbour Town", "Hill Rovers", "Riverside Athletic", "Harbour United"},
-                                      {{"Hbr Town", "Harbour Town"}});
+    const fit::TeamNameResolver names(
+        {"Harbour Town", "Hill Rovers", "Riverside Athletic", "Harbour United"},
+        {{"Hbr Town", "Harbour Town"}});
     CHECK(names.resolve("Hill Rovers") == "Hill Rovers");
     CHECK(names.resolve("Hbr Town") == "Harbour Town");
     try {

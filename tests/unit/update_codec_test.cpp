@@ -9,9 +9,7 @@
 #include "liveprob/protocol/update_codec.hpp"
 #include "sample_messages.hpp"
 
-
 using namespace liveprob;
-
 
 using namespace liveprob::core;
 using namespace liveprob::protocol;
@@ -116,18 +114,21 @@ TEST_CASE("snapshot requests and replies round-trip", "[snapshot_codec]") {
     CHECK(refused.value->updates.empty());
 }
 
-TEST_CASE("a snapshot reply with a bad nested update is refused with its index", "[snapshot_codec]") {
+TEST_CASE("a snapshot reply with a bad nested update is refused with its index",
+          "[snapshot_codec]") {
     SnapshotReplyContents reply;
     reply.updates.push_back({kMeta, test::sample_outputs()});
     reply.updates.push_back({kMeta, test::sample_outputs()});
     reply.updates[1].outputs.tail_mass = -0.5;
     const auto decoded = decode_snapshot_reply(encode_snapshot_reply(reply));
     CHECK(decoded.error == DecodeError::bad_value);
-    CHECK(decoded.detail == "bad_value: update 1: field 'tail_mass': must be a probability, got -0.5");
+    CHECK(decoded.detail ==
+          "bad_value: update 1: field 'tail_mass': must be a probability, got -0.5");
 }
 
 TEST_CASE("counters round-trip in order", "[counters_codec]") {
-    const CounterSet counters{1'790'000'000'000'000, {{"inbound_accepted", 1200}, {"inbound_malformed", 3}, {"late", 0}}};
+    const CounterSet counters{1'790'000'000'000'000,
+                              {{"inbound_accepted", 1200}, {"inbound_malformed", 3}, {"late", 0}}};
     const auto decoded = decode_counters(encode_counters(counters));
     REQUIRE(decoded.ok());
     CHECK(*decoded.value == counters);

@@ -5,8 +5,8 @@
 
 #include <cmath>
 
-#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/backtest/walk_forward_priors.hpp"
+#include "liveprob/demo/demo_season.hpp"
 
 using namespace liveprob;
 
@@ -30,7 +30,8 @@ Season demo_results() {
     for (const auto& m : season.league) {
         const auto& setup = std::get<MatchSetup>(m.messages.front().body);
         const int day = static_cast<int>(setup.scheduled_kickoff_us / kDayUs);
-        out.results.push_back({day, setup.home_name, setup.away_name, m.regulation_goals[0], m.regulation_goals[1], false});
+        out.results.push_back({day, setup.home_name, setup.away_name, m.regulation_goals[0],
+                               m.regulation_goals[1], false});
         out.fixtures.push_back({day, setup.home_name, setup.away_name, false});
     }
     return out;
@@ -70,8 +71,9 @@ TEST_CASE("walk-forward priors use only the results before each match's day", "[
     CHECK(moved == 180);
 }
 
-TEST_CASE("walk-forward priors: the same on 1 and 2 threads, chains agree within the fit's tolerance",
-          "[walk-forward][threads]") {
+TEST_CASE(
+    "walk-forward priors: the same on 1 and 2 threads, chains agree within the fit's tolerance",
+    "[walk-forward][threads]") {
     const Season season = demo_results();
     const auto one = walk_forward_priors(season.results, season.fixtures, options(2, 1));
     const auto two = walk_forward_priors(season.results, season.fixtures, options(2, 2));

@@ -31,13 +31,17 @@ fit::RatingsFitOptions decayed() {
 
 // Baseline in the same run: the plain Poisson fit (no decay, no ρ) of the same season.
 void BM_LeagueSeasonPlain(benchmark::State& state) {
-    const auto games = liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    const auto games =
+        liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string())
+            .matches;
     fit::RatingsFitOptions o;
     for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
 }
 
 void BM_LeagueSeasonDecayRho(benchmark::State& state) {
-    const auto games = liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string()).matches;
+    const auto games =
+        liveprob::datasets::read_league_json((open_data() / "leagues/2018-19/es.1.json").string())
+            .matches;
     const auto o = decayed();
     for (auto _ : state) benchmark::DoNotOptimize(fit::fit_ratings(games, o));
     state.counters["matches"] = static_cast<double>(games.size());
@@ -46,7 +50,9 @@ void BM_LeagueSeasonDecayRho(benchmark::State& state) {
 // Every month from January of the benchmark's argument (a year) to December 2015: fit on
 // everything before the month's first day.
 void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
-    const auto games = liveprob::datasets::read_international_results((open_data() / "international/results.csv").string()).matches;
+    const auto games = liveprob::datasets::read_international_results(
+                           (open_data() / "international/results.csv").string())
+                           .matches;
     for (auto _ : state) {
         fit::RatingsFitOptions o;
         o.xi = std::log(2.0) / (2.0 * 365.0);
@@ -74,7 +80,12 @@ void BM_InternationalMonthlyWalkForward(benchmark::State& state) {
 
 BENCHMARK(BM_LeagueSeasonPlain)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_LeagueSeasonDecayRho)->Unit(benchmark::kMillisecond);
-BENCHMARK(BM_InternationalMonthlyWalkForward)->Arg(2013)->Arg(1873)->Unit(benchmark::kSecond)->Iterations(1)
-    ->Repetitions(3)->ReportAggregatesOnly(true);
+BENCHMARK(BM_InternationalMonthlyWalkForward)
+    ->Arg(2013)
+    ->Arg(1873)
+    ->Unit(benchmark::kSecond)
+    ->Iterations(1)
+    ->Repetitions(3)
+    ->ReportAggregatesOnly(true);
 
 BENCHMARK_MAIN();

@@ -10,11 +10,11 @@
 // Environment: LIVEPROB_BIN (default: ../liveprob beside this program), GATEWAY_CLIENTS.
 #include <benchmark/benchmark.h>
 
+#include <fmt/format.h>
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/beast/core.hpp>
 #include <boost/beast/websocket.hpp>
-#include <fmt/format.h>
 
 #include <algorithm>
 #include <chrono>
@@ -39,7 +39,6 @@ namespace websocket = beast::websocket;
 using asio::ip::tcp;
 using namespace std::chrono_literals;
 
-
 std::string read_file(const std::filesystem::path& p) {
     std::ifstream in(p);
     std::ostringstream s;
@@ -49,19 +48,24 @@ std::string read_file(const std::filesystem::path& p) {
 
 std::string liveprob_bin() {
     const char* env = std::getenv("LIVEPROB_BIN");
-    return env ? env : (std::filesystem::canonical("/proc/self/exe").parent_path().parent_path() / "liveprob").string();
+    return env ? env
+               : (std::filesystem::canonical("/proc/self/exe").parent_path().parent_path() /
+                  "liveprob")
+                     .string();
 }
 
 // A liveprob subcommand as its own process, so its CPU and memory are its own; its output goes
 // to <dir>/<name>.log.
-std::unique_ptr<harness::ChildProcess> run_liveprob(const std::filesystem::path& dir, const std::string& name,
-                                             std::vector<std::string> args) {
+std::unique_ptr<harness::ChildProcess> run_liveprob(const std::filesystem::path& dir,
+                                                    const std::string& name,
+                                                    std::vector<std::string> args) {
     args.insert(args.begin(), liveprob_bin());
     return std::make_unique<harness::ChildProcess>(args, dir / (name + ".log"));
 }
 
 void wait_for_file(const std::filesystem::path& p) {
-    for (int i = 0; i < 500 && !(std::filesystem::exists(p) && std::filesystem::file_size(p) > 0); ++i) {
+    for (int i = 0; i < 500 && !(std::filesystem::exists(p) && std::filesystem::file_size(p) > 0);
+         ++i) {
         std::this_thread::sleep_for(20ms);
     }
     if (!std::filesystem::exists(p)) throw std::runtime_error("no " + p.string());
@@ -77,10 +81,12 @@ std::string endpoint_of(const std::filesystem::path& endpoints_file, const std::
 
 // The first round of the invented league: the first ten match streams in name order.
 std::vector<std::filesystem::path> first_round(const std::filesystem::path& dir) {
-    const auto simulate = run_liveprob(dir, "simulate", {"simulate", "--out", (dir / "streams").string(), "--seed", "2031"});
+    const auto simulate = run_liveprob(
+        dir, "simulate", {"simulate", "--out", (dir / "streams").string(), "--seed", "2031"});
     if (simulate->wait(5min) != 0) throw std::runtime_error("liveprob simulate failed");
     std::vector<std::filesystem::path> files;
-    for (const auto& e : std::filesystem::directory_iterator(dir / "streams" / "league")) files.push_back(e.path());
+    for (const auto& e : std::filesystem::directory_iterator(dir / "streams" / "league"))
+        files.push_back(e.path());
     std::sort(files.begin(), files.end());
     files.resize(std::min<std::size_t>(files.size(), 10));
     return files;
@@ -101,9 +107,11 @@ void read_loop(Client& c, std::vector<std::int64_t>& latencies) {
             return;
         }
         const auto received = liveprob::system::wall_clock_us();
-        const std::string_view text(static_cast<const char*>(c.buffer.data().data()), c.buffer.size());
+        const std::string_view text(static_cast<const char*>(c.buffer.data().data()),
+                                    c.buffer.size());
         const auto at = text.find("\"gateway_receive\":");
-        if (at != std::string_view::npos) latencies.push_back(received - std::atoll(text.data() + at + 18));
+        if (at != std::string_view::npos)
+            latencies.push_back(received - std::atoll(text.data() + at + 18));
         c.buffer.consume(c.buffer.size());
         read_loop(c, latencies);
     });
@@ -118,21 +126,27 @@ double percentile(std::vector<std::int64_t>& v, double q) {
 
 // One replayed round through serve and the gateway, N clients watching every match.
 void run_load(benchmark::State& state, bool with_stalled_client) {
-    const int clients = std::getenv("GATEWAY_CLIENTS") ? std::atoi(std::getenv("GATEWAY_CLIENTS")) : 1000;
+    const int clients =
+        std::getenv("GATEWAY_CLIENTS") ? std::atoi(std::getenv("GATEWAY_CLIENTS")) : 1000;
     constexpr int kClientThreads = 2;
-    const auto dir = std::filesystem::temp_directory_path() / fmt::format("liveprob-gateway-load-{}", getpid());
+    const auto dir =
+        std::filesystem::temp_directory_path() / fmt::format("liveprob-gateway-load-{}", getpid());
     std::filesystem::remove_all(dir);
     std::filesystem::create_directories(dir);
     const std::vector<std::filesystem::path> round = first_round(dir);
 
     const auto endpoints = dir / "endpoints";
-    const auto serve = run_liveprob(dir, "serve", {"serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*", "--snapshot",
-                   "tcp://127.0.0.1:*", "--endpoints-file", endpoints.string(), "--tick-ms", "200",
-                   "--log-level", "warn"});
+    const auto serve =
+        run_liveprob(dir, "serve",
+                     {"serve", "--ingest", "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*",
+                      "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file", endpoints.string(),
+                      "--tick-ms", "200", "--log-level", "warn"});
     wait_for_file(endpoints);
     const auto port_file = dir / "port";
-    const auto gateway = run_liveprob(dir, "gateway", {"gateway", "--serve-endpoints", endpoints.string(), "--port", "0", "--port-file",
-                     port_file.string(), "--queue-cap", "64", "--client-send-buffer", "16384"});
+    const auto gateway = run_liveprob(
+        dir, "gateway",
+        {"gateway", "--serve-endpoints", endpoints.string(), "--port", "0", "--port-file",
+         port_file.string(), "--queue-cap", "64", "--client-send-buffer", "16384"});
     wait_for_file(port_file);
     const auto port = static_cast<std::uint16_t>(std::stoi(read_file(port_file)));
 
@@ -146,7 +160,8 @@ void run_load(benchmark::State& state, bool with_stalled_client) {
     for (int i = 0; i < clients; ++i) {
         const auto t = static_cast<std::size_t>(i % kClientThreads);
         auto c = std::make_unique<Client>(*ios[t]);
-        beast::get_lowest_layer(c->ws).connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
+        beast::get_lowest_layer(c->ws).connect(
+            tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
         c->ws.handshake(fmt::format("127.0.0.1:{}", port), "/feed");
         c->ws.write(asio::buffer(std::string(R"({"watch":"all"})")));
         read_loop(*c, latencies[t]);
@@ -174,8 +189,9 @@ void run_load(benchmark::State& state, bool with_stalled_client) {
         const auto start = std::chrono::steady_clock::now();
         std::vector<std::unique_ptr<harness::ChildProcess>> senders;
         for (const auto& file : round) {
-            senders.push_back(run_liveprob(dir, "send-" + file.stem().string(),
-                                    {"send", "--to", ingest, "--speed", "300", "--stamp", file.string()}));
+            senders.push_back(
+                run_liveprob(dir, "send-" + file.stem().string(),
+                             {"send", "--to", ingest, "--speed", "300", "--stamp", file.string()}));
         }
         for (auto& s : senders) s->wait(10min);
         std::this_thread::sleep_for(1s);  // the last frames arrive
@@ -185,10 +201,13 @@ void run_load(benchmark::State& state, bool with_stalled_client) {
     const double cpu = harness::cpu_seconds(gateway->pid()) - cpu_before;
     state.counters["clients"] = clients;
     state.counters["seconds"] = seconds;
-    state.counters["serve_cpu_pct"] = 100.0 * (harness::cpu_seconds(serve->pid()) - serve_cpu_before) / seconds;
+    state.counters["serve_cpu_pct"] =
+        100.0 * (harness::cpu_seconds(serve->pid()) - serve_cpu_before) / seconds;
     state.counters["gw_cpu_pct"] = 100.0 * cpu / seconds;
-    state.counters["gw_rss_MiB"] = static_cast<double>(harness::memory_kib(gateway->pid(), "VmRSS:")) / 1024.0;
-    state.counters["gw_peak_MiB"] = static_cast<double>(harness::memory_kib(gateway->pid(), "VmHWM:")) / 1024.0;
+    state.counters["gw_rss_MiB"] =
+        static_cast<double>(harness::memory_kib(gateway->pid(), "VmRSS:")) / 1024.0;
+    state.counters["gw_peak_MiB"] =
+        static_cast<double>(harness::memory_kib(gateway->pid(), "VmHWM:")) / 1024.0;
     for (auto& io : ios) io->stop();
     for (auto& t : client_threads) t.join();
     std::vector<std::int64_t> all;
@@ -208,5 +227,8 @@ void BM_GatewayRoundWithStalledClient(benchmark::State& state) { run_load(state,
 }  // namespace
 
 BENCHMARK(BM_GatewayRound)->Iterations(1)->UseManualTime()->Unit(benchmark::kSecond);
-BENCHMARK(BM_GatewayRoundWithStalledClient)->Iterations(1)->UseManualTime()->Unit(benchmark::kSecond);
+BENCHMARK(BM_GatewayRoundWithStalledClient)
+    ->Iterations(1)
+    ->UseManualTime()
+    ->Unit(benchmark::kSecond);
 BENCHMARK_MAIN();

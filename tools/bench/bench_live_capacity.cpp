@@ -8,8 +8,8 @@
 #include <chrono>
 #include <vector>
 
-#include "liveprob/service/match_registry.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/service/match_registry.hpp"
 
 namespace {
 
@@ -18,8 +18,8 @@ using namespace liveprob;
 using namespace liveprob::core;
 using SteadyClock = std::chrono::steady_clock;
 
-InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period, std::uint32_t clock_ms,
-                       MessageBody body) {
+InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
+                       std::uint32_t clock_ms, MessageBody body) {
     InboundMessage m;
     m.header = {match_id, seq, 1'800'000'000'000'000, {period, clock_ms}};
     m.body = std::move(body);
@@ -29,7 +29,8 @@ InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
 // N matches in the first half, as a service holds them mid-afternoon: set up, kicked off, a
 // clock sync at 10:00; with `history`, also a goal, a card, and a clock sync every minute up
 // to 30:00 (24 logged messages in all).
-void fill_registry(service::MatchRegistry& registry, std::uint64_t matches, SteadyClock::time_point now, bool history = false) {
+void fill_registry(service::MatchRegistry& registry, std::uint64_t matches,
+                   SteadyClock::time_point now, bool history = false) {
     std::vector<std::uint64_t> touched;
     for (std::uint64_t id = 1; id <= matches; ++id) {
         MatchSetup setup;
@@ -37,14 +38,20 @@ void fill_registry(service::MatchRegistry& registry, std::uint64_t matches, Stea
         setup.away_name = "Away side";
         setup.prior = PriorMeans{1.2 + 0.001 * static_cast<double>(id % 500), 1.1};
         registry.handle(message(id, 1, Period::pre_match, 0, setup), 0, now, touched);
-        registry.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0, now, touched);
-        registry.handle(message(id, 3, Period::first_half, 600'000, ClockSync{true}), 0, now, touched);
+        registry.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0,
+                        now, touched);
+        registry.handle(message(id, 3, Period::first_half, 600'000, ClockSync{true}), 0, now,
+                        touched);
         if (!history) continue;
         std::uint64_t seq = 4;
-        registry.handle(message(id, seq++, Period::first_half, 650'000, Goal{Side::home}), 0, now, touched);
-        registry.handle(message(id, seq++, Period::first_half, 700'000, RedCard{Side::away}), 0, now, touched);
+        registry.handle(message(id, seq++, Period::first_half, 650'000, Goal{Side::home}), 0, now,
+                        touched);
+        registry.handle(message(id, seq++, Period::first_half, 700'000, RedCard{Side::away}), 0,
+                        now, touched);
         for (std::uint32_t minute = 11; minute <= 30; ++minute) {
-            registry.handle(message(id, seq++, Period::first_half, minute * 60'000, ClockSync{true}), 0, now, touched);
+            registry.handle(
+                message(id, seq++, Period::first_half, minute * 60'000, ClockSync{true}), 0, now,
+                touched);
         }
     }
 }
@@ -70,13 +77,19 @@ void BM_TickPass(benchmark::State& state) {
     state.counters["matches"] = static_cast<double>(matches);
     // Seconds per pass = share of one core at one pass per second.
     state.counters["core_share_at_1Hz"] =
-        benchmark::Counter(static_cast<double>(state.iterations()), benchmark::Counter::kIsRate |
-                                                                        benchmark::Counter::kInvert);
-    state.counters["us_per_match"] = benchmark::Counter(
-        static_cast<double>(state.iterations()) * static_cast<double>(matches),
-        benchmark::Counter::kIsRate | benchmark::Counter::kInvert, benchmark::Counter::OneK::kIs1000);
+        benchmark::Counter(static_cast<double>(state.iterations()),
+                           benchmark::Counter::kIsRate | benchmark::Counter::kInvert);
+    state.counters["us_per_match"] =
+        benchmark::Counter(static_cast<double>(state.iterations()) * static_cast<double>(matches),
+                           benchmark::Counter::kIsRate | benchmark::Counter::kInvert,
+                           benchmark::Counter::OneK::kIs1000);
 }
-BENCHMARK(BM_TickPass)->Arg(1000)->Arg(5000)->Arg(20000)->Unit(benchmark::kMillisecond)->MinTime(2.0);
+BENCHMARK(BM_TickPass)
+    ->Arg(1000)
+    ->Arg(5000)
+    ->Arg(20000)
+    ->Unit(benchmark::kMillisecond)
+    ->MinTime(2.0);
 
 // Heap per live match: the allocator's in-use bytes before and after creating N matches
 // (argument 2: 0 = just kicked off, 1 = with 24 logged messages) and ticking them once, so
@@ -96,14 +109,18 @@ void BM_MemoryPerMatch(benchmark::State& state) {
                 registry.advance(m, now + std::chrono::seconds(1));
                 m.match.price_into(outputs);
             }
-            per_match = static_cast<double>(mallinfo2().uordblks - before) / static_cast<double>(matches);
+            per_match =
+                static_cast<double>(mallinfo2().uordblks - before) / static_cast<double>(matches);
         }
     }
     state.counters["bytes_per_match"] = per_match;
 }
 BENCHMARK(BM_MemoryPerMatch)
-    ->Args({1000, 0})->Args({20000, 0})->Args({20000, 1})
-    ->Iterations(1)->Unit(benchmark::kMillisecond);
+    ->Args({1000, 0})
+    ->Args({20000, 0})
+    ->Args({20000, 1})
+    ->Iterations(1)
+    ->Unit(benchmark::kMillisecond);
 
 }  // namespace
 

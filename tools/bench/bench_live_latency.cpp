@@ -34,12 +34,13 @@ constexpr auto kWarmup = 1s;
 constexpr auto kMeasure = 4s;
 
 std::int64_t now_ns() {
-    return std::chrono::duration_cast<std::chrono::nanoseconds>(std::chrono::steady_clock::now().time_since_epoch())
+    return std::chrono::duration_cast<std::chrono::nanoseconds>(
+               std::chrono::steady_clock::now().time_since_epoch())
         .count();
 }
 
-InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period, std::uint32_t clock_ms,
-                       MessageBody body) {
+InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
+                       std::uint32_t clock_ms, MessageBody body) {
     InboundMessage m;
     m.header = {match_id, seq, 1'800'000'000'000'000, {period, clock_ms}};
     m.body = std::move(body);
@@ -55,13 +56,15 @@ std::vector<std::vector<std::uint8_t>> feed(std::size_t events) {
         setup.away_name = "Away side";
         setup.prior = PriorMeans{1.4, 1.1};
         out.push_back(protocol::encode_feed_message(message(id, 1, Period::pre_match, 0, setup)));
-        out.push_back(protocol::encode_feed_message(message(id, 2, Period::first_half, 0, PeriodStart{})));
+        out.push_back(
+            protocol::encode_feed_message(message(id, 2, Period::first_half, 0, PeriodStart{})));
     }
     for (std::size_t i = 0; i < events; ++i) {
         const std::uint64_t id = 1 + i % kMatches;
         const std::uint64_t round = i / kMatches;
         out.push_back(protocol::encode_feed_message(
-            message(id, 3 + round, Period::first_half, static_cast<std::uint32_t>(1000 + 100 * round), ClockSync{})));
+            message(id, 3 + round, Period::first_half,
+                    static_cast<std::uint32_t>(1000 + 100 * round), ClockSync{})));
     }
     return out;
 }
@@ -94,8 +97,8 @@ void run_relay(const std::string& pull_at, const std::string& pub_at) {
 }
 
 // The feed process: sends every buffer on schedule and records when into `sent_ns`.
-void run_feed(const std::string& push_to, const std::vector<std::vector<std::uint8_t>>& buffers, double rate,
-              std::int64_t* sent_ns) {
+void run_feed(const std::string& push_to, const std::vector<std::vector<std::uint8_t>>& buffers,
+              double rate, std::int64_t* sent_ns) {
     zmq::context_t context(1);
     zmq::socket_t push(context, zmq::socket_type::push);
     push.set(zmq::sockopt::sndhwm, 1'000'000);
@@ -104,14 +107,17 @@ void run_feed(const std::string& push_to, const std::vector<std::vector<std::uin
     std::this_thread::sleep_for(200ms);
     const auto start = std::chrono::steady_clock::now();
     for (std::size_t i = 0; i < buffers.size(); ++i) {
-        std::this_thread::sleep_until(start + std::chrono::nanoseconds(static_cast<std::int64_t>(1e9 * static_cast<double>(i) / rate)));
+        std::this_thread::sleep_until(start + std::chrono::nanoseconds(static_cast<std::int64_t>(
+                                                  1e9 * static_cast<double>(i) / rate)));
         sent_ns[i] = now_ns();
         push.send(zmq::buffer(buffers[i]), zmq::send_flags::none);
     }
 }
 
 std::string liveprob_program() {
-    return (std::filesystem::read_symlink("/proc/self/exe").parent_path().parent_path() / "liveprob").string();
+    return (std::filesystem::read_symlink("/proc/self/exe").parent_path().parent_path() /
+            "liveprob")
+        .string();
 }
 
 std::string free_endpoint(zmq::context_t& context) {
@@ -124,18 +130,23 @@ std::string free_endpoint(zmq::context_t& context) {
 double percentile(std::vector<double>& v, double q) {
     if (v.empty()) return 0;
     std::sort(v.begin(), v.end());
-    return v[std::min(v.size() - 1, static_cast<std::size_t>(q * static_cast<double>(v.size() - 1) + 0.5))];
+    return v[std::min(v.size() - 1,
+                      static_cast<std::size_t>(q * static_cast<double>(v.size() - 1) + 0.5))];
 }
 
 // relay = true: the bare relay; false: liveprob serve.
 void BM_EventToSubscriber(benchmark::State& state, bool relay) {
     const double rate = static_cast<double>(state.range(0));
-    const auto events = static_cast<std::size_t>(rate * std::chrono::duration<double>(kWarmup + kMeasure).count());
+    const auto events =
+        static_cast<std::size_t>(rate * std::chrono::duration<double>(kWarmup + kMeasure).count());
     const auto buffers = feed(events);
-    const std::size_t first_measured = 2 * kMatches + static_cast<std::size_t>(rate * std::chrono::duration<double>(kWarmup).count());
+    const std::size_t first_measured =
+        2 * kMatches +
+        static_cast<std::size_t>(rate * std::chrono::duration<double>(kWarmup).count());
 
-    auto* sent_ns = static_cast<std::int64_t*>(
-        mmap(nullptr, buffers.size() * sizeof(std::int64_t), PROT_READ | PROT_WRITE, MAP_SHARED | MAP_ANONYMOUS, -1, 0));
+    auto* sent_ns =
+        static_cast<std::int64_t*>(mmap(nullptr, buffers.size() * sizeof(std::int64_t),
+                                        PROT_READ | PROT_WRITE, MAP_SHARED | MAP_ANONYMOUS, -1, 0));
     for (auto _ : state) {
         std::vector<double> latency_us;
         {
@@ -151,9 +162,9 @@ void BM_EventToSubscriber(benchmark::State& state, bool relay) {
                     run_relay(ingest, publish);
                 } else {
                     const std::string program = liveprob_program();
-                    execl(program.c_str(), program.c_str(), "serve", "--ingest", ingest.c_str(), "--publish",
-                          publish.c_str(), "--snapshot", snapshot.c_str(), "--tick-ms", "600000", "--log-level",
-                          "warn", static_cast<char*>(nullptr));
+                    execl(program.c_str(), program.c_str(), "serve", "--ingest", ingest.c_str(),
+                          "--publish", publish.c_str(), "--snapshot", snapshot.c_str(), "--tick-ms",
+                          "600000", "--log-level", "warn", static_cast<char*>(nullptr));
                 }
                 _exit(127);
             }
@@ -215,8 +226,10 @@ void BM_EventToSubscriber(benchmark::State& state, bool relay) {
 
 void BM_Relay(benchmark::State& state) { BM_EventToSubscriber(state, true); }
 void BM_Serve(benchmark::State& state) { BM_EventToSubscriber(state, false); }
-BENCHMARK(BM_Relay)->Arg(1000)->Arg(10000)->Iterations(1)->UseManualTime()->Unit(benchmark::kSecond);
-BENCHMARK(BM_Serve)->Arg(1000)->Arg(10000)->Iterations(1)->UseManualTime()->Unit(benchmark::kSecond);
+BENCHMARK(BM_Relay)->Arg(1000)->Arg(10000)->Iterations(1)->UseManualTime()->Unit(
+    benchmark::kSecond);
+BENCHMARK(BM_Serve)->Arg(1000)->Arg(10000)->Iterations(1)->UseManualTime()->Unit(
+    benchmark::kSecond);
 
 }  // namespace
 

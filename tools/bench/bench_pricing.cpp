@@ -1,9 +1,10 @@
 // One pricing update: the plain Poisson path (κ = ∞, no state effects) against the full model
 // (score-state effects, a red card, Gamma strength mixture, knock-out with extra time and
-// shoot-out; the argument is the number of quadrature nodes, 5 being the default). Each iteration moves the clock on by one second, as the runtime's timer does.
-// Allocations are counted by a replaced global operator new and reported per update.
-// The replaced operator new below hands out malloc() memory and operator delete frees it; at
-// -O3 GCC inlines both into the benchmark registrations and mistakes the pair for a mismatch.
+// shoot-out; the argument is the number of quadrature nodes, 5 being the default). Each iteration
+// moves the clock on by one second, as the runtime's timer does. Allocations are counted by a
+// replaced global operator new and reported per update. The replaced operator new below hands out
+// malloc() memory and operator delete frees it; at -O3 GCC inlines both into the benchmark
+// registrations and mistakes the pair for a mismatch.
 #pragma GCC diagnostic ignored "-Wmismatched-new-delete"
 
 #include <benchmark/benchmark.h>
@@ -59,10 +60,13 @@ void run(benchmark::State& state, const ModelParams& params, PricingState st) {
         benchmark::DoNotOptimize(out);
     }
     state.counters["allocs_per_update"] =
-        benchmark::Counter(static_cast<double>(g_allocations.load() - before) / static_cast<double>(state.iterations()));
+        benchmark::Counter(static_cast<double>(g_allocations.load() - before) /
+                           static_cast<double>(state.iterations()));
 }
 
-void plain_poisson(benchmark::State& state) { run(state, ModelParams::plain_poisson(), base_state()); }
+void plain_poisson(benchmark::State& state) {
+    run(state, ModelParams::plain_poisson(), base_state());
+}
 
 void full_model(benchmark::State& state) {
     ModelParams params;

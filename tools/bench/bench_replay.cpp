@@ -14,12 +14,12 @@
 #include <filesystem>
 #include <string>
 
+#include "liveprob/backtest/backtest.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/results_readers.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
-#include "liveprob/fit/dixon_coles.hpp"
-#include "liveprob/backtest/backtest.hpp"
 #include "liveprob/demo/demo_season.hpp"
+#include "liveprob/fit/dixon_coles.hpp"
 
 namespace {
 
@@ -51,9 +51,11 @@ const std::vector<backtest::MatchMessages>& international_sample() {
             const auto& t = read.matches[i];
             const auto* h = ratings.find(t.home);
             const auto* a = ratings.find(t.away);
-            const auto g = fit::expected_goals(ratings, h ? *h : average, a ? *a : average, t.neutral);
-            out.push_back(datasets::feed_from_timeline(t, 10'000'000 + t.origin_number,
-                                                       PriorMeans{std::min(g.home, 10.0), std::min(g.away, 10.0)}));
+            const auto g =
+                fit::expected_goals(ratings, h ? *h : average, a ? *a : average, t.neutral);
+            out.push_back(datasets::feed_from_timeline(
+                t, 10'000'000 + t.origin_number,
+                PriorMeans{std::min(g.home, 10.0), std::min(g.away, 10.0)}));
         }
         return out;
     }();
@@ -75,7 +77,9 @@ const std::vector<backtest::MatchMessages>& demo_season() {
 double process_cpu_seconds() {
     rusage usage{};
     ::getrusage(RUSAGE_SELF, &usage);
-    auto seconds = [](const timeval& t) { return static_cast<double>(t.tv_sec) + 1e-6 * static_cast<double>(t.tv_usec); };
+    auto seconds = [](const timeval& t) {
+        return static_cast<double>(t.tv_sec) + 1e-6 * static_cast<double>(t.tv_usec);
+    };
     return seconds(usage.ru_utime) + seconds(usage.ru_stime);
 }
 
@@ -105,12 +109,14 @@ void replay_streams(benchmark::State& state, const std::vector<backtest::MatchMe
     state.counters["evaluations_per_match"] = static_cast<double>(evaluations) / n;
     state.counters["messages_per_match"] = static_cast<double>(messages) / n;
     state.counters["matches_per_cpu_s"] = n * static_cast<double>(state.iterations()) / cpu;
-    state.counters["matches_per_s_per_thread"] =
-        benchmark::Counter(n * static_cast<double>(state.iterations()) / static_cast<double>(state.range(1)),
-                           benchmark::Counter::kIsRate);
+    state.counters["matches_per_s_per_thread"] = benchmark::Counter(
+        n * static_cast<double>(state.iterations()) / static_cast<double>(state.range(1)),
+        benchmark::Counter::kIsRate);
 }
 
-void BM_ReplayInternational(benchmark::State& state) { replay_streams(state, international_sample()); }
+void BM_ReplayInternational(benchmark::State& state) {
+    replay_streams(state, international_sample());
+}
 void BM_ReplayDemoSeason(benchmark::State& state) { replay_streams(state, demo_season()); }
 
 void arguments(benchmark::internal::Benchmark* b) {

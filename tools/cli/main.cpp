@@ -19,7 +19,8 @@ int main(int argc, char** argv) {
     using namespace liveprob::cli;
     CLI::App app{"liveprob: live football win/draw/loss probabilities (estimates, not advice)",
                  "liveprob"};
-    app.set_version_flag("--version", std::string("liveprob ") + liveprob::system::version_string());
+    app.set_version_flag("--version",
+                         std::string("liveprob ") + liveprob::system::version_string());
     app.require_subcommand(1);
     app.fallthrough(false);
 

@@ -9,15 +9,15 @@
 namespace liveprob::cli {
 
 ProgressBar::ProgressBar(std::string label, std::string unit, bool quiet)
-    : label_(std::move(label)), unit_(std::move(unit)), drawing_(!quiet && ::isatty(STDERR_FILENO) == 1),
-      start_(std::chrono::steady_clock::now()) {}
+    : label_(std::move(label)), unit_(std::move(unit)),
+      drawing_(!quiet && ::isatty(STDERR_FILENO) == 1), start_(std::chrono::steady_clock::now()) {}
 
 ProgressBar::~ProgressBar() {
     if (open_line_) std::fputs("\n", stderr);
 }
 
-std::string ProgressBar::render(const std::string& label, const std::string& unit, std::size_t done, std::size_t total,
-                                double seconds) {
+std::string ProgressBar::render(const std::string& label, const std::string& unit, std::size_t done,
+                                std::size_t total, double seconds) {
     constexpr std::size_t width = 24;
     const std::size_t filled = total ? width * std::min(done, total) / total : width;
     const double rate = seconds > 0 ? static_cast<double>(done) / seconds : 0.0;

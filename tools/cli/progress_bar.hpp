@@ -23,8 +23,8 @@ public:
     void update(std::size_t done, std::size_t total);
 
     // The line as it is drawn (exposed for tests and for callers that log it).
-    static std::string render(const std::string& label, const std::string& unit, std::size_t done, std::size_t total,
-                              double seconds);
+    static std::string render(const std::string& label, const std::string& unit, std::size_t done,
+                              std::size_t total, double seconds);
 
 private:
     std::string label_, unit_;

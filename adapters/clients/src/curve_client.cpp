@@ -4,11 +4,13 @@
 
 namespace liveprob::clients {
 
-CurveClientKeys load_curve_client_keys(const std::string& server_public_file, const std::string& client_secret_file) {
+CurveClientKeys load_curve_client_keys(const std::string& server_public_file,
+                                       const std::string& client_secret_file) {
     CurveClientKeys keys;
     if (server_public_file.empty()) return keys;
     if (client_secret_file.empty()) {
-        throw transport::KeyFileError("a CURVE client needs its own secret key file as well as the server's public key");
+        throw transport::KeyFileError(
+            "a CURVE client needs its own secret key file as well as the server's public key");
     }
     keys.server_public_z85 = transport::read_key_file(server_public_file);
     keys.client_secret_z85 = transport::read_key_file(client_secret_file);

@@ -26,13 +26,17 @@ std::chrono::steady_clock::time_point FeedPacer::due(const core::InboundMessage&
             break;
         case Mode::match_clock:
             // Within a period only: the breaks between periods are not waited for.
-            if (clock.period == previous_clock_.period && clock.clock_ms > previous_clock_.clock_ms) {
+            if (clock.period == previous_clock_.period &&
+                clock.clock_ms > previous_clock_.clock_ms) {
                 due_ += scaled(1000.0 * (clock.clock_ms - previous_clock_.clock_ms), value_);
             }
             break;
         case Mode::source_time:
             if (message.header.source_time_us > first_source_us_) {
-                due_ = std::max(due_, start_ + scaled(static_cast<double>(message.header.source_time_us - first_source_us_), value_));
+                due_ = std::max(due_,
+                                start_ + scaled(static_cast<double>(message.header.source_time_us -
+                                                                    first_source_us_),
+                                                value_));
             }
             break;
     }

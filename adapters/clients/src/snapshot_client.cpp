@@ -6,8 +6,10 @@
 
 namespace liveprob::clients {
 
-protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context, const std::string& endpoint,
-                                                 std::uint64_t match_id, std::chrono::milliseconds timeout,
+protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context,
+                                                 const std::string& endpoint,
+                                                 std::uint64_t match_id,
+                                                 std::chrono::milliseconds timeout,
                                                  const CurveClientKeys& keys) {
     zmq::socket_t socket(context, zmq::socket_type::dealer);
     socket.set(zmq::sockopt::linger, 0);
@@ -18,10 +20,13 @@ protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context, const 
     socket.send(zmq::buffer(request), zmq::send_flags::none);
     zmq::message_t reply;
     if (!socket.recv(reply, zmq::recv_flags::none)) {
-        throw std::runtime_error(fmt::format("snapshot {}: no reply within {} ms", endpoint, timeout.count()));
+        throw std::runtime_error(
+            fmt::format("snapshot {}: no reply within {} ms", endpoint, timeout.count()));
     }
     auto decoded = protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
-    if (!decoded.ok()) throw std::runtime_error(fmt::format("snapshot {}: bad reply: {}", endpoint, decoded.detail));
+    if (!decoded.ok())
+        throw std::runtime_error(
+            fmt::format("snapshot {}: bad reply: {}", endpoint, decoded.detail));
     return std::move(*decoded.value);
 }
 

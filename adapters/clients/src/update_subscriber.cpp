@@ -4,10 +4,7 @@
 #include "liveprob/transport/topics.hpp"
 
 namespace liveprob::clients {
-namespace {
-
-
-}  // namespace
+namespace {}  // namespace
 
 UpdateSubscriber::UpdateSubscriber(zmq::context_t& context, const std::string& endpoint,
                                    const SubscriberOptions& options)
@@ -16,9 +13,11 @@ UpdateSubscriber::UpdateSubscriber(zmq::context_t& context, const std::string& e
     socket_.set(zmq::sockopt::rcvtimeo, static_cast<int>(options.poll.count()));
     socket_.set(zmq::sockopt::rcvhwm, options.receive_high_water_mark);
     apply_curve_client(socket_, options.keys);
-    socket_.set(zmq::sockopt::subscribe, options.match ? transport::match_topic_string(*options.match)
-                                                       : std::string(transport::kMatchTopicPrefix));
-    if (options.counters) socket_.set(zmq::sockopt::subscribe, std::string(transport::kCountersTopic));
+    socket_.set(zmq::sockopt::subscribe, options.match
+                                             ? transport::match_topic_string(*options.match)
+                                             : std::string(transport::kMatchTopicPrefix));
+    if (options.counters)
+        socket_.set(zmq::sockopt::subscribe, std::string(transport::kCountersTopic));
     socket_.connect(endpoint);
 }
 

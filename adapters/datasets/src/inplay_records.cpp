@@ -4,7 +4,8 @@
 
 namespace liveprob::datasets {
 
-fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior, bool listed_for_goals) {
+fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior,
+                              bool listed_for_goals) {
     fit::InplayMatch out;
     out.prior = prior;
     out.extra_time = match.extra_time;
@@ -18,7 +19,8 @@ fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matche
     fit::MinuteCounts counts{};
     for (const MatchTimeline& m : matches)
         for (const TimelineGoal& g : m.goals)
-            if (g.minute >= 1 && g.minute <= 90) counts[static_cast<std::size_t>(g.minute - 1)] += 1.0;
+            if (g.minute >= 1 && g.minute <= 90)
+                counts[static_cast<std::size_t>(g.minute - 1)] += 1.0;
     return counts;
 }
 
@@ -35,7 +37,8 @@ StoppageCounts stoppage_counts(std::span<const MatchTimeline> matches) {
 
 ShootoutRecords shootout_records(std::span<const ShootoutRow> rows) {
     ShootoutRecords out;
-    auto side_named = [](const ShootoutRow& r, const std::string& name) -> std::optional<core::Side> {
+    auto side_named = [](const ShootoutRow& r,
+                         const std::string& name) -> std::optional<core::Side> {
         if (name == r.home) return core::Side::home;
         if (name == r.away) return core::Side::away;
         return std::nullopt;
@@ -55,7 +58,8 @@ ShootoutRecords shootout_records(std::span<const MatchTimeline> matches) {
     ShootoutRecords out;
     for (const MatchTimeline& m : matches)
         if (m.shootout && m.shootout->tally)
-            out.records.push_back({m.shootout->winner, m.shootout->first_kicker, m.shootout->tally});
+            out.records.push_back(
+                {m.shootout->winner, m.shootout->first_kicker, m.shootout->tally});
     return out;
 }
 

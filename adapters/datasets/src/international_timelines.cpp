@@ -7,10 +7,10 @@
 #include <stdexcept>
 #include <tuple>
 
-#include "liveprob/files/csv_line.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
-#include "liveprob/protocol/whole_file.hpp"
+#include "liveprob/files/csv_line.hpp"
 #include "liveprob/fit/calendar.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 #include "timeline_checks.hpp"
 
 namespace liveprob::datasets {
@@ -45,7 +45,9 @@ public:
             if (line == 1) {
                 for (const auto& name : names_) {
                     const int c = files::column_index(fields, name);
-                    if (c < 0) throw std::runtime_error(fmt::format("{}: header lacks the column '{}'", path_, name));
+                    if (c < 0)
+                        throw std::runtime_error(
+                            fmt::format("{}: header lacks the column '{}'", path_, name));
                     index_.push_back(static_cast<std::size_t>(c));
                 }
                 return;
@@ -76,7 +78,8 @@ struct ShootoutRecord {
 
 std::map<MatchKey, GoalRecords> read_goal_records(const std::string& path) {
     enum { date, home, away, team, minute, own_goal, penalty };
-    CsvReader csv(path, "the goal scorers file", {"date", "home_team", "away_team", "team", "minute", "own_goal", "penalty"});
+    CsvReader csv(path, "the goal scorers file",
+                  {"date", "home_team", "away_team", "team", "minute", "own_goal", "penalty"});
     std::map<MatchKey, GoalRecords> out;
     csv.for_each_row([&](int, auto field) {
         const auto day = fit::parse_iso_date(field(date));
@@ -92,8 +95,9 @@ std::map<MatchKey, GoalRecords> read_goal_records(const std::string& path) {
         // first minute of stoppage ("45+1"), so no goal is shown before a bucket minute it may
         // have followed.
         const int stoppage = *m == 45 || *m == 90 ? 1 : 0;
-        records.goals.push_back(TimelineGoal{*m, stoppage, home_side ? core::Side::home : core::Side::away,
-                                             true_flag(field(penalty)), true_flag(field(own_goal))});
+        records.goals.push_back(
+            TimelineGoal{*m, stoppage, home_side ? core::Side::home : core::Side::away,
+                         true_flag(field(penalty)), true_flag(field(own_goal))});
     });
     return out;
 }
@@ -101,7 +105,8 @@ std::map<MatchKey, GoalRecords> read_goal_records(const std::string& path) {
 std::map<MatchKey, ShootoutRecord> read_shootouts(const std::string& path) {
     std::map<MatchKey, ShootoutRecord> out;
     for (auto& row : read_shootout_rows(path))
-        out[{row.day, row.home, row.away}] = ShootoutRecord{std::move(row.winner), std::move(row.first_shooter)};
+        out[{row.day, row.home, row.away}] =
+            ShootoutRecord{std::move(row.winner), std::move(row.first_shooter)};
     return out;
 }
 
@@ -121,18 +126,20 @@ std::optional<core::Side> side_named(const std::string& name, const MatchTimelin
 
 std::vector<ShootoutRow> read_shootout_rows(const std::string& path) {
     enum { date, home, away, winner, first_shooter };
-    CsvReader csv(path, "the shoot-outs file", {"date", "home_team", "away_team", "winner", "first_shooter"});
+    CsvReader csv(path, "the shoot-outs file",
+                  {"date", "home_team", "away_team", "winner", "first_shooter"});
     std::vector<ShootoutRow> out;
     csv.for_each_row([&](int, auto field) {
         if (const auto day = fit::parse_iso_date(field(date))) {
-            out.push_back({*day, std::string(field(home)), std::string(field(away)), std::string(field(winner)),
-                           std::string(field(first_shooter))});
+            out.push_back({*day, std::string(field(home)), std::string(field(away)),
+                           std::string(field(winner)), std::string(field(first_shooter))});
         }
     });
     return out;
 }
 
-TimelinesRead read_international_timelines(const std::string& dir, const InternationalSelection& selection) {
+TimelinesRead read_international_timelines(const std::string& dir,
+                                           const InternationalSelection& selection) {
     const std::string results_path = dir + "/results.csv";
     const auto goals = read_goal_records(dir + "/goalscorers.csv");
     const auto shootouts = read_shootouts(dir + "/shootouts.csv");
@@ -143,7 +150,8 @@ TimelinesRead read_international_timelines(const std::string& dir, const Interna
     {
         enum { date, home, away, home_score, away_score, tournament, neutral };
         CsvReader csv(results_path, "the results file",
-                      {"date", "home_team", "away_team", "home_score", "away_score", "tournament", "neutral"});
+                      {"date", "home_team", "away_team", "home_score", "away_score", "tournament",
+                       "neutral"});
         csv.for_each_row([&](int line, auto field) {
             const auto day = fit::parse_iso_date(field(date));
             const auto hs = whole_number(field(home_score)), as = whole_number(field(away_score));
@@ -203,7 +211,8 @@ TimelinesRead read_international_timelines(const std::string& dir, const Interna
         }
         if (const auto s = shootouts.find({t.day, t.home, t.away}); s != shootouts.end()) {
             if (const auto winner = side_named(s->second.winner, t)) {
-                t.shootout = TimelineShootout{*winner, side_named(s->second.first_shooter, t), std::nullopt};
+                t.shootout =
+                    TimelineShootout{*winner, side_named(s->second.first_shooter, t), std::nullopt};
             }
         }
         const auto verdict = detail::finish_timeline(t, r.score, false);

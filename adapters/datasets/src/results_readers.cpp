@@ -10,8 +10,8 @@
 #include <tuple>
 
 #include "liveprob/files/csv_line.hpp"
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/fit/calendar.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace liveprob::datasets {
 namespace {
@@ -19,7 +19,9 @@ namespace {
 // Drops repeats of (day, home, away) and counts them.
 class DuplicateFilter {
 public:
-    bool first_time(const fit::MatchResult& m) { return seen_.emplace(m.day, m.home, m.away).second; }
+    bool first_time(const fit::MatchResult& m) {
+        return seen_.emplace(m.day, m.home, m.away).second;
+    }
 
 private:
     std::set<std::tuple<int, std::string, std::string>> seen_;
@@ -49,7 +51,8 @@ ResultsRead read_project_results(const std::string& path) {
     const std::string text = protocol::read_whole_file(path, "the results file");
     ResultsRead out;
     DuplicateFilter filter;
-    const std::vector<std::string> expected{"date", "home", "away", "home_goals", "away_goals", "neutral"};
+    const std::vector<std::string> expected{"date",       "home",       "away",
+                                            "home_goals", "away_goals", "neutral"};
     files::for_each_text_line(text, [&](int line, std::string_view view) {
         auto fail = [&](const std::string& why) {
             throw std::runtime_error(fmt::format("{}:{}: {}", path, line, why));
@@ -63,10 +66,12 @@ ResultsRead read_project_results(const std::string& path) {
         if (line == 1) {
             const bool ok = (f.size() == 6 || (f.size() == 7 && f[6] == "competition")) &&
                             std::equal(expected.begin(), expected.end(), f.begin());
-            if (!ok) fail("header must be date,home,away,home_goals,away_goals,neutral[,competition]");
+            if (!ok)
+                fail("header must be date,home,away,home_goals,away_goals,neutral[,competition]");
             return;
         }
-        if (f.size() != 6 && f.size() != 7) fail(fmt::format("expected 6 or 7 columns, found {}", f.size()));
+        if (f.size() != 6 && f.size() != 7)
+            fail(fmt::format("expected 6 or 7 columns, found {}", f.size()));
         fit::MatchResult m;
         const auto day = fit::parse_iso_date(f[0]);
         if (!day) fail(fmt::format("date '{}' is not YYYY-MM-DD", f[0]));
@@ -109,11 +114,13 @@ ResultsRead read_international_results(const std::string& path) {
             c_as = files::column_index(f, "away_score");
             c_neutral = files::column_index(f, "neutral");
             if (std::min({c_date, c_home, c_away, c_hs, c_as, c_neutral}) < 0)
-                throw std::runtime_error(fmt::format("{}: header lacks a column of the international format", path));
+                throw std::runtime_error(
+                    fmt::format("{}: header lacks a column of the international format", path));
             return;
         }
         auto at = [&](int c) -> std::string_view {
-            return c < static_cast<int>(f.size()) ? std::string_view(f[static_cast<std::size_t>(c)]) : "";
+            return c < static_cast<int>(f.size()) ? std::string_view(f[static_cast<std::size_t>(c)])
+                                                  : "";
         };
         const auto day = fit::parse_iso_date(at(c_date));
         const auto hg = whole_number(at(c_hs)), ag = whole_number(at(c_as));
@@ -122,7 +129,8 @@ ResultsRead read_international_results(const std::string& path) {
             ++out.skipped;
             return;
         }
-        fit::MatchResult m{*day, std::string(at(c_home)), std::string(at(c_away)), *hg, *ag, *neutral};
+        fit::MatchResult m{*day,    std::string(at(c_home)), std::string(at(c_away)), *hg, *ag,
+                           *neutral};
         if (filter.first_time(m)) out.matches.push_back(std::move(m));
         else ++out.duplicates;
     });
@@ -134,7 +142,8 @@ ResultsRead read_league_json(const std::string& path) {
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     if (auto e = parser.parse(text).get(root); e != simdjson::SUCCESS)
-        throw std::runtime_error(fmt::format("{}: not valid JSON: {}", path, simdjson::error_message(e)));
+        throw std::runtime_error(
+            fmt::format("{}: not valid JSON: {}", path, simdjson::error_message(e)));
     simdjson::dom::array list;
     if (root["matches"].get_array().get(list) != simdjson::SUCCESS)
         throw std::runtime_error(fmt::format("{}: no \"matches\" array", path));
@@ -147,16 +156,17 @@ ResultsRead read_league_json(const std::string& path) {
         const bool ok = match["date"].get_string().get(date) == simdjson::SUCCESS &&
                         match["team1"].get_string().get(home) == simdjson::SUCCESS &&
                         match["team2"].get_string().get(away) == simdjson::SUCCESS &&
-                        match["score"]["ft"].get_array().get(ft) == simdjson::SUCCESS && ft.size() == 2 &&
-                        ft.at(0).get_int64().get(hg) == simdjson::SUCCESS &&
+                        match["score"]["ft"].get_array().get(ft) == simdjson::SUCCESS &&
+                        ft.size() == 2 && ft.at(0).get_int64().get(hg) == simdjson::SUCCESS &&
                         ft.at(1).get_int64().get(ag) == simdjson::SUCCESS;
         const auto day = ok ? fit::parse_iso_date(date) : std::nullopt;
         if (!ok || !day || hg < 0 || ag < 0 || hg > 99 || ag > 99 || home == away) {
             ++out.skipped;
             continue;
         }
-        fit::MatchResult m{*day, std::string(home), std::string(away), static_cast<int>(hg),
-                           static_cast<int>(ag), false};
+        fit::MatchResult m{
+            *day, std::string(home), std::string(away), static_cast<int>(hg), static_cast<int>(ag),
+            false};
         if (filter.first_time(m)) out.matches.push_back(std::move(m));
         else ++out.duplicates;
     }
@@ -164,7 +174,8 @@ ResultsRead read_league_json(const std::string& path) {
 }
 
 ResultsRead read_results_any(const std::string& path) {
-    if (path.size() >= 5 && path.compare(path.size() - 5, 5, ".json") == 0) return read_league_json(path);
+    if (path.size() >= 5 && path.compare(path.size() - 5, 5, ".json") == 0)
+        return read_league_json(path);
     const std::string head = first_line(protocol::read_whole_file(path, "the results file"));
     if (head.rfind("date,home_team", 0) == 0) return read_international_results(path);
     return read_project_results(path);

@@ -15,7 +15,8 @@ enum class TimelineVerdict { usable, goals_incomplete, aggregate_tie };
 // `extra_time_reported`: the source says extra time was played (it is also inferred from
 // extra-time goals and from a shoot-out). Sorts the goals, fills the goal counts and the
 // extra-time flag.
-TimelineVerdict finish_timeline(MatchTimeline& match, std::array<int, 2> final_goals, bool extra_time_reported);
+TimelineVerdict finish_timeline(MatchTimeline& match, std::array<int, 2> final_goals,
+                                bool extra_time_reported);
 
 void count_skip(TimelineSkips& skips, TimelineVerdict verdict) noexcept;
 

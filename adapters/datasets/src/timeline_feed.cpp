@@ -24,7 +24,8 @@ std::uint32_t usual_stoppage_minutes(core::Period p) {
 // extra time, none between its halves, a pause before the shoot-out.
 std::int64_t break_minutes_before(core::Period p) {
     switch (p) {
-        case core::Period::first_half: return 30;  // the setup goes out half an hour before kick-off
+        case core::Period::first_half:
+            return 30;  // the setup goes out half an hour before kick-off
         case core::Period::second_half: return 15;
         case core::Period::extra_first:
         case core::Period::shootout: return 5;
@@ -48,7 +49,8 @@ std::uint32_t goal_clock_ms(const TimelineGoal& g) {
 // message and its break.
 class FeedWriter {
 public:
-    FeedWriter(std::uint64_t match_id, std::int64_t kickoff_us) : match_id_(match_id), period_wall_us_(kickoff_us) {}
+    FeedWriter(std::uint64_t match_id, std::int64_t kickoff_us)
+        : match_id_(match_id), period_wall_us_(kickoff_us) {}
 
     void start_period(core::Period period, std::uint32_t start_ms) {
         period_wall_us_ = last_wall_us_ + break_minutes_before(period) * kMinuteUs;
@@ -60,7 +62,8 @@ public:
         m.header.match_id = match_id_;
         m.header.source_seq = messages_.size() + 1;
         m.header.clock = clock;
-        const std::int64_t run_ms = clock.clock_ms >= period_start_ms_ ? clock.clock_ms - period_start_ms_ : 0;
+        const std::int64_t run_ms =
+            clock.clock_ms >= period_start_ms_ ? clock.clock_ms - period_start_ms_ : 0;
         m.header.source_time_us = period_wall_us_ + run_ms * 1000 + after_us;
         last_wall_us_ = std::max(last_wall_us_, m.header.source_time_us);
         m.body = std::move(body);
@@ -84,27 +87,33 @@ void write_period(FeedWriter& out, const core::CompetitionFormat& format, core::
     std::uint32_t end = nominal_end + usual_stoppage_minutes(period) * kMinuteMs;
     out.start_period(period, start);
     out.emit(core::PeriodStart{period}, {period, start});
-    auto goal = std::find_if(goals.begin(), goals.end(), [&](const TimelineGoal& g) { return period_of(g) == period; });
+    auto goal = std::find_if(goals.begin(), goals.end(),
+                             [&](const TimelineGoal& g) { return period_of(g) == period; });
     auto next_goal = [&] {
-        return std::find_if(std::next(goal), goals.end(), [&](const TimelineGoal& g) { return period_of(g) == period; });
+        return std::find_if(std::next(goal), goals.end(),
+                            [&](const TimelineGoal& g) { return period_of(g) == period; });
     };
     const std::uint32_t step = kTimelineClockSyncMinutes * kMinuteMs;
     for (std::uint32_t sync = start + step; sync <= nominal_end; sync += step) {
         for (; goal != goals.end() && goal_clock_ms(*goal) < sync; goal = next_goal()) {
-            out.emit(core::Goal{goal->side, goal->penalty, goal->own_goal}, {period, goal_clock_ms(*goal)});
+            out.emit(core::Goal{goal->side, goal->penalty, goal->own_goal},
+                     {period, goal_clock_ms(*goal)});
         }
         out.emit(core::ClockSync{true}, {period, sync});
     }
     for (; goal != goals.end(); goal = next_goal()) {
-        out.emit(core::Goal{goal->side, goal->penalty, goal->own_goal}, {period, goal_clock_ms(*goal)});
+        out.emit(core::Goal{goal->side, goal->penalty, goal->own_goal},
+                 {period, goal_clock_ms(*goal)});
         end = std::max(end, goal_clock_ms(*goal) + kMinuteMs / 2);
     }
     out.emit(core::PeriodEnd{period}, {period, end});
 }
 
-bool search_kicks(core::ShootoutTally& tally, const std::array<int, 2>& target, core::Side first, std::vector<core::ShootoutKick>& kicks) {
+bool search_kicks(core::ShootoutTally& tally, const std::array<int, 2>& target, core::Side first,
+                  std::vector<core::ShootoutKick>& kicks) {
     if (shootout_decided(tally)) return tally.scored == target;
-    const core::Side kicker = tally.taken[0] + tally.taken[1] == 0 ? first : shootout_next_kicker(tally);
+    const core::Side kicker =
+        tally.taken[0] + tally.taken[1] == 0 ? first : shootout_next_kicker(tally);
     const auto k = static_cast<std::size_t>(index(kicker));
     if (tally.taken[k] >= kMaxKicksPerSide) return false;
     for (const bool scored : {true, false}) {
@@ -141,8 +150,9 @@ std::vector<core::ShootoutKick> reconstructed_kicks(const TimelineShootout& shoo
     return {};  // not reached: 5-4 is reachable from either first kicker
 }
 
-std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match, std::uint64_t match_id,
-                                               const core::PriorMeans& prior) {
+std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match,
+                                                     std::uint64_t match_id,
+                                                     const core::PriorMeans& prior) {
     core::MatchSetup setup;
     setup.home_name = match.home;
     setup.away_name = match.away;
@@ -154,18 +164,22 @@ std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match,
     const bool level = match.regulation_goals[0] + match.extra_time_goals[0] ==
                        match.regulation_goals[1] + match.extra_time_goals[1];
     setup.format.shootout = match.extra_time && (match.shootout.has_value() || !level);
-    const std::int64_t kickoff_us =
-        (static_cast<std::int64_t>(match.day) * 24 * 60 + match.kickoff_minute.value_or(kDefaultKickoffMinute)) * kMinuteUs;
+    const std::int64_t kickoff_us = (static_cast<std::int64_t>(match.day) * 24 * 60 +
+                                     match.kickoff_minute.value_or(kDefaultKickoffMinute)) *
+                                    kMinuteUs;
     setup.scheduled_kickoff_us = kickoff_us;
 
     FeedWriter out(match_id, kickoff_us - 30 * kMinuteUs);
     out.emit(setup, {core::Period::pre_match, 0});
-    for (const core::Period p : {core::Period::first_half, core::Period::second_half}) write_period(out, setup.format, p, match.goals);
+    for (const core::Period p : {core::Period::first_half, core::Period::second_half})
+        write_period(out, setup.format, p, match.goals);
     if (match.extra_time) {
-        for (const core::Period p : {core::Period::extra_first, core::Period::extra_second}) write_period(out, setup.format, p, match.goals);
+        for (const core::Period p : {core::Period::extra_first, core::Period::extra_second})
+            write_period(out, setup.format, p, match.goals);
     }
     if (match.shootout) {
-        const core::MatchClock clock{core::Period::shootout, period_start_ms(setup.format, core::Period::shootout)};
+        const core::MatchClock clock{core::Period::shootout,
+                                     period_start_ms(setup.format, core::Period::shootout)};
         out.start_period(core::Period::shootout, clock.clock_ms);
         out.emit(core::PeriodStart{core::Period::shootout}, clock);
         std::int64_t kick_us = 0;

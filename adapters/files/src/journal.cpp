@@ -2,15 +2,15 @@
 
 #include <fmt/format.h>
 
+#include <fcntl.h>
+#include <unistd.h>
 #include <cerrno>
 #include <cstring>
-#include <fcntl.h>
 #include <filesystem>
-#include <unistd.h>
 #include <vector>
 
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace liveprob::files {
 
@@ -18,7 +18,6 @@ const char* journal_sync_name(JournalSync s) noexcept {
     const auto i = static_cast<std::size_t>(s);
     return i < kJournalSyncNames.size() ? kJournalSyncNames[i].data() : "unknown";
 }
-
 
 namespace {
 
@@ -28,9 +27,11 @@ std::string os_error() { return std::strerror(errno); }
 
 JournalWriter::JournalWriter(const std::string& path, JournalSync sync,
                              std::chrono::milliseconds sync_interval)
-    : path_(path), sync_(sync), sync_interval_(sync_interval), last_sync_(std::chrono::steady_clock::now()) {
+    : path_(path), sync_(sync), sync_interval_(sync_interval),
+      last_sync_(std::chrono::steady_clock::now()) {
     fd_ = ::open(path.c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
-    if (fd_ < 0) throw JournalError(fmt::format("journal {}: cannot open for append: {}", path, os_error()));
+    if (fd_ < 0)
+        throw JournalError(fmt::format("journal {}: cannot open for append: {}", path, os_error()));
     end_offset_ = ::lseek(fd_, 0, SEEK_END);
     if (end_offset_ < 0) end_offset_ = 0;  // a device (tests use /dev/full) has no end
 }
@@ -72,7 +73,8 @@ void JournalWriter::append(std::span<const std::uint8_t> frame) {
         // holds exactly the messages the service applied, and a later frame (once space
         // returns) does not follow a torn one that replay stops at. If the cut fails too,
         // replay stops at the torn frame and says so.
-        if (::ftruncate(fd_, end_offset_) != 0) { /* the write error below says enough */ }
+        if (::ftruncate(fd_, end_offset_) != 0) { /* the write error below says enough */
+        }
         throw;
     }
     end_offset_ += static_cast<off_t>(buffer_.size());
@@ -83,7 +85,8 @@ void JournalWriter::append(std::span<const std::uint8_t> frame) {
 
 void JournalWriter::sync() {
     if (!dirty_) return;
-    if (::fdatasync(fd_) != 0) throw JournalError(fmt::format("journal {}: fsync failed: {}", path_, os_error()));
+    if (::fdatasync(fd_) != 0)
+        throw JournalError(fmt::format("journal {}: fsync failed: {}", path_, os_error()));
     dirty_ = false;
     last_sync_ = std::chrono::steady_clock::now();
 }
@@ -108,7 +111,8 @@ JournalReplayReport replay_journal(const std::string& path,
     report.valid_bytes = cursor.end_offset();
     report.torn_bytes = bytes.size() - cursor.end_offset();
     if (cursor.end() != protocol::StreamEnd::clean) report.torn_detail = cursor.end_detail();
-    if (report.torn_bytes > 0 && truncate_tail) std::filesystem::resize_file(path, cursor.end_offset());
+    if (report.torn_bytes > 0 && truncate_tail)
+        std::filesystem::resize_file(path, cursor.end_offset());
     return report;
 }
 

@@ -29,8 +29,12 @@ struct NumberField {
 
 constexpr double kBig = 1e6;
 
-#define LIVEPROB_FIELD(section, member, lo, hi) \
-    NumberField{section, #member, [](core::ModelParams& p) -> double& { return p.member; }, lo, hi}
+// clang-format off (it cannot tell the braces of a macro body)
+#define LIVEPROB_FIELD(section, member, lo, hi)                                            \
+    NumberField {                                                                          \
+        section, #member, [](core::ModelParams& p) -> double& { return p.member; }, lo, hi \
+    }
+// clang-format on
 
 // The file's keys are the member names of ModelParams, so the two cannot drift apart.
 const std::vector<NumberField>& number_fields() {
@@ -88,7 +92,8 @@ public:
     int integer(simdjson::dom::element v, const std::string& key, int lo, int hi) const {
         int64_t x = 0;
         if (v.get_int64().get(x) != simdjson::SUCCESS) fail(key, "expected a whole number");
-        if (x < lo || x > hi) fail(key, fmt::format("{} is outside the allowed range [{}, {}]", x, lo, hi));
+        if (x < lo || x > hi)
+            fail(key, fmt::format("{} is outside the allowed range [{}, {}]", x, lo, hi));
         return static_cast<int>(x);
     }
 
@@ -141,7 +146,8 @@ core::ModelParams parse_params_json(const std::string& text, const std::string& 
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     if (auto error = parser.parse(text).get(root); error != simdjson::SUCCESS)
-        throw ParamsFileError(fmt::format("{}: not valid JSON: {}", origin, simdjson::error_message(error)));
+        throw ParamsFileError(
+            fmt::format("{}: not valid JSON: {}", origin, simdjson::error_message(error)));
 
     core::ModelParams p;
     bool saw_kind = false;
@@ -155,7 +161,8 @@ core::ModelParams parse_params_json(const std::string& text, const std::string& 
         } else if (key == "version") {
             if (reader.integer(value, key, 0, 1000) != kVersion)
                 reader.fail(key, fmt::format("this program reads version {}", kVersion));
-        } else if (key == "timing" || key == "score_state" || key == "red_cards" || key == "shootout") {
+        } else if (key == "timing" || key == "score_state" || key == "red_cards" ||
+                   key == "shootout") {
             reader.section(p, key, value);
         } else if (key == "kappa") {
             std::string_view s;
@@ -223,7 +230,8 @@ std::string params_to_json(const core::ModelParams& params, const ParamsFileNote
     return out;
 }
 
-void save_params_file(const core::ModelParams& params, const std::string& path, const ParamsFileNotes& notes) {
+void save_params_file(const core::ModelParams& params, const std::string& path,
+                      const ParamsFileNotes& notes) {
     try {
         protocol::write_file_atomically(path, params_to_json(params, notes), "the parameter file");
     } catch (const std::runtime_error& e) {

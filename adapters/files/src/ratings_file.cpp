@@ -8,9 +8,9 @@
 #include <stdexcept>
 
 #include "liveprob/files/csv_line.hpp"
+#include "liveprob/fit/calendar.hpp"
 #include "liveprob/protocol/json_writer.hpp"
 #include "liveprob/protocol/whole_file.hpp"
-#include "liveprob/fit/calendar.hpp"
 
 namespace liveprob::files {
 namespace {
@@ -77,7 +77,9 @@ std::string ratings_to_json(const fit::Ratings& r) {
     const auto& d = r.diagnostics;
     json.key("fit").begin_object_on_one_line();
     number_or_null(json, "log_likelihood", d.log_likelihood);
-    json.member("matches", d.matches).member("iterations", d.iterations).member("converged", d.converged);
+    json.member("matches", d.matches)
+        .member("iterations", d.iterations)
+        .member("converged", d.converged);
     json.key("warnings").begin_array();
     for (const auto& warning : d.warnings) json.value(warning);
     json.end_array().end_object();
@@ -106,7 +108,8 @@ fit::Ratings load_ratings_file(const std::string& path) {
     simdjson::dom::parser parser;
     simdjson::dom::element root;
     if (auto e = parser.parse(text).get(root); e != simdjson::SUCCESS)
-        throw std::runtime_error(fmt::format("{}: not valid JSON: {}", path, simdjson::error_message(e)));
+        throw std::runtime_error(
+            fmt::format("{}: not valid JSON: {}", path, simdjson::error_message(e)));
     simdjson::dom::object top;
     if (root.get_object().get(top) != simdjson::SUCCESS)
         throw std::runtime_error(fmt::format("{}: expected a JSON object", path));
@@ -126,7 +129,8 @@ fit::Ratings load_ratings_file(const std::string& path) {
         r.as_of_day = day;
     }
     simdjson::dom::array teams;
-    if (f.raw("teams").get_array().get(teams) != simdjson::SUCCESS) f.fail("teams", "expected an array");
+    if (f.raw("teams").get_array().get(teams) != simdjson::SUCCESS)
+        f.fail("teams", "expected an array");
     std::size_t i = 0;
     for (simdjson::dom::element e : teams) {
         simdjson::dom::object o;
@@ -139,13 +143,16 @@ fit::Ratings load_ratings_file(const std::string& path) {
         team.attack = t.number("attack");
         team.defence = t.number("defence");
         team.shrunk = t.flag("shrunk");
-        if (!std::isfinite(team.attack) || !std::isfinite(team.defence)) t.fail("attack", "not finite");
+        if (!std::isfinite(team.attack) || !std::isfinite(team.defence))
+            t.fail("attack", "not finite");
         r.teams.push_back(std::move(team));
     }
-    std::sort(r.teams.begin(), r.teams.end(), [](const auto& a, const auto& b) { return a.name < b.name; });
+    std::sort(r.teams.begin(), r.teams.end(),
+              [](const auto& a, const auto& b) { return a.name < b.name; });
     for (std::size_t k = 1; k < r.teams.size(); ++k)
         if (r.teams[k].name == r.teams[k - 1].name)
-            throw std::runtime_error(fmt::format("{}: team '{}' appears twice", path, r.teams[k].name));
+            throw std::runtime_error(
+                fmt::format("{}: team '{}' appears twice", path, r.teams[k].name));
     return r;
 }
 
@@ -164,13 +171,16 @@ std::map<std::string, std::string> load_alias_file(const std::string& path) {
         const auto fields = split_csv_line(row);
         if (line == 1) {
             if (fields != std::vector<std::string>{"feed_name", "rating_name"})
-                throw std::runtime_error(fmt::format("{}:1: header must be feed_name,rating_name", path));
+                throw std::runtime_error(
+                    fmt::format("{}:1: header must be feed_name,rating_name", path));
             continue;
         }
         if (fields.size() != 2 || fields[0].empty() || fields[1].empty())
-            throw std::runtime_error(fmt::format("{}:{}: expected two non-empty columns", path, line));
+            throw std::runtime_error(
+                fmt::format("{}:{}: expected two non-empty columns", path, line));
         if (!aliases.emplace(fields[0], fields[1]).second)
-            throw std::runtime_error(fmt::format("{}:{}: feed name '{}' is listed twice", path, line, fields[0]));
+            throw std::runtime_error(
+                fmt::format("{}:{}: feed name '{}' is listed twice", path, line, fields[0]));
     }
     return aliases;
 }

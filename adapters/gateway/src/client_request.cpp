@@ -26,7 +26,8 @@ std::variant<WatchRequest, RequestError> parse_client_request(std::string_view t
     } else if (field.key == "unwatch") {
         request.watch = false;
     } else {
-        return fail("unknown key \"" + std::string(field.key) + R"(", expected "watch" or "unwatch")");
+        return fail("unknown key \"" + std::string(field.key) +
+                    R"(", expected "watch" or "unwatch")");
     }
 
     std::string_view word;

@@ -2,13 +2,13 @@
 
 #include "liveprob/gateway/gateway.hpp"
 
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/asio/post.hpp>
 #include <boost/asio/signal_set.hpp>
 #include <boost/asio/steady_timer.hpp>
-#include <fmt/format.h>
-#include <spdlog/spdlog.h>
 
 #include <chrono>
 #include <fstream>
@@ -19,10 +19,10 @@
 
 #include "gateway_hub.hpp"
 #include "http_session.hpp"
-#include "liveprob/transport/reactor_socket.hpp"
-#include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/system/wall_clock.hpp"
+#include "liveprob/transport/reactor_socket.hpp"
+#include "liveprob/transport/topics.hpp"
 #include "update_intake.hpp"
 #include "websocket_session.hpp"
 
@@ -47,7 +47,9 @@ std::map<std::string, std::string> load_web_dir(const std::filesystem::path& dir
         if (!in) throw std::runtime_error("cannot read " + entry.path().string());
         files.emplace("/" + entry.path().filename().string(), text.str());
     }
-    if (ec) throw std::runtime_error(fmt::format("cannot list page folder {}: {}", dir.string(), ec.message()));
+    if (ec)
+        throw std::runtime_error(
+            fmt::format("cannot list page folder {}: {}", dir.string(), ec.message()));
     if (!files.count("/index.html")) {
         throw std::runtime_error("page folder " + dir.string() + " has no index.html");
     }
@@ -58,7 +60,6 @@ GatewayHub make_hub(GatewayConfig config) {
     auto files = load_web_dir(config.web_dir);
     return GatewayHub(std::move(config), std::move(files));
 }
-
 
 }  // namespace
 
@@ -174,10 +175,12 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
     zmq::message_t reply;
     while (socket.recv(reply, zmq::recv_flags::dontwait)) {
         if (reply.more()) continue;  // not the one-frame reply a DEALER gets; skip to its end
-        auto decoded = protocol::decode_snapshot_reply({static_cast<const std::uint8_t*>(reply.data()), reply.size()});
+        auto decoded = protocol::decode_snapshot_reply(
+            {static_cast<const std::uint8_t*>(reply.data()), reply.size()});
         if (!decoded.ok() || !decoded.value->error.empty()) {
             ++hub.counters.snapshot_failures;
-            spdlog::warn("gateway: snapshot failed: {}", decoded.ok() ? decoded.value->error : decoded.detail);
+            spdlog::warn("gateway: snapshot failed: {}",
+                         decoded.ok() ? decoded.value->error : decoded.detail);
             continue;
         }
         const std::int64_t now = system::wall_clock_us();

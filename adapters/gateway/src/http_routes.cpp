@@ -46,9 +46,7 @@ std::uint64_t match_query(std::string_view target) {
 
 }  // namespace
 
-std::string_view target_path(std::string_view target) {
-    return target.substr(0, target.find('?'));
-}
+std::string_view target_path(std::string_view target) { return target.substr(0, target.find('?')); }
 
 HttpResponse plain_response(const HttpRequest& request, http::status status, std::string text) {
     HttpResponse response{status, request.version()};

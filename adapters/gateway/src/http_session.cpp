@@ -22,10 +22,9 @@ void HttpSession::read_request() {
     parser_->header_limit(kMaxRequestHeaderBytes);
     parser_->body_limit(kMaxRequestBodyBytes);
     stream_.expires_after(hub_.config.handshake_timeout);
-    http::async_read(stream_, buffer_, *parser_,
-                     [self = shared_from_this()](beast::error_code ec, std::size_t) {
-                         self->on_read(ec);
-                     });
+    http::async_read(
+        stream_, buffer_, *parser_,
+        [self = shared_from_this()](beast::error_code ec, std::size_t) { self->on_read(ec); });
 }
 
 void HttpSession::on_read(beast::error_code ec) {

@@ -6,8 +6,10 @@ namespace liveprob::gateway {
 
 namespace {
 TimelinePoint point_of(const core::Outputs& o) {
-    return TimelinePoint{o.clock.clock_ms, static_cast<std::uint8_t>(o.clock.period), o.p_home,
-                         o.p_draw,       o.p_away,  o.home_goals, o.away_goals, o.home_reds,
+    return TimelinePoint{o.clock.clock_ms, static_cast<std::uint8_t>(o.clock.period),
+                         o.p_home,         o.p_draw,
+                         o.p_away,         o.home_goals,
+                         o.away_goals,     o.home_reds,
                          o.away_reds};
 }
 bool same_score_and_cards(const TimelinePoint& a, const TimelinePoint& b) {
@@ -72,7 +74,11 @@ std::optional<std::string> LatestUpdates::render_timeline_json(std::uint64_t mat
     if (found == matches_.end()) return std::nullopt;
     std::string out;
     protocol::JsonWriter json(out);
-    json.begin_object().member("kind", "timeline").member("match_id", match_id).key("points").begin_array();
+    json.begin_object()
+        .member("kind", "timeline")
+        .member("match_id", match_id)
+        .key("points")
+        .begin_array();
     for (const auto& p : found->second.timeline) {
         json.begin_array()
             .value(static_cast<unsigned>(p.period))

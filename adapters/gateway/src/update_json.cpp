@@ -24,7 +24,12 @@ std::string render_update_json(const GatewayUpdate& update) {
         .member("clock_ms", o.clock.clock_ms);
     home_away("score", o.home_goals, o.away_goals);
     home_away("red_cards", static_cast<unsigned>(o.home_reds), static_cast<unsigned>(o.away_reds));
-    json.key("full_time").begin_object().member("home", o.p_home).member("draw", o.p_draw).member("away", o.p_away).end_object();
+    json.key("full_time")
+        .begin_object()
+        .member("home", o.p_home)
+        .member("draw", o.p_draw)
+        .member("away", o.p_away)
+        .end_object();
     if (o.has_advance) {
         home_away("to_advance", o.p_advance_home, o.p_advance_away);
     } else {

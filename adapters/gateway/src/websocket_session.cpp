@@ -29,9 +29,8 @@ void WebSocketSession::start(HttpRequest request) {
     ws_.set_option(websocket::stream_base::decorator([](websocket::response_type& response) {
         response.set(beast::http::field::server, "liveprob-gateway");
     }));
-    ws_.async_accept(request, [self = shared_from_this()](beast::error_code ec) {
-        self->on_accept(ec);
-    });
+    ws_.async_accept(request,
+                     [self = shared_from_this()](beast::error_code ec) { self->on_accept(ec); });
 }
 
 void WebSocketSession::on_accept(beast::error_code ec) {
@@ -67,7 +66,11 @@ void WebSocketSession::handle_request(std::string_view text) {
     if (auto* error = std::get_if<RequestError>(&parsed)) {
         ++hub_.counters.bad_requests;
         std::string reply;
-        protocol::JsonWriter(reply).begin_object().member("kind", "error").member("reason", error->reason).end_object();
+        protocol::JsonWriter(reply)
+            .begin_object()
+            .member("kind", "error")
+            .member("reason", error->reason)
+            .end_object();
         return queue_reply(std::move(reply));
     }
     const auto& request = std::get<WatchRequest>(parsed);
@@ -98,7 +101,11 @@ void WebSocketSession::handle_request(std::string_view text) {
     std::sort(listed.begin(), listed.end());
     std::string reply;
     protocol::JsonWriter json(reply);
-    json.begin_object().member("kind", "watching").member("all", watch_all_).key("match_ids").begin_array();
+    json.begin_object()
+        .member("kind", "watching")
+        .member("all", watch_all_)
+        .key("match_ids")
+        .begin_array();
     for (const std::uint64_t id : listed) json.value(id);
     json.end_array().end_object();
     queue_reply(std::move(reply));
@@ -155,10 +162,9 @@ void WebSocketSession::write_next() {
     }
     writing_ = true;
     ws_.text(true);
-    ws_.async_write(boost::asio::buffer(*in_flight_),
-                    [self = shared_from_this()](beast::error_code ec, std::size_t) {
-                        self->on_write(ec);
-                    });
+    ws_.async_write(
+        boost::asio::buffer(*in_flight_),
+        [self = shared_from_this()](beast::error_code ec, std::size_t) { self->on_write(ec); });
 }
 
 void WebSocketSession::on_write(beast::error_code ec) {
@@ -191,10 +197,9 @@ void WebSocketSession::send_close() {
     websocket::close_reason reason;
     reason.code = close_code_;
     reason.reason = close_reason_;
-    ws_.async_close(reason,
-                    [self = shared_from_this()](beast::error_code) {
-                        // The read loop sees the end of the connection and finishes.
-                    });
+    ws_.async_close(reason, [self = shared_from_this()](beast::error_code) {
+        // The read loop sees the end of the connection and finishes.
+    });
 }
 
 void WebSocketSession::finish() {
@@ -204,10 +209,13 @@ void WebSocketSession::finish() {
     hub_.clients.erase(this);
     close_deadline_.cancel();
     beast::error_code ignored;
-    beast::get_lowest_layer(ws_).socket().shutdown(boost::asio::socket_base::shutdown_both, ignored);
+    beast::get_lowest_layer(ws_).socket().shutdown(boost::asio::socket_base::shutdown_both,
+                                                   ignored);
     beast::get_lowest_layer(ws_).socket().close(ignored);
 }
 
-void WebSocketSession::close_going_away() { begin_close(kCloseShuttingDown, "gateway shutting down"); }
+void WebSocketSession::close_going_away() {
+    begin_close(kCloseShuttingDown, "gateway shutting down");
+}
 
 }  // namespace liveprob::gateway

@@ -54,14 +54,14 @@ private:
     bool watch_all_ = false;
     std::unordered_set<std::uint64_t> watched_;
 
-    std::deque<Frame> replies_;                      // answers to the client's requests
-    std::deque<std::uint64_t> pending_order_;        // matches with a frame waiting, oldest first
+    std::deque<Frame> replies_;                // answers to the client's requests
+    std::deque<std::uint64_t> pending_order_;  // matches with a frame waiting, oldest first
     std::unordered_map<std::uint64_t, Frame> pending_;  // latest waiting frame per match
-    Frame in_flight_;                                 // kept alive while Beast writes it
+    Frame in_flight_;                                   // kept alive while Beast writes it
 
-    bool open_ = false;       // handshake done, registered with the hub
+    bool open_ = false;  // handshake done, registered with the hub
     bool writing_ = false;
-    bool closing_ = false;    // no more frames; a close frame is due or sent
+    bool closing_ = false;  // no more frames; a close frame is due or sent
     bool finished_ = false;
     std::uint16_t close_code_ = 0;
     const char* close_reason_ = "";

@@ -1,9 +1,9 @@
 #include "liveprob/service/live_service.hpp"
 
-#include <boost/asio/signal_set.hpp>
-#include <boost/asio/steady_timer.hpp>
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
+#include <boost/asio/signal_set.hpp>
+#include <boost/asio/steady_timer.hpp>
 
 #include <chrono>
 #include <csignal>
@@ -11,18 +11,18 @@
 #include <fstream>
 #include <optional>
 
-#include "liveprob/transport/curve_keys.hpp"
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/files/journal.hpp"
-#include "liveprob/service/match_registry.hpp"
-#include "liveprob/transport/reactor_socket.hpp"
-#include "liveprob/service/service_counters.hpp"
-#include "liveprob/system/wall_clock.hpp"
-#include "liveprob/transport/topics.hpp"
-#include "liveprob/transport/zap_authenticator.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/service/match_registry.hpp"
+#include "liveprob/service/service_counters.hpp"
+#include "liveprob/system/wall_clock.hpp"
+#include "liveprob/transport/curve_keys.hpp"
+#include "liveprob/transport/reactor_socket.hpp"
+#include "liveprob/transport/topics.hpp"
+#include "liveprob/transport/zap_authenticator.hpp"
 
 namespace liveprob::service {
 
@@ -36,7 +36,6 @@ constexpr int kDrainBatch = 512;
 // Largest inbound message ZeroMQ accepts at all (bigger: the peer is disconnected). Buffers
 // between the decoder's own limit and this are received, counted as oversize and dropped.
 constexpr std::int64_t kMaxIngestMessageBytes = 1 << 20;
-
 
 void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, const char* domain) {
     socket.set(zmq::sockopt::zap_domain, domain);
@@ -96,20 +95,22 @@ struct LiveService::Impl {
 };
 
 LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params)
-    : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)), publisher(context, zmq::socket_type::pub),
-      registry(params) {
+    : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)),
+      publisher(context, zmq::socket_type::pub), registry(params) {
     validate_service_config(config);
     std::string secret;
     if (config.curve_enabled()) {
         secret = transport::read_key_file(config.curve_secret_key_file);
         // The ZAP handler must be bound before any CURVE server socket exists.
-        zap = std::make_unique<transport::ZapAuthenticator>(io, context, transport::read_allow_list(config.curve_allowed_keys_file));
+        zap = std::make_unique<transport::ZapAuthenticator>(
+            io, context, transport::read_allow_list(config.curve_allowed_keys_file));
     }
 
     if (!config.journal_path.empty()) {
         replay();
-        journal = std::make_unique<files::JournalWriter>(config.journal_path, config.journal_sync,
-                                                  std::chrono::milliseconds(config.journal_sync_interval_ms));
+        journal = std::make_unique<files::JournalWriter>(
+            config.journal_path, config.journal_sync,
+            std::chrono::milliseconds(config.journal_sync_interval_ms));
     }
 
     zmq::socket_t pull(context, zmq::socket_type::pull);
@@ -138,11 +139,12 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
     ingest.emplace(io, std::move(pull));
     snapshot.emplace(io, std::move(router));
     if (!config.endpoints_file.empty()) {
-        files::write_endpoints_file(config.endpoints_file,
-                                    {{"ingest", ingest_at}, {"publish", publish_at}, {"snapshot", snapshot_at}});
+        files::write_endpoints_file(
+            config.endpoints_file,
+            {{"ingest", ingest_at}, {"publish", publish_at}, {"snapshot", snapshot_at}});
     }
-    spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at, publish_at,
-                 snapshot_at, config.curve_enabled() ? "on" : "off",
+    spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at,
+                 publish_at, snapshot_at, config.curve_enabled() ? "on" : "off",
                  config.curve_publish ? ", publish encrypted" : "",
                  config.journal_path.empty() ? "off" : config.journal_path);
 }
@@ -150,7 +152,8 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
 void LiveService::Impl::replay() {
     replaying = true;
     const files::JournalReplayReport report = files::replay_journal(
-        config.journal_path, [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
+        config.journal_path,
+        [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
     replaying = false;
     // A rebuilt match continues its output sequence from the restart time in microseconds since
     // the Unix epoch, not from 1. The run before published fewer updates per match than
@@ -162,11 +165,11 @@ void LiveService::Impl::replay() {
     counters.journal_replayed = report.frames;
     counters.journal_torn_bytes = report.torn_bytes;
     if (!report.torn_detail.empty()) {
-        spdlog::warn("journal {}: {}; cut {} bytes, {} whole frames kept", config.journal_path, report.torn_detail,
-                     report.torn_bytes, report.frames);
+        spdlog::warn("journal {}: {}; cut {} bytes, {} whole frames kept", config.journal_path,
+                     report.torn_detail, report.torn_bytes, report.frames);
     }
-    spdlog::info("journal {}: replayed {} frames into {} matches", config.journal_path, report.frames,
-                 registry.matches().size());
+    spdlog::info("journal {}: replayed {} frames into {} matches", config.journal_path,
+                 report.frames, registry.matches().size());
 }
 
 void LiveService::Impl::start() {
@@ -253,11 +256,13 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
         ++counters.journal_frames;
     }
     touched.clear();
-    const MessageOutcome outcome = registry.handle(*decoded.message, receive_us, received_at, touched);
+    const MessageOutcome outcome =
+        registry.handle(*decoded.message, receive_us, received_at, touched);
     switch (outcome) {
         case MessageOutcome::bad_setup:
             ++counters.bad_setup;
-            spdlog::warn("match {}: setup refused: {}", decoded.message->header.match_id, registry.last_setup_error());
+            spdlog::warn("match {}: setup refused: {}", decoded.message->header.match_id,
+                         registry.last_setup_error());
             break;
         case MessageOutcome::waiting: ++counters.waiting; break;
         case MessageOutcome::waiting_overflow: ++counters.waiting_overflow; break;
@@ -289,12 +294,14 @@ void LiveService::Impl::publish(LiveMatch& m, bool tick, SteadyClock::time_point
     protocol::UpdateMeta meta = meta_of(m);
     if (tick) meta.receive_time_us = 0;
     meta.compute_ns = static_cast<std::uint32_t>(std::min<std::int64_t>(
-        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count(), 0xFFFF'FFFF));
+        std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now() - started).count(),
+        0xFFFF'FFFF));
     meta.publish_time_us = system::wall_clock_us();
     const auto bytes = encoder.encode(meta, outputs);
     const transport::MatchTopic topic = transport::match_topic(meta.match_id);
     // PUB never blocks: past a subscriber's high-water mark ZeroMQ drops for that subscriber.
-    publisher.send(zmq::const_buffer(topic.data(), topic.size()), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(zmq::const_buffer(topic.data(), topic.size()),
+                   zmq::send_flags::sndmore | zmq::send_flags::dontwait);
     publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
     ++(tick ? counters.ticks_published : counters.updates_published);
 }
@@ -318,7 +325,8 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
         }
         const bool delimited = request_frames.size() == 3;
         const zmq::message_t& payload = request_frames.back();
-        const auto wanted = protocol::decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()});
+        const auto wanted =
+            protocol::decode_snapshot_request({payload.data<std::uint8_t>(), payload.size()});
         snapshot_reply.updates.clear();
         snapshot_reply.error.clear();
         const auto add = [this](const LiveMatch& m) {
@@ -341,7 +349,9 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
         for (auto& u : snapshot_reply.updates) u.meta.publish_time_us = now_us;
         const std::vector<std::uint8_t> reply = protocol::encode_snapshot_reply(snapshot_reply);
         socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
-        if (delimited) socket.send(zmq::const_buffer(nullptr, 0), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+        if (delimited)
+            socket.send(zmq::const_buffer(nullptr, 0),
+                        zmq::send_flags::sndmore | zmq::send_flags::dontwait);
         socket.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
     }
 }
@@ -371,8 +381,9 @@ void LiveService::Impl::publish_counters() {
     list_counters(counters, registry.totals(), counter_set.values);
     counter_set.publish_time_us = system::wall_clock_us();
     const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set);
-    publisher.send(zmq::const_buffer(transport::kCountersTopic.data(), transport::kCountersTopic.size()),
-                   zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+    publisher.send(
+        zmq::const_buffer(transport::kCountersTopic.data(), transport::kCountersTopic.size()),
+        zmq::send_flags::sndmore | zmq::send_flags::dontwait);
     publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
     std::string line;
     for (const auto& [name, value] : counter_set.values) {

@@ -15,8 +15,9 @@ LiveMatch* MatchRegistry::find(std::uint64_t match_id) {
     return it == matches_.end() ? nullptr : &it->second;
 }
 
-MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage& message, std::int64_t receive_time_us,
-                                std::chrono::steady_clock::time_point now) {
+MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage& message,
+                                       std::int64_t receive_time_us,
+                                       std::chrono::steady_clock::time_point now) {
     const core::ApplyResult result = m.match.apply(message);
     switch (result.verdict) {
         case core::Verdict::duplicate: return MessageOutcome::duplicate;
@@ -31,9 +32,10 @@ MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage&
     return MessageOutcome::applied;
 }
 
-MessageOutcome MatchRegistry::handle(const core::InboundMessage& message, std::int64_t receive_time_us,
-                              std::chrono::steady_clock::time_point now,
-                              std::vector<std::uint64_t>& touched) {
+MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
+                                     std::int64_t receive_time_us,
+                                     std::chrono::steady_clock::time_point now,
+                                     std::vector<std::uint64_t>& touched) {
     const std::uint64_t id = message.header.match_id;
     if (LiveMatch* m = find(id)) {
         const MessageOutcome outcome = apply_to(*m, message, receive_time_us, now);
@@ -43,7 +45,8 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message, std::i
     const auto* setup = std::get_if<core::MatchSetup>(&message.body);
     if (setup == nullptr) {
         auto& queue = waiting_[id];
-        if ((queue.empty() && waiting_.size() > kMaxWaitingMatches) || queue.size() >= kMaxWaitingPerMatch) {
+        if ((queue.empty() && waiting_.size() > kMaxWaitingMatches) ||
+            queue.size() >= kMaxWaitingPerMatch) {
             if (queue.empty()) waiting_.erase(id);
             return MessageOutcome::waiting_overflow;
         }
@@ -65,7 +68,8 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message, std::i
     touched.push_back(id);
     if (auto queued = waiting_.find(id); queued != waiting_.end()) {
         LiveMatch& created = matches_.at(id);
-        for (const core::InboundMessage& held : queued->second) apply_to(created, held, receive_time_us, now);
+        for (const core::InboundMessage& held : queued->second)
+            apply_to(created, held, receive_time_us, now);
         waiting_count_ -= queued->second.size();
         waiting_.erase(queued);
     }
@@ -73,10 +77,12 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message, std::i
 }
 
 bool MatchRegistry::advance(LiveMatch& m, std::chrono::steady_clock::time_point now) {
-    const auto elapsed = std::chrono::duration_cast<std::chrono::milliseconds>(now - m.anchor_time).count();
+    const auto elapsed =
+        std::chrono::duration_cast<std::chrono::milliseconds>(now - m.anchor_time).count();
     if (elapsed <= 0) return false;
     core::MatchClock target = m.anchor_clock;
-    const std::uint64_t ms = static_cast<std::uint64_t>(target.clock_ms) + static_cast<std::uint64_t>(elapsed);
+    const std::uint64_t ms =
+        static_cast<std::uint64_t>(target.clock_ms) + static_cast<std::uint64_t>(elapsed);
     target.clock_ms = static_cast<std::uint32_t>(std::min<std::uint64_t>(ms, 0xFFFF'FFFFu));
     return m.match.advance_to(target);
 }

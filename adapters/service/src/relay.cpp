@@ -30,7 +30,9 @@ std::span<const std::uint8_t> bytes_of(const zmq::message_t& m) {
 class ShardClient {
 public:
     ShardClient(zmq::context_t& ctx, std::string endpoint, std::chrono::milliseconds timeout)
-        : ctx_(ctx), endpoint_(std::move(endpoint)), timeout_(timeout) { connect(); }
+        : ctx_(ctx), endpoint_(std::move(endpoint)), timeout_(timeout) {
+        connect();
+    }
 
     // The shard's reply, or nothing when it did not answer in time.
     std::optional<zmq::message_t> ask(std::span<const std::uint8_t> request) {
@@ -60,19 +62,22 @@ private:
 class SnapshotRouter {
 public:
     SnapshotRouter(zmq::context_t& ctx, const RelayConfig& config) {
-        for (const auto& ep : config.shard_snapshot) shards_.emplace_back(ctx, ep, config.shard_timeout);
+        for (const auto& ep : config.shard_snapshot)
+            shards_.emplace_back(ctx, ep, config.shard_timeout);
     }
 
     // Answers one request payload with a complete reply payload.
     std::vector<std::uint8_t> answer(std::span<const std::uint8_t> payload) {
         const auto request = proto::decode_snapshot_request(payload);
-        if (!request.ok()) return proto::encode_snapshot_reply({"bad request: " + request.detail, {}});
+        if (!request.ok())
+            return proto::encode_snapshot_reply({"bad request: " + request.detail, {}});
         const std::uint64_t id = *request.value;
         const auto count = static_cast<std::uint32_t>(shards_.size());
         if (id != 0) {
             auto& shard = shards_[proto::shard_of(id, count)];
             auto reply = shard.ask(payload);
-            if (reply) return {reply->data<std::uint8_t>(), reply->data<std::uint8_t>() + reply->size()};
+            if (reply)
+                return {reply->data<std::uint8_t>(), reply->data<std::uint8_t>() + reply->size()};
             return proto::encode_snapshot_reply(
                 {fmt::format("shard {} did not answer", proto::shard_of(id, count)), {}});
         }
@@ -83,8 +88,9 @@ public:
                                        : proto::Decoded<proto::SnapshotReplyContents>{};
             if (!reply || !decoded.ok()) {
                 if (!merged.error.empty()) merged.error += "; ";
-                merged.error += reply ? fmt::format("shard {} sent a bad reply: {}", k, decoded.detail)
-                                      : fmt::format("shard {} did not answer", k);
+                merged.error +=
+                    reply ? fmt::format("shard {} sent a bad reply: {}", k, decoded.detail)
+                          : fmt::format("shard {} did not answer", k);
                 continue;
             }
             for (auto& u : decoded.value->updates) merged.updates.push_back(std::move(u));
@@ -107,7 +113,10 @@ void serve_snapshots(zmq::socket_t& front, SnapshotRouter& router) {
         frames.clear();
         do {
             frames.emplace_back();
-            if (!front.recv(frames.back(), zmq::recv_flags::dontwait)) { frames.pop_back(); break; }
+            if (!front.recv(frames.back(), zmq::recv_flags::dontwait)) {
+                frames.pop_back();
+                break;
+            }
         } while (frames.back().more());
         // Envelope: [peer id] [empty delimiter from REQ peers] payload.
         if (frames.size() < 2 || frames.size() > 3) continue;
@@ -122,9 +131,11 @@ void serve_snapshots(zmq::socket_t& front, SnapshotRouter& router) {
 
 void run_relay(const RelayConfig& config) {
     if (config.shard_publish.empty()) throw std::runtime_error("relay: no shard publish endpoints");
-    if (!config.shard_snapshot.empty() && config.shard_snapshot.size() != config.shard_publish.size())
-        throw std::runtime_error(fmt::format("relay: {} shard publish endpoints but {} snapshot endpoints",
-                                             config.shard_publish.size(), config.shard_snapshot.size()));
+    if (!config.shard_snapshot.empty() &&
+        config.shard_snapshot.size() != config.shard_publish.size())
+        throw std::runtime_error(
+            fmt::format("relay: {} shard publish endpoints but {} snapshot endpoints",
+                        config.shard_publish.size(), config.shard_snapshot.size()));
     zmq::context_t ctx;
     zmq::socket_t upstream(ctx, zmq::socket_type::xsub);
     zmq::socket_t downstream(ctx, zmq::socket_type::xpub);
@@ -146,20 +157,21 @@ void run_relay(const RelayConfig& config) {
     }
 
     const std::string publish_at = downstream.get(zmq::sockopt::last_endpoint);
-    const std::string snapshot_at = snapshot_front ? snapshot_front->get(zmq::sockopt::last_endpoint) : "";
+    const std::string snapshot_at =
+        snapshot_front ? snapshot_front->get(zmq::sockopt::last_endpoint) : "";
     if (!config.endpoints_file.empty())
-        files::write_endpoints_file(config.endpoints_file, {{"publish", publish_at}, {"snapshot", snapshot_at}});
-    spdlog::info("relay: {} shards -> publish {} snapshot {}", config.shard_publish.size(), publish_at,
-                 snapshot_at.empty() ? "(off)" : snapshot_at);
+        files::write_endpoints_file(config.endpoints_file,
+                                    {{"publish", publish_at}, {"snapshot", snapshot_at}});
+    spdlog::info("relay: {} shards -> publish {} snapshot {}", config.shard_publish.size(),
+                 publish_at, snapshot_at.empty() ? "(off)" : snapshot_at);
 
     // The proxy runs on its own thread, steered by a PAIR control socket so SIGTERM stops it.
     zmq::socket_t control_in(ctx, zmq::socket_type::pair);
     zmq::socket_t control_out(ctx, zmq::socket_type::pair);
     control_in.bind("inproc://relay-control");
     control_out.connect("inproc://relay-control");
-    std::thread forwarder([&] {
-        zmq::proxy_steerable(upstream, downstream, zmq::socket_ref(), control_in);
-    });
+    std::thread forwarder(
+        [&] { zmq::proxy_steerable(upstream, downstream, zmq::socket_ref(), control_in); });
     std::thread snapshots;
     if (snapshot_front) snapshots = std::thread([&] { serve_snapshots(*snapshot_front, *router); });
 

@@ -17,42 +17,82 @@ using S = ServiceConfig;
 
 constexpr std::uint64_t kMaxMilliseconds = 3'600'000;
 constexpr std::uint64_t kMaxHighWaterMark = 10'000'000;
-constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info", "warn", "error", "off"};
+constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info",
+                                                        "warn",  "error", "off"};
 
 // The one table of keys.
 const std::array<ConfigKey, 17> kKeys = {{
-    {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint, "PULL socket feeds push to"},
-    {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint, "PUB socket subscribers connect to"},
+    {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
+     "PULL socket feeds push to"},
+    {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
+     "PUB socket subscribers connect to"},
     {"snapshot_endpoint", "--snapshot", ConfigValue::endpoint, &S::snapshot_endpoint,
      "ROUTER socket answering late joiners"},
-    {"endpoints_file", "--endpoints-file", ConfigValue::text, &S::endpoints_file,
-     "where to write the bound endpoints (`ingest=...` lines); use with `*` ports", 0, 0, {}, "none"},
+    {"endpoints_file",
+     "--endpoints-file",
+     ConfigValue::text,
+     &S::endpoints_file,
+     "where to write the bound endpoints (`ingest=...` lines); use with `*` ports",
+     0,
+     0,
+     {},
+     "none"},
     {"tick_interval_ms", "--tick-ms", ConfigValue::whole, &S::tick_interval_ms,
      "republish every live match this often (ms)", 10, kMaxMilliseconds},
     {"counters_interval_ms", "--counters-ms", ConfigValue::whole, &S::counters_interval_ms,
      "counters topic and log line interval (ms)", 100, kMaxMilliseconds},
-    {"journal_path", "--journal", ConfigValue::text, &S::journal_path,
-     "journal file, replayed at start and appended while running; none: no recovery", 0, 0, {}, "none"},
+    {"journal_path",
+     "--journal",
+     ConfigValue::text,
+     &S::journal_path,
+     "journal file, replayed at start and appended while running; none: no recovery",
+     0,
+     0,
+     {},
+     "none"},
     {"journal_sync", "--journal-sync", ConfigValue::choice, &S::journal_sync,
-     "`none` (the OS flushes), `interval`, `every_message` (fsync before applying)", 0, 0, files::kJournalSyncNames},
-    {"journal_sync_interval_ms", "--journal-sync-ms", ConfigValue::whole, &S::journal_sync_interval_ms,
-     "fsync interval for `interval` (ms)", 1, kMaxMilliseconds},
+     "`none` (the OS flushes), `interval`, `every_message` (fsync before applying)", 0, 0,
+     files::kJournalSyncNames},
+    {"journal_sync_interval_ms", "--journal-sync-ms", ConfigValue::whole,
+     &S::journal_sync_interval_ms, "fsync interval for `interval` (ms)", 1, kMaxMilliseconds},
     {"publish_high_water_mark", "--publish-hwm", ConfigValue::whole, &S::publish_high_water_mark,
      "messages queued per subscriber before dropping", 1, kMaxHighWaterMark},
     {"ingest_high_water_mark", "--ingest-hwm", ConfigValue::whole, &S::ingest_high_water_mark,
      "inbound messages queued before feeds wait", 1, kMaxHighWaterMark},
-    {"params_file", "--params", ConfigValue::text, &S::params_file,
-     "model parameter file (adapters/files/params_file.hpp)", 0, 0, {}, "built-in"},
+    {"params_file",
+     "--params",
+     ConfigValue::text,
+     &S::params_file,
+     "model parameter file (adapters/files/params_file.hpp)",
+     0,
+     0,
+     {},
+     "built-in"},
     {"shard", "--shard", ConfigValue::shard, &S::shard,
      "own the match ids of shard K of N (protocol/sharding.hpp); others are counted "
      "(`ingest.not_our_shard`) and dropped"},
-    {"curve_secret_key_file", "--server-secret-key", ConfigValue::text, &S::curve_secret_key_file,
-     "the service's `.secret` file; turns CURVE on for ingest", 0, 0, {}, "none"},
-    {"curve_allowed_keys_file", "--allowed-feed-keys", ConfigValue::text, &S::curve_allowed_keys_file,
-     "feed public keys allowed in, one per line (`#` comments)", 0, 0, {}, "none"},
+    {"curve_secret_key_file",
+     "--server-secret-key",
+     ConfigValue::text,
+     &S::curve_secret_key_file,
+     "the service's `.secret` file; turns CURVE on for ingest",
+     0,
+     0,
+     {},
+     "none"},
+    {"curve_allowed_keys_file",
+     "--allowed-feed-keys",
+     ConfigValue::text,
+     &S::curve_allowed_keys_file,
+     "feed public keys allowed in, one per line (`#` comments)",
+     0,
+     0,
+     {},
+     "none"},
     {"curve_publish", "--encrypt-publish", ConfigValue::flag, &S::curve_publish,
      "CURVE on the publish and snapshot sockets too (any client key)"},
-    {"log_level", "--log-level", ConfigValue::choice, &S::log_level, "how much to log", 0, 0, kLogLevels},
+    {"log_level", "--log-level", ConfigValue::choice, &S::log_level, "how much to log", 0, 0,
+     kLogLevels},
 }};
 
 std::string choice_list(const ConfigKey& key) {
@@ -76,9 +116,7 @@ public:
                     fail("must be an endpoint such as tcp://127.0.0.1:7430");
                 }
                 break;
-            case ConfigValue::shard:
-                try {
-                    protocol::parse_shard_spec(std::string(value));
+            case ConfigValue::shard: try { protocol::parse_shard_spec(std::string(value));
                 } catch (const std::invalid_argument& e) {
                     fail(e.what());
                 }
@@ -92,7 +130,8 @@ public:
 
     void whole(std::uint64_t value) const {
         if (value < key_.lowest || value > key_.highest) {
-            fail(fmt::format("must be between {} and {}, got {}", key_.lowest, key_.highest, value));
+            fail(
+                fmt::format("must be between {} and {}, got {}", key_.lowest, key_.highest, value));
         }
         std::visit(
             [&](auto member) {
@@ -114,9 +153,10 @@ private:
             fail(fmt::format("must be one of {}, got \"{}\"", choice_list(key_), value));
         }
         if (const auto* text = std::get_if<std::string ServiceConfig::*>(&key_.member)) {
-            config_.**text = std::string(value);
+            config_.** text = std::string(value);
         } else {
-            config_.*std::get<files::JournalSync ServiceConfig::*>(key_.member) = static_cast<files::JournalSync>(index);
+            config_.*std::get<files::JournalSync ServiceConfig::*>(key_.member) =
+                static_cast<files::JournalSync>(index);
         }
     }
 
@@ -168,12 +208,14 @@ std::string allowed_text(const ConfigKey& key) {
 
 std::span<const ConfigKey> config_keys() { return kKeys; }
 
-void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text, std::string_view where) {
+void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text,
+                      std::string_view where) {
     const Setter setter(config, key, where);
     if (key.value == ConfigValue::whole) {
         std::uint64_t value = 0;
         const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
-        if (ec != std::errc() || end != text.data() + text.size()) setter.fail("must be a whole number");
+        if (ec != std::errc() || end != text.data() + text.size())
+            setter.fail("must be a whole number");
         setter.whole(value);
     } else if (key.value == ConfigValue::flag) {
         if (text != "true" && text != "false") setter.fail("must be true or false");
@@ -187,7 +229,8 @@ ServiceConfig parse_service_config(const std::string& json_text, const std::stri
     simdjson::dom::parser parser;
     simdjson::dom::element doc;
     if (auto error = parser.parse(json_text).get(doc); error != simdjson::SUCCESS) {
-        throw ConfigError(fmt::format("{}: not valid JSON: {}", origin, simdjson::error_message(error)));
+        throw ConfigError(
+            fmt::format("{}: not valid JSON: {}", origin, simdjson::error_message(error)));
     }
     simdjson::dom::object object;
     if (doc.get_object().get(object) != simdjson::SUCCESS) {
@@ -202,19 +245,22 @@ ServiceConfig parse_service_config(const std::string& json_text, const std::stri
         switch (key->value) {
             case ConfigValue::whole: {
                 std::uint64_t value = 0;
-                if (field.value.get_uint64().get(value) != simdjson::SUCCESS) setter.fail("must be a whole number");
+                if (field.value.get_uint64().get(value) != simdjson::SUCCESS)
+                    setter.fail("must be a whole number");
                 setter.whole(value);
                 break;
             }
             case ConfigValue::flag: {
                 bool value = false;
-                if (field.value.get_bool().get(value) != simdjson::SUCCESS) setter.fail("must be true or false");
+                if (field.value.get_bool().get(value) != simdjson::SUCCESS)
+                    setter.fail("must be true or false");
                 setter.flag(value);
                 break;
             }
             default: {
                 std::string_view value;
-                if (field.value.get_string().get(value) != simdjson::SUCCESS) setter.fail("must be a string");
+                if (field.value.get_string().get(value) != simdjson::SUCCESS)
+                    setter.fail("must be a string");
                 setter.text(value);
             }
         }
@@ -234,10 +280,12 @@ ServiceConfig load_service_config(const std::string& path) {
 
 void validate_service_config(const ServiceConfig& c) {
     if (!c.curve_allowed_keys_file.empty() && !c.curve_enabled()) {
-        throw ConfigError("curve_allowed_keys_file: needs curve_secret_key_file (the server key) too");
+        throw ConfigError(
+            "curve_allowed_keys_file: needs curve_secret_key_file (the server key) too");
     }
     if (c.curve_enabled() && c.curve_allowed_keys_file.empty()) {
-        throw ConfigError("curve_allowed_keys_file: required when CURVE is on (no feed could connect)");
+        throw ConfigError(
+            "curve_allowed_keys_file: required when CURVE is on (no feed could connect)");
     }
     if (c.curve_publish && !c.curve_enabled()) {
         throw ConfigError("curve_publish: needs curve_secret_key_file (the server key) too");
@@ -246,9 +294,11 @@ void validate_service_config(const ServiceConfig& c) {
     const auto clash = [](const std::string& a, const std::string& b) {
         return a == b && a.find('*') == std::string::npos;
     };
-    if (clash(c.ingest_endpoint, c.publish_endpoint) || clash(c.ingest_endpoint, c.snapshot_endpoint) ||
+    if (clash(c.ingest_endpoint, c.publish_endpoint) ||
+        clash(c.ingest_endpoint, c.snapshot_endpoint) ||
         clash(c.publish_endpoint, c.snapshot_endpoint)) {
-        throw ConfigError("snapshot_endpoint: ingest, publish and snapshot need three different endpoints");
+        throw ConfigError(
+            "snapshot_endpoint: ingest, publish and snapshot need three different endpoints");
     }
 }
 
@@ -259,8 +309,8 @@ std::string config_key_help(const ConfigKey& key) {
 std::string config_key_table_markdown() {
     std::string out = "| key | flag | default | allowed | meaning |\n|---|---|---|---|---|\n";
     for (const ConfigKey& key : kKeys) {
-        out += fmt::format("| `{}` | `{}` | {} | {} | {} |\n", key.name, key.flag, default_text(key), allowed_text(key),
-                           key.meaning);
+        out += fmt::format("| `{}` | `{}` | {} | {} | {} |\n", key.name, key.flag,
+                           default_text(key), allowed_text(key), key.meaning);
     }
     return out;
 }

@@ -14,12 +14,15 @@ std::uint64_t ServiceCounters::decode_rejected_total() const noexcept {
 
 void list_counters(const ServiceCounters& s, const core::MatchCounters& e, CounterList& out) {
     out.clear();
-    const auto add = [&out](std::string name, std::uint64_t value) { out.emplace_back(std::move(name), value); };
+    const auto add = [&out](std::string name, std::uint64_t value) {
+        out.emplace_back(std::move(name), value);
+    };
     add("ingest.frames", s.frames_received);
     add("ingest.multipart_dropped", s.multipart_dropped);
     add("ingest.rejected", s.decode_rejected_total());
     for (std::size_t i = 1; i < s.decode_rejected.size(); ++i) {
-        add(std::string("ingest.rejected.") + protocol::decode_error_name(static_cast<protocol::DecodeError>(i)),
+        add(std::string("ingest.rejected.") +
+                protocol::decode_error_name(static_cast<protocol::DecodeError>(i)),
             s.decode_rejected[i]);
     }
     add("ingest.not_our_shard", s.not_our_shard);
@@ -33,7 +36,8 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("engine.rejected", e.rejected);
     for (std::size_t i = 1; i < e.rejected_by_reason.size(); ++i) {
         if (e.rejected_by_reason[i] == 0) continue;  // the reasons that happened
-        add(std::string("engine.rejected.") + reject_reason_name(static_cast<core::RejectReason>(i)),
+        add(std::string("engine.rejected.") +
+                reject_reason_name(static_cast<core::RejectReason>(i)),
             e.rejected_by_reason[i]);
     }
     add("publish.updates", s.updates_published);

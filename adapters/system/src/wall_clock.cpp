@@ -5,7 +5,8 @@
 namespace liveprob::system {
 
 std::int64_t wall_clock_us() noexcept {
-    return std::chrono::duration_cast<std::chrono::microseconds>(std::chrono::system_clock::now().time_since_epoch())
+    return std::chrono::duration_cast<std::chrono::microseconds>(
+               std::chrono::system_clock::now().time_since_epoch())
         .count();
 }
 

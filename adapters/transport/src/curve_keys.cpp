@@ -3,10 +3,10 @@
 #include <fmt/format.h>
 #include <zmq.h>
 
+#include <sys/stat.h>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
-#include <sys/stat.h>
 
 namespace liveprob::transport {
 
@@ -21,8 +21,8 @@ std::string trim(const std::string& s) {
 
 void write_new_file(const std::filesystem::path& path, const std::string& text, mode_t mode) {
     if (std::filesystem::exists(path)) {
-        throw KeyFileError(fmt::format("{}: already exists (remove it first; keys are never overwritten)",
-                                       path.string()));
+        throw KeyFileError(fmt::format(
+            "{}: already exists (remove it first; keys are never overwritten)", path.string()));
     }
     {
         std::ofstream out(path, std::ios::binary);
@@ -55,17 +55,21 @@ std::string public_key_of(const std::string& secret_z85) {
     return std::string(pub.data(), kZ85KeyLength);
 }
 
-void write_key_pair(const CurveKeyPair& pair, const std::string& directory, const std::string& name) {
+void write_key_pair(const CurveKeyPair& pair, const std::string& directory,
+                    const std::string& name) {
     const std::filesystem::path dir(directory);
-    if (!std::filesystem::is_directory(dir)) throw KeyFileError(fmt::format("{}: not a directory", directory));
+    if (!std::filesystem::is_directory(dir))
+        throw KeyFileError(fmt::format("{}: not a directory", directory));
     // The secret first, so a refusal to overwrite never leaves a public key without its secret.
     write_new_file(dir / (name + ".secret"), pair.secret_z85, S_IRUSR | S_IWUSR);
-    write_new_file(dir / (name + ".public"), pair.public_z85, S_IRUSR | S_IWUSR | S_IRGRP | S_IROTH);
+    write_new_file(dir / (name + ".public"), pair.public_z85,
+                   S_IRUSR | S_IWUSR | S_IRGRP | S_IROTH);
 }
 
 RawKey decode_z85_key(const std::string& z85, const std::string& what) {
     if (z85.size() != kZ85KeyLength) {
-        throw KeyFileError(fmt::format("{}: must be {} Z85 characters, got {}", what, kZ85KeyLength, z85.size()));
+        throw KeyFileError(
+            fmt::format("{}: must be {} Z85 characters, got {}", what, kZ85KeyLength, z85.size()));
     }
     RawKey raw{};
     if (zmq_z85_decode(raw.data(), z85.c_str()) == nullptr) {

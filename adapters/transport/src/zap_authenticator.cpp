@@ -68,7 +68,8 @@ void ZapAuthenticator::answer(zmq::socket_t& socket) {
         } else {
             why = "unknown domain";
         }
-        if (allow) ++accepted_; else ++refused_;
+        if (allow) ++accepted_;
+        else ++refused_;
         if (!allow) {
             spdlog::warn("refused a {} connection from {} key {}: {}", domain, text(3),
                          printable_key(frames[6 < frames.size() ? 6 : 0]), why);
@@ -77,11 +78,11 @@ void ZapAuthenticator::answer(zmq::socket_t& socket) {
         ++refused_;
     }
     // Reply: version, request id, status code, status text, user id, metadata.
-    const std::array<std::string, 6> reply = {"1.0", text(1), allow ? "200" : "400",
-                                              allow ? "OK" : why, "", ""};
+    const std::array<std::string, 6> reply = {
+        "1.0", text(1), allow ? "200" : "400", allow ? "OK" : why, "", ""};
     for (std::size_t i = 0; i < reply.size(); ++i) {
-        socket.send(zmq::buffer(reply[i]), i + 1 < reply.size() ? zmq::send_flags::sndmore
-                                                                : zmq::send_flags::none);
+        socket.send(zmq::buffer(reply[i]),
+                    i + 1 < reply.size() ? zmq::send_flags::sndmore : zmq::send_flags::none);
     }
 }
 

@@ -49,7 +49,8 @@ struct InvalidEvent : std::runtime_error {
 };
 
 Period to_period(std::int32_t p) {
-    if (p < 0 || p > static_cast<std::int32_t>(Period::finished)) throw InvalidEvent("period outside liveprob_period");
+    if (p < 0 || p > static_cast<std::int32_t>(Period::finished))
+        throw InvalidEvent("period outside liveprob_period");
     return static_cast<Period>(p);
 }
 Side to_side(std::int32_t s) {
@@ -138,15 +139,26 @@ void liveprob_setup_init(liveprob_setup* setup) {
 void liveprob_params_init(liveprob_params* c) {
     if (!c) return;
     const ModelParams p;
-    *c = liveprob_params{p.timing.first_half_start, p.timing.first_half_end,
-                         p.timing.second_half_start, p.timing.second_half_end,
-                         p.timing.stoppage_factor, p.timing.expected_stoppage_first,
-                         p.timing.expected_stoppage_second, p.timing.extra_time_factor,
-                         p.timing.expected_stoppage_extra, p.score_state.leading,
-                         p.score_state.level, p.score_state.trailing, p.red_cards.own_per_card,
-                         p.red_cards.opponent_per_card, p.red_cards.max_cards,
-                         p.shootout.conversion, p.shootout.first_kicker_edge, p.kappa,
-                         p.xg_weight, p.quadrature_nodes};
+    *c = liveprob_params{p.timing.first_half_start,
+                         p.timing.first_half_end,
+                         p.timing.second_half_start,
+                         p.timing.second_half_end,
+                         p.timing.stoppage_factor,
+                         p.timing.expected_stoppage_first,
+                         p.timing.expected_stoppage_second,
+                         p.timing.extra_time_factor,
+                         p.timing.expected_stoppage_extra,
+                         p.score_state.leading,
+                         p.score_state.level,
+                         p.score_state.trailing,
+                         p.red_cards.own_per_card,
+                         p.red_cards.opponent_per_card,
+                         p.red_cards.max_cards,
+                         p.shootout.conversion,
+                         p.shootout.first_kicker_edge,
+                         p.kappa,
+                         p.xg_weight,
+                         p.quadrature_nodes};
 }
 
 void liveprob_event_init(liveprob_event* event) {
@@ -165,7 +177,8 @@ liveprob_status liveprob_match_create(const liveprob_setup* setup, const livepro
         s.format.extra_time = setup->extra_time != 0;
         s.format.shootout = setup->shootout != 0;
         if (setup->has_first_leg) {
-            s.format.first_leg = FirstLegResult{setup->first_leg_home_goals, setup->first_leg_away_goals};
+            s.format.first_leg =
+                FirstLegResult{setup->first_leg_home_goals, setup->first_leg_away_goals};
         }
         const ModelParams p = params ? to_params(*params) : ModelParams{};
         *out = new liveprob_match{Match(setup->match_id, s, p)};
@@ -176,7 +189,8 @@ liveprob_status liveprob_match_create(const liveprob_setup* setup, const livepro
 liveprob_status liveprob_match_apply(liveprob_match* match, const liveprob_event* event,
                                      liveprob_apply_result* result) {
     return guarded([&] {
-        if (!match || !event) return fail(LIVEPROB_ERR_NULL_ARGUMENT, "match and event are required");
+        if (!match || !event)
+            return fail(LIVEPROB_ERR_NULL_ARGUMENT, "match and event are required");
         InboundMessage m;
         try {
             m.header.match_id = match->engine.match_id();
@@ -188,12 +202,14 @@ liveprob_status liveprob_match_apply(liveprob_match* match, const liveprob_event
             return fail(LIVEPROB_ERR_INVALID_EVENT, e.what());
         }
         const ApplyResult r = match->engine.apply(m);
-        if (result) *result = {static_cast<std::int32_t>(r.verdict), static_cast<std::int32_t>(r.reason)};
+        if (result)
+            *result = {static_cast<std::int32_t>(r.verdict), static_cast<std::int32_t>(r.reason)};
         return LIVEPROB_OK;
     });
 }
 
-liveprob_status liveprob_match_advance(liveprob_match* match, liveprob_clock now, std::int32_t* moved) {
+liveprob_status liveprob_match_advance(liveprob_match* match, liveprob_clock now,
+                                       std::int32_t* moved) {
     return guarded([&] {
         if (!match) return fail(LIVEPROB_ERR_NULL_ARGUMENT, "match is required");
         MatchClock clock;

@@ -22,7 +22,9 @@ std::size_t jump_weights(const JumpCounts& counts, double factor, std::span<doub
     const double c = std::max(counts.scale, 0.0);
     // Ratio P(n+1)/P(n): Poisson c/(n+1); negative binomial (shape+n)/(n+1) · q.
     const double q = poisson ? 0.0 : c / (1.0 + c);
-    auto ratio = [&](double n) { return poisson ? c / (n + 1.0) : (counts.shape + n) / (n + 1.0) * q; };
+    auto ratio = [&](double n) {
+        return poisson ? c / (n + 1.0) : (counts.shape + n) / (n + 1.0) * q;
+    };
     double log_w = poisson ? -c : -counts.shape * std::log1p(c);
     double w = std::exp(log_w);
     double written = 0.0;

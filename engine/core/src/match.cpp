@@ -13,17 +13,18 @@ namespace liveprob::core {
 namespace {
 
 constexpr std::size_t kReservedLog = 16;  // grows (geometrically) past the first messages
-constexpr double kMaxPriorGoals = 10.0;      // the pricing model's own bound
+constexpr double kMaxPriorGoals = 10.0;   // the pricing model's own bound
 
 const PriorMeans& checked_prior(const MatchSetup& setup) {
     if (!setup.prior) {
-        throw std::invalid_argument("match setup has no expected goals (resolve ratings to a prior first)");
+        throw std::invalid_argument(
+            "match setup has no expected goals (resolve ratings to a prior first)");
     }
     const PriorMeans& p = *setup.prior;
     for (double v : {p.home_goals, p.away_goals}) {
         if (!std::isfinite(v) || v <= 0.0 || v > kMaxPriorGoals) {
-            throw std::invalid_argument("match setup prior must be expected goals in (0, 10], got " +
-                                        std::to_string(v));
+            throw std::invalid_argument(
+                "match setup prior must be expected goals in (0, 10], got " + std::to_string(v));
         }
     }
     return p;
@@ -53,10 +54,8 @@ const char* verdict_name(Verdict verdict) noexcept {
 }
 
 Match::Match(std::uint64_t match_id, const MatchSetup& setup, const ModelParams& params)
-    : setup_(setup),
-      fold_(match_id, checked_format(setup), checked_prior(setup), params),
-      model_(params),
-      state_(fold_.initial_state()) {
+    : setup_(setup), fold_(match_id, checked_format(setup), checked_prior(setup), params),
+      model_(params), state_(fold_.initial_state()) {
     log_.reserve(kReservedLog);
     anchor_clock();
 }
@@ -72,7 +71,8 @@ ApplyResult Match::apply(const InboundMessage& message) {
         return {Verdict::rejected, why};
     }
     const std::uint64_t seq = message.header.source_seq;
-    const auto pos = std::lower_bound(log_.begin(), log_.end(), seq,
+    const auto pos = std::lower_bound(
+        log_.begin(), log_.end(), seq,
         [](const LoggedMessage& entry, std::uint64_t s) { return entry.header.source_seq < s; });
     if (pos != log_.end() && pos->header.source_seq == seq) {
         counters_.duplicates += 1;
@@ -159,7 +159,8 @@ PricingState Match::pricing_state() const {
         case MatchStatus::abandoned: ps.clock = priced_clock_; break;
     }
     if (in_play) {
-        const auto& announced = state_.announced_stoppage[static_cast<std::size_t>(state_.period) - 1];
+        const auto& announced =
+            state_.announced_stoppage[static_cast<std::size_t>(state_.period) - 1];
         if (announced) ps.announced_stoppage_minutes = static_cast<double>(*announced);
     }
 
@@ -177,7 +178,8 @@ PricingState Match::pricing_state() const {
         // xG counts as evidence only once the feed reports it (see engine/README.md).
         const std::optional<double> xg =
             state_.xg_reported ? std::optional<double>(state_.xg[i]) : std::nullopt;
-        const StrengthPosterior post = strength_posterior(fold_.params(), ps.goals[i], exposure[i], xg);
+        const StrengthPosterior post =
+            strength_posterior(fold_.params(), ps.goals[i], exposure[i], xg);
         ps.theta_shape[i] = post.shape;
         ps.theta_rate[i] = post.rate;
     }

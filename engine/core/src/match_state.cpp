@@ -45,8 +45,12 @@ bool clock_before(const MatchClock& a, const MatchClock& b) noexcept {
     return a.clock_ms < b.clock_ms;
 }
 
-bool is_playing_period(Period p) noexcept { return p >= Period::first_half && p <= Period::extra_second; }
-bool is_extra_time(Period p) noexcept { return p == Period::extra_first || p == Period::extra_second; }
+bool is_playing_period(Period p) noexcept {
+    return p >= Period::first_half && p <= Period::extra_second;
+}
+bool is_extra_time(Period p) noexcept {
+    return p == Period::extra_first || p == Period::extra_second;
+}
 
 bool shootout_decided(const ShootoutTally& t) noexcept {
     const int home_taken = t.taken[0], away_taken = t.taken[1];

@@ -8,21 +8,22 @@ namespace liveprob::core {
 
 const char* kind_name(const MessageBody& body) noexcept {
     return std::visit(overloaded{
-        [](const MatchSetup&) { return "setup"; },
-        [](const PeriodStart&) { return "period_start"; },
-        [](const PeriodEnd&) { return "period_end"; },
-        [](const Goal&) { return "goal"; },
-        [](const GoalCancelled&) { return "goal_cancelled"; },
-        [](const RedCard&) { return "red_card"; },
-        [](const CardRescinded&) { return "card_rescinded"; },
-        [](const StoppageAnnounced&) { return "stoppage"; },
-        [](const ScoreCorrection&) { return "score_correction"; },
-        [](const ShootoutKick&) { return "shootout_kick"; },
-        [](const ShotXg&) { return "shot_xg"; },
-        [](const MatchAbandoned&) { return "abandoned"; },
-        [](const FinalWhistle&) { return "final_whistle"; },
-        [](const ClockSync&) { return "clock"; },
-    }, body);
+                          [](const MatchSetup&) { return "setup"; },
+                          [](const PeriodStart&) { return "period_start"; },
+                          [](const PeriodEnd&) { return "period_end"; },
+                          [](const Goal&) { return "goal"; },
+                          [](const GoalCancelled&) { return "goal_cancelled"; },
+                          [](const RedCard&) { return "red_card"; },
+                          [](const CardRescinded&) { return "card_rescinded"; },
+                          [](const StoppageAnnounced&) { return "stoppage"; },
+                          [](const ScoreCorrection&) { return "score_correction"; },
+                          [](const ShootoutKick&) { return "shootout_kick"; },
+                          [](const ShotXg&) { return "shot_xg"; },
+                          [](const MatchAbandoned&) { return "abandoned"; },
+                          [](const FinalWhistle&) { return "final_whistle"; },
+                          [](const ClockSync&) { return "clock"; },
+                      },
+                      body);
 }
 
 std::optional<EventBody> event_of(const MessageBody& body) {

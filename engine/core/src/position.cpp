@@ -58,11 +58,14 @@ std::vector<InboundMessage> position_messages(std::uint64_t match_id, const Matc
     for (int reds : position.reds) {
         if (reds < 0 || reds > 5) throw std::invalid_argument("red cards must be 0..5 per side");
     }
-    if (is_extra_time(now) && position.score[0] + (format.first_leg ? format.first_leg->home_goals : 0) !=
-                                  position.score[1] + (format.first_leg ? format.first_leg->away_goals : 0)) {
-        throw std::invalid_argument("extra time is played only when the tie is level after regulation");
+    if (is_extra_time(now) &&
+        position.score[0] + (format.first_leg ? format.first_leg->home_goals : 0) !=
+            position.score[1] + (format.first_leg ? format.first_leg->away_goals : 0)) {
+        throw std::invalid_argument(
+            "extra time is played only when the tie is level after regulation");
     }
-    if (position.stoppage_minutes && (*position.stoppage_minutes < 0 || *position.stoppage_minutes > 30)) {
+    if (position.stoppage_minutes &&
+        (*position.stoppage_minutes < 0 || *position.stoppage_minutes > 30)) {
         throw std::invalid_argument("stoppage must be 0..30 minutes");
     }
 
@@ -72,13 +75,16 @@ std::vector<InboundMessage> position_messages(std::uint64_t match_id, const Matc
     const Period events_period = is_extra_time(now) ? Period::second_half : now;
     auto add_events = [&](MatchClock at) {
         for (Side s : {Side::home, Side::away}) {
-            for (int i = 0; i < position.score[static_cast<std::size_t>(index(s))]; ++i) b.add(Goal{s, false, false}, at);
+            for (int i = 0; i < position.score[static_cast<std::size_t>(index(s))]; ++i)
+                b.add(Goal{s, false, false}, at);
         }
         for (Side s : {Side::home, Side::away}) {
-            for (int i = 0; i < position.reds[static_cast<std::size_t>(index(s))]; ++i) b.add(RedCard{s, false}, at);
+            for (int i = 0; i < position.reds[static_cast<std::size_t>(index(s))]; ++i)
+                b.add(RedCard{s, false}, at);
         }
     };
-    for (Period p = Period::first_half; p <= now; p = static_cast<Period>(static_cast<int>(p) + 1)) {
+    for (Period p = Period::first_half; p <= now;
+         p = static_cast<Period>(static_cast<int>(p) + 1)) {
         b.add(PeriodStart{p}, MatchClock{p, period_start_ms(format, p)});
         if (p == now) break;
         const MatchClock end{p, played_end_ms(format, params, p)};
@@ -87,7 +93,8 @@ std::vector<InboundMessage> position_messages(std::uint64_t match_id, const Matc
     }
     if (events_period == now) add_events(position.clock);
     if (position.stoppage_minutes) {
-        b.add(StoppageAnnounced{now, static_cast<std::uint16_t>(*position.stoppage_minutes)}, position.clock);
+        b.add(StoppageAnnounced{now, static_cast<std::uint16_t>(*position.stoppage_minutes)},
+              position.clock);
     }
     b.add(ClockSync{true}, position.clock);  // anchors the clock at the position's reading
     return std::move(b.messages);
@@ -101,8 +108,8 @@ Match match_at(const MatchPosition& position, const ModelParams& params) {
     for (const auto& m : position_messages(kPositionMatchId, position, params)) {
         const ApplyResult r = match.apply(m);
         if (r.verdict != Verdict::accepted) {
-            throw std::invalid_argument(std::string("position cannot be reached: ") + kind_name(m.body) +
-                                        " " + reject_reason_name(r.reason));
+            throw std::invalid_argument(std::string("position cannot be reached: ") +
+                                        kind_name(m.body) + " " + reject_reason_name(r.reason));
         }
     }
     return match;

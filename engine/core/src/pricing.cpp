@@ -16,9 +16,9 @@
 #include <cmath>
 #include <limits>
 #include <memory>
-#include <utility>
 #include <span>
 #include <stdexcept>
+#include <utility>
 
 #include "liveprob/core/intensity.hpp"
 #include "liveprob/core/jump_counts.hpp"
@@ -77,7 +77,7 @@ SignSplit sign_split(const Pmf& px, const Pmf& py, const Pmf& cy, int offset) {
     SignSplit s;
     for (int x = 0; x < kPmfLength; ++x) {
         const double p = px[at(x)];
-        if (p == 0.0) break;  // the rest of the pmf was dropped as negligible
+        if (p == 0.0) break;             // the rest of the pmf was dropped as negligible
         const int level_y = x + offset;  // Y equal to this gives a level result
         s.home += p * cdf_at(cy, level_y - 1);
         s.level += p * pmf_at(py, level_y);
@@ -107,7 +107,8 @@ struct Phase {
 Phase phase_of(const PricingState& st, const TimingCurve& tc) {
     Phase ph;
     const Period p = st.clock.period;
-    ph.in_shootout = st.status == MatchStatus::shootout || p == Period::shootout || p == Period::finished;
+    ph.in_shootout =
+        st.status == MatchStatus::shootout || p == Period::shootout || p == Period::finished;
     if (ph.in_shootout) return ph;
     if (p == Period::extra_first || p == Period::extra_second) {
         ph.now = tc.remaining_extra_time(st.clock, st.announced_stoppage_minutes);
@@ -193,7 +194,8 @@ public:
         return m;
     }
     // θ_H and θ_A on their own Gauss–Laguerre rules (one node θ = 1 for a known side).
-    static MixtureNodes product(const QuadratureRule& home, const QuadratureRule& away, const PricingState& st) {
+    static MixtureNodes product(const QuadratureRule& home, const QuadratureRule& away,
+                                const PricingState& st) {
         MixtureNodes m;
         m.home_ = &home;
         m.away_ = &away;
@@ -210,7 +212,8 @@ public:
         }
         const int kh = k / away_->count;
         const int ka = k % away_->count;
-        return {home_->weight[at(kh)] * away_->weight[at(ka)], theta(*home_, kh, 0), theta(*away_, ka, 1), kInf};
+        return {home_->weight[at(kh)] * away_->weight[at(ka)], theta(*home_, kh, 0),
+                theta(*away_, ka, 1), kInf};
     }
 
 private:
@@ -255,13 +258,14 @@ struct AdvanceSplit {
 // Scratch for extra_time_after_level, by extra-time jump count k.
 struct ExtraTimeScratch {
     std::array<double, kMaxJumps> weights{};
-    std::array<double, kMaxJumps> value{};  // P(home advances | k jumps from level), shoot-out included
+    // P(home advances | k jumps from level), shoot-out included
+    std::array<double, kMaxJumps> value{};
     std::array<double, kMaxJumps> counts{};
 };
 
 AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, const ClassRates& rates,
-                                    const JumpCounts& regulation, double et_scale, double shootout_home,
-                                    ExtraTimeScratch& x) {
+                                    const JumpCounts& regulation, double et_scale,
+                                    double shootout_home, ExtraTimeScratch& x) {
     AdvanceSplit out;
     if (level_by_jumps.empty()) return out;
     // The count after the most regulation jumps is the widest: its length bounds the extra-time
@@ -282,7 +286,8 @@ AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, cons
     if (regulation.is_poisson()) {  // extra time's count does not depend on regulation's
         double level_mass = 0.0;
         for (double v : level_by_jumps) level_mass += v;
-        add(level_mass, x.weights.data(), jump_weights(regulation.after(0, et_scale), 1.0, x.weights));
+        add(level_mass, x.weights.data(),
+            jump_weights(regulation.after(0, et_scale), 1.0, x.weights));
         return out;
     }
     // Negative binomial: given n regulation jumps the extra-time count is NB(A + n, c2):
@@ -295,14 +300,16 @@ AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, cons
     p[0] = std::exp(-first.shape * std::log1p(first.scale));
     if (p[0] < 1e-280) {  // far outside the model's range: the general (log-space) routine
         for (std::size_t n = 0; n < level_by_jumps.size(); ++n) {
-            const std::size_t kn = jump_weights(regulation.after(static_cast<int>(n), et_scale), 1.0, x.weights);
+            const std::size_t kn =
+                jump_weights(regulation.after(static_cast<int>(n), et_scale), 1.0, x.weights);
             add(level_by_jumps[n], x.weights.data(), std::min(kn, span));
         }
         return out;
     }
     double* ks = x.counts.data();  // k as a double, so that the loop below vectorizes
     for (std::size_t k = 0; k < span; ++k) ks[k] = static_cast<double>(k);
-    for (std::size_t k = 0; k + 1 < span; ++k) p[k + 1] = p[k] * (first.shape + ks[k]) / (ks[k] + 1.0) * q;
+    for (std::size_t k = 0; k + 1 < span; ++k)
+        p[k + 1] = p[k] * (first.shape + ks[k]) / (ks[k] + 1.0) * q;
     for (std::size_t n = 0; n < level_by_jumps.size(); ++n) {
         if (n > 0) {
             const double shape = first.shape + static_cast<double>(n - 1);  // A + n - 1
@@ -321,8 +328,9 @@ struct PricingScratch {
     ScoreChain chain;
     ScoreGrid mix;
     std::array<QuadratureRule, 2> quad{};
-    std::array<std::pair<double, int>, 2> quad_key{std::pair{std::numeric_limits<double>::quiet_NaN(), 0},
-                                                   std::pair{std::numeric_limits<double>::quiet_NaN(), 0}};
+    std::array<std::pair<double, int>, 2> quad_key{
+        std::pair{std::numeric_limits<double>::quiet_NaN(), 0},
+        std::pair{std::numeric_limits<double>::quiet_NaN(), 0}};
     std::array<Pmf, 2> pmf{}, cdf{};
     std::array<Pmf, 2> et_pmf{}, et_cdf{};
     ExtraTimeScratch extra_time;
@@ -352,9 +360,9 @@ void settle_rounding(Outputs& out) {
     auto settle = [](double& p) {
         if (p < 0.0 && p > -1e-12) p = 0.0;
     };
-    for (double* p : {&out.p_home, &out.p_draw, &out.p_away, &out.p_advance_home, &out.p_advance_away,
-                      &out.next_goal_home, &out.next_goal_away, &out.next_goal_none, &out.p_both_score,
-                      &out.tail_mass}) {
+    for (double* p : {&out.p_home, &out.p_draw, &out.p_away, &out.p_advance_home,
+                      &out.p_advance_away, &out.next_goal_home, &out.next_goal_away,
+                      &out.next_goal_none, &out.p_both_score, &out.tail_mass}) {
         settle(*p);
     }
     for (double& p : out.p_over) settle(p);
@@ -395,7 +403,8 @@ PricingModel::PricingModel(const ModelParams& params) : ws_(std::make_unique<Wor
     require(params.kappa > 0.0, "model parameters: kappa must be positive (or infinite)");
     require(params.xg_weight >= 0.0, "model parameters: xg_weight must be non-negative");
     const ScoreStateEffects& s = params.score_state;
-    require(s.leading > 0 && s.level > 0 && s.trailing > 0, "model parameters: score-state multipliers must be positive");
+    require(s.leading > 0 && s.level > 0 && s.trailing > 0,
+            "model parameters: score-state multipliers must be positive");
     require(params.red_cards.own_per_card > 0 && params.red_cards.opponent_per_card > 0 &&
                 params.red_cards.max_cards >= 0,
             "model parameters: red-card multipliers must be positive, max_cards non-negative");
@@ -438,8 +447,9 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
     // Who wins a shoot-out, should the tie come to one (a coin toss if the format has none).
     double shootout_home = 0.5;
     if (st.format.shootout) {
-        shootout_home = st.status == MatchStatus::shootout ? shootout_home_win(prm.shootout, st.shootout)
-                                                           : model.shootout_before_toss;
+        shootout_home = st.status == MatchStatus::shootout
+                            ? shootout_home_win(prm.shootout, st.shootout)
+                            : model.shootout_before_toss;
     }
 
     if (settled(st.status)) {
@@ -461,8 +471,10 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
     ClassRates base;
     for (int c = 0; c < kDiffClasses; ++c) {
         const int d = c - 1;  // home trailing, level, leading
-        base.home[at(c)] = st.prior.home_goals * state_multiplier(prm, Side::home, d, st.reds[0], st.reds[1]);
-        base.away[at(c)] = st.prior.away_goals * state_multiplier(prm, Side::away, -d, st.reds[1], st.reds[0]);
+        base.home[at(c)] =
+            st.prior.home_goals * state_multiplier(prm, Side::home, d, st.reds[0], st.reds[1]);
+        base.away[at(c)] =
+            st.prior.away_goals * state_multiplier(prm, Side::away, -d, st.reds[1], st.reds[0]);
     }
     const bool independent = base.home[0] == base.home[1] && base.home[1] == base.home[2] &&
                              base.away[0] == base.away[1] && base.away[1] == base.away[2];
@@ -470,9 +482,11 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
     // Strengths: both Gamma-distributed (the usual case: the ratio rule), or at least one
     // known (κ = ∞: a product of Gauss–Laguerre rules, one node for a known side).
     const bool ratio_mixture = !std::isinf(st.theta_shape[0]) && !std::isinf(st.theta_shape[1]);
-    const MixtureNodes nodes = ratio_mixture ? MixtureNodes::ratio(model.ratio_nodes(st.theta_shape[0], st.theta_shape[1]), st)
-                                             : MixtureNodes::product(w.nodes(0, st.theta_shape[0], prm.quadrature_nodes),
-                                                                     w.nodes(1, st.theta_shape[1], prm.quadrature_nodes), st);
+    const MixtureNodes nodes =
+        ratio_mixture
+            ? MixtureNodes::ratio(model.ratio_nodes(st.theta_shape[0], st.theta_shape[1]), st)
+            : MixtureNodes::product(w.nodes(0, st.theta_shape[0], prm.quadrature_nodes),
+                                    w.nodes(1, st.theta_shape[1], prm.quadrature_nodes), st);
 
     // Next goal before the end of the current phase: the state holds until then, so per node
     // it is the first of two exponential clocks (with the factor s integrated out in closed
@@ -486,8 +500,9 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
             const double b = base.away[c0] * nd.away_factor;
             const double q = a + b;
             if (!(q > 0.0)) continue;
-            const double any = nd.jump_shape == kInf ? -std::expm1(-q * ph.now)
-                                                     : -std::expm1(-nd.jump_shape * std::log1p(q * ph.now));
+            const double any = nd.jump_shape == kInf
+                                   ? -std::expm1(-q * ph.now)
+                                   : -std::expm1(-nd.jump_shape * std::log1p(q * ph.now));
             home += nd.weight * any * a / q;
             away += nd.weight * any * b / q;
         }
@@ -540,8 +555,10 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
                     if (j >= kPmfLength) break;
                     const double level_mass = ph_[at(i)] * pa_[at(j)];
                     if (level_mass < 1e-300) continue;
-                    goals_pmf(et_h, st.theta_shape[0] + i, st.theta_rate[0] + mean_h, w.et_pmf[0], w.et_cdf[0]);
-                    goals_pmf(et_a, st.theta_shape[1] + j, st.theta_rate[1] + mean_a, w.et_pmf[1], w.et_cdf[1]);
+                    goals_pmf(et_h, st.theta_shape[0] + i, st.theta_rate[0] + mean_h, w.et_pmf[0],
+                              w.et_cdf[0]);
+                    goals_pmf(et_a, st.theta_shape[1] + j, st.theta_rate[1] + mean_a, w.et_pmf[1],
+                              w.et_cdf[1]);
                     const SignSplit et = sign_split(w.et_pmf[0], w.et_pmf[1], w.et_cdf[1], 0);
                     adv_home += level_mass * (et.home + et.level * shootout_home);
                     adv_away += level_mass * (et.away + et.level * (1.0 - shootout_home));
@@ -560,7 +577,7 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
     ScoreGrid& mix = w.mix;
     mix = ScoreGrid{};
     const bool extra_time_follows = out.has_advance && ph.extra_time > 0.0;
-    const int level = 0;  // the tie is level where tie0 + i - j == 0
+    const int level = 0;                        // the tie is level where tie0 + i - j == 0
     double level_home = 0.0, level_away = 0.0;  // a level tie's share of P(advance)
     for (int k = 0; k < nodes.count(); ++k) {
         const MixtureNodes::Node nd = nodes.node(k);
@@ -575,16 +592,18 @@ void PricingModel::price_unsettled(const PricingState& st, Outputs& out) {
         if (!extra_time_follows) continue;
         // Level at full time: extra time from level, its jump count conditioned on the
         // regulation jumps (the strengths persist), then the shoot-out.
-        const AdvanceSplit et = extra_time_after_level(w.chain.level_trace(), r, counts, lam * ph.extra_time,
-                                                       shootout_home, w.extra_time);
+        const AdvanceSplit et = extra_time_after_level(
+            w.chain.level_trace(), r, counts, lam * ph.extra_time, shootout_home, w.extra_time);
         level_home += et.home;
         level_away += et.away;
     }
     summarise(mix, st, out);
     if (out.has_advance) {
         const SignSplit tie = tie_split(mix, tie0);
-        out.p_advance_home = tie.home + (extra_time_follows ? level_home : tie.level * shootout_home);
-        out.p_advance_away = tie.away + (extra_time_follows ? level_away : tie.level * (1.0 - shootout_home));
+        out.p_advance_home =
+            tie.home + (extra_time_follows ? level_home : tie.level * shootout_home);
+        out.p_advance_away =
+            tie.away + (extra_time_follows ? level_away : tie.level * (1.0 - shootout_home));
     }
 }
 

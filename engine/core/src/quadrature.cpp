@@ -16,11 +16,13 @@ using Matrix = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, 0, kMaxQuad
 // Eigen-decomposes the symmetric tridiagonal Jacobi matrix (diagonal `diag`, off-diagonal
 // `sub`) of `count` nodes into the rule: nodes mapped by node_of, weights normalised.
 template <class NodeMap>
-void golub_welsch(const Vector& diag, const Vector& sub, int count, NodeMap node_of, QuadratureRule& out) {
+void golub_welsch(const Vector& diag, const Vector& sub, int count, NodeMap node_of,
+                  QuadratureRule& out) {
     Eigen::SelfAdjointEigenSolver<Matrix> solver;
     Vector sub_used = sub.head(count - 1);
     solver.computeFromTridiagonal(diag, sub_used, Eigen::ComputeEigenvectors);
-    if (solver.info() != Eigen::Success) throw std::runtime_error("quadrature: eigen solver failed");
+    if (solver.info() != Eigen::Success)
+        throw std::runtime_error("quadrature: eigen solver failed");
     out.count = count;
     double total = 0.0;
     for (int k = 0; k < count; ++k) {
@@ -58,7 +60,8 @@ void gamma_quadrature(double shape, int count, QuadratureRule& out) {
     Vector sub(count - 1);
     for (int k = 0; k < count; ++k) diag(k) = 2.0 * k + a + 1.0;
     for (int k = 1; k < count; ++k) sub(k - 1) = std::sqrt(k * (k + a));
-    golub_welsch(diag, sub, count, [](double x) { return x; }, out);
+    golub_welsch(
+        diag, sub, count, [](double x) { return x; }, out);
 }
 
 void beta_quadrature(double a, double b, int count, QuadratureRule& out) {
@@ -91,9 +94,11 @@ void beta_quadrature(double a, double b, int count, QuadratureRule& out) {
     sub(0) = std::sqrt(4.0 * (1.0 + al) * (1.0 + be) / ((2.0 + s) * (2.0 + s) * (3.0 + s)));
     for (int k = 2; k < count; ++k) {
         const double t = 2.0 * k + s;
-        sub(k - 1) = std::sqrt(4.0 * k * (k + al) * (k + be) * (k + s) / (t * t * (t + 1.0) * (t - 1.0)));
+        sub(k - 1) =
+            std::sqrt(4.0 * k * (k + al) * (k + be) * (k + s) / (t * t * (t + 1.0) * (t - 1.0)));
     }
-    golub_welsch(diag, sub, count, [](double x) { return 0.5 * (1.0 + x); }, out);
+    golub_welsch(
+        diag, sub, count, [](double x) { return 0.5 * (1.0 + x); }, out);
 }
 
 }  // namespace liveprob::core

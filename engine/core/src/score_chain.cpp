@@ -47,7 +47,8 @@ public:
     void step() noexcept {
         std::array<double, kSlots> next{};
         for (std::size_t x = 1; x + 1 < kSlots; ++x) {
-            next[x] = stay_[x] * now_[x] + from_below_[x] * now_[x - 1] + from_above_[x] * now_[x + 1];
+            next[x] =
+                stay_[x] * now_[x] + from_below_[x] * now_[x - 1] + from_above_[x] * now_[x + 1];
         }
         now_ = next;
     }
@@ -93,7 +94,8 @@ void uniformized_step(const double* __restrict stay, const double* __restrict fr
     constexpr std::size_t width = kStepWidth;
     const std::size_t end = (std::min(n, kGridSize) + 2) * width;
     for (std::size_t x = width; x < end; ++x) {
-        const double y = std::fma(stay[x], v[x], std::fma(from_home[x], v[x - width], from_away[x] * v[x - 1]));
+        const double y =
+            std::fma(stay[x], v[x], std::fma(from_home[x], v[x - width], from_away[x] * v[x - 1]));
         nv[x] = y;
         acc[x] = std::fma(w, y, acc[x]);
     }
@@ -125,7 +127,8 @@ double ScoreGrid::overflow_total() const noexcept {
 
 void ScoreChain::solve(const ClassRates& rates, int start_diff, double exposure, ScoreGrid& out) {
     out = ScoreGrid{};
-    add(rates, start_diff, JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0, out);
+    add(rates, start_diff, JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0,
+        out);
 }
 
 void ScoreChain::set_step_probabilities(const ClassRates& rates, int start_diff) {
@@ -192,8 +195,8 @@ std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpC
 
     for (std::size_t n = 1; n < jumps; ++n) {
         const double w = weights_[n];
-        uniformized_step(stay_.data(), from_home_.data(), from_away_.data(), now->data(), next->data(),
-                         sum_.data(), w, n);
+        uniformized_step(stay_.data(), from_home_.data(), from_away_.data(), now->data(),
+                         next->data(), sum_.data(), w, n);
         if (trace) {
             const double* nv = next->data();
             double level_mass = 0.0;
@@ -216,7 +219,8 @@ std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpC
     return jumps;
 }
 
-void difference_values(const ClassRates& rates, int start_diff, double level_value, std::span<double> out) {
+void difference_values(const ClassRates& rates, int start_diff, double level_value,
+                       std::span<double> out) {
     // Backwards: u_0 is the value of each difference, u_{n+1} = M u_n with M the one-jump
     // transition matrix, and the answer after n jumps is u_n at the start. One pass per n.
     constexpr int kSlots = 2 * kSpan + 3;  // differences -kSpan .. kSpan, an empty slot either side
@@ -258,8 +262,8 @@ void difference_values(const ClassRates& rates, int start_diff, double level_val
 
 DifferenceOutcome solve_difference(const ClassRates& rates, int start_diff, double exposure) {
     std::array<double, kMaxJumps> weights{};
-    const std::size_t jumps =
-        jump_weights(JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0, weights);
+    const std::size_t jumps = jump_weights(
+        JumpCounts::poisson(rates.max_total() * std::max(exposure, 0.0)), 1.0, weights);
     DifferenceChain chain(rates, start_diff);
     DifferenceOutcome sum;
     for (std::size_t n = 0; n < jumps; ++n) {

@@ -9,14 +9,15 @@ namespace liveprob::core {
 namespace {
 
 struct Kickers {
-    double first = 0.0;   // conversion of the side kicking first
+    double first = 0.0;  // conversion of the side kicking first
     double second = 0.0;
 };
 
 Kickers conversions(const ShootoutParams& p) {
     const Kickers k{p.conversion + p.first_kicker_edge, p.conversion};
     if (!(k.first > 0.0 && k.first < 1.0 && k.second > 0.0 && k.second < 1.0)) {
-        throw std::invalid_argument("shoot-out conversion (with the first-kicker edge) must lie in (0, 1)");
+        throw std::invalid_argument(
+            "shoot-out conversion (with the first-kicker edge) must lie in (0, 1)");
     }
     return k;
 }
@@ -45,8 +46,10 @@ public:
         double* slot = remembered ? &memo_[slot_of(ft, fs, st, ss)] : nullptr;
         if (slot && *slot >= 0.0) return *slot;
         const double p = ft == st  // the first side is due to kick
-            ? k_.first * (*this)(ft + 1, fs + 1, st, ss) + (1.0 - k_.first) * (*this)(ft + 1, fs, st, ss)
-            : k_.second * (*this)(ft, fs, st + 1, ss + 1) + (1.0 - k_.second) * (*this)(ft, fs, st + 1, ss);
+                             ? k_.first * (*this)(ft + 1, fs + 1, st, ss) +
+                                   (1.0 - k_.first) * (*this)(ft + 1, fs, st, ss)
+                             : k_.second * (*this)(ft, fs, st + 1, ss + 1) +
+                                   (1.0 - k_.second) * (*this)(ft, fs, st + 1, ss);
         if (slot) *slot = p;
         return p;
     }
@@ -55,7 +58,9 @@ private:
     static constexpr std::size_t kSide = kShootoutRegularKicks + 1;  // 0 .. 5 kicks taken or scored
     static std::size_t slot_of(int ft, int fs, int st, int ss) {
         return ((static_cast<std::size_t>(ft) * kSide + static_cast<std::size_t>(fs)) * kSide +
-                static_cast<std::size_t>(st)) * kSide + static_cast<std::size_t>(ss);
+                static_cast<std::size_t>(st)) *
+                   kSide +
+               static_cast<std::size_t>(ss);
     }
     Kickers k_;
     std::array<double, kSide * kSide * kSide * kSide> memo_{};

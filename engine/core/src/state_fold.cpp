@@ -65,7 +65,8 @@ struct StateFold::Step {
         const auto added = fold.exposure_until(state, header.clock.clock_ms);
         state.exposure[0] += added[0];
         state.exposure[1] += added[1];
-        if (header.clock.clock_ms > state.clock.clock_ms) state.clock.clock_ms = header.clock.clock_ms;
+        if (header.clock.clock_ms > state.clock.clock_ms)
+            state.clock.clock_ms = header.clock.clock_ms;
     }
 
     bool extra_time_phase() const noexcept {
@@ -107,7 +108,8 @@ struct StateFold::Step {
 
     RejectReason operator()(const PeriodEnd& m) noexcept {
         if (state.status == MatchStatus::not_started) return RejectReason::before_kickoff;
-        if (!state.period_running || m.period != state.period) return RejectReason::period_out_of_order;
+        if (!state.period_running || m.period != state.period)
+            return RejectReason::period_out_of_order;
         if (m.period == Period::shootout) {
             if (!shootout_decided(state.shootout)) return RejectReason::period_out_of_order;
         } else if (const auto why = check_clock(); why != RejectReason::none) {
@@ -134,7 +136,8 @@ struct StateFold::Step {
         GoalRecord* goal = find_record(state.goals_log, m.goal_seq);
         if (!goal) return RejectReason::unknown_goal;
         if (goal->cancelled) return RejectReason::goal_already_cancelled;
-        auto& count = (goal->extra_time ? state.extra_time_goals : state.regulation_goals)[at(goal->side)];
+        auto& count =
+            (goal->extra_time ? state.extra_time_goals : state.regulation_goals)[at(goal->side)];
         if (count <= 0) return RejectReason::score_below_zero;
         // The exposure already counted stays: until the review the match was played in the
         // state with the goal on the board.
@@ -169,7 +172,8 @@ struct StateFold::Step {
     RejectReason operator()(const StoppageAnnounced& m) noexcept {
         if (state.status == MatchStatus::not_started) return RejectReason::before_kickoff;
         if (m.period > state.period) return RejectReason::period_not_started;
-        if (m.period < state.period || !state.period_running) return RejectReason::period_already_over;
+        if (m.period < state.period || !state.period_running)
+            return RejectReason::period_already_over;
         advance_clock();
         state.announced_stoppage[static_cast<std::size_t>(m.period) - 1] = m.minutes;
         return RejectReason::none;
@@ -199,7 +203,8 @@ struct StateFold::Step {
         if (shootout_decided(state.shootout)) return RejectReason::shootout_already_decided;
         auto& tally = state.shootout;
         const bool first_kick = tally.taken[0] + tally.taken[1] == 0;
-        if (!first_kick && m.side != shootout_next_kicker(tally)) return RejectReason::kick_out_of_turn;
+        if (!first_kick && m.side != shootout_next_kicker(tally))
+            return RejectReason::kick_out_of_turn;
         if (first_kick) tally.first = m.side;
         tally.taken[at(m.side)] += 1;
         if (m.scored) tally.scored[at(m.side)] += 1;
@@ -273,14 +278,16 @@ RejectReason StateFold::screen(const InboundMessage& message) const noexcept {
                 const bool ok = std::isfinite(body.xg) && body.xg >= 0.0 && body.xg <= 1.0;
                 return ok ? RejectReason::none : RejectReason::bad_xg;
             } else if constexpr (std::is_same_v<T, PeriodStart> || std::is_same_v<T, PeriodEnd>) {
-                const bool ok = body.period >= Period::first_half && body.period <= Period::shootout;
+                const bool ok =
+                    body.period >= Period::first_half && body.period <= Period::shootout;
                 return ok ? RejectReason::none : RejectReason::unknown_period;
             } else if constexpr (std::is_same_v<T, StoppageAnnounced>) {
                 if (!is_playing_period(body.period)) return RejectReason::unknown_period;
                 return body.minutes > kMaxAnnouncedStoppage ? RejectReason::implausible_stoppage
                                                             : RejectReason::none;
             } else if constexpr (std::is_same_v<T, ScoreCorrection>) {
-                const bool ok = body.home_goals <= kMaxCorrectedGoals && body.away_goals <= kMaxCorrectedGoals;
+                const bool ok =
+                    body.home_goals <= kMaxCorrectedGoals && body.away_goals <= kMaxCorrectedGoals;
                 return ok ? RejectReason::none : RejectReason::implausible_score;
             } else {
                 return RejectReason::none;
@@ -296,7 +303,8 @@ RejectReason StateFold::apply(MatchState& state, const InboundMessage& message) 
     return std::visit(step, message.body);
 }
 
-std::array<double, 2> StateFold::exposure_until(const MatchState& state, std::uint32_t to_ms) const {
+std::array<double, 2> StateFold::exposure_until(const MatchState& state,
+                                                std::uint32_t to_ms) const {
     std::array<double, 2> added{};
     if (state.status != MatchStatus::in_play || to_ms <= state.clock.clock_ms) return added;
     const double stretch = curve_.period_exposure(state.period, state.clock.clock_ms, to_ms);
@@ -304,7 +312,8 @@ std::array<double, 2> StateFold::exposure_until(const MatchState& state, std::ui
     const double lambda[2] = {prior_.home_goals, prior_.away_goals};
     for (Side s : {Side::home, Side::away}) {
         const int diff = s == Side::home ? diff_home : -diff_home;
-        const double m = state_multiplier(params_, s, diff, state.reds[at(s)], state.reds[at(other(s))]);
+        const double m =
+            state_multiplier(params_, s, diff, state.reds[at(s)], state.reds[at(other(s))]);
         added[at(s)] = lambda[at(s)] * m * stretch;
     }
     return added;

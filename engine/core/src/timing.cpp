@@ -33,15 +33,30 @@ TimingCurve::TimingCurve(const TimingProfile& profile, const CompetitionFormat& 
     const double half = format.half_minutes;
     const double extra = format.extra_half_minutes;
     const double et_rate = profile.extra_time_factor * profile.second_half_end;
-    segments_[0] = {0.0, half, profile.first_half_start, profile.first_half_end,
-                    profile.stoppage_factor * profile.first_half_end, profile.expected_stoppage_first};
-    segments_[1] = {half, 2 * half, profile.second_half_start, profile.second_half_end,
+    segments_[0] = {0.0,
+                    half,
+                    profile.first_half_start,
+                    profile.first_half_end,
+                    profile.stoppage_factor * profile.first_half_end,
+                    profile.expected_stoppage_first};
+    segments_[1] = {half,
+                    2 * half,
+                    profile.second_half_start,
+                    profile.second_half_end,
                     profile.stoppage_factor * profile.second_half_end,
                     profile.expected_stoppage_second};
-    segments_[2] = {2 * half, 2 * half + extra, et_rate, et_rate, profile.stoppage_factor * et_rate,
+    segments_[2] = {2 * half,
+                    2 * half + extra,
+                    et_rate,
+                    et_rate,
+                    profile.stoppage_factor * et_rate,
                     profile.expected_stoppage_extra};
-    segments_[3] = {2 * half + extra, 2 * half + 2 * extra, et_rate, et_rate,
-                    profile.stoppage_factor * et_rate, profile.expected_stoppage_extra};
+    segments_[3] = {2 * half + extra,
+                    2 * half + 2 * extra,
+                    et_rate,
+                    et_rate,
+                    profile.stoppage_factor * et_rate,
+                    profile.expected_stoppage_extra};
     // Scale so that a whole regulation match with expected stoppage carries exposure 1: the
     // prior means are then expected regulation goals.
     const double total = whole_period(segments_[0]) + whole_period(segments_[1]);
@@ -60,7 +75,8 @@ const TimingCurve::Segment* TimingCurve::segment(Period p) const noexcept {
 
 // ∫ r over [from, to] minutes of the running clock: linear inside the nominal period, flat at
 // the stoppage rate beyond its end.
-double TimingCurve::segment_integral(const Segment& s, double from_min, double to_min) const noexcept {
+double TimingCurve::segment_integral(const Segment& s, double from_min,
+                                     double to_min) const noexcept {
     const double a = std::max(from_min, s.start_min);
     const double b = to_min;
     if (b <= a) return 0.0;
@@ -88,7 +104,8 @@ double TimingCurve::rest_of_period(const Segment& s, double now_min,
     const double stoppage = announced.has_value() ? std::max(0.0, *announced) : s.expected_stoppage;
     const double now = std::max(now_min, s.start_min);
     // Never less than the overrun: play runs on a little past the board.
-    const double finish = std::max(s.end_min + stoppage, std::max(now, s.end_min) + profile_.overrun_minutes);
+    const double finish =
+        std::max(s.end_min + stoppage, std::max(now, s.end_min) + profile_.overrun_minutes);
     return segment_integral(s, now, finish);
 }
 
@@ -101,7 +118,8 @@ double TimingCurve::rate(MatchClock c) const {
     return s->rate_start + (s->rate_end - s->rate_start) * (t - s->start_min) / span;
 }
 
-double TimingCurve::period_exposure(Period period, std::uint32_t from_ms, std::uint32_t to_ms) const {
+double TimingCurve::period_exposure(Period period, std::uint32_t from_ms,
+                                    std::uint32_t to_ms) const {
     const Segment* s = segment(period);
     if (s == nullptr) return 0.0;
     return segment_integral(*s, minutes(from_ms), minutes(to_ms));
@@ -112,7 +130,8 @@ double TimingCurve::exposure(MatchClock from, MatchClock to) const {
     const Period last_played = extra_time_ ? Period::extra_second : Period::second_half;
     if (to.period > last_played) {  // shoot-out or finished: up to the end of the last period
         const Segment& s = *segment(last_played);
-        to = {last_played, static_cast<std::uint32_t>((s.end_min + s.expected_stoppage) * kMsPerMinute)};
+        to = {last_played,
+              static_cast<std::uint32_t>((s.end_min + s.expected_stoppage) * kMsPerMinute)};
     }
     if (!is_played(from.period) || !is_played(to.period)) return 0.0;
     if (to.period < from.period) return 0.0;
@@ -131,15 +150,13 @@ double TimingCurve::exposure(MatchClock from, MatchClock to) const {
 
 double TimingCurve::remaining_regulation(MatchClock now, std::optional<double> announced) const {
     switch (now.period) {
-        case Period::pre_match:
-            return whole_period(segments_[0]) + whole_period(segments_[1]);
+        case Period::pre_match: return whole_period(segments_[0]) + whole_period(segments_[1]);
         case Period::first_half:
             return rest_of_period(segments_[0], minutes(now.clock_ms), announced) +
                    whole_period(segments_[1]);
         case Period::second_half:
             return rest_of_period(segments_[1], minutes(now.clock_ms), announced);
-        default:
-            return 0.0;
+        default: return 0.0;
     }
 }
 
@@ -148,15 +165,13 @@ double TimingCurve::remaining_extra_time(MatchClock now, std::optional<double> a
     switch (now.period) {
         case Period::pre_match:
         case Period::first_half:
-        case Period::second_half:
-            return whole_period(segments_[2]) + whole_period(segments_[3]);
+        case Period::second_half: return whole_period(segments_[2]) + whole_period(segments_[3]);
         case Period::extra_first:
             return rest_of_period(segments_[2], minutes(now.clock_ms), announced) +
                    whole_period(segments_[3]);
         case Period::extra_second:
             return rest_of_period(segments_[3], minutes(now.clock_ms), announced);
-        default:
-            return 0.0;
+        default: return 0.0;
     }
 }
 

@@ -34,7 +34,8 @@ std::optional<int> parse_iso_date(std::string_view text) noexcept {
     const auto d = digits(text.substr(8, 2));
     if (!y || !m || !d || *m < 1 || *m > 12 || *d < 1) return std::nullopt;
     static constexpr std::array<int, 12> kDays{31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    const int month_days = kDays[static_cast<std::size_t>(*m - 1)] + ((*m == 2 && leap(*y)) ? 1 : 0);
+    const int month_days =
+        kDays[static_cast<std::size_t>(*m - 1)] + ((*m == 2 && leap(*y)) ? 1 : 0);
     if (*d > month_days) return std::nullopt;
     return day_number(*y, *m, *d);
 }

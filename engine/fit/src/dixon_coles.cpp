@@ -4,10 +4,10 @@
 #include "rating_newton.hpp"
 
 #include <algorithm>
-#include <cstdio>
 #include <cmath>
-#include <stdexcept>
+#include <cstdio>
 #include <numeric>
+#include <stdexcept>
 #include <unordered_map>
 
 namespace liveprob::fit {
@@ -53,7 +53,8 @@ using Theta = detail::RatingParams;
 
 std::string shrink_warning(std::string_view name, double weighted, double minimum) {
     char buf[160];
-    std::snprintf(buf, sizeof buf, "only %.1f weighted matches (minimum %.1f); rating shrunk toward the average",
+    std::snprintf(buf, sizeof buf,
+                  "only %.1f weighted matches (minimum %.1f); rating shrunk toward the average",
                   weighted, minimum);
     return "team '" + std::string(name) + "': " + buf;
 }
@@ -73,9 +74,11 @@ Theta moved(const Theta& t, const Theta& step, double f) {
 }
 
 bool finite_ratings(const Ratings& r) {
-    if (!std::isfinite(r.intercept) || !std::isfinite(r.home_advantage) || !std::isfinite(r.rho)) return false;
-    return std::all_of(r.teams.begin(), r.teams.end(),
-                       [](const TeamRating& t) { return std::isfinite(t.attack) && std::isfinite(t.defence); });
+    if (!std::isfinite(r.intercept) || !std::isfinite(r.home_advantage) || !std::isfinite(r.rho))
+        return false;
+    return std::all_of(r.teams.begin(), r.teams.end(), [](const TeamRating& t) {
+        return std::isfinite(t.attack) && std::isfinite(t.defence);
+    });
 }
 
 struct NewtonOutcome {
@@ -121,7 +124,8 @@ std::vector<int> team_groups(const std::vector<RatingGame>& games, int teams) {
     std::iota(parent.begin(), parent.end(), 0);
     auto root = [&](int i) {
         while (parent[static_cast<std::size_t>(i)] != i) {
-            parent[static_cast<std::size_t>(i)] = parent[static_cast<std::size_t>(parent[static_cast<std::size_t>(i)])];
+            parent[static_cast<std::size_t>(i)] =
+                parent[static_cast<std::size_t>(parent[static_cast<std::size_t>(i)])];
             i = parent[static_cast<std::size_t>(i)];
         }
         return i;
@@ -139,9 +143,11 @@ constexpr double kSeparateGroupPrecision = 1e-6;
 
 std::string separate_groups_warning(int groups, int teams_outside) {
     return "the matches split into " + std::to_string(groups) +
-           " groups of teams that never met, directly or through common opponents; ratings compare only "
+           " groups of teams that never met, directly or through common opponents; ratings compare "
+           "only "
            "within a group (the " +
-           std::to_string(teams_outside) + " teams outside the largest group are centred on the average)";
+           std::to_string(teams_outside) +
+           " teams outside the largest group are centred on the average)";
 }
 
 }  // namespace
@@ -149,7 +155,8 @@ std::string separate_groups_warning(int groups, int teams_outside) {
 Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOptions& o) {
     std::optional<int> last_day;
     for (const auto& m : matches)
-        if (!o.as_of_day || m.day < *o.as_of_day) last_day = std::max(last_day.value_or(m.day), m.day);
+        if (!o.as_of_day || m.day < *o.as_of_day)
+            last_day = std::max(last_day.value_or(m.day), m.day);
     if (!last_day) throw std::invalid_argument("no match to fit (all on or after the as-of date?)");
     const int reference_day = o.as_of_day.value_or(*last_day + 1);
 
@@ -226,12 +233,14 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
     std::unordered_map<int, int> group_size;
     for (int g : group) ++group_size[g];
     if (group_size.size() > 1) {
-        const auto largest_group = std::max_element(group_size.begin(), group_size.end(),
-                                                    [](const auto& x, const auto& y) { return x.second < y.second; });
+        const auto largest_group =
+            std::max_element(group_size.begin(), group_size.end(),
+                             [](const auto& x, const auto& y) { return x.second < y.second; });
         for (int i = 0; i < n; ++i)
-            if (group[static_cast<std::size_t>(i)] != largest_group->first) precision[i] += kSeparateGroupPrecision;
-        r.diagnostics.warnings.push_back(separate_groups_warning(static_cast<int>(group_size.size()),
-                                                                 n - largest_group->second));
+            if (group[static_cast<std::size_t>(i)] != largest_group->first)
+                precision[i] += kSeparateGroupPrecision;
+        r.diagnostics.warnings.push_back(separate_groups_warning(
+            static_cast<int>(group_size.size()), n - largest_group->second));
     }
 
     RatingNewtonSystem solver(std::move(games), n, precision);
@@ -262,10 +271,11 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
     r.diagnostics.iterations = iterations;
     r.diagnostics.converged = outcome.converged;
     if (outcome.singular)
-        r.diagnostics.warnings.push_back("the Newton system became singular: the fit stopped early");
+        r.diagnostics.warnings.push_back(
+            "the Newton system became singular: the fit stopped early");
     else if (!outcome.converged)
-        r.diagnostics.warnings.push_back("Newton did not converge in " + std::to_string(o.max_iterations) +
-                                         " iterations");
+        r.diagnostics.warnings.push_back("Newton did not converge in " +
+                                         std::to_string(o.max_iterations) + " iterations");
     r.diagnostics.log_likelihood = solver.log_likelihood(t, rho, false);
 
     Eigen::VectorXd attack_se = Eigen::VectorXd::Zero(n), defence_se = Eigen::VectorXd::Zero(n);
@@ -276,10 +286,11 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
     r.teams.reserve(static_cast<std::size_t>(n));
     for (int i = 0; i < n; ++i) {
         const auto u = static_cast<std::size_t>(i);
-        r.teams.push_back({std::string(names[u]), t.attack[i], t.defence[i], attack_se[i], defence_se[i],
-                           counts[u], weights[u], weights[u] < o.min_matches});
+        r.teams.push_back({std::string(names[u]), t.attack[i], t.defence[i], attack_se[i],
+                           defence_se[i], counts[u], weights[u], weights[u] < o.min_matches});
     }
-    std::sort(r.teams.begin(), r.teams.end(), [](const auto& a, const auto& b) { return a.name < b.name; });
+    std::sort(r.teams.begin(), r.teams.end(),
+              [](const auto& a, const auto& b) { return a.name < b.name; });
     return r;
 }
 

@@ -15,14 +15,15 @@ struct SideAtExtraTime {
     double c = 0.0, a = 0.0, b = 0.0;
 };
 
-std::array<SideAtExtraTime, 2> sides_at_extra_time(const ExtraTimeRecord& r, const core::ScoreStateEffects& m,
-                                                   double kappa) {
+std::array<SideAtExtraTime, 2> sides_at_extra_time(const ExtraTimeRecord& r,
+                                                   const core::ScoreStateEffects& m, double kappa) {
     const std::array<double, kScoreStates> mult{m.leading, m.level, m.trailing};
     std::array<SideAtExtraTime, 2> out{};
     for (std::size_t x = 0; x < 2; ++x) {
         const SideStates& s = r.regulation.sides[x];
         double expected = 0.0;
-        for (std::size_t k = 0; k < kScoreStates; ++k) expected += s.prior * mult[k] * s.exposure[k];
+        for (std::size_t k = 0; k < kScoreStates; ++k)
+            expected += s.prior * mult[k] * s.exposure[k];
         out[x].c = s.prior * m.level;
         out[x].a = kappa + s.total_goals();
         out[x].b = kappa + expected;
@@ -45,8 +46,8 @@ struct Evaluation {
     double value = 0.0, slope = 0.0;
 };
 
-Evaluation evaluate(std::span<const ExtraTimeRecord> records, const std::vector<std::array<SideAtExtraTime, 2>>& sides,
-                    double log_f) {
+Evaluation evaluate(std::span<const ExtraTimeRecord> records,
+                    const std::vector<std::array<SideAtExtraTime, 2>>& sides, double log_f) {
     const double f = std::exp(log_f);
     Evaluation e;
     for (std::size_t i = 0; i < records.size(); ++i) {
@@ -73,9 +74,10 @@ Evaluation evaluate(std::span<const ExtraTimeRecord> records, const std::vector<
 
 }  // namespace
 
-ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records, const core::ScoreStateEffects& effects,
-                                   double kappa) {
-    if (records.empty()) throw std::invalid_argument("no match with extra time to fit its rate factor on");
+ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records,
+                                   const core::ScoreStateEffects& effects, double kappa) {
+    if (records.empty())
+        throw std::invalid_argument("no match with extra time to fit its rate factor on");
     std::vector<std::array<SideAtExtraTime, 2>> sides;
     sides.reserve(records.size());
     ExtraTimeFit out;
@@ -97,7 +99,8 @@ ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records, con
     out.converged = fit.converged;
     for (std::size_t i = 0; i < records.size(); ++i) {
         double log_none = 0.0;
-        for (const SideAtExtraTime& s : sides[i]) log_none += survival(s, out.factor, records[i].extra_time_exposure).log_value;
+        for (const SideAtExtraTime& s : sides[i])
+            log_none += survival(s, out.factor, records[i].extra_time_exposure).log_value;
         out.expected_first_goals += -std::expm1(log_none);
     }
     return out;

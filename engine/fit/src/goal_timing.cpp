@@ -55,7 +55,8 @@ MinuteCounts minute_shares(const core::TimingProfile& p) {
     return s;
 }
 
-StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals, const core::TimingProfile& shape) {
+StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals,
+                                const core::TimingProfile& shape) {
     if (!(stoppage_goals > 0 && stoppage_goals < regulation_goals))
         throw std::invalid_argument("stoppage fit: needs some stoppage-time goals and some others");
     double minutes = 0.0;
@@ -70,7 +71,8 @@ StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals, const 
     out.stoppage_goals = stoppage_goals;
     out.factor = s / (n - s) * minutes / stoppage;
     // d f / d share = A / (B (1 − share)²); var(share) = share (1 − share) / N.
-    out.factor_se = minutes / (stoppage * (1.0 - share) * (1.0 - share)) * std::sqrt(share * (1.0 - share) / n);
+    out.factor_se =
+        minutes / (stoppage * (1.0 - share) * (1.0 - share)) * std::sqrt(share * (1.0 - share) / n);
     return out;
 }
 
@@ -84,7 +86,8 @@ TimingFit fit_goal_timing(const MinuteCounts& counts, const core::TimingProfile&
     out.data_second_half_share /= out.goals;
     Eigen::Vector4d x(std::log(start.first_half_start / start.first_half_end),
                       std::log(start.second_half_start / start.first_half_end),
-                      std::log(start.second_half_end / start.first_half_end), std::log(start.stoppage_factor));
+                      std::log(start.second_half_end / start.first_half_end),
+                      std::log(start.stoppage_factor));
     auto f = [&](const Eigen::Vector4d& v) { return log_likelihood(counts, with(start, v)); };
     // Newton with a central-difference gradient and Hessian (four parameters, smooth).
     auto derivatives = [&](const Eigen::Vector4d& v, Eigen::Vector4d& g, Eigen::Matrix4d& h) {
@@ -96,10 +99,14 @@ TimingFit fit_goal_timing(const MinuteCounts& counts, const core::TimingProfile&
             g[i] = (f(up) - f(down)) / (2 * e);
             for (int j = 0; j < 4; ++j) {
                 Eigen::Vector4d pp = v, pm = v, mp = v, mm = v;
-                pp[i] += e; pp[j] += e;
-                pm[i] += e; pm[j] -= e;
-                mp[i] -= e; mp[j] += e;
-                mm[i] -= e; mm[j] -= e;
+                pp[i] += e;
+                pp[j] += e;
+                pm[i] += e;
+                pm[j] -= e;
+                mp[i] -= e;
+                mp[j] += e;
+                mm[i] -= e;
+                mm[j] -= e;
                 h(i, j) = (f(pp) - f(pm) - f(mp) + f(mm)) / (4 * e * e);
             }
         }
@@ -133,7 +140,8 @@ TimingFit fit_goal_timing(const MinuteCounts& counts, const core::TimingProfile&
         Eigen::Vector4d up = x, down = x;
         up[i] += 1e-6;
         down[i] -= 1e-6;
-        grad[i] = (second_half_share(with(start, up)) - second_half_share(with(start, down))) / 2e-6;
+        grad[i] =
+            (second_half_share(with(start, up)) - second_half_share(with(start, down))) / 2e-6;
     }
     out.second_half_share_se = std::sqrt(grad.dot(cov * grad));
     return out;

@@ -30,30 +30,36 @@ struct Bucket {
 Bucket bucket_of(int minute, const core::TimingCurve& curve) {
     minute = std::max(minute, 1);
     const core::Period period = minute <= 45    ? core::Period::first_half
-                          : minute <= 90  ? core::Period::second_half
-                          : minute <= 105 ? core::Period::extra_first
-                                          : core::Period::extra_second;
+                                : minute <= 90  ? core::Period::second_half
+                                : minute <= 105 ? core::Period::extra_first
+                                                : core::Period::extra_second;
     const int end = static_cast<int>(curve.period_end_minutes(period));
-    if (minute < end) return {minute, exposure_to(curve, period, minute - 1.0), exposure_to(curve, period, minute)};
+    if (minute < end)
+        return {minute, exposure_to(curve, period, minute - 1.0),
+                exposure_to(curve, period, minute)};
     const double stoppage = curve.expected_stoppage_minutes(period);
     return {end, exposure_to(curve, period, end - 1.0), exposure_to(curve, period, end + stoppage)};
 }
 
-std::vector<double> positions(const std::vector<InplayGoal>& goals, const core::TimingCurve& curve) {
+std::vector<double> positions(const std::vector<InplayGoal>& goals,
+                              const core::TimingCurve& curve) {
     std::vector<double> out(goals.size());
     for (std::size_t i = 0; i < goals.size();) {
         const Bucket b = bucket_of(goals[i].minute, curve);
         std::size_t j = i;
         while (j < goals.size() && bucket_of(goals[j].minute, curve).key == b.key) ++j;
         const double k = static_cast<double>(j - i);
-        for (std::size_t g = i; g < j; ++g) out[g] = b.from + (static_cast<double>(g - i) + 0.5) / k * (b.to - b.from);
+        for (std::size_t g = i; g < j; ++g)
+            out[g] = b.from + (static_cast<double>(g - i) + 0.5) / k * (b.to - b.from);
         i = j;
     }
     return out;
 }
 
 ScoreState state_of(int own, int other) {
-    return own > other ? ScoreState::leading : own < other ? ScoreState::trailing : ScoreState::level;
+    return own > other   ? ScoreState::leading
+           : own < other ? ScoreState::trailing
+                         : ScoreState::level;
 }
 
 RegulationRecord regulation_from(const InplayMatch& match, const std::vector<double>& at) {
@@ -83,7 +89,8 @@ RegulationRecord regulation_from(const InplayMatch& match, const std::vector<dou
 
 }  // namespace
 
-std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals, const core::TimingProfile& timing) {
+std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals,
+                                   const core::TimingProfile& timing) {
     return positions(goals, core::TimingCurve(timing, with_extra_time()));
 }
 
@@ -100,7 +107,8 @@ ExtraTimeRecord extra_time_record(const InplayMatch& match, const core::TimingPr
     r.regulation = regulation_from(match, at);
     const double start = 1.0;
     const double end =
-        exposure_to(curve, core::Period::extra_second, 120.0 + curve.expected_stoppage_minutes(core::Period::extra_second));
+        exposure_to(curve, core::Period::extra_second,
+                    120.0 + curve.expected_stoppage_minutes(core::Period::extra_second));
     r.extra_time_exposure = end - start;
     r.exposure_to_first_goal = end - start;
     for (std::size_t i = 0; i < match.goals.size(); ++i) {

@@ -10,7 +10,8 @@ namespace {
 std::vector<double> shin_fair(std::span<const double> quoted, double booksum, double z) {
     std::vector<double> p(quoted.size());
     for (std::size_t i = 0; i < quoted.size(); ++i)
-        p[i] = (std::sqrt(z * z + 4.0 * (1.0 - z) * quoted[i] * quoted[i] / booksum) - z) / (2.0 * (1.0 - z));
+        p[i] = (std::sqrt(z * z + 4.0 * (1.0 - z) * quoted[i] * quoted[i] / booksum) - z) /
+               (2.0 * (1.0 - z));
     return p;
 }
 
@@ -35,14 +36,16 @@ FairProbabilities remove_margin(std::span<const double> prices, MarginMethod met
         return out;
     }
     if (booksum < 1.0 - 1e-9)
-        throw std::invalid_argument("the prices sum to less than 1 (sum of 1/price below 1): Shin needs a margin");
+        throw std::invalid_argument(
+            "the prices sum to less than 1 (sum of 1/price below 1): Shin needs a margin");
     if (booksum <= 1.0) {  // a fair book (up to rounding): no insiders
         for (double q : quoted) out.p.push_back(q / booksum);
         return out;
     }
     // Σ p_i(z) falls from booksum (z = 0) as z grows; find where it crosses 1.
     double lo = 0.0, hi = 1.0 - 1e-12;
-    if (total(shin_fair(quoted, booksum, hi)) > 1.0) throw std::invalid_argument("Shin: no insider share fits these prices");
+    if (total(shin_fair(quoted, booksum, hi)) > 1.0)
+        throw std::invalid_argument("Shin: no insider share fits these prices");
     for (int i = 0; i < 200 && hi - lo > 1e-17; ++i) {
         const double mid = 0.5 * (lo + hi);
         (total(shin_fair(quoted, booksum, mid)) > 1.0 ? lo : hi) = mid;
@@ -56,7 +59,8 @@ FairProbabilities remove_margin(std::span<const double> prices, MarginMethod met
 
 std::vector<double> shin_quoted_probabilities(std::span<const double> fair, double z) {
     std::vector<double> root(fair.size());
-    for (std::size_t i = 0; i < fair.size(); ++i) root[i] = std::sqrt(z * fair[i] + (1.0 - z) * fair[i] * fair[i]);
+    for (std::size_t i = 0; i < fair.size(); ++i)
+        root[i] = std::sqrt(z * fair[i] + (1.0 - z) * fair[i] * fair[i]);
     const double s = total(root);
     for (double& r : root) r *= s;
     return root;

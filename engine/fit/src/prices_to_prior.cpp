@@ -46,7 +46,8 @@ PreMatchProbabilities independent_poisson(double lh, double la, std::optional<do
         // Total goals ~ Poisson(λ_H + λ_A).
         const auto total = poisson_pmf(lh + la);
         double at_most = 0.0;
-        for (std::size_t k = 0; k < total.size() && static_cast<double>(k) <= *total_line; ++k) at_most += total[k];
+        for (std::size_t k = 0; k < total.size() && static_cast<double>(k) <= *total_line; ++k)
+            at_most += total[k];
         out.over = 1.0 - at_most;
     }
     return out;
@@ -54,7 +55,8 @@ PreMatchProbabilities independent_poisson(double lh, double la, std::optional<do
 
 PreMatchModel independent_poisson_model() { return independent_poisson; }
 
-PriorFromPrices prior_from_prices(const PriceBook& book, MarginMethod method, const PreMatchModel& model) {
+PriorFromPrices prior_from_prices(const PriceBook& book, MarginMethod method,
+                                  const PreMatchModel& model) {
     PriorFromPrices out;
     const std::array<double, 3> prices{book.home, book.draw, book.away};
     const FairProbabilities fair = remove_margin(prices, method);
@@ -116,10 +118,12 @@ PriorFromPrices prior_from_prices(const PriceBook& book, MarginMethod method, co
     return out;
 }
 
-PriceBook fair_prices(double lh, double la, std::optional<double> total_line, const PreMatchModel& model) {
+PriceBook fair_prices(double lh, double la, std::optional<double> total_line,
+                      const PreMatchModel& model) {
     const PreMatchProbabilities p = model(lh, la, total_line);
     PriceBook book{1.0 / p.home, 1.0 / p.draw, 1.0 / p.away, std::nullopt};
-    if (total_line) book.total = PriceBook::TotalLine{*total_line, 1.0 / p.over, 1.0 / (1.0 - p.over)};
+    if (total_line)
+        book.total = PriceBook::TotalLine{*total_line, 1.0 / p.over, 1.0 / (1.0 - p.over)};
     return book;
 }
 

@@ -9,14 +9,16 @@ namespace liveprob::fit::detail {
 
 TauSlopes tau_slopes(const RatingGame& g, double lambda, double nu, double rho) {
     const double t = dixon_coles_tau(g.x, g.y, lambda, nu, rho);
-    if (g.x == 0 && g.y == 0) return {-lambda * nu * rho / t, -lambda * nu * rho / t, -lambda * nu / t};
+    if (g.x == 0 && g.y == 0)
+        return {-lambda * nu * rho / t, -lambda * nu * rho / t, -lambda * nu / t};
     if (g.x == 0 && g.y == 1) return {lambda * rho / t, 0.0, lambda / t};
     if (g.x == 1 && g.y == 0) return {0.0, nu * rho / t, nu / t};
     if (g.x == 1 && g.y == 1) return {0.0, 0.0, -1.0 / t};
     return {};
 }
 
-RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams, Eigen::VectorXd precision)
+RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams,
+                                       Eigen::VectorXd precision)
     : games_(std::move(games)), n_(teams), precision_(std::move(precision)) {
     // Every (attacker, defender) pair that occurs, numbered in attacker order through an
     // n × n table (n is at most a few hundred teams).
@@ -38,12 +40,15 @@ RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams,
             }
     }
     pair_start_[n] = static_cast<int>(pair_attacker_.size());
-    has_home_term_ = std::any_of(games_.begin(), games_.end(), [](const RatingGame& g) { return !g.neutral; });
+    has_home_term_ =
+        std::any_of(games_.begin(), games_.end(), [](const RatingGame& g) { return !g.neutral; });
     home_pair_.reserve(games_.size());
     away_pair_.reserve(games_.size());
     for (const auto& g : games_) {
-        home_pair_.push_back(table[static_cast<std::size_t>(g.home) * n + static_cast<std::size_t>(g.away)]);
-        away_pair_.push_back(table[static_cast<std::size_t>(g.away) * n + static_cast<std::size_t>(g.home)]);
+        home_pair_.push_back(
+            table[static_cast<std::size_t>(g.home) * n + static_cast<std::size_t>(g.away)]);
+        away_pair_.push_back(
+            table[static_cast<std::size_t>(g.away) * n + static_cast<std::size_t>(g.home)]);
     }
 }
 
@@ -65,14 +70,15 @@ double RatingNewtonSystem::log_likelihood(const RatingParams& t, double rho, boo
         ll += g.w * term;
     }
     if (penalised)
-        ll -= 0.5 * (precision_.array() * (t.attack.array().square() + t.defence.array().square())).sum();
+        ll -= 0.5 *
+              (precision_.array() * (t.attack.array().square() + t.defence.array().square())).sum();
     return ll;
 }
 
 // One side's linear predictor μ + [h] + a_attacker − d_defender: its score and information
 // added to the gradient and to the blocks A, B (pair, μ and h columns) and K (lower triangle).
-void RatingNewtonSystem::add_side(int attacker, int defender, int pair, bool home_term, double score,
-                                  double info) {
+void RatingNewtonSystem::add_side(int attacker, int defender, int pair, bool home_term,
+                                  double score, double info) {
     const int mu = n_, h = n_ + 1;
     g_a_[attacker] += score;
     g_y_[defender] -= score;
@@ -124,7 +130,8 @@ bool RatingNewtonSystem::assemble(const RatingParams& t, double rho) {
     std::vector<std::pair<int, double>> row;
     for (int i = 0; i < n_; ++i) {
         row.clear();
-        for (int p = pair_start_[static_cast<std::size_t>(i)]; p < pair_start_[static_cast<std::size_t>(i) + 1]; ++p)
+        for (int p = pair_start_[static_cast<std::size_t>(i)];
+             p < pair_start_[static_cast<std::size_t>(i) + 1]; ++p)
             row.emplace_back(pair_defender_[static_cast<std::size_t>(p)], pair_value_[p]);
         row.emplace_back(n_, b_mu_[i]);
         if (b_h_[i] != 0.0) row.emplace_back(n_ + 1, b_h_[i]);
@@ -132,7 +139,8 @@ bool RatingNewtonSystem::assemble(const RatingParams& t, double rho) {
         for (std::size_t x = 0; x < row.size(); ++x) {
             const double vx = row[x].second * inv;
             for (std::size_t z = 0; z <= x; ++z) {
-                const int r = std::max(row[x].first, row[z].first), c = std::min(row[x].first, row[z].first);
+                const int r = std::max(row[x].first, row[z].first),
+                          c = std::min(row[x].first, row[z].first);
                 s(r, c) -= vx * row[z].second;
             }
         }
@@ -189,7 +197,8 @@ RatingNewtonSystem::Vectors RatingNewtonSystem::solve_m(const Vectors& r) const 
 
 RatingParams RatingNewtonSystem::newton_step() const {
     const Vectors z = solve_m({g_a_, g_y_});
-    const Eigen::Vector2d nu = constraint_gram_.partialPivLu().solve(Eigen::Vector2d(z.a.sum(), z.y.head(n_).sum()));
+    const Eigen::Vector2d nu =
+        constraint_gram_.partialPivLu().solve(Eigen::Vector2d(z.a.sum(), z.y.head(n_).sum()));
     RatingParams step;
     step.attack = z.a - nu[0] * z_attack_.a - nu[1] * z_defence_.a;
     const Eigen::VectorXd y = z.y - nu[0] * z_attack_.y - nu[1] * z_defence_.y;
@@ -199,20 +208,21 @@ RatingParams RatingNewtonSystem::newton_step() const {
     return step;
 }
 
-void RatingNewtonSystem::standard_errors(Eigen::VectorXd& attack_se, Eigen::VectorXd& defence_se, double& mu_se,
-                                         double& home_se) const {
+void RatingNewtonSystem::standard_errors(Eigen::VectorXd& attack_se, Eigen::VectorXd& defence_se,
+                                         double& mu_se, double& home_se) const {
     const int m = n_ + 2;
     const Eigen::MatrixXd s_inv = schur_.solve(Eigen::MatrixXd::Identity(m, m));
     // W = (A + ρ11ᵀ)⁻¹B = A⁻¹B − γ (A⁻¹1) uᵀ, dense.
     Eigen::MatrixXd w = Eigen::MatrixXd::Zero(n_, m);
     for (std::size_t p = 0; p < pair_attacker_.size(); ++p)
-        w(pair_attacker_[p], pair_defender_[p]) += pair_value_[static_cast<Eigen::Index>(p)] * a_inv_[pair_attacker_[p]];
+        w(pair_attacker_[p], pair_defender_[p]) +=
+            pair_value_[static_cast<Eigen::Index>(p)] * a_inv_[pair_attacker_[p]];
     w.col(n_) = a_inv_.cwiseProduct(b_mu_);
     w.col(n_ + 1) = a_inv_.cwiseProduct(b_h_);
     w -= gamma_ * a_inv_ * b_transpose_times(a_inv_).transpose();
     // diag M⁻¹: attack block (A + ρ11ᵀ)⁻¹ + W S⁻¹ Wᵀ, (defence, μ, h) block S⁻¹.
-    Eigen::VectorXd diag_a = a_inv_ - gamma_ * a_inv_.cwiseProduct(a_inv_) +
-                             (w * s_inv).cwiseProduct(w).rowwise().sum();
+    Eigen::VectorXd diag_a =
+        a_inv_ - gamma_ * a_inv_.cwiseProduct(a_inv_) + (w * s_inv).cwiseProduct(w).rowwise().sum();
     Eigen::VectorXd diag_y = s_inv.diagonal();
     // Minus the constraint part M⁻¹Cᵀ (C M⁻¹ Cᵀ)⁻¹ C M⁻¹, row by row.
     const Eigen::Matrix2d g_inv = constraint_gram_.inverse();

@@ -76,8 +76,8 @@ private:
     Vectors solve_m(const Vectors& r) const;
     // A⁻¹-with-rank-one: (A + ρ11ᵀ)⁻¹ v.
     Eigen::VectorXd attack_block_solve(const Eigen::VectorXd& v) const;
-    Eigen::VectorXd b_times(const Eigen::VectorXd& y) const;             // B y
-    Eigen::VectorXd b_transpose_times(const Eigen::VectorXd& a) const;   // Bᵀ a
+    Eigen::VectorXd b_times(const Eigen::VectorXd& y) const;            // B y
+    Eigen::VectorXd b_transpose_times(const Eigen::VectorXd& a) const;  // Bᵀ a
 
     std::vector<RatingGame> games_;
     int n_;

@@ -17,7 +17,9 @@ struct Layout {
     bool common = false;
     bool dispersion = true;
     Eigen::Index size() const { return (common ? 1 : kScoreStates) + (dispersion ? 1 : 0); }
-    Eigen::Index beta(std::size_t state) const { return common ? 0 : static_cast<Eigen::Index>(state); }
+    Eigen::Index beta(std::size_t state) const {
+        return common ? 0 : static_cast<Eigen::Index>(state);
+    }
     Eigen::Index log_kappa() const { return common ? 1 : kScoreStates; }
 };
 
@@ -47,12 +49,14 @@ void add_side(const SideStates& side, const Layout& layout, const Values& v, Eva
     for (std::size_t s = 0; s < kScoreStates; ++s) {
         c[s] = side.prior * v.m[s] * side.exposure[s];
         mu += c[s];
-        if (side.goals[s] > 0) e.value += side.goals[s] * std::log(c[s]) - log_factorial(side.goals[s]);
+        if (side.goals[s] > 0)
+            e.value += side.goals[s] * std::log(c[s]) - log_factorial(side.goals[s]);
     }
     const int goals = side.total_goals();
     if (poisson) {
         e.value -= mu;
-        for (std::size_t s = 0; s < kScoreStates; ++s) e.gradient[layout.beta(s)] += side.goals[s] - c[s];
+        for (std::size_t s = 0; s < kScoreStates; ++s)
+            e.gradient[layout.beta(s)] += side.goals[s] - c[s];
         return;
     }
     const double k = v.kappa;
@@ -63,13 +67,15 @@ void add_side(const SideStates& side, const Layout& layout, const Values& v, Eva
     }
     e.value += log_rising - k * std::log1p(mu / k) - goals * std::log(k + mu);
     const double w = (k + goals) / (k + mu);
-    for (std::size_t s = 0; s < kScoreStates; ++s) e.gradient[layout.beta(s)] += side.goals[s] - w * c[s];
+    for (std::size_t s = 0; s < kScoreStates; ++s)
+        e.gradient[layout.beta(s)] += side.goals[s] - w * c[s];
     const double d_kappa = -std::log1p(mu / k) + 1.0 - w + digamma_step;
     e.gradient[layout.log_kappa()] += k * d_kappa;
 }
 
 // −log(1 − P(no regulation goal)): level all match, each side's whole exposure at m_level.
-void add_listing_condition(const RegulationRecord& r, const Layout& layout, const Values& v, Evaluation& e) {
+void add_listing_condition(const RegulationRecord& r, const Layout& layout, const Values& v,
+                           Evaluation& e) {
     double log_p0 = 0.0, d_beta = 0.0, d_log_kappa = 0.0;
     for (const SideStates& side : r.sides) {
         const double a = side.prior * v.m[kLevel] * side.total_exposure();
@@ -89,8 +95,8 @@ void add_listing_condition(const RegulationRecord& r, const Layout& layout, cons
     if (layout.dispersion) e.gradient[layout.log_kappa()] += ratio * d_log_kappa;
 }
 
-Evaluation evaluate(std::span<const RegulationRecord> records, const Layout& layout, const Eigen::VectorXd& x,
-                    bool condition) {
+Evaluation evaluate(std::span<const RegulationRecord> records, const Layout& layout,
+                    const Eigen::VectorXd& x, bool condition) {
     const Values v = values_at(layout, x);
     Evaluation e;
     e.gradient = Eigen::VectorXd::Zero(layout.size());
@@ -102,9 +108,12 @@ Evaluation evaluate(std::span<const RegulationRecord> records, const Layout& lay
     return e;
 }
 
-ScoreStateFit run(std::span<const RegulationRecord> records, const Layout& layout, const ScoreStateFitOptions& o) {
+ScoreStateFit run(std::span<const RegulationRecord> records, const Layout& layout,
+                  const ScoreStateFitOptions& o) {
     detail::SmallProblem problem;
-    problem.value = [&](const Eigen::VectorXd& x) { return evaluate(records, layout, x, o.condition_on_listing).value; };
+    problem.value = [&](const Eigen::VectorXd& x) {
+        return evaluate(records, layout, x, o.condition_on_listing).value;
+    };
     problem.gradient = [&](const Eigen::VectorXd& x) {
         return evaluate(records, layout, x, o.condition_on_listing).gradient;
     };
@@ -116,7 +125,9 @@ ScoreStateFit run(std::span<const RegulationRecord> records, const Layout& layou
     const Values v = values_at(layout, fit.x);
     out.effects = {v.m[0], v.m[1], v.m[2]};
     out.kappa = v.kappa;
-    auto se = [&](Eigen::Index i, double value) { return value * std::sqrt(std::max(fit.covariance(i, i), 0.0)); };
+    auto se = [&](Eigen::Index i, double value) {
+        return value * std::sqrt(std::max(fit.covariance(i, i), 0.0));
+    };
     out.leading_se = se(layout.beta(0), v.m[0]);
     out.level_se = se(layout.beta(1), v.m[1]);
     out.trailing_se = se(layout.beta(2), v.m[2]);
@@ -129,8 +140,9 @@ ScoreStateFit run(std::span<const RegulationRecord> records, const Layout& layou
 
 }  // namespace
 
-double score_state_log_likelihood(std::span<const RegulationRecord> records, const core::ScoreStateEffects& effects,
-                                  double kappa, bool condition_on_listing) {
+double score_state_log_likelihood(std::span<const RegulationRecord> records,
+                                  const core::ScoreStateEffects& effects, double kappa,
+                                  bool condition_on_listing) {
     Layout layout;
     layout.dispersion = std::isfinite(kappa);
     Eigen::VectorXd x(layout.size());
@@ -139,7 +151,8 @@ double score_state_log_likelihood(std::span<const RegulationRecord> records, con
     return evaluate(records, layout, x, condition_on_listing).value;
 }
 
-ScoreStateFit fit_score_state(std::span<const RegulationRecord> records, const ScoreStateFitOptions& o) {
+ScoreStateFit fit_score_state(std::span<const RegulationRecord> records,
+                              const ScoreStateFitOptions& o) {
     int sides = 0, goals = 0, listed = 0;
     for (const RegulationRecord& r : records) {
         for (const SideStates& s : r.sides)
@@ -149,7 +162,9 @@ ScoreStateFit fit_score_state(std::span<const RegulationRecord> records, const S
             }
         listed += r.listed_for_goals ? 1 : 0;
     }
-    if (sides == 0) throw std::invalid_argument("no match with a prior and exposure to fit the score-state effects on");
+    if (sides == 0)
+        throw std::invalid_argument(
+            "no match with a prior and exposure to fit the score-state effects on");
 
     Layout layout;
     layout.common = o.common_multiplier;

@@ -47,8 +47,9 @@ double record_log_likelihood(const ShootoutRecord& r, const core::ShootoutParams
             const auto f = static_cast<std::size_t>(index(first_side));
             return shootout_tally_probability(first, second, s[f], s[1 - f]);
         };
-        const double prob = r.first_kicker ? given_order(*r.first_kicker)
-                                           : 0.5 * (given_order(core::Side::home) + given_order(core::Side::away));
+        const double prob =
+            r.first_kicker ? given_order(*r.first_kicker)
+                           : 0.5 * (given_order(core::Side::home) + given_order(core::Side::away));
         return std::log(prob);
     }
     if (r.first_kicker) {
@@ -66,8 +67,8 @@ double log_likelihood(std::span<const ShootoutRecord> records, const core::Shoot
 
 }  // namespace
 
-double shootout_tally_probability(double first_conversion, double second_conversion, int first_scored,
-                                  int second_scored) {
+double shootout_tally_probability(double first_conversion, double second_conversion,
+                                  int first_scored, int second_scored) {
     if (first_scored < 0 || second_scored < 0) return 0.0;
     // Forward over kicks: the probability of each undecided (first scored, second scored) after
     // each kick, on a grid bounded by the tally (paths that overshoot it cannot end on it); the
@@ -77,7 +78,8 @@ double shootout_tally_probability(double first_conversion, double second_convers
     std::vector<double> live(cells, 0.0), next(cells, 0.0);
     live[0] = 1.0;
     double reached = 0.0;
-    const int rounds = std::max(first_scored, second_scored) + core::kShootoutRegularKicks + kSpareRounds;
+    const int rounds =
+        std::max(first_scored, second_scored) + core::kShootoutRegularKicks + kSpareRounds;
     for (int kick = 0; kick < 2 * rounds; ++kick) {
         const bool first_kicks = kick % 2 == 0;
         const int ft = (kick + 2) / 2, st = (kick + 1) / 2;  // kicks taken once this one is in
@@ -85,16 +87,18 @@ double shootout_tally_probability(double first_conversion, double second_convers
         std::fill(next.begin(), next.end(), 0.0);
         for (int fs = 0; fs <= first_scored; ++fs)
             for (int ss = 0; ss <= second_scored; ++ss) {
-                const double prob = live[static_cast<std::size_t>(fs) * cols + static_cast<std::size_t>(ss)];
+                const double prob =
+                    live[static_cast<std::size_t>(fs) * cols + static_cast<std::size_t>(ss)];
                 if (prob == 0.0) continue;
                 for (const bool scored : {true, false}) {
-                    const int nf = fs + (first_kicks && scored ? 1 : 0), ns = ss + (!first_kicks && scored ? 1 : 0);
+                    const int nf = fs + (first_kicks && scored ? 1 : 0),
+                              ns = ss + (!first_kicks && scored ? 1 : 0);
                     if (nf > first_scored || ns > second_scored) continue;
                     const double q = prob * (scored ? p : 1.0 - p);
                     if (core::shootout_outcome(ft, nf, st, ns) == core::ShootoutOutcome::undecided)
-                        next[static_cast<std::size_t>(nf) * cols + static_cast<std::size_t>(ns)] += q;
-                    else if (nf == first_scored && ns == second_scored)
-                        reached += q;
+                        next[static_cast<std::size_t>(nf) * cols + static_cast<std::size_t>(ns)] +=
+                            q;
+                    else if (nf == first_scored && ns == second_scored) reached += q;
                 }
             }
         live.swap(next);
@@ -102,9 +106,11 @@ double shootout_tally_probability(double first_conversion, double second_convers
     return reached;
 }
 
-ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::ShootoutParams& start) {
+ShootoutFit fit_shootout(std::span<const ShootoutRecord> records,
+                         const core::ShootoutParams& start) {
     const double start_first = start.conversion + start.first_kicker_edge;
-    if (!(start.conversion > 0.0 && start.conversion < 1.0 && start_first > 0.0 && start_first < 1.0))
+    if (!(start.conversion > 0.0 && start.conversion < 1.0 && start_first > 0.0 &&
+          start_first < 1.0))
         throw std::invalid_argument("shoot-out fit: starting conversions must lie in (0, 1)");
     ShootoutFit out;
     out.records = static_cast<int>(records.size());
@@ -116,7 +122,8 @@ ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::Sh
             if (s[0] == s[1] || s[0] < 0 || s[1] < 0)
                 throw std::invalid_argument("shoot-out fit: a tally must have a winner");
             if ((s[0] > s[1] ? core::Side::home : core::Side::away) != r.winner)
-                throw std::invalid_argument("shoot-out fit: the tally's winner is not the record's winner");
+                throw std::invalid_argument(
+                    "shoot-out fit: the tally's winner is not the record's winner");
             ++out.with_tally;
             out.tally_kicks_scored += s[0] + s[1];
             layout.conversion = true;
@@ -135,7 +142,9 @@ ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::Sh
     out.params = start;
     if (layout.size() > 0) {
         detail::SmallProblem problem;
-        problem.value = [&](const Eigen::VectorXd& x) { return log_likelihood(records, layout.params(x)); };
+        problem.value = [&](const Eigen::VectorXd& x) {
+            return log_likelihood(records, layout.params(x));
+        };
         // The tally probabilities are sums over kick paths: differences of the log-likelihood
         // are accurate to about 1e-10 here, which is ample for a two-parameter Newton.
         problem.gradient = [&](const Eigen::VectorXd& x) {
@@ -174,9 +183,12 @@ ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::Sh
             down[i] -= 1e-6;
             const core::ShootoutParams u = layout.params(up), d = layout.params(down);
             d_q[i] = (first_kicker_wins(u.conversion, u.first_kicker_edge) -
-                      first_kicker_wins(d.conversion, d.first_kicker_edge)) / 2e-6;
+                      first_kicker_wins(d.conversion, d.first_kicker_edge)) /
+                     2e-6;
         }
-        auto se = [&](const Eigen::VectorXd& grad) { return std::sqrt(std::max(grad.dot(fit.covariance * grad), 0.0)); };
+        auto se = [&](const Eigen::VectorXd& grad) {
+            return std::sqrt(std::max(grad.dot(fit.covariance * grad), 0.0));
+        };
         out.conversion_se = layout.conversion ? se(d_conversion) : 0.0;
         out.edge_se = layout.edge ? se(d_edge) : 0.0;
         out.first_kicker_win_probability_se = se(d_q);
@@ -184,7 +196,8 @@ ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::Sh
         out.log_likelihood = log_likelihood(records, start);
         out.converged = true;
     }
-    out.first_kicker_win_probability = first_kicker_wins(out.params.conversion, out.params.first_kicker_edge);
+    out.first_kicker_win_probability =
+        first_kicker_wins(out.params.conversion, out.params.first_kicker_edge);
     return out;
 }
 

@@ -27,7 +27,8 @@ SmallFit maximise(const SmallProblem& p, Eigen::VectorXd start) {
         Eigen::VectorXd step = info.ldlt().solve(g);
         // Not an ascent direction (information not positive definite far from the peak):
         // a gradient step instead.
-        if (!step.allFinite() || step.dot(g) <= 0.0) step = g / std::max(info.diagonal().cwiseAbs().maxCoeff(), 1.0);
+        if (!step.allFinite() || step.dot(g) <= 0.0)
+            step = g / std::max(info.diagonal().cwiseAbs().maxCoeff(), 1.0);
         const double largest = step.cwiseAbs().maxCoeff();
         if (largest > p.max_step) step *= p.max_step / largest;
         double f = 1.0;

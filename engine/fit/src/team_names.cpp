@@ -7,7 +7,9 @@
 namespace liveprob::fit {
 
 std::size_t edit_distance(std::string_view a, std::string_view b) {
-    auto lower = [](char c) { return static_cast<char>(std::tolower(static_cast<unsigned char>(c))); };
+    auto lower = [](char c) {
+        return static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+    };
     std::vector<std::size_t> row(b.size() + 1);
     std::iota(row.begin(), row.end(), std::size_t{0});
     for (std::size_t i = 1; i <= a.size(); ++i) {
@@ -35,7 +37,8 @@ std::vector<std::string> closest_names(std::string_view name, const std::vector<
 }
 
 namespace {
-std::string unknown_message(std::string_view what, std::string_view name, const std::vector<std::string>& known) {
+std::string unknown_message(std::string_view what, std::string_view name,
+                            const std::vector<std::string>& known) {
     std::string msg = std::string(what) + " '" + std::string(name) + "' is not in the ratings";
     const auto near = closest_names(name, known);
     if (!near.empty()) {
@@ -46,12 +49,14 @@ std::string unknown_message(std::string_view what, std::string_view name, const 
 }
 }  // namespace
 
-TeamNameResolver::TeamNameResolver(std::vector<std::string> known, std::map<std::string, std::string> aliases)
+TeamNameResolver::TeamNameResolver(std::vector<std::string> known,
+                                   std::map<std::string, std::string> aliases)
     : known_(std::move(known)) {
     std::sort(known_.begin(), known_.end());
     for (auto& [feed, rating] : aliases) {
         if (!std::binary_search(known_.begin(), known_.end(), rating))
-            throw UnknownTeamError(unknown_message("alias target for '" + feed + "':", rating, known_));
+            throw UnknownTeamError(
+                unknown_message("alias target for '" + feed + "':", rating, known_));
         aliases_.emplace(feed, std::move(rating));
     }
 }

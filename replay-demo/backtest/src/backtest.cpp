@@ -45,7 +45,8 @@ void add_up(BacktestResult& total, const MatchReplay& replay, std::size_t timeli
         case ReplayFate::unusable:
             ++total.unusable;
             if (total.problems.size() < kMaxProblemsKept) {
-                total.problems.push_back("match " + std::to_string(replay.match_id) + ": " + replay.problem);
+                total.problems.push_back("match " + std::to_string(replay.match_id) + ": " +
+                                         replay.problem);
             }
             return;
         case ReplayFate::scored: break;
@@ -53,15 +54,20 @@ void add_up(BacktestResult& total, const MatchReplay& replay, std::size_t timeli
     ++total.scored;
     for (int b = 0; b < scoring::kBuckets; ++b) {
         for (int f = 0; f < kForecasters; ++f) {
-            const auto& forecast = replay.forecasts[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
-            if (forecast) total.scores[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)].add(*forecast, replay.result);
+            const auto& forecast =
+                replay.forecasts[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
+            if (forecast)
+                total.scores[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)].add(
+                    *forecast, replay.result);
         }
     }
-    if (replay.timeline && total.timelines.size() < timelines_wanted) total.timelines.push_back(*replay.timeline);
+    if (replay.timeline && total.timelines.size() < timelines_wanted)
+        total.timelines.push_back(*replay.timeline);
 }
 }  // namespace
 
-std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches, const BacktestOptions& options) {
+std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches,
+                                        const BacktestOptions& options) {
     const core::ModelParams baseline = uniform_timing_no_state(options.params);
     std::vector<MatchReplay> replays(matches.size());
     std::atomic<std::size_t> next{0}, done{0};
@@ -69,11 +75,14 @@ std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matche
     const std::size_t timeline_matches = options.timelines ? options.timelines * 2 : 0;
     auto work = [&] {
         for (std::size_t i = next.fetch_add(1); i < matches.size(); i = next.fetch_add(1)) {
-            replays[i] = replay_match(matches[i], options.params, baseline, {i < timeline_matches, options.every_event});
+            replays[i] = replay_match(matches[i], options.params, baseline,
+                                      {i < timeline_matches, options.every_event});
             done.fetch_add(1, std::memory_order_relaxed);
         }
     };
-    const unsigned threads = std::max(1U, std::min<unsigned>(options.threads, static_cast<unsigned>(std::max<std::size_t>(1, matches.size()))));
+    const unsigned threads = std::max(
+        1U, std::min<unsigned>(options.threads,
+                               static_cast<unsigned>(std::max<std::size_t>(1, matches.size()))));
     std::vector<std::jthread> pool;
     if (options.progress) {
         // Every worker gets a thread of its own; the calling thread only reports (it sleeps).
@@ -97,7 +106,8 @@ BacktestResult sum_replays(const std::vector<MatchReplay>& replays, std::size_t 
     return total;
 }
 
-BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options) {
+BacktestResult run_backtest(const std::vector<MatchMessages>& matches,
+                            const BacktestOptions& options) {
     return sum_replays(replay_matches(matches, options), options.timelines);
 }
 

@@ -31,15 +31,20 @@ core::ModelParams uniform_timing_no_state(const core::ModelParams& params) {
 
 namespace {
 
-scoring::Forecast forecast_of(const core::Outputs& out) { return {out.p_home, out.p_draw, out.p_away}; }
+scoring::Forecast forecast_of(const core::Outputs& out) {
+    return {out.p_home, out.p_draw, out.p_away};
+}
 
 // Finite, at least -1e-12 (rounding of 1 - x), summing to 1 within 1e-9.
 bool valid(const core::Outputs& out) {
     const double sum = out.p_home + out.p_draw + out.p_away;
-    return std::isfinite(sum) && std::abs(sum - 1.0) < 1e-9 && std::min({out.p_home, out.p_draw, out.p_away}) >= -1e-12;
+    return std::isfinite(sum) && std::abs(sum - 1.0) < 1e-9 &&
+           std::min({out.p_home, out.p_draw, out.p_away}) >= -1e-12;
 }
 
-double minutes_of(const core::MatchClock& clock) { return static_cast<double>(clock.clock_ms) / 60'000.0; }
+double minutes_of(const core::MatchClock& clock) {
+    return static_cast<double>(clock.clock_ms) / 60'000.0;
+}
 
 void mark(Timeline& timeline, const core::InboundMessage& m) {
     const double minute = minutes_of(m.header.clock);
@@ -57,15 +62,19 @@ void mark(Timeline& timeline, const core::InboundMessage& m) {
 core::MatchClock bucket_clock(const core::CompetitionFormat& format, int bucket) {
     const int minute = scoring::kBucketMinutes[static_cast<std::size_t>(bucket)];
     const auto ms = static_cast<std::uint32_t>(minute) * 60'000U;
-    return {minute <= format.half_minutes ? core::Period::first_half : core::Period::second_half, ms};
+    return {minute <= format.half_minutes ? core::Period::first_half : core::Period::second_half,
+            ms};
 }
 
-bool bucket_passed(const core::MatchClock& bucket, const core::MatchClock& message_clock, bool ends_play) {
-    return clock_before(bucket, message_clock) || (ends_play && !clock_before(message_clock, bucket));
+bool bucket_passed(const core::MatchClock& bucket, const core::MatchClock& message_clock,
+                   bool ends_play) {
+    return clock_before(bucket, message_clock) ||
+           (ends_play && !clock_before(message_clock, bucket));
 }
 
-MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, const core::ModelParams& params,
-                         const core::ModelParams& baseline_params, ReplayChoices choices) {
+MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
+                         const core::ModelParams& params, const core::ModelParams& baseline_params,
+                         ReplayChoices choices) {
     MatchReplay out;
     if (messages.empty() || !std::holds_alternative<core::MatchSetup>(messages.front().body)) {
         out.problem = "no match setup before the feed";
@@ -93,7 +102,8 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, cons
     auto record_bucket = [&](int bucket) {
         auto& slot = out.forecasts[static_cast<std::size_t>(bucket)];
         slot[static_cast<std::size_t>(Forecaster::model)] = forecast_of(evaluate());
-        slot[static_cast<std::size_t>(Forecaster::uniform_timing_no_state)] = forecast_of(baseline->outputs());
+        slot[static_cast<std::size_t>(Forecaster::uniform_timing_no_state)] =
+            forecast_of(baseline->outputs());
     };
     // Kick-off: the pre-match forecast, which the fixed-prior baseline keeps for every bucket.
     record_bucket(0);
@@ -107,8 +117,10 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, cons
             const auto at = bucket_clock(setup.format, next_bucket);
             // A bucket is read before the first message after its minute, or before the end
             // of play that comes exactly at it.
-            const bool ends_play = std::holds_alternative<core::PeriodEnd>(m.body) || std::holds_alternative<core::FinalWhistle>(m.body);
-            if (!bucket_passed(at, m.header.clock, ends_play) || model->outputs().status == core::MatchStatus::finished ||
+            const bool ends_play = std::holds_alternative<core::PeriodEnd>(m.body) ||
+                                   std::holds_alternative<core::FinalWhistle>(m.body);
+            if (!bucket_passed(at, m.header.clock, ends_play) ||
+                model->outputs().status == core::MatchStatus::finished ||
                 model->outputs().status == core::MatchStatus::abandoned) {
                 break;
             }
@@ -117,7 +129,9 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, cons
             if (!(model->priced_clock() == at)) model->advance_to(at);
             if (!(baseline->priced_clock() == at)) baseline->advance_to(at);
             record_bucket(next_bucket++);
-            if (out.timeline) out.timeline->points.push_back({minutes_of(model->priced_clock()), forecast_of(model->outputs())});
+            if (out.timeline)
+                out.timeline->points.push_back(
+                    {minutes_of(model->priced_clock()), forecast_of(model->outputs())});
         }
         const auto verdict = model->apply(m).verdict;
         baseline->apply(m);
@@ -125,21 +139,29 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, cons
         if (verdict == core::Verdict::rejected) ++out.rejected;
         if (verdict == core::Verdict::duplicate) ++out.duplicates;
         if (verdict == core::Verdict::late) ++out.late;
-        if (choices.every_event && (verdict == core::Verdict::accepted || verdict == core::Verdict::late)) evaluate();
-        if (out.timeline && (verdict == core::Verdict::accepted || verdict == core::Verdict::late)) {
+        if (choices.every_event &&
+            (verdict == core::Verdict::accepted || verdict == core::Verdict::late))
+            evaluate();
+        if (out.timeline &&
+            (verdict == core::Verdict::accepted || verdict == core::Verdict::late)) {
             mark(*out.timeline, m);
-            if (model->outputs().status != core::MatchStatus::finished && model->outputs().status != core::MatchStatus::shootout) {
-                out.timeline->points.push_back({minutes_of(m.header.clock), forecast_of(model->outputs())});
+            if (model->outputs().status != core::MatchStatus::finished &&
+                model->outputs().status != core::MatchStatus::shootout) {
+                out.timeline->points.push_back(
+                    {minutes_of(m.header.clock), forecast_of(model->outputs())});
             }
         }
     }
-    for (auto& slot : out.forecasts) slot[static_cast<std::size_t>(Forecaster::fixed_prior)] =
-        slot[static_cast<std::size_t>(Forecaster::model)] ? std::optional<scoring::Forecast>(prior) : std::nullopt;
+    for (auto& slot : out.forecasts)
+        slot[static_cast<std::size_t>(Forecaster::fixed_prior)] =
+            slot[static_cast<std::size_t>(Forecaster::model)]
+                ? std::optional<scoring::Forecast>(prior)
+                : std::nullopt;
 
     const auto status = model->outputs().status;
     out.fate = status == core::MatchStatus::finished    ? ReplayFate::scored
                : status == core::MatchStatus::abandoned ? ReplayFate::abandoned
-                                                  : ReplayFate::unfinished;
+                                                        : ReplayFate::unfinished;
     out.regulation_goals = model->state().regulation_goals;
     out.result = scoring::outcome_of(out.regulation_goals[0], out.regulation_goals[1]);
     return out;

@@ -5,10 +5,10 @@
 #include <stdexcept>
 #include <string_view>
 
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace liveprob::backtest {
 
@@ -28,8 +28,9 @@ void read_frames(std::span<const std::uint8_t> bytes, StreamContents& out) {
         if (decoded.message) {
             out.messages.push_back(std::move(*decoded.message));
         } else {
-            note_problem(out, fmt::format("frame {} at offset {}: {}: {}", frame_number, frame->offset,
-                                          protocol::decode_error_name(decoded.error), decoded.detail));
+            note_problem(out,
+                         fmt::format("frame {} at offset {}: {}: {}", frame_number, frame->offset,
+                                     protocol::decode_error_name(decoded.error), decoded.detail));
         }
     }
     if (cursor.end() != protocol::StreamEnd::clean) note_problem(out, cursor.end_detail());
@@ -59,17 +60,19 @@ StreamContents read_stream(const std::filesystem::path& path) {
     if (protocol::looks_like_frame_stream(bytes)) {
         read_frames(bytes, out);
     } else {
-        read_json_lines(std::string_view(reinterpret_cast<const char*>(bytes.data()), bytes.size()), out);
+        read_json_lines(std::string_view(reinterpret_cast<const char*>(bytes.data()), bytes.size()),
+                        out);
     }
     if (!out.first_problem.empty()) out.first_problem = path.string() + ": " + out.first_problem;
     return out;
 }
 
-void write_stream(const std::filesystem::path& path, const std::vector<core::InboundMessage>& messages,
-                  StreamForm form) {
+void write_stream(const std::filesystem::path& path,
+                  const std::vector<core::InboundMessage>& messages, StreamForm form) {
     std::vector<std::uint8_t> bytes;
     if (form == StreamForm::frames) {
-        for (const auto& m : messages) protocol::append_frame(bytes, protocol::encode_feed_message(m));
+        for (const auto& m : messages)
+            protocol::append_frame(bytes, protocol::encode_feed_message(m));
     } else {
         for (const auto& m : messages) {
             const auto line = protocol::to_json_line(m);

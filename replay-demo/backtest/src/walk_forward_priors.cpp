@@ -3,11 +3,11 @@
 #include <algorithm>
 #include <atomic>
 #include <functional>
-#include <thread>
 #include <limits>
 #include <map>
 #include <optional>
 #include <stdexcept>
+#include <thread>
 
 #include "liveprob/fit/calendar.hpp"
 
@@ -26,9 +26,10 @@ using RefitDays = std::vector<std::pair<int, std::vector<std::size_t>>>;  // as-
 // One chain: the refits of days [begin, end) in order, each warm-started from the one before.
 // Writes the priors of its own fixtures only; its counts go to `counts`.
 void run_chain(std::span<const fit::MatchResult> history, std::span<const FixtureToPrice> fixtures,
-               const WalkForwardOptions& options, const RefitDays& days, std::size_t begin, std::size_t end,
-               int first_result, std::vector<core::PriorMeans>& priors, std::vector<char>& rated, WalkForwardPriors& counts,
-               std::atomic<std::size_t>& done, const std::function<void()>& report) {
+               const WalkForwardOptions& options, const RefitDays& days, std::size_t begin,
+               std::size_t end, int first_result, std::vector<core::PriorMeans>& priors,
+               std::vector<char>& rated, WalkForwardPriors& counts, std::atomic<std::size_t>& done,
+               const std::function<void()>& report) {
     std::optional<fit::Ratings> previous;
     for (std::size_t d = begin; d < end; ++d) {
         const auto& [as_of, members] = days[d];
@@ -46,7 +47,8 @@ void run_chain(std::span<const fit::MatchResult> history, std::span<const Fixtur
         fit_options.start = previous ? &*previous : nullptr;
         try {
             previous = fit::fit_ratings(history, fit_options);
-        } catch (const std::invalid_argument&) {  // nothing usable before the day (all decayed away)
+        } catch (
+            const std::invalid_argument&) {  // nothing usable before the day (all decayed away)
             counts.no_history += members.size();
             previous.reset();
             finished();
@@ -61,7 +63,8 @@ void run_chain(std::span<const fit::MatchResult> history, std::span<const Fixtur
             const fit::TeamRating* away = previous->find(f.away);
             counts.unrated_sides += (home ? 0 : 1) + (away ? 0 : 1);
             rated[i] = home && away && !home->shrunk && !away->shrunk;
-            const auto goals = fit::expected_goals(*previous, home ? *home : average, away ? *away : average, f.neutral);
+            const auto goals = fit::expected_goals(*previous, home ? *home : average,
+                                                   away ? *away : average, f.neutral);
             auto hold = [&](double g) {
                 if (g <= options.max_expected_goals) return g;
                 ++counts.held_at_maximum;
@@ -76,9 +79,11 @@ void run_chain(std::span<const fit::MatchResult> history, std::span<const Fixtur
 }  // namespace
 
 WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
-                                      std::span<const FixtureToPrice> fixtures, const WalkForwardOptions& options) {
+                                      std::span<const FixtureToPrice> fixtures,
+                                      const WalkForwardOptions& options) {
     std::map<int, std::vector<std::size_t>> by_as_of;  // as-of day -> fixtures it prices
-    for (std::size_t i = 0; i < fixtures.size(); ++i) by_as_of[as_of_day(fixtures[i].day, options.schedule)].push_back(i);
+    for (std::size_t i = 0; i < fixtures.size(); ++i)
+        by_as_of[as_of_day(fixtures[i].day, options.schedule)].push_back(i);
     const RefitDays days(by_as_of.begin(), by_as_of.end());
     int first_result = std::numeric_limits<int>::max();
     for (const auto& r : history) first_result = std::min(first_result, r.day);
@@ -86,12 +91,14 @@ WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
     WalkForwardPriors out;
     out.priors.resize(fixtures.size());
     std::vector<char> rated(fixtures.size(), 0);  // not vector<bool>: chains write side by side
-    const std::size_t chains = std::clamp<std::size_t>(options.chains, 1, std::max<std::size_t>(1, days.size()));
+    const std::size_t chains =
+        std::clamp<std::size_t>(options.chains, 1, std::max<std::size_t>(1, days.size()));
     std::vector<WalkForwardPriors> counts(chains);
     std::atomic<std::size_t> done{0};
     auto chain = [&](std::size_t c, const std::function<void()>& report) {
-        run_chain(history, fixtures, options, days, c * days.size() / chains, (c + 1) * days.size() / chains,
-                  first_result, out.priors, rated, counts[c], done, report);
+        run_chain(history, fixtures, options, days, c * days.size() / chains,
+                  (c + 1) * days.size() / chains, first_result, out.priors, rated, counts[c], done,
+                  report);
     };
     // Chains are handed out in order; the calling thread takes one too and reports progress.
     std::atomic<std::size_t> next{0};
@@ -100,7 +107,8 @@ WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
     };
     {
         std::vector<std::jthread> pool;
-        for (unsigned t = 1; t < std::min<std::size_t>(std::max(1U, options.threads), chains); ++t) {
+        for (unsigned t = 1; t < std::min<std::size_t>(std::max(1U, options.threads), chains);
+             ++t) {
             pool.emplace_back([&] { work({}); });
         }
         const std::function<void()> report = [&] {

@@ -14,21 +14,23 @@ namespace {
 
 // Invented towns and club words; syllables for invented player names.
 constexpr std::array<std::string_view, 20> kTowns{
-    "Harrowmere", "Quillby",    "Fenwyck Cross", "Ostrel Vale", "Brindlecombe",
-    "Marrowgate", "Tellhaven",  "Duskmoor",      "Pellingford",  "Castor Bay",
-    "Wrenfield",  "Ashcarrow",  "Lowmere Reach", "Skelby",       "Orrin Falls",
+    "Harrowmere", "Quillby",     "Fenwyck Cross", "Ostrel Vale",   "Brindlecombe",
+    "Marrowgate", "Tellhaven",   "Duskmoor",      "Pellingford",   "Castor Bay",
+    "Wrenfield",  "Ashcarrow",   "Lowmere Reach", "Skelby",        "Orrin Falls",
     "Gallowmere", "Thistlewick", "Varnby",        "Kestrel Point", "Moorvane"};
-constexpr std::array<std::string_view, 10> kClubWords{
-    "Wanderers", "Athletic", "Town", "Harriers", "Albion", "Rovers", "Saints", "Mariners",
-    "Foresters", "Lanterns"};
+constexpr std::array<std::string_view, 10> kClubWords{"Wanderers", "Athletic", "Town",   "Harriers",
+                                                      "Albion",    "Rovers",   "Saints", "Mariners",
+                                                      "Foresters", "Lanterns"};
 constexpr std::array<std::string_view, 16> kGivenSyllables{
-    "Al", "Bre", "Cas", "Dar", "El", "Fen", "Gil", "Hal", "Ivo", "Jas", "Kel", "Lor", "Mar",
-    "Nol", "Oren", "Tav"};
-constexpr std::array<std::string_view, 8> kGivenEndings{"an", "ric", "o", "ey", "en", "is", "us", "im"};
+    "Al",  "Bre", "Cas", "Dar", "El",  "Fen", "Gil",  "Hal",
+    "Ivo", "Jas", "Kel", "Lor", "Mar", "Nol", "Oren", "Tav"};
+constexpr std::array<std::string_view, 8> kGivenEndings{"an", "ric", "o",  "ey",
+                                                        "en", "is",  "us", "im"};
 constexpr std::array<std::string_view, 16> kFamilyStarts{
-    "Ash", "Bram", "Cold", "Dun", "Elm", "Frost", "Grey", "Holl", "Ire", "Kil", "Lang", "Mor",
-    "North", "Pike", "Quar", "Rook"};
-constexpr std::array<std::string_view, 8> kFamilyEndings{"well", "by", "ton", "ridge", "ley", "more", "wick", "stead"};
+    "Ash", "Bram", "Cold", "Dun", "Elm",   "Frost", "Grey", "Holl",
+    "Ire", "Kil",  "Lang", "Mor", "North", "Pike",  "Quar", "Rook"};
+constexpr std::array<std::string_view, 8> kFamilyEndings{"well", "by",   "ton",  "ridge",
+                                                         "ley",  "more", "wick", "stead"};
 
 template <std::size_t N>
 std::string_view pick(const std::array<std::string_view, N>& words, PortableRandom& rng) {
@@ -48,7 +50,8 @@ std::string invented_player(PortableRandom& rng) {
 }  // namespace
 
 std::vector<Fixture> double_round_robin(int clubs) {
-    if (clubs < 2 || clubs % 2 != 0) throw std::invalid_argument("double_round_robin: need an even number of clubs >= 2");
+    if (clubs < 2 || clubs % 2 != 0)
+        throw std::invalid_argument("double_round_robin: need an even number of clubs >= 2");
     // Circle method: club 0 stays, the others rotate one place per round.
     std::vector<int> ring(static_cast<std::size_t>(clubs));
     std::iota(ring.begin(), ring.end(), 0);
@@ -90,7 +93,8 @@ DemoLeague make_demo_league(std::uint64_t seed, int clubs) {
     // The cup: 16 entrants (all clubs when fewer), drawn in random bracket order.
     std::vector<int> order(static_cast<std::size_t>(clubs));
     std::iota(order.begin(), order.end(), 0);
-    for (std::size_t i = order.size(); i > 1; --i) std::swap(order[i - 1], order[static_cast<std::size_t>(rng.below(i))]);
+    for (std::size_t i = order.size(); i > 1; --i)
+        std::swap(order[i - 1], order[static_cast<std::size_t>(rng.below(i))]);
     std::size_t entrants = 1;
     while (entrants * 2 <= order.size() && entrants * 2 <= 16) entrants *= 2;
     order.resize(entrants);

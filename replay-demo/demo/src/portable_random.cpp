@@ -8,8 +8,8 @@ namespace liveprob::demo {
 
 std::uint64_t PortableRandom::below(std::uint64_t n) noexcept {
     if (n <= 1) return 0;
-    const std::uint64_t limit = std::numeric_limits<std::uint64_t>::max() -
-                                std::numeric_limits<std::uint64_t>::max() % n;
+    const std::uint64_t limit =
+        std::numeric_limits<std::uint64_t>::max() - std::numeric_limits<std::uint64_t>::max() % n;
     std::uint64_t draw = engine_();
     while (draw >= limit) draw = engine_();
     return draw % n;

@@ -79,7 +79,8 @@ std::string report_json(const backtest::BacktestResult& r) {
     json.end_array().line_break();
     json.key("buckets").begin_array();
     for (int b = 0; b < scoring::kBuckets; ++b) {
-        json.line_break().begin_object()
+        json.line_break()
+            .begin_object()
             .member("minute", scoring::kBucketMinutes[static_cast<std::size_t>(b)])
             .member("label", scoring::bucket_label(b))
             .member("n", r.at(b, backtest::Forecaster::model).count());

@@ -4,7 +4,7 @@ namespace liveprob::scoring {
 
 std::string_view bucket_label(int bucket) noexcept {
     static constexpr std::array<std::string_view, kBuckets> labels{"0",  "15", "30", "45",
-                                                                    "60", "75", "85", "90+"};
+                                                                   "60", "75", "85", "90+"};
     if (bucket < 0 || bucket >= kBuckets) return "?";
     return labels[static_cast<std::size_t>(bucket)];
 }

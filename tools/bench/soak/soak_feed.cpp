@@ -18,7 +18,8 @@ std::uint64_t dice(std::uint64_t match_id, std::uint64_t j) {
 
 }  // namespace
 
-SoakFeed::SoakFeed(std::uint64_t slots, std::uint64_t events_per_match, std::uint64_t first_match_id)
+SoakFeed::SoakFeed(std::uint64_t slots, std::uint64_t events_per_match,
+                   std::uint64_t first_match_id)
     : slots_(slots), events_per_match_(events_per_match), first_match_id_(first_match_id),
       half_end_(2 + (events_per_match - 6) / 2) {
     if (slots == 0) throw std::invalid_argument("the soak needs at least one match");
@@ -26,7 +27,7 @@ SoakFeed::SoakFeed(std::uint64_t slots, std::uint64_t events_per_match, std::uin
 }
 
 core::InboundMessage SoakFeed::in_play(std::uint64_t match_id, std::uint64_t j, core::Period period,
-                                 std::uint32_t clock_ms) const {
+                                       std::uint32_t clock_ms) const {
     core::InboundMessage m;
     m.header.clock = {period, clock_ms};
     // Per match, on average: 2.7 goals, 0.2 red cards, 25 shots (or a shot every message when
@@ -60,14 +61,15 @@ core::InboundMessage SoakFeed::event(std::uint64_t index) const {
     core::InboundMessage m;
     // Positions: 0 setup, 1 kick-off, 2..half_end-1 first half, half_end its end, then the
     // second half's start, its play, its end (last - 1) and the final whistle (last).
-    const std::uint64_t first_play = half_end_ - 2;            // in-play messages per half (first)
+    const std::uint64_t first_play = half_end_ - 2;  // in-play messages per half (first)
     const std::uint64_t second_play = last - 1 - (half_end_ + 2);  // ... and second
     if (j == 0) {
         core::MatchSetup setup;
         setup.home_name = "Soak Home";
         setup.away_name = "Soak Away";
         const std::uint64_t r = dice(match_id, 0);
-        setup.prior = core::PriorMeans{0.8 + static_cast<double>(r % 97) / 100.0, 0.6 + static_cast<double>(r / 97 % 89) / 100.0};
+        setup.prior = core::PriorMeans{0.8 + static_cast<double>(r % 97) / 100.0,
+                                       0.6 + static_cast<double>(r / 97 % 89) / 100.0};
         m.body = setup;
     } else if (j == 1) {
         m.header.clock = {core::Period::first_half, 0};
@@ -99,7 +101,8 @@ core::InboundMessage SoakFeed::event(std::uint64_t index) const {
 }
 
 std::uint64_t SoakFeed::index_of(std::uint64_t match_id, std::uint64_t source_seq) const noexcept {
-    if (match_id < first_match_id_ || source_seq == 0 || source_seq > events_per_match_) return kNotOurs;
+    if (match_id < first_match_id_ || source_seq == 0 || source_seq > events_per_match_)
+        return kNotOurs;
     const std::uint64_t offset = match_id - first_match_id_;
     const std::uint64_t k = (offset / slots_) * events_per_match_ + (source_seq - 1);
     return k * slots_ + offset % slots_;

@@ -26,7 +26,8 @@ public:
     std::uint64_t events_per_match() const noexcept { return events_per_match_; }
 
 private:
-    core::InboundMessage in_play(std::uint64_t match_id, std::uint64_t j, core::Period period, std::uint32_t clock_ms) const;
+    core::InboundMessage in_play(std::uint64_t match_id, std::uint64_t j, core::Period period,
+                                 std::uint32_t clock_ms) const;
 
     std::uint64_t slots_;
     std::uint64_t events_per_match_;

@@ -5,9 +5,9 @@
 // CPU over time, beside a baseline measured in the same run: the same feed through bare
 // forwarders that do no work. Example (the figures in tools/bench/RESULTS.md):
 //   build/release/tools/bench/liveprob_soak --minutes 10 --rate 5000 --matches 2000
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 #include <unistd.h>
+#include <CLI/CLI.hpp>
 
 #include <chrono>
 #include <ctime>
@@ -35,7 +35,8 @@ std::string utc_now() {
 
 int main(int argc, char** argv) {
     // The baseline's forwarder is this program again, in another mode.
-    if (argc == 4 && std::string(argv[1]) == "forward" && std::string(argv[2]) == "--endpoints-file") {
+    if (argc == 4 && std::string(argv[1]) == "forward" &&
+        std::string(argv[2]) == "--endpoints-file") {
         return run_bare_forwarder(argv[3]);
     }
 
@@ -51,24 +52,44 @@ int main(int argc, char** argv) {
     std::string scratch = fmt::format("/tmp/liveprob-soak-{}", ::getpid());
     std::string json_file;
     bool no_journal = false;
-    app.add_option("--minutes", minutes, "how long to feed")->capture_default_str()->check(CLI::PositiveNumber);
-    app.add_option("--rate", s.rate, "feed messages per second")->capture_default_str()->check(CLI::PositiveNumber);
-    app.add_option("--matches", matches, "matches playing at once")->capture_default_str()->check(CLI::Range(1, 1'000'000));
+    app.add_option("--minutes", minutes, "how long to feed")
+        ->capture_default_str()
+        ->check(CLI::PositiveNumber);
+    app.add_option("--rate", s.rate, "feed messages per second")
+        ->capture_default_str()
+        ->check(CLI::PositiveNumber);
+    app.add_option("--matches", matches, "matches playing at once")
+        ->capture_default_str()
+        ->check(CLI::Range(1, 1'000'000));
     app.add_option("--match-minutes", match_minutes,
-                   "how long each match lasts, after which a new one takes its place (default: the whole run)")
+                   "how long each match lasts, after which a new one takes its place (default: the "
+                   "whole run)")
         ->check(CLI::NonNegativeNumber);
     app.add_option("--shards", s.shards, "serve processes (more than one: behind a relay)")
-        ->capture_default_str()->check(CLI::Range(1, 64));
-    app.add_option("--tick-ms", s.tick_ms, "serve's republish interval")->capture_default_str()->check(CLI::Range(10, 3'600'000));
+        ->capture_default_str()
+        ->check(CLI::Range(1, 64));
+    app.add_option("--tick-ms", s.tick_ms, "serve's republish interval")
+        ->capture_default_str()
+        ->check(CLI::Range(10, 3'600'000));
     app.add_flag("--no-journal", no_journal, "run serve without its journal");
-    app.add_option("--sample-seconds", s.sample_seconds, "memory and CPU sampling interval (rows of the table)")
-        ->capture_default_str()->check(CLI::PositiveNumber);
-    app.add_option("--warmup-seconds", warmup_seconds, "left out of the whole-run latency tails")->capture_default_str();
-    app.add_option("--drain-seconds", s.drain_seconds, "how long to wait for the backlog after sending")->capture_default_str();
-    app.add_option("--baseline-seconds", baseline_seconds, "bare-forwarder baseline first, this long (0: none)")
-        ->capture_default_str()->check(CLI::NonNegativeNumber);
-    app.add_option("--liveprob", s.liveprob, "the liveprob program")->capture_default_str()->check(CLI::ExistingFile);
-    app.add_option("--scratch", scratch, "logs, endpoints files and journals go here")->capture_default_str();
+    app.add_option("--sample-seconds", s.sample_seconds,
+                   "memory and CPU sampling interval (rows of the table)")
+        ->capture_default_str()
+        ->check(CLI::PositiveNumber);
+    app.add_option("--warmup-seconds", warmup_seconds, "left out of the whole-run latency tails")
+        ->capture_default_str();
+    app.add_option("--drain-seconds", s.drain_seconds,
+                   "how long to wait for the backlog after sending")
+        ->capture_default_str();
+    app.add_option("--baseline-seconds", baseline_seconds,
+                   "bare-forwarder baseline first, this long (0: none)")
+        ->capture_default_str()
+        ->check(CLI::NonNegativeNumber);
+    app.add_option("--liveprob", s.liveprob, "the liveprob program")
+        ->capture_default_str()
+        ->check(CLI::ExistingFile);
+    app.add_option("--scratch", scratch, "logs, endpoints files and journals go here")
+        ->capture_default_str();
     app.add_option("--json", json_file, "also write the figures here as JSON");
     CLI11_PARSE(app, argc, argv);
 
@@ -78,14 +99,17 @@ int main(int argc, char** argv) {
     std::filesystem::create_directories(s.scratch);
     // Each match's messages: its share of the rate over its length.
     const double match_seconds = match_minutes > 0 ? match_minutes * 60.0 : s.seconds;
-    const auto per_match = static_cast<std::uint64_t>(std::max(8.0, s.rate * match_seconds / static_cast<double>(matches)));
+    const auto per_match = static_cast<std::uint64_t>(
+        std::max(8.0, s.rate * match_seconds / static_cast<double>(matches)));
     const SoakFeed feed(matches, per_match);
 
     const std::string description = fmt::format(
-        "Soak {}: {} events/s for {:.0f} s over {} concurrent matches ({} messages each, {:.1f} per match per "
+        "Soak {}: {} events/s for {:.0f} s over {} concurrent matches ({} messages each, {:.1f} "
+        "per match per "
         "second), {} serve{}, ticks every {} ms, journal {}",
-        utc_now(), s.rate, s.seconds, matches, per_match, s.rate / static_cast<double>(matches), s.shards,
-        s.shards > 1 ? " shards behind a relay" : "", s.tick_ms, s.journal ? "on (fsync interval)" : "off");
+        utc_now(), s.rate, s.seconds, matches, per_match, s.rate / static_cast<double>(matches),
+        s.shards, s.shards > 1 ? " shards behind a relay" : "", s.tick_ms,
+        s.journal ? "on (fsync interval)" : "off");
     std::cerr << description << "\n";
 
     std::optional<PhaseResult> baseline;
@@ -99,9 +123,11 @@ int main(int argc, char** argv) {
     std::cerr << fmt::format("soak: serve for {:.0f} s\n", s.seconds);
     const PhaseResult soak = run_phase(s, feed);
 
-    std::cout << markdown_report(description, soak, baseline ? &*baseline : nullptr, warmup_seconds);
+    std::cout << markdown_report(description, soak, baseline ? &*baseline : nullptr,
+                                 warmup_seconds);
     if (!json_file.empty()) {
-        std::ofstream(json_file) << json_report(description, soak, baseline ? &*baseline : nullptr, warmup_seconds);
+        std::ofstream(json_file) << json_report(description, soak, baseline ? &*baseline : nullptr,
+                                                warmup_seconds);
     }
     return 0;
 }

@@ -17,7 +17,8 @@ namespace liveprob::soak {
 
 class SoakProcess {
 public:
-    SoakProcess(std::string name, const std::vector<std::string>& argv, const std::filesystem::path& log);
+    SoakProcess(std::string name, const std::vector<std::string>& argv,
+                const std::filesystem::path& log);
     SoakProcess(const SoakProcess&) = delete;
     SoakProcess& operator=(const SoakProcess&) = delete;
 
@@ -25,7 +26,9 @@ public:
     pid_t pid() const noexcept { return process_.pid(); }
     bool running() { return process_.running(); }
     // SIGTERM, then SIGKILL after `grace`.
-    void stop(std::chrono::milliseconds grace = std::chrono::milliseconds(5000)) { process_.stop(grace); }
+    void stop(std::chrono::milliseconds grace = std::chrono::milliseconds(5000)) {
+        process_.stop(grace);
+    }
 
     // Resident memory now (KiB) and CPU time used so far (user + system, seconds); 0 once ended.
     std::uint64_t rss_kib() const { return harness::memory_kib(process_.pid()); }
@@ -37,7 +40,8 @@ private:
 };
 
 // The endpoints file serve or relay writes (files/endpoints_file.hpp), once it is there.
-std::map<std::string, std::string> wait_for_endpoints_file(const std::filesystem::path& path, SoakProcess& writer,
+std::map<std::string, std::string> wait_for_endpoints_file(const std::filesystem::path& path,
+                                                           SoakProcess& writer,
                                                            std::chrono::seconds limit);
 
 }  // namespace liveprob::soak

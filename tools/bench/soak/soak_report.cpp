@@ -13,7 +13,8 @@ namespace {
 
 double at_quantile(const std::vector<double>& sorted, double q) {
     if (sorted.empty()) return 0.0;
-    const auto i = static_cast<std::size_t>(std::llround(q * static_cast<double>(sorted.size() - 1)));
+    const auto i =
+        static_cast<std::size_t>(std::llround(q * static_cast<double>(sorted.size() - 1)));
     return sorted[std::min(i, sorted.size() - 1)];
 }
 
@@ -22,7 +23,9 @@ std::size_t in_window(const std::vector<double>& times, double from, double to) 
         std::count_if(times.begin(), times.end(), [&](double t) { return t >= from && t < to; }));
 }
 
-std::string ms(double v) { return v < 10 ? fmt::format("{:.2f} ms", v) : fmt::format("{:.0f} ms", v); }
+std::string ms(double v) {
+    return v < 10 ? fmt::format("{:.2f} ms", v) : fmt::format("{:.0f} ms", v);
+}
 
 // Event updates that should have come: every event sent minus those the engine refused.
 std::uint64_t missing(const PhaseResult& r) {
@@ -32,9 +35,11 @@ std::uint64_t missing(const PhaseResult& r) {
 
 std::string summary_row(const char* what, const PhaseResult& r, double warmup) {
     const LatencyTails t = tails(r.arrivals, warmup, 1e300);
-    return fmt::format("| {} | {:.0f} s | {} | {:.0f}/s | {} | {} | {} | {} | {} | {} | {} |\n", what, r.send_seconds,
-                       r.sent, static_cast<double>(r.sent) / std::max(r.send_seconds, 1e-9), r.arrivals.size(),
-                       missing(r), r.tick_times.size(), ms(t.p50_ms), ms(t.p99_ms), ms(t.p999_ms), ms(t.max_ms));
+    return fmt::format("| {} | {:.0f} s | {} | {:.0f}/s | {} | {} | {} | {} | {} | {} | {} |\n",
+                       what, r.send_seconds, r.sent,
+                       static_cast<double>(r.sent) / std::max(r.send_seconds, 1e-9),
+                       r.arrivals.size(), missing(r), r.tick_times.size(), ms(t.p50_ms),
+                       ms(t.p99_ms), ms(t.p999_ms), ms(t.max_ms));
 }
 
 }  // namespace
@@ -54,21 +59,28 @@ LatencyTails tails(const std::vector<Arrival>& arrivals, double from_seconds, do
     return t;
 }
 
-std::string markdown_report(const std::string& description, const PhaseResult& soak, const PhaseResult* baseline,
-                            double warmup) {
+std::string markdown_report(const std::string& description, const PhaseResult& soak,
+                            const PhaseResult* baseline, double warmup) {
     std::string out = fmt::format("{}\n\n", description);
-    out += "| path | sending took | events sent | send rate | event updates received | missing | tick updates | "
-           "p50 | p99 | p99.9 | max |\n|---|---|---|---|---|---|---|---|---|---|---|\n";
-    out += summary_row(soak.settings.backend == Backend::serve ? "serve" : "bare forwarder", soak, warmup);
+    out +=
+        "| path | sending took | events sent | send rate | event updates received | missing | tick "
+        "updates | "
+        "p50 | p99 | p99.9 | max |\n|---|---|---|---|---|---|---|---|---|---|---|\n";
+    out += summary_row(soak.settings.backend == Backend::serve ? "serve" : "bare forwarder", soak,
+                       warmup);
     if (baseline != nullptr) out += summary_row("bare forwarder (baseline)", *baseline, warmup);
-    out += fmt::format("\nLatency: the feed's send to the subscriber's receive, after the first {:.0f} s. Engine "
-                       "verdicts: {} accepted, {} late, {} duplicate, {} rejected; {} updates seen twice, {} "
-                       "unknown.\n\n",
-                       warmup, soak.accepted, soak.late, soak.duplicate_inputs, soak.rejected, soak.duplicates,
-                       soak.foreign);
+    out += fmt::format(
+        "\nLatency: the feed's send to the subscriber's receive, after the first {:.0f} s. Engine "
+        "verdicts: {} accepted, {} late, {} duplicate, {} rejected; {} updates seen twice, {} "
+        "unknown.\n\n",
+        warmup, soak.accepted, soak.late, soak.duplicate_inputs, soak.rejected, soak.duplicates,
+        soak.foreign);
 
-    out += "Over time (each row: the interval ending at `t`):\n\n| t | event updates/s | ticks/s | p50 | p99 | max |";
-    const auto& names = soak.samples.empty() ? std::vector<ProcessSample>{} : soak.samples.front().processes;
+    out +=
+        "Over time (each row: the interval ending at `t`):\n\n| t | event updates/s | ticks/s | "
+        "p50 | p99 | max |";
+    const auto& names =
+        soak.samples.empty() ? std::vector<ProcessSample>{} : soak.samples.front().processes;
     for (const auto& p : names) out += fmt::format(" {} RSS | {} CPU |", p.name, p.name);
     out += "\n|---|---|---|---|---|---|";
     for (std::size_t i = 0; i < names.size(); ++i) out += "---|---|";
@@ -80,12 +92,14 @@ std::string markdown_report(const std::string& description, const PhaseResult& s
     for (const Sample& s : soak.samples) {
         const double span = std::max(s.at_seconds - from, 1e-9);
         const LatencyTails t = tails(soak.arrivals, from, s.at_seconds);
-        out += fmt::format("| {:.0f} s | {:.0f} | {:.0f} | {} | {} | {} |", s.at_seconds,
-                           static_cast<double>(in_window(arrival_times, from, s.at_seconds)) / span,
-                           static_cast<double>(in_window(soak.tick_times, from, s.at_seconds)) / span, ms(t.p50_ms),
-                           ms(t.p99_ms), ms(t.max_ms));
+        out +=
+            fmt::format("| {:.0f} s | {:.0f} | {:.0f} | {} | {} | {} |", s.at_seconds,
+                        static_cast<double>(in_window(arrival_times, from, s.at_seconds)) / span,
+                        static_cast<double>(in_window(soak.tick_times, from, s.at_seconds)) / span,
+                        ms(t.p50_ms), ms(t.p99_ms), ms(t.max_ms));
         for (const auto& p : s.processes) {
-            out += fmt::format(" {:.1f} MiB | {:.0f}% |", static_cast<double>(p.rss_kib) / 1024.0, 100.0 * p.cpu_share);
+            out += fmt::format(" {:.1f} MiB | {:.0f}% |", static_cast<double>(p.rss_kib) / 1024.0,
+                               100.0 * p.cpu_share);
         }
         out += "\n";
         from = s.at_seconds;
@@ -93,8 +107,8 @@ std::string markdown_report(const std::string& description, const PhaseResult& s
     return out;
 }
 
-std::string json_report(const std::string& description, const PhaseResult& soak, const PhaseResult* baseline,
-                        double warmup) {
+std::string json_report(const std::string& description, const PhaseResult& soak,
+                        const PhaseResult* baseline, double warmup) {
     // Times and shares rounded to what the measurement can tell (ms to 4 places, seconds to 3).
     const auto rounded = [](double x, double places) {
         const double scale = std::pow(10.0, places);
@@ -126,7 +140,10 @@ std::string json_report(const std::string& description, const PhaseResult& soak,
             .end_object();
         json.key("samples").begin_array();
         for (const Sample& sample : r.samples) {
-            json.begin_object().member("t", rounded(sample.at_seconds, 3)).key("processes").begin_array();
+            json.begin_object()
+                .member("t", rounded(sample.at_seconds, 3))
+                .key("processes")
+                .begin_array();
             for (const auto& p : sample.processes) {
                 json.begin_object()
                     .member("name", p.name)
@@ -138,7 +155,10 @@ std::string json_report(const std::string& description, const PhaseResult& soak,
         }
         json.end_array().end_object();
     };
-    json.begin_object().member("description", description).member("warmup_seconds", warmup).key("soak");
+    json.begin_object()
+        .member("description", description)
+        .member("warmup_seconds", warmup)
+        .key("soak");
     phase(soak);
     json.key("baseline");
     if (baseline) phase(*baseline);

@@ -21,7 +21,7 @@ LatencyTails tails(const std::vector<Arrival>& arrivals, double from_seconds, do
 // whole-run tails (never out of the over-time table).
 std::string markdown_report(const std::string& description, const PhaseResult& soak,
                             const PhaseResult* baseline, double warmup_seconds);
-std::string json_report(const std::string& description, const PhaseResult& soak, const PhaseResult* baseline,
-                        double warmup_seconds);
+std::string json_report(const std::string& description, const PhaseResult& soak,
+                        const PhaseResult* baseline, double warmup_seconds);
 
 }  // namespace liveprob::soak

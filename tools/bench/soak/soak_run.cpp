@@ -11,9 +11,9 @@
 
 #include "liveprob/clients/shard_sender.hpp"
 #include "liveprob/files/endpoints_file.hpp"
-#include "liveprob/transport/topics.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/transport/topics.hpp"
 #include "soak_process.hpp"
 
 namespace liveprob::soak {
@@ -49,20 +49,28 @@ Topology start_topology(const PhaseSettings& s) {
         const auto endpoints_file = s.scratch / fmt::format("{}-{}.endpoints", prefix, k);
         std::vector<std::string> argv;
         if (s.backend == Backend::serve) {
-            argv = {s.liveprob.string(), "serve", "--shard", fmt::format("{}/{}", k, s.shards), "--ingest",
-                    "tcp://127.0.0.1:*", "--publish", "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*",
-                    "--endpoints-file", endpoints_file.string(), "--tick-ms", std::to_string(s.tick_ms),
-                    "--publish-hwm", kDeepQueue, "--ingest-hwm", kDeepQueue, "--log-level", "warn"};
+            argv = {s.liveprob.string(), "serve",
+                    "--shard",           fmt::format("{}/{}", k, s.shards),
+                    "--ingest",          "tcp://127.0.0.1:*",
+                    "--publish",         "tcp://127.0.0.1:*",
+                    "--snapshot",        "tcp://127.0.0.1:*",
+                    "--endpoints-file",  endpoints_file.string(),
+                    "--tick-ms",         std::to_string(s.tick_ms),
+                    "--publish-hwm",     kDeepQueue,
+                    "--ingest-hwm",      kDeepQueue,
+                    "--log-level",       "warn"};
             if (s.journal) {
                 const auto journal = s.scratch / fmt::format("shard-{}.journal", k);
                 std::filesystem::remove(journal);
-                argv.insert(argv.end(), {"--journal", journal.string(), "--journal-sync", "interval"});
+                argv.insert(argv.end(),
+                            {"--journal", journal.string(), "--journal-sync", "interval"});
             }
         } else {
             argv = {s.self.string(), "forward", "--endpoints-file", endpoints_file.string()};
         }
-        auto& p = t.processes.emplace_back(std::make_unique<SoakProcess>(
-            fmt::format("{} {}", prefix, k), argv, s.scratch / fmt::format("{}-{}.log", prefix, k)));
+        auto& p = t.processes.emplace_back(
+            std::make_unique<SoakProcess>(fmt::format("{} {}", prefix, k), argv,
+                                          s.scratch / fmt::format("{}-{}.log", prefix, k)));
         const auto endpoints = wait_for_endpoints_file(endpoints_file, *p, 30s);
         t.ingest.push_back(endpoints.at("ingest"));
         t.backend_publish.push_back(endpoints.at("publish"));
@@ -73,9 +81,9 @@ Topology start_topology(const PhaseSettings& s) {
         auto& relay = t.processes.emplace_back(std::make_unique<SoakProcess>(
             "relay",
             std::vector<std::string>{s.liveprob.string(), "relay", "--shard-publish",
-                                     fmt::format("{}", fmt::join(t.backend_publish, ",")), "--publish",
-                                     "tcp://127.0.0.1:*", "--endpoints-file", endpoints_file.string(),
-                                     "--high-water-mark", kDeepQueue},
+                                     fmt::format("{}", fmt::join(t.backend_publish, ",")),
+                                     "--publish", "tcp://127.0.0.1:*", "--endpoints-file",
+                                     endpoints_file.string(), "--high-water-mark", kDeepQueue},
             s.scratch / fmt::format("relay-{}.log", prefix)));
         t.front_publish = wait_for_endpoints_file(endpoints_file, *relay, 30s).at("publish");
     }
@@ -85,8 +93,8 @@ Topology start_topology(const PhaseSettings& s) {
 // Reads every update from the front endpoint and, for serve, each shard's counters directly.
 class Subscriber {
 public:
-    Subscriber(zmq::context_t& context, const PhaseSettings& s, const Topology& t, const SoakFeed& feed,
-               std::uint64_t total, const std::atomic<std::int64_t>* sent_ns)
+    Subscriber(zmq::context_t& context, const PhaseSettings& s, const Topology& t,
+               const SoakFeed& feed, std::uint64_t total, const std::atomic<std::int64_t>* sent_ns)
         : settings_(s), feed_(feed), total_(total), sent_ns_(sent_ns), seen_(total, 0),
           updates_(context, zmq::socket_type::sub), last_counters_(t.backend_publish.size()) {
         updates_.set(zmq::sockopt::rcvhwm, 0);
@@ -139,7 +147,10 @@ private:
             std::uint64_t index = SoakFeed::kNotOurs;
             if (settings_.backend == Backend::serve) {
                 const auto u = protocol::decode_update(bytes);
-                if (!u.ok()) { ++foreign_; continue; }
+                if (!u.ok()) {
+                    ++foreign_;
+                    continue;
+                }
                 if (u.value->meta.receive_time_us == 0) {
                     ticks_.push_back(std::chrono::duration<double>(arrived - start_).count());
                     continue;
@@ -147,12 +158,22 @@ private:
                 index = feed_.index_of(u.value->meta.match_id, u.value->meta.input_seq);
             } else {
                 const auto m = protocol::decode_feed_message(bytes);
-                if (m.message) index = feed_.index_of(m.message->header.match_id, m.message->header.source_seq);
+                if (m.message)
+                    index =
+                        feed_.index_of(m.message->header.match_id, m.message->header.source_seq);
             }
-            if (index >= total_) { ++foreign_; continue; }
-            if (seen_[index] != 0) { ++duplicates_; continue; }
+            if (index >= total_) {
+                ++foreign_;
+                continue;
+            }
+            if (seen_[index] != 0) {
+                ++duplicates_;
+                continue;
+            }
             seen_[index] = 1;
-            const auto arrived_ns = std::chrono::duration_cast<std::chrono::nanoseconds>(arrived.time_since_epoch()).count();
+            const auto arrived_ns =
+                std::chrono::duration_cast<std::chrono::nanoseconds>(arrived.time_since_epoch())
+                    .count();
             const std::int64_t sent_ns = sent_ns_[index].load(std::memory_order_relaxed);
             arrivals_.push_back({std::chrono::duration<double>(arrived - start_).count(),
                                  static_cast<double>(arrived_ns - sent_ns) / 1e3});
@@ -195,7 +216,8 @@ public:
         for (std::size_t i = 0; i < topology_.processes.size(); ++i) {
             SoakProcess& p = *topology_.processes[i];
             const double cpu = p.cpu_seconds();
-            s.processes.push_back({p.name(), p.rss_kib(), wall > 0 ? (cpu - last_cpu_[i]) / wall : 0.0});
+            s.processes.push_back(
+                {p.name(), p.rss_kib(), wall > 0 ? (cpu - last_cpu_[i]) / wall : 0.0});
             last_cpu_[i] = cpu;
         }
         last_at_ = at_seconds;
@@ -234,11 +256,14 @@ PhaseResult run_phase(const PhaseSettings& settings, const SoakFeed& feed) {
         options.send_high_water_mark = 10'000'000;
         clients::ShardSender out(context, topology.ingest, options);
         for (std::uint64_t i = 0; i < total && !g_stop.load(); ++i) {
-            const auto due = start + std::chrono::nanoseconds(static_cast<std::int64_t>(1e9 * static_cast<double>(i) / settings.rate));
+            const auto due = start + std::chrono::nanoseconds(static_cast<std::int64_t>(
+                                         1e9 * static_cast<double>(i) / settings.rate));
             if (SteadyClock::now() < due) std::this_thread::sleep_until(due);
             const core::InboundMessage m = feed.event(i);
             const auto bytes = protocol::encode_feed_message(m);
-            sent_ns[i].store(std::chrono::duration_cast<std::chrono::nanoseconds>(SteadyClock::now().time_since_epoch()).count(),
+            sent_ns[i].store(std::chrono::duration_cast<std::chrono::nanoseconds>(
+                                 SteadyClock::now().time_since_epoch())
+                                 .count(),
                              std::memory_order_relaxed);
             out.send(m.header.match_id, bytes);
             sent.store(i + 1);
@@ -267,7 +292,8 @@ PhaseResult run_phase(const PhaseSettings& settings, const SoakFeed& feed) {
         if (sending_done_at < 0 && sent.load() == total) sending_done_at = now;
         if (g_stop.load()) break;
         if (sending_done_at >= 0 && (count == total || now - last_progress > 5.0 ||
-                                     now - sending_done_at > settings.drain_seconds)) break;
+                                     now - sending_done_at > settings.drain_seconds))
+            break;
     }
     sender.join();
     result.sent = sent.load();
@@ -297,8 +323,9 @@ int run_bare_forwarder(const std::string& endpoints_file) {
     pub.set(zmq::sockopt::sndhwm, 1'000'000);
     pull.bind("tcp://127.0.0.1:*");
     pub.bind("tcp://127.0.0.1:*");
-    files::write_endpoints_file(endpoints_file, {{"ingest", pull.get(zmq::sockopt::last_endpoint)},
-                                                 {"publish", pub.get(zmq::sockopt::last_endpoint)}});
+    files::write_endpoints_file(endpoints_file,
+                                {{"ingest", pull.get(zmq::sockopt::last_endpoint)},
+                                 {"publish", pub.get(zmq::sockopt::last_endpoint)}});
     const std::string_view topic = transport::kMatchTopicPrefix;
     while (!g_stop.load()) {
         zmq::pollitem_t item{pull.handle(), 0, ZMQ_POLLIN, 0};

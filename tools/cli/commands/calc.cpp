@@ -12,8 +12,8 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/files/params_file.hpp"
 #include "liveprob/core/position.hpp"
+#include "liveprob/files/params_file.hpp"
 #include "liveprob/protocol/json_writer.hpp"
 
 namespace {
@@ -51,8 +51,8 @@ int parse_count(const std::string& text, const std::string& option) {
 }
 
 // "A<sep>B" into its two halves.
-std::pair<std::string, std::string> split_pair(const std::string& text, char sep, const std::string& option,
-                                               const char* shape) {
+std::pair<std::string, std::string> split_pair(const std::string& text, char sep,
+                                               const std::string& option, const char* shape) {
     const auto at = text.find(sep);
     if (at == std::string::npos || text.find(sep, at + 1) != std::string::npos) {
         throw UsageError(option + ": expected " + shape + ", got '" + text + "'");
@@ -91,24 +91,30 @@ lp::core::CompetitionFormat parse_format(const std::string& text) {
 }
 
 // "67", "67.5" or "45+2" (minute 2 of the stoppage after the 45th) into a clock reading.
-lp::core::MatchClock parse_minute(const std::string& text, const lp::core::CompetitionFormat& format) {
+lp::core::MatchClock parse_minute(const std::string& text,
+                                  const lp::core::CompetitionFormat& format) {
     using lp::core::Period;
     const bool knockout = format.extra_time;
     const double half = format.half_minutes;
     const double extra = format.extra_half_minutes;
     const std::vector<std::pair<double, Period>> ends = {
-        {half, Period::first_half}, {2 * half, Period::second_half},
-        {2 * half + extra, Period::extra_first}, {2 * half + 2 * extra, Period::extra_second}};
+        {half, Period::first_half},
+        {2 * half, Period::second_half},
+        {2 * half + extra, Period::extra_first},
+        {2 * half + 2 * extra, Period::extra_second}};
     auto clock_at = [](Period p, double minute) {
         return lp::core::MatchClock{p, static_cast<std::uint32_t>(std::llround(minute * 60'000.0))};
     };
     if (const auto plus = text.find('+'); plus != std::string::npos) {
-        const auto [base_text, added_text] = split_pair(text, '+', "--minute", "M or END+S (e.g. 45+2)");
+        const auto [base_text, added_text] =
+            split_pair(text, '+', "--minute", "M or END+S (e.g. 45+2)");
         const double base = parse_number(base_text, "--minute");
         const double added = parse_number(added_text, "--minute");
-        if (added < 0.0 || added > 30.0) throw UsageError("--minute: stoppage minutes must be 0..30");
+        if (added < 0.0 || added > 30.0)
+            throw UsageError("--minute: stoppage minutes must be 0..30");
         for (const auto& [end, period] : ends) {
-            if (base == end && (knockout || period <= Period::second_half)) return clock_at(period, base + added);
+            if (base == end && (knockout || period <= Period::second_half))
+                return clock_at(period, base + added);
         }
         throw UsageError("--minute: '" + base_text + "+' names no end of a half in this format");
     }
@@ -126,7 +132,8 @@ lp::core::MatchClock parse_minute(const std::string& text, const lp::core::Compe
 
 std::string pct(double v) { return fmt::format("{:5.1f}%", 100.0 * v); }
 
-void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& position, const std::string& format_name) {
+void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& position,
+                const std::string& format_name) {
     std::string s;
     lp::protocol::JsonWriter json(s);
     auto home_away = [&](std::string_view name, double home, double away) {
@@ -147,7 +154,8 @@ void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& posit
         .end_object();
     json.key("over").begin_object();
     for (int i = 0; i < lp::core::kTotalsLines; ++i) {
-        json.member(fmt::format("{:.1f}", lp::core::totals_line(i)), o.p_over[static_cast<std::size_t>(i)]);
+        json.member(fmt::format("{:.1f}", lp::core::totals_line(i)),
+                    o.p_over[static_cast<std::size_t>(i)]);
     }
     json.end_object().member("both_score", o.p_both_score).member("tail_mass", o.tail_mass);
     json.key("goals_added").begin_array();
@@ -167,28 +175,40 @@ void print_json(const lp::core::Outputs& o, const lp::core::MatchPosition& posit
     fmt::print("{}\n", s);
 }
 
-void print_table(const lp::core::Outputs& o, const lp::core::MatchPosition& position, const std::string& format_name) {
+void print_table(const lp::core::Outputs& o, const lp::core::MatchPosition& position,
+                 const std::string& format_name) {
     const auto& c = position.clock;
     fmt::print("position      {}' ({}), score {}-{}, red cards {}-{}, {}\n",
-               fmt::format("{:.1f}", c.clock_ms / 60'000.0), lp::core::period_name(c.period), position.score[0],
-               position.score[1], position.reds[0], position.reds[1], format_name);
-    fmt::print("full time     home {}  draw {}  away {}\n", pct(o.p_home), pct(o.p_draw), pct(o.p_away));
-    if (o.has_advance) fmt::print("to advance    home {}  away {}\n", pct(o.p_advance_home), pct(o.p_advance_away));
-    fmt::print("final goals   home {:.2f}  away {:.2f} (expected)\n", o.expected_home_goals, o.expected_away_goals);
-    fmt::print("next goal     home {}  away {}  none {}\n", pct(o.next_goal_home), pct(o.next_goal_away),
-               pct(o.next_goal_none));
+               fmt::format("{:.1f}", c.clock_ms / 60'000.0), lp::core::period_name(c.period),
+               position.score[0], position.score[1], position.reds[0], position.reds[1],
+               format_name);
+    fmt::print("full time     home {}  draw {}  away {}\n", pct(o.p_home), pct(o.p_draw),
+               pct(o.p_away));
+    if (o.has_advance)
+        fmt::print("to advance    home {}  away {}\n", pct(o.p_advance_home),
+                   pct(o.p_advance_away));
+    fmt::print("final goals   home {:.2f}  away {:.2f} (expected)\n", o.expected_home_goals,
+               o.expected_away_goals);
+    fmt::print("next goal     home {}  away {}  none {}\n", pct(o.next_goal_home),
+               pct(o.next_goal_away), pct(o.next_goal_none));
     fmt::print("total over   ");
     for (int i = 0; i < lp::core::kTotalsLines; ++i) {
-        fmt::print(" {:.1f} {}", lp::core::totals_line(i), pct(o.p_over[static_cast<std::size_t>(i)]));
+        fmt::print(" {:.1f} {}", lp::core::totals_line(i),
+                   pct(o.p_over[static_cast<std::size_t>(i)]));
     }
     fmt::print("\nboth score    {}\n", pct(o.p_both_score));
     // The five likeliest final scores.
-    struct Cell { int home; int away; double p; };
+    struct Cell {
+        int home;
+        int away;
+        double p;
+    };
     std::vector<Cell> cells;
     for (int i = 0; i < lp::core::kGrid; ++i) {
         for (int j = 0; j < lp::core::kGrid; ++j) {
-            cells.push_back({position.score[0] + i, position.score[1] + j,
-                             o.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)]});
+            cells.push_back(
+                {position.score[0] + i, position.score[1] + j,
+                 o.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)]});
         }
     }
     std::partial_sort(cells.begin(), cells.begin() + 5, cells.end(),
@@ -210,7 +230,8 @@ int run_calc(const CalcOptions& options) {
     position.score = parse_tally(options.score, "--score", 99);
     position.reds = parse_tally(options.reds, "--reds", 5);
     if (options.stoppage) {
-        if (*options.stoppage < 0 || *options.stoppage > 30) throw UsageError("--stoppage: must be 0..30 minutes");
+        if (*options.stoppage < 0 || *options.stoppage > 30)
+            throw UsageError("--stoppage: must be 0..30 minutes");
         position.stoppage_minutes = options.stoppage;
     }
     lp::core::ModelParams params;
@@ -230,19 +251,24 @@ int run_calc(const CalcOptions& options) {
     return liveprob::cli::kExitOk;
 }
 
-const liveprob::cli::Registration registration{{
-    "calc", "print the live outputs for one match position (minute, score, red cards)",
-    [](CLI::App& app) {
-        auto o = std::make_shared<CalcOptions>();
-        app.add_option("--prior", o->prior, "expected regulation goals H,A (e.g. 1.6,1.1)")->required();
-        app.add_option("--minute", o->minute, "match minute: 67, 67.5, or END+S in stoppage (45+2, 90+4)");
-        app.add_option("--score", o->score, "current score H-A (in extra time: the regulation score)");
-        app.add_option("--reds", o->reds, "red cards so far H-A");
-        app.add_option("--stoppage", o->stoppage, "stoppage minutes announced for the current half");
-        app.add_option("--format", o->format, "league (default) or knockout (extra time, then a shoot-out)");
-        app.add_option("--params", o->params_path, "model parameter file (defaults built in)");
-        app.add_flag("--json", o->json, "print one JSON object (home, draw, away, ...)");
-        return [o] { return run_calc(*o); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"calc", "print the live outputs for one match position (minute, score, red cards)",
+     [](CLI::App& app) {
+         auto o = std::make_shared<CalcOptions>();
+         app.add_option("--prior", o->prior, "expected regulation goals H,A (e.g. 1.6,1.1)")
+             ->required();
+         app.add_option("--minute", o->minute,
+                        "match minute: 67, 67.5, or END+S in stoppage (45+2, 90+4)");
+         app.add_option("--score", o->score,
+                        "current score H-A (in extra time: the regulation score)");
+         app.add_option("--reds", o->reds, "red cards so far H-A");
+         app.add_option("--stoppage", o->stoppage,
+                        "stoppage minutes announced for the current half");
+         app.add_option("--format", o->format,
+                        "league (default) or knockout (extra time, then a shoot-out)");
+         app.add_option("--params", o->params_path, "model parameter file (defaults built in)");
+         app.add_flag("--json", o->json, "print one JSON object (home, draw, away, ...)");
+         return [o] { return run_calc(*o); };
+     }}};
 
 }  // namespace

@@ -7,8 +7,8 @@
 #include <memory>
 
 #include "command_registry.hpp"
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/protocol/feed_check.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 namespace {
 
@@ -26,17 +26,18 @@ void print_summary(const std::string& path, const lp::FeedCheckSummary& s) {
                s.ok, s.skipped, s.bad);
     for (const auto& [kind, count] : s.kinds) fmt::print("  {:<17} {}\n", kind, count);
     if (s.repeated_seq + s.out_of_order_seq > 0) {
-        fmt::print("  note: {} repeated and {} out-of-order sequence numbers (the engine "
-                   "de-duplicates and re-orders them)\n",
-                   s.repeated_seq, s.out_of_order_seq);
+        fmt::print(
+            "  note: {} repeated and {} out-of-order sequence numbers (the engine "
+            "de-duplicates and re-orders them)\n",
+            s.repeated_seq, s.out_of_order_seq);
     }
 }
 
 int run_check_feed(const CheckFeedOptions& options) {
-    const auto bytes = lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
-    const auto summary = lp::check_feed(bytes, [](const std::string& problem) {
-        std::cerr << problem << "\n";
-    });
+    const auto bytes =
+        lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
+    const auto summary =
+        lp::check_feed(bytes, [](const std::string& problem) { std::cerr << problem << "\n"; });
     if (options.json) {
         fmt::print("{}\n", lp::summary_json(summary));
     } else {
@@ -45,13 +46,14 @@ int run_check_feed(const CheckFeedOptions& options) {
     return summary.all_good() ? liveprob::cli::kExitOk : liveprob::cli::kExitFailure;
 }
 
-const liveprob::cli::Registration registration{{
-    "check-feed", "check a feed file (JSON lines or size-prefixed stream) and report every bad line",
-    [](CLI::App& app) {
-        auto options = std::make_shared<CheckFeedOptions>();
-        app.add_option("FILE", options->path, "the feed file to check")->required();
-        app.add_flag("--json", options->json, "print the summary as one JSON object");
-        return [options] { return run_check_feed(*options); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"check-feed",
+     "check a feed file (JSON lines or size-prefixed stream) and report every bad line",
+     [](CLI::App& app) {
+         auto options = std::make_shared<CheckFeedOptions>();
+         app.add_option("FILE", options->path, "the feed file to check")->required();
+         app.add_flag("--json", options->json, "print the summary as one JSON object");
+         return [options] { return run_check_feed(*options); };
+     }}};
 
 }  // namespace

@@ -30,17 +30,19 @@ int run_convert(const ConvertOptions& o) {
     }
     const auto contents = backtest::read_stream(o.in);
     if (contents.bad_records && !o.skip_bad) {
-        std::cerr << fmt::format("liveprob convert: {} bad record(s), nothing written (--skip-bad leaves them out); "
-                                 "first: {}\n",
-                                 contents.bad_records, contents.first_problem);
+        std::cerr << fmt::format(
+            "liveprob convert: {} bad record(s), nothing written (--skip-bad leaves them out); "
+            "first: {}\n",
+            contents.bad_records, contents.first_problem);
         return kExitFailure;
     }
     backtest::write_stream(o.out, contents.messages, form);
-    std::cout << fmt::format("{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
-                             form == backtest::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
-                             contents.bad_records ? fmt::format(" ({} bad record(s) left out; first: {})",
-                                                                contents.bad_records, contents.first_problem)
-                                                  : "");
+    std::cout << fmt::format(
+        "{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
+        form == backtest::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
+        contents.bad_records ? fmt::format(" ({} bad record(s) left out; first: {})",
+                                           contents.bad_records, contents.first_problem)
+                             : "");
     return kExitOk;
 }
 
@@ -49,10 +51,13 @@ const Registration registration{{
     "convert a recorded stream or journal between size-prefixed frames and JSON lines",
     [](CLI::App& sub) -> std::function<int()> {
         auto o = std::make_shared<ConvertOptions>();
-        sub.add_option("input", o->in, "stream or journal file (either form)")->required()->check(CLI::ExistingFile);
+        sub.add_option("input", o->in, "stream or journal file (either form)")
+            ->required()
+            ->check(CLI::ExistingFile);
         sub.add_option("--out", o->out, "file to write")->required();
         sub.add_option("--form", o->form, "form to write: frames or json")->required();
-        sub.add_flag("--skip-bad", o->skip_bad, "leave damaged records out (counted) instead of stopping");
+        sub.add_flag("--skip-bad", o->skip_bad,
+                     "leave damaged records out (counted) instead of stopping");
         return [o] { return run_convert(*o); };
     },
 }};

@@ -8,8 +8,8 @@
 #include <vector>
 
 #include "command_registry.hpp"
-#include "liveprob/files/ratings_file.hpp"
 #include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/files/ratings_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 #include "liveprob/fit/dixon_coles.hpp"
 
@@ -42,15 +42,17 @@ int run_fit(const FitOptions& o) {
     options.min_matches = o.min_matches;
     options.shrink_precision = o.shrink_precision;
 
-    const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{} : liveprob::files::load_alias_file(o.aliases);
+    const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{}
+                                           : liveprob::files::load_alias_file(o.aliases);
     auto rename = [&](std::string& name) {
         if (const auto it = aliases.find(name); it != aliases.end()) name = it->second;
     };
     std::vector<fit::MatchResult> matches;
     for (const auto& path : o.results) {
         auto read = liveprob::datasets::read_results_any(path);
-        std::cerr << fmt::format("{}: {} matches, {} rows without a result skipped, {} duplicates dropped\n", path,
-                                 read.matches.size(), read.skipped, read.duplicates);
+        std::cerr << fmt::format(
+            "{}: {} matches, {} rows without a result skipped, {} duplicates dropped\n", path,
+            read.matches.size(), read.skipped, read.duplicates);
         for (auto& m : read.matches) {
             rename(m.home);
             rename(m.away);
@@ -62,29 +64,37 @@ int run_fit(const FitOptions& o) {
     liveprob::files::save_ratings_file(ratings, o.out);
     const auto& d = ratings.diagnostics;
     std::cout << fmt::format(
-        "fitted {} teams on {} matches{}: home advantage {:.4f} (se {:.4f}), rho {:.4f} (se {:.4f}), "
+        "fitted {} teams on {} matches{}: home advantage {:.4f} (se {:.4f}), rho {:.4f} (se "
+        "{:.4f}), "
         "log-likelihood {:.3f}, {} iterations{}\nwrote {}\n",
-        ratings.teams.size(), d.matches, ratings.as_of_day ? " before " + fit::iso_date(*ratings.as_of_day) : "",
-        ratings.home_advantage, ratings.home_advantage_se, ratings.rho, ratings.rho_se, d.log_likelihood,
-        d.iterations, d.converged ? "" : " (NOT converged)", o.out);
+        ratings.teams.size(), d.matches,
+        ratings.as_of_day ? " before " + fit::iso_date(*ratings.as_of_day) : "",
+        ratings.home_advantage, ratings.home_advantage_se, ratings.rho, ratings.rho_se,
+        d.log_likelihood, d.iterations, d.converged ? "" : " (NOT converged)", o.out);
     return d.converged ? liveprob::cli::kExitOk : liveprob::cli::kExitFailure;
 }
 
-const liveprob::cli::Registration registration{{
-    "fit", "fit team ratings (attack, defence, home advantage) from past results",
-    [](CLI::App& app) {
-        auto o = std::make_shared<FitOptions>();
-        app.add_option("--results", o->results,
-                       "results file(s): the project's CSV, the international results CSV or a league JSON")
-            ->required();
-        app.add_option("--out", o->out, "ratings file to write (JSON)")->required();
-        app.add_option("--as-of", o->as_of, "use only matches strictly before this date (YYYY-MM-DD)");
-        app.add_option("--half-life", o->half_life_days, "time-decay half-life in days (0 = no decay)");
-        app.add_flag("--low-score-correction", o->low_score_correction, "fit the Dixon-Coles rho");
-        app.add_option("--min-matches", o->min_matches, "teams with fewer weighted matches are shrunk");
-        app.add_option("--shrink-precision", o->shrink_precision, "prior precision for shrunk teams");
-        app.add_option("--aliases", o->aliases, "CSV feed_name,rating_name applied to the results' names");
-        return [o] { return run_fit(*o); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"fit", "fit team ratings (attack, defence, home advantage) from past results",
+     [](CLI::App& app) {
+         auto o = std::make_shared<FitOptions>();
+         app.add_option("--results", o->results,
+                        "results file(s): the project's CSV, the international results CSV or a "
+                        "league JSON")
+             ->required();
+         app.add_option("--out", o->out, "ratings file to write (JSON)")->required();
+         app.add_option("--as-of", o->as_of,
+                        "use only matches strictly before this date (YYYY-MM-DD)");
+         app.add_option("--half-life", o->half_life_days,
+                        "time-decay half-life in days (0 = no decay)");
+         app.add_flag("--low-score-correction", o->low_score_correction, "fit the Dixon-Coles rho");
+         app.add_option("--min-matches", o->min_matches,
+                        "teams with fewer weighted matches are shrunk");
+         app.add_option("--shrink-precision", o->shrink_precision,
+                        "prior precision for shrunk teams");
+         app.add_option("--aliases", o->aliases,
+                        "CSV feed_name,rating_name applied to the results' names");
+         return [o] { return run_fit(*o); };
+     }}};
 
 }  // namespace

@@ -17,16 +17,16 @@
 #include <vector>
 
 #include "command_registry.hpp"
+#include "liveprob/backtest/walk_forward_priors.hpp"
 #include "liveprob/datasets/inplay_records.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
-#include "liveprob/files/params_file.hpp"
 #include "liveprob/datasets/results_readers.hpp"
+#include "liveprob/files/params_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 #include "liveprob/fit/extra_time_fit.hpp"
 #include "liveprob/fit/goal_timing.hpp"
 #include "liveprob/fit/score_state_fit.hpp"
 #include "liveprob/fit/shootout_fit.hpp"
-#include "liveprob/backtest/walk_forward_priors.hpp"
 
 namespace {
 
@@ -48,8 +48,9 @@ struct FitInplayOptions {
 // Competitions whose knock-out matches play extra time before any shoot-out (from memory; the
 // source does not say, and some other competitions went straight to penalties). Only their
 // matches feed the extra-time fit from the international data.
-const std::set<std::string> kExtraTimeCompetitions = {"FIFA World Cup", "UEFA Euro", "African Cup of Nations",
-                                                      "AFC Asian Cup", "Gold Cup", "Confederations Cup"};
+const std::set<std::string> kExtraTimeCompetitions = {
+    "FIFA World Cup", "UEFA Euro", "African Cup of Nations",
+    "AFC Asian Cup",  "Gold Cup",  "Confederations Cup"};
 
 // One match of the sources with what the fits need to know about it.
 struct Candidate {
@@ -57,13 +58,15 @@ struct Candidate {
     bool championship = false;  // from a championship file: every match of it is listed
 };
 
-int regulation_goals(const datasets::MatchTimeline& t) { return t.regulation_goals[0] + t.regulation_goals[1]; }
+int regulation_goals(const datasets::MatchTimeline& t) {
+    return t.regulation_goals[0] + t.regulation_goals[1];
+}
 
 struct Samples {
     std::vector<fit::RegulationRecord> regulation;
     std::vector<fit::ExtraTimeRecord> extra_time;
     int first_day = 0, last_day = 0;
-    int left_out_unrated = 0;  // a side with too few earlier results for a prior of its own
+    int left_out_unrated = 0;   // a side with too few earlier results for a prior of its own
     int left_out_goalless = 0;  // no regulation goal: cannot be told from unrecorded matches
 };
 
@@ -78,8 +81,10 @@ int run_fit_inplay(const FitInplayOptions& o) {
     // match is left out below, and those with goals are conditioned on having one).
     const auto international = datasets::read_international_timelines(dir.string(), {0.0});
     std::vector<datasets::TimelinesRead> championships;
-    for (const auto& path : o.championships) championships.push_back(datasets::read_championship_timelines(path));
-    auto history = liveprob::datasets::read_international_results((dir / "results.csv").string()).matches;
+    for (const auto& path : o.championships)
+        championships.push_back(datasets::read_championship_timelines(path));
+    auto history =
+        liveprob::datasets::read_international_results((dir / "results.csv").string()).matches;
 
     std::vector<Candidate> candidates;
     for (const auto& t : international.matches) candidates.push_back({&t, false});
@@ -90,8 +95,9 @@ int run_fit_inplay(const FitInplayOptions& o) {
                                t.regulation_goals[1] + t.extra_time_goals[1], t.neutral});
         }
 
-    liveprob::core::ModelParams params = o.base_params.empty() ? liveprob::core::ModelParams{}
-                                                         : liveprob::files::load_params_file(o.base_params);
+    liveprob::core::ModelParams params = o.base_params.empty()
+                                             ? liveprob::core::ModelParams{}
+                                             : liveprob::files::load_params_file(o.base_params);
     liveprob::files::ParamsFileNotes notes;
 
     // 1. The goal-timing profile, from every regulation goal minute.
@@ -123,7 +129,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
     // 2. Pre-match priors, walk-forward: ratings refitted monthly on the results before the month.
     std::vector<liveprob::backtest::FixtureToPrice> fixtures;
     for (const auto& c : candidates)
-        fixtures.push_back({c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral});
+        fixtures.push_back(
+            {c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral});
     liveprob::backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
@@ -149,8 +156,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
         // championship files' priors come from results that end in 2015, years before them.)
         if (!championship) {
             if (has_goal) {
-                samples.regulation.push_back(fit::regulation_record(datasets::inplay_match(t, priors.priors[i], true),
-                                                                    source_timing));
+                samples.regulation.push_back(fit::regulation_record(
+                    datasets::inplay_match(t, priors.priors[i], true), source_timing));
                 samples.first_day = std::min(samples.first_day, t.day);
                 samples.last_day = std::max(samples.last_day, t.day);
             } else {
@@ -160,11 +167,12 @@ int run_fit_inplay(const FitInplayOptions& o) {
         // Extra time: level after regulation in a competition known to play it, the regulation
         // goals (not the extra time) deciding whether the match is listed.
         if (!t.extra_time) continue;
-        const bool international_ok = !championship && has_goal && kExtraTimeCompetitions.contains(t.competition) &&
+        const bool international_ok = !championship && has_goal &&
+                                      kExtraTimeCompetitions.contains(t.competition) &&
                                       t.day >= fit::day_number(o.extra_time_from_year, 1, 1);
         if (!championship && !international_ok) continue;
-        samples.extra_time.push_back(fit::extra_time_record(datasets::inplay_match(t, priors.priors[i], false),
-                                                            params.timing));
+        samples.extra_time.push_back(fit::extra_time_record(
+            datasets::inplay_match(t, priors.priors[i], false), params.timing));
         ++(championship ? extra_time_championship : extra_time_international);
     }
 
@@ -180,7 +188,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
     params.timing.extra_time_factor = extra.factor;
 
     // 6. The shoot-out: winners and first kickers (international), tallies (championships).
-    auto shootouts = datasets::shootout_records(datasets::read_shootout_rows((dir / "shootouts.csv").string()));
+    auto shootouts =
+        datasets::shootout_records(datasets::read_shootout_rows((dir / "shootouts.csv").string()));
     for (const auto& read : championships) {
         const auto more = datasets::shootout_records(read.matches);
         shootouts.records.insert(shootouts.records.end(), more.records.begin(), more.records.end());
@@ -190,74 +199,97 @@ int run_fit_inplay(const FitInplayOptions& o) {
     params.shootout = kicks.params;
 
     // Sources and standard errors, beside the values.
-    const std::string priors_text = fmt::format("priors from ratings refitted monthly on the results before each "
-                                                "month (half-life {} days)", o.half_life_days);
-    const std::string timing_text = fmt::format("fitted by fit-inplay: multinomial likelihood of {} regulation goal "
-                                                "minutes (international{})", timing.goals,
-                                                championships.empty() ? "" : " and championship files");
-    for (const char* key : {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end"})
+    const std::string priors_text = fmt::format(
+        "priors from ratings refitted monthly on the results before each "
+        "month (half-life {} days)",
+        o.half_life_days);
+    const std::string timing_text = fmt::format(
+        "fitted by fit-inplay: multinomial likelihood of {} regulation goal "
+        "minutes (international{})",
+        timing.goals, championships.empty() ? "" : " and championship files");
+    for (const char* key :
+         {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end"})
         notes.sources[key] = timing_text;
     notes.standard_errors["timing.first_half_start"] = timing.first_half_start_se;
     notes.standard_errors["timing.second_half_start"] = timing.second_half_start_se;
     notes.standard_errors["timing.second_half_end"] = timing.second_half_end_se;
     if (stoppage) {
         notes.sources["timing.stoppage_factor"] = fmt::format(
-            "fitted by fit-inplay: {} of {} regulation goals of the championship files in stoppage time (they give "
-            "its minutes), shape and expected stoppage held; the international goal minutes, which fold stoppage "
+            "fitted by fit-inplay: {} of {} regulation goals of the championship files in stoppage "
+            "time (they give "
+            "its minutes), shape and expected stoppage held; the international goal minutes, which "
+            "fold stoppage "
             "into minutes 45 and 90 and reach back a century, give {:.3f} (se {:.3f})",
             stoppage->stoppage_goals, stoppage->regulation_goals, source_timing.stoppage_factor,
             timing.stoppage_factor_se);
         notes.standard_errors["timing.stoppage_factor"] = stoppage->factor_se;
     } else {
         notes.sources["timing.stoppage_factor"] =
-            timing_text + " (the international source folds stoppage into minutes 45 and 90 and reaches back a "
-                          "century of shorter stoppage: add --championship files for a recent estimate)";
+            timing_text +
+            " (the international source folds stoppage into minutes 45 and 90 and reaches back a "
+            "century of shorter stoppage: add --championship files for a recent estimate)";
         notes.standard_errors["timing.stoppage_factor"] = timing.stoppage_factor_se;
     }
-    notes.sources["timing.first_half_end"] = "fixed at 1 (the profile's scale is set by the engine)";
-    notes.sources["timing.expected_stoppage_first"] = "held, from memory (only factor x duration is identified)";
-    notes.sources["timing.expected_stoppage_second"] = notes.sources["timing.expected_stoppage_first"];
-    notes.sources["timing.expected_stoppage_extra"] = notes.sources["timing.expected_stoppage_first"];
+    notes.sources["timing.first_half_end"] =
+        "fixed at 1 (the profile's scale is set by the engine)";
+    notes.sources["timing.expected_stoppage_first"] =
+        "held, from memory (only factor x duration is identified)";
+    notes.sources["timing.expected_stoppage_second"] =
+        notes.sources["timing.expected_stoppage_first"];
+    notes.sources["timing.expected_stoppage_extra"] =
+        notes.sources["timing.expected_stoppage_first"];
     const std::string states_text = fmt::format(
-        "fitted by fit-inplay: joint likelihood with the strength dispersion (Gamma mixing, matches conditioned on "
+        "fitted by fit-inplay: joint likelihood with the strength dispersion (Gamma mixing, "
+        "matches conditioned on "
         "a regulation goal) on {} international matches {} with complete goal minutes, {}",
         samples.regulation.size(), span_of_years(samples.first_day, samples.last_day), priors_text);
-    for (const char* key : {"score_state.leading", "score_state.level", "score_state.trailing", "kappa"})
+    for (const char* key :
+         {"score_state.leading", "score_state.level", "score_state.trailing", "kappa"})
         notes.sources[key] = states_text;
     notes.standard_errors["score_state.leading"] = states.leading_se;
     notes.standard_errors["score_state.level"] = states.level_se;
     notes.standard_errors["score_state.trailing"] = states.trailing_se;
     if (std::isfinite(states.kappa)) notes.standard_errors["kappa"] = states.kappa_se;
     notes.sources["timing.extra_time_factor"] = fmt::format(
-        "fitted by fit-inplay: time to the first extra-time goal in {} matches level after regulation ({} of "
-        "international final tournaments since {} with a regulation goal, {} of championship files), strength "
+        "fitted by fit-inplay: time to the first extra-time goal in {} matches level after "
+        "regulation ({} of "
+        "international final tournaments since {} with a regulation goal, {} of championship "
+        "files), strength "
         "posteriors from regulation; {}",
-        extra.matches, extra_time_international, o.extra_time_from_year, extra_time_championship, priors_text);
+        extra.matches, extra_time_international, o.extra_time_from_year, extra_time_championship,
+        priors_text);
     notes.standard_errors["timing.extra_time_factor"] = extra.factor_se;
     notes.sources["shootout.conversion"] =
         kicks.conversion_fitted
-            ? fmt::format("fitted by fit-inplay: kicks scored in {} shoot-outs with a tally (championship files) "
-                          "under the engine's shoot-out rules",
-                          kicks.with_tally)
+            ? fmt::format(
+                  "fitted by fit-inplay: kicks scored in {} shoot-outs with a tally (championship "
+                  "files) "
+                  "under the engine's shoot-out rules",
+                  kicks.with_tally)
             : "not fitted (no shoot-out tally in the data given: add --championship files); kept";
     if (kicks.conversion_fitted) notes.standard_errors["shootout.conversion"] = kicks.conversion_se;
     notes.sources["shootout.first_kicker_edge"] =
-        kicks.edge_fitted ? fmt::format("fitted by fit-inplay: the first kicker won {} of {} shoot-outs naming it "
-                                        "(international shoot-outs file); model P(first kicker wins) {:.4f} (se {:.4f})",
-                                        kicks.first_kicker_wins, kicks.with_first_kicker,
-                                        kicks.first_kicker_win_probability, kicks.first_kicker_win_probability_se)
-                          : "not fitted (no shoot-out names its first kicker); kept";
+        kicks.edge_fitted
+            ? fmt::format(
+                  "fitted by fit-inplay: the first kicker won {} of {} shoot-outs naming it "
+                  "(international shoot-outs file); model P(first kicker wins) {:.4f} (se {:.4f})",
+                  kicks.first_kicker_wins, kicks.with_first_kicker,
+                  kicks.first_kicker_win_probability, kicks.first_kicker_win_probability_se)
+            : "not fitted (no shoot-out names its first kicker); kept";
     if (kicks.edge_fitted) notes.standard_errors["shootout.first_kicker_edge"] = kicks.edge_se;
-    notes.sources["red_cards"] = "from memory (published red-card studies): the open data carry no cards";
+    notes.sources["red_cards"] =
+        "from memory (published red-card studies): the open data carry no cards";
     notes.sources["xg_weight"] = "the project's choice (no data here carries xG)";
     liveprob::files::save_params_file(params, o.out, notes);
 
     std::cout << fmt::format(
-        "data: {} international matches with complete goal records, {} championship matches; {} left out "
+        "data: {} international matches with complete goal records, {} championship matches; {} "
+        "left out "
         "(a side without {} weighted earlier matches), {} goalless international matches left out\n"
         "priors: {} monthly rating fits ({} not converged)\n",
-        international.matches.size(), candidates.size() - international.matches.size(), samples.left_out_unrated,
-        o.min_matches, samples.left_out_goalless, priors.refits, priors.not_converged);
+        international.matches.size(), candidates.size() - international.matches.size(),
+        samples.left_out_unrated, o.min_matches, samples.left_out_goalless, priors.refits,
+        priors.not_converged);
     std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "parameter", "value", "se");
     auto row = [](const char* name, double value, double se) {
         std::cout << fmt::format("{:<28} {:>9.4f} {:>9.4f}\n", name, value, se);
@@ -265,7 +297,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
     row("timing.first_half_start", params.timing.first_half_start, timing.first_half_start_se);
     row("timing.second_half_start", params.timing.second_half_start, timing.second_half_start_se);
     row("timing.second_half_end", params.timing.second_half_end, timing.second_half_end_se);
-    row("timing.stoppage_factor", params.timing.stoppage_factor, stoppage ? stoppage->factor_se : timing.stoppage_factor_se);
+    row("timing.stoppage_factor", params.timing.stoppage_factor,
+        stoppage ? stoppage->factor_se : timing.stoppage_factor_se);
     row("score_state.leading", states.effects.leading, states.leading_se);
     row("score_state.level", states.effects.level, states.level_se);
     row("score_state.trailing", states.effects.trailing, states.trailing_se);
@@ -277,30 +310,40 @@ int run_fit_inplay(const FitInplayOptions& o) {
         "second-half share: data {:.4f}, fitted {:.4f} (se {:.4f})\n"
         "score states: {} matches, {} goals{}\n"
         "extra time: {} matches, first goal in {} (model expects {:.1f})\n"
-        "shoot-outs: first kicker won {} of {} (model {:.4f}); {} tallies with {} kicks scored; {} name only the "
+        "shoot-outs: first kicker won {} of {} (model {:.4f}); {} tallies with {} kicks scored; {} "
+        "name only the "
         "winner (no information)\nwrote {}\n",
-        timing.data_second_half_share, timing.second_half_share, timing.second_half_share_se, states.sides / 2,
-        states.goals, states.dispersion_at_bound ? " (no dispersion found: kappa = infinity)" : "", extra.matches,
-        extra.first_goals, extra.expected_first_goals, kicks.first_kicker_wins, kicks.with_first_kicker,
-        kicks.first_kicker_win_probability, kicks.with_tally, kicks.tally_kicks_scored, kicks.uninformative, o.out);
+        timing.data_second_half_share, timing.second_half_share, timing.second_half_share_se,
+        states.sides / 2, states.goals,
+        states.dispersion_at_bound ? " (no dispersion found: kappa = infinity)" : "", extra.matches,
+        extra.first_goals, extra.expected_first_goals, kicks.first_kicker_wins,
+        kicks.with_first_kicker, kicks.first_kicker_win_probability, kicks.with_tally,
+        kicks.tally_kicks_scored, kicks.uninformative, o.out);
     return liveprob::cli::kExitOk;
 }
 
-const liveprob::cli::Registration registration{{
-    "fit-inplay", "fit in-play parameters (timing, score states, dispersion, extra time, shoot-outs) from goal minutes",
-    [](CLI::App& app) {
-        auto o = std::make_shared<FitInplayOptions>();
-        app.add_option("--international", o->international_dir,
-                       "folder with the international results.csv, goalscorers.csv and shootouts.csv")
-            ->required();
-        app.add_option("--championship", o->championships,
-                       "championship file(s) (euro.json format): goal minutes, extra time and shoot-out tallies");
-        app.add_option("--params", o->base_params, "parameter file to start from (defaults built in)");
-        app.add_option("--out", o->out, "parameter file to write")->required();
-        app.add_option("--half-life", o->half_life_days, "time-decay half-life in days of the prior ratings");
-        app.add_option("--min-matches", o->min_matches,
-                       "a match is used only when both sides have this many weighted earlier matches");
-        return [o] { return run_fit_inplay(*o); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"fit-inplay",
+     "fit in-play parameters (timing, score states, dispersion, extra time, shoot-outs) from goal "
+     "minutes",
+     [](CLI::App& app) {
+         auto o = std::make_shared<FitInplayOptions>();
+         app.add_option(
+                "--international", o->international_dir,
+                "folder with the international results.csv, goalscorers.csv and shootouts.csv")
+             ->required();
+         app.add_option("--championship", o->championships,
+                        "championship file(s) (euro.json format): goal minutes, extra time and "
+                        "shoot-out tallies");
+         app.add_option("--params", o->base_params,
+                        "parameter file to start from (defaults built in)");
+         app.add_option("--out", o->out, "parameter file to write")->required();
+         app.add_option("--half-life", o->half_life_days,
+                        "time-decay half-life in days of the prior ratings");
+         app.add_option(
+             "--min-matches", o->min_matches,
+             "a match is used only when both sides have this many weighted earlier matches");
+         return [o] { return run_fit_inplay(*o); };
+     }}};
 
 }  // namespace

@@ -4,8 +4,8 @@
 
 #include <filesystem>
 #include <fstream>
-#include <string>
 #include <memory>
+#include <string>
 
 #include "command_registry.hpp"
 #include "liveprob/files/endpoints_file.hpp"
@@ -27,9 +27,11 @@ struct GatewayOptions {
 // serve's endpoints file: we want publish= and snapshot=.
 void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
     const auto endpoints = liveprob::files::read_endpoints_file(path);
-    if (const auto it = endpoints.find("publish"); it != endpoints.end() && config.feed_endpoint.empty())
+    if (const auto it = endpoints.find("publish");
+        it != endpoints.end() && config.feed_endpoint.empty())
         config.feed_endpoint = it->second;
-    if (const auto it = endpoints.find("snapshot"); it != endpoints.end() && config.snapshot_endpoint.empty())
+    if (const auto it = endpoints.find("snapshot");
+        it != endpoints.end() && config.snapshot_endpoint.empty())
         config.snapshot_endpoint = it->second;
     if (config.feed_endpoint.empty()) throw std::runtime_error(path + " names no publish endpoint");
 }
@@ -37,18 +39,21 @@ void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
 int run_gateway(GatewayOptions& options) {
     GatewayConfig& config = options.config;
     if (!options.serve_endpoints.empty()) read_serve_endpoints(options.serve_endpoints, config);
-    if (config.feed_endpoint.empty()) throw liveprob::cli::UsageError("give --feed or --serve-endpoints");
+    if (config.feed_endpoint.empty())
+        throw liveprob::cli::UsageError("give --feed or --serve-endpoints");
     if (config.web_dir.empty()) config.web_dir = liveprob::gateway::default_web_dir();
-    if (config.send_queue_cap == 0) throw liveprob::cli::UsageError("--queue-cap must be at least 1");
-    if (options.idle_timeout_ms == 0) throw liveprob::cli::UsageError("--idle-timeout-ms must be positive");
+    if (config.send_queue_cap == 0)
+        throw liveprob::cli::UsageError("--queue-cap must be at least 1");
+    if (options.idle_timeout_ms == 0)
+        throw liveprob::cli::UsageError("--idle-timeout-ms must be positive");
     config.idle_timeout = std::chrono::milliseconds(options.idle_timeout_ms);
     config.handshake_timeout = std::chrono::milliseconds(options.handshake_timeout_ms);
 
     liveprob::gateway::Gateway gateway(config);
     if (!options.port_file.empty()) {
         // Replaced atomically, so a reader never sees half a number.
-        liveprob::protocol::write_file_atomically(options.port_file, std::to_string(gateway.port()) + "\n",
-                                                  "the port file");
+        liveprob::protocol::write_file_atomically(
+            options.port_file, std::to_string(gateway.port()) + "\n", "the port file");
     }
     spdlog::info("gateway: http://{}:{}/ (WebSocket on /feed), subscribed to {}",
                  config.listen_address, gateway.port(), config.feed_endpoint);
@@ -56,43 +61,43 @@ int run_gateway(GatewayOptions& options) {
     return liveprob::cli::kExitOk;
 }
 
-const liveprob::cli::Registration registration{{
-    "gateway", "serve the feed to browsers and other languages over WebSocket and HTTP",
-    [](CLI::App& app) {
-        auto options = std::make_shared<GatewayOptions>();
-        GatewayConfig& c = options->config;
-        app.add_option("--feed", c.feed_endpoint, "publish endpoint of `serve` (or `relay`)");
-        app.add_option("--snapshot", c.snapshot_endpoint,
-                       "snapshot endpoint: ask it for every live match at start");
-        app.add_option("--serve-endpoints", options->serve_endpoints,
-                       "serve's endpoints file (publish= and snapshot= lines)");
-        app.add_option("--address", c.listen_address, "address to listen on")
-            ->capture_default_str();
-        app.add_option("--port", c.listen_port, "port to listen on (0: any free port)")
-            ->capture_default_str();
-        app.add_option("--port-file", options->port_file,
-                       "write the bound port to this file once listening");
-        app.add_option("--page-dir", c.web_dir, "folder with the page (default: installed page)");
-        app.add_option("--allow-origin", c.allowed_origins,
-                       "browser origin allowed besides the gateway's own (repeatable)");
-        app.add_option("--max-message-bytes", c.max_client_message_bytes,
-                       "largest message a client may send")
-            ->capture_default_str();
-        app.add_option("--queue-cap", c.send_queue_cap,
-                       "frames waiting for one client before it is dropped")
-            ->capture_default_str();
-        app.add_option("--idle-timeout-ms", options->idle_timeout_ms,
-                       "cut off a client silent (no pong) for this long")
-            ->capture_default_str();
-        app.add_option("--handshake-timeout-ms", options->handshake_timeout_ms,
-                       "limit for HTTP requests, WebSocket handshakes and closes")
-            ->capture_default_str();
-        app.add_option("--client-send-buffer", c.client_send_buffer_bytes,
-                       "kernel send buffer per client in bytes (0: system default)")
-            ->capture_default_str();
-        app.add_option("--timeline-points", c.timeline_points, "chart points kept per match")
-            ->capture_default_str();
-        return [options] { return run_gateway(*options); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"gateway", "serve the feed to browsers and other languages over WebSocket and HTTP",
+     [](CLI::App& app) {
+         auto options = std::make_shared<GatewayOptions>();
+         GatewayConfig& c = options->config;
+         app.add_option("--feed", c.feed_endpoint, "publish endpoint of `serve` (or `relay`)");
+         app.add_option("--snapshot", c.snapshot_endpoint,
+                        "snapshot endpoint: ask it for every live match at start");
+         app.add_option("--serve-endpoints", options->serve_endpoints,
+                        "serve's endpoints file (publish= and snapshot= lines)");
+         app.add_option("--address", c.listen_address, "address to listen on")
+             ->capture_default_str();
+         app.add_option("--port", c.listen_port, "port to listen on (0: any free port)")
+             ->capture_default_str();
+         app.add_option("--port-file", options->port_file,
+                        "write the bound port to this file once listening");
+         app.add_option("--page-dir", c.web_dir, "folder with the page (default: installed page)");
+         app.add_option("--allow-origin", c.allowed_origins,
+                        "browser origin allowed besides the gateway's own (repeatable)");
+         app.add_option("--max-message-bytes", c.max_client_message_bytes,
+                        "largest message a client may send")
+             ->capture_default_str();
+         app.add_option("--queue-cap", c.send_queue_cap,
+                        "frames waiting for one client before it is dropped")
+             ->capture_default_str();
+         app.add_option("--idle-timeout-ms", options->idle_timeout_ms,
+                        "cut off a client silent (no pong) for this long")
+             ->capture_default_str();
+         app.add_option("--handshake-timeout-ms", options->handshake_timeout_ms,
+                        "limit for HTTP requests, WebSocket handshakes and closes")
+             ->capture_default_str();
+         app.add_option("--client-send-buffer", c.client_send_buffer_bytes,
+                        "kernel send buffer per client in bytes (0: system default)")
+             ->capture_default_str();
+         app.add_option("--timeline-points", c.timeline_points, "chart points kept per match")
+             ->capture_default_str();
+         return [options] { return run_gateway(*options); };
+     }}};
 
 }  // namespace

@@ -16,12 +16,12 @@
 #include <vector>
 
 #include "command_registry.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/backtest/walk_forward_priors.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/results_readers.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
 #include "liveprob/fit/calendar.hpp"
-#include "liveprob/backtest/recorded_stream.hpp"
-#include "liveprob/backtest/walk_forward_priors.hpp"
 #include "progress_bar.hpp"
 
 namespace liveprob::cli {
@@ -62,9 +62,12 @@ std::optional<int> date_option(const std::string& text, const char* name) {
 void print_skips(const std::string& what, const datasets::TimelinesRead& read) {
     const auto& s = read.skipped;
     std::cout << fmt::format(
-        "{}: {} matches with complete goal records; left out: {} without a result, {} repeated, {} with goal "
-        "records incomplete, {} in competitions and years without goal records, {} second legs of two-legged ties\n",
-        what, read.matches.size(), s.no_result, s.duplicates, s.goals_incomplete, s.not_covered, s.aggregate_tie);
+        "{}: {} matches with complete goal records; left out: {} without a result, {} repeated, {} "
+        "with goal "
+        "records incomplete, {} in competitions and years without goal records, {} second legs of "
+        "two-legged ties\n",
+        what, read.matches.size(), s.no_result, s.duplicates, s.goals_incomplete, s.not_covered,
+        s.aggregate_tie);
 }
 
 int run_import(const ImportOptions& o) {
@@ -73,7 +76,8 @@ int run_import(const ImportOptions& o) {
     }
     if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
     if (o.coverage < 0.0 || o.coverage > 1.0) throw UsageError("--coverage must lie in [0, 1]");
-    if (o.refit != "match-day" && o.refit != "month") throw UsageError("--refit must be match-day or month");
+    if (o.refit != "match-day" && o.refit != "month")
+        throw UsageError("--refit must be match-day or month");
     backtest::StreamForm form{};
     try {
         form = backtest::parse_stream_form(o.form);
@@ -83,7 +87,9 @@ int run_import(const ImportOptions& o) {
     const auto from = date_option(o.from, "--from"), to = date_option(o.to, "--to");
     const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
     using Clock = std::chrono::steady_clock;
-    auto since = [](Clock::time_point t) { return std::chrono::duration<double>(Clock::now() - t).count(); };
+    auto since = [](Clock::time_point t) {
+        return std::chrono::duration<double>(Clock::now() - t).count();
+    };
     const auto start = Clock::now();
 
     std::vector<ImportedMatch> matches;
@@ -92,12 +98,14 @@ int run_import(const ImportOptions& o) {
     if (!o.international.empty()) {
         auto read = datasets::read_international_timelines(o.international, {o.coverage});
         print_skips("international", read);
-        auto results = datasets::read_international_results((fs::path(o.international) / "results.csv").string());
+        auto results = datasets::read_international_results(
+            (fs::path(o.international) / "results.csv").string());
         history = std::move(results.matches);
         for (auto& t : read.matches) {
             if (!wanted(t.day)) continue;
             const std::uint64_t id = kInternationalIdBase + t.origin_number;
-            fs::path file = fs::path("international") / fmt::format("{}.{}", fit::iso_date(t.day).substr(0, 4), ext);
+            fs::path file = fs::path("international") /
+                            fmt::format("{}.{}", fit::iso_date(t.day).substr(0, 4), ext);
             matches.push_back({std::move(t), id, std::move(file)});
         }
     }
@@ -106,36 +114,44 @@ int run_import(const ImportOptions& o) {
         print_skips(path, read);
         if (read.matches.empty()) continue;
         const std::string year = fit::iso_date(read.matches.front().day).substr(0, 4);
-        const fs::path file = fs::path("championship") /
-                              fmt::format("{}-{}-{}.{}", fs::path(path).parent_path().filename().string(),
-                                          fs::path(path).stem().string(), year, ext);
+        const fs::path file =
+            fs::path("championship") / fmt::format("{}-{}-{}.{}",
+                                                   fs::path(path).parent_path().filename().string(),
+                                                   fs::path(path).stem().string(), year, ext);
         for (auto& t : read.matches) {
             // Its results join the history the later fits learn from.
             const int total_home = t.regulation_goals[0] + t.extra_time_goals[0];
             const int total_away = t.regulation_goals[1] + t.extra_time_goals[1];
             history.push_back({t.day, t.home, t.away, total_home, total_away, t.neutral});
             if (!wanted(t.day)) continue;
-            if (t.origin_number >= 1000) throw std::runtime_error(t.origin + ": match number too large for an id");
-            const std::uint64_t id = kChampionshipIdBase + static_cast<std::uint64_t>(std::stoi(year)) * 1000 + t.origin_number;
+            if (t.origin_number >= 1000)
+                throw std::runtime_error(t.origin + ": match number too large for an id");
+            const std::uint64_t id = kChampionshipIdBase +
+                                     static_cast<std::uint64_t>(std::stoi(year)) * 1000 +
+                                     t.origin_number;
             matches.push_back({std::move(t), id, file});
         }
     }
     std::set<std::uint64_t> ids;
     for (const auto& m : matches) {
-        if (!ids.insert(m.match_id).second) throw std::runtime_error(fmt::format("{}: match id {} used twice", m.timeline.origin, m.match_id));
+        if (!ids.insert(m.match_id).second)
+            throw std::runtime_error(
+                fmt::format("{}: match id {} used twice", m.timeline.origin, m.match_id));
     }
 
     const double read_seconds = since(start);
     const auto fit_start = Clock::now();
     std::vector<backtest::FixtureToPrice> fixtures;
-    for (const auto& m : matches) fixtures.push_back({m.timeline.day, m.timeline.home, m.timeline.away, m.timeline.neutral});
+    for (const auto& m : matches)
+        fixtures.push_back({m.timeline.day, m.timeline.home, m.timeline.away, m.timeline.neutral});
     backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
     wf.fit.shrink_precision = o.shrink_precision;
     wf.fit.min_weight = 0.01;
     wf.fit.standard_errors = false;
-    wf.schedule = o.refit == "month" ? backtest::RefitSchedule::month : backtest::RefitSchedule::match_day;
+    wf.schedule =
+        o.refit == "month" ? backtest::RefitSchedule::month : backtest::RefitSchedule::match_day;
     wf.threads = std::max(1U, std::thread::hardware_concurrency());
     ProgressBar bar("import: walk-forward fits", "fits", o.quiet);
     wf.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
@@ -147,10 +163,12 @@ int run_import(const ImportOptions& o) {
     std::size_t written = 0, shootouts = 0, extra_time = 0;
     for (std::size_t i = 0; i < matches.size(); ++i) {
         const core::PriorMeans& prior = priors.priors[i];
-        if (prior.home_goals <= 0.0 || prior.away_goals <= 0.0) continue;  // no history before its day
+        if (prior.home_goals <= 0.0 || prior.away_goals <= 0.0)
+            continue;  // no history before its day
         auto feed = datasets::feed_from_timeline(matches[i].timeline, matches[i].match_id, prior);
         auto& stream = files[matches[i].file];
-        stream.insert(stream.end(), std::make_move_iterator(feed.begin()), std::make_move_iterator(feed.end()));
+        stream.insert(stream.end(), std::make_move_iterator(feed.begin()),
+                      std::make_move_iterator(feed.end()));
         ++written;
         if (matches[i].timeline.shootout) ++shootouts;
         if (matches[i].timeline.extra_time) ++extra_time;
@@ -160,15 +178,19 @@ int run_import(const ImportOptions& o) {
         backtest::write_stream(fs::path(o.out) / file, messages, form);
     }
     std::cout << fmt::format(
-        "walk-forward priors: {} fits ({} not converged), {} sides without an earlier result rated as average, "
+        "walk-forward priors: {} fits ({} not converged), {} sides without an earlier result rated "
+        "as average, "
         "{} expected-goal values held at {}, {} matches before any result left out\n",
-        priors.refits, priors.not_converged, priors.unrated_sides, priors.held_at_maximum, wf.max_expected_goals,
-        priors.no_history);
-    std::cout << fmt::format("wrote {} matches ({} with extra time, {} shoot-outs with reconstructed kicks) in {} "
-                             "stream files under {}\n",
-                             written, extra_time, shootouts, files.size(), o.out);
-    std::cout << fmt::format("{:.2f} s in all: files read {:.2f} s, walk-forward fits {:.2f} s, streams written {:.2f} s\n",
-                             since(start), read_seconds, fit_seconds, since(write_start));
+        priors.refits, priors.not_converged, priors.unrated_sides, priors.held_at_maximum,
+        wf.max_expected_goals, priors.no_history);
+    std::cout << fmt::format(
+        "wrote {} matches ({} with extra time, {} shoot-outs with reconstructed kicks) in {} "
+        "stream files under {}\n",
+        written, extra_time, shootouts, files.size(), o.out);
+    std::cout << fmt::format(
+        "{:.2f} s in all: files read {:.2f} s, walk-forward fits {:.2f} s, streams written {:.2f} "
+        "s\n",
+        since(start), read_seconds, fit_seconds, since(write_start));
     return kExitOk;
 }
 
@@ -179,23 +201,31 @@ const Registration registration{{
         auto o = std::make_shared<ImportOptions>();
         sub.add_option("--international", o->international,
                        "folder with results.csv, goalscorers.csv and shootouts.csv");
-        sub.add_option("--championship", o->championships, "championship JSON file (rounds of matches with goals)");
+        sub.add_option("--championship", o->championships,
+                       "championship JSON file (rounds of matches with goals)");
         sub.add_option("--out", o->out, "directory for the streams")->required();
-        sub.add_option("--form", o->form, "frames (size-prefixed, the journal's format) or json (JSON lines)")
+        sub.add_option("--form", o->form,
+                       "frames (size-prefixed, the journal's format) or json (JSON lines)")
             ->capture_default_str();
-        sub.add_option("--half-life", o->half_life_days, "rating fit: time-decay half-life in days (0: no decay)")
+        sub.add_option("--half-life", o->half_life_days,
+                       "rating fit: time-decay half-life in days (0: no decay)")
             ->capture_default_str();
-        sub.add_option("--refit", o->refit,
-                       "match-day: one fit per match day on everything before it; month: one per month")
+        sub.add_option(
+               "--refit", o->refit,
+               "match-day: one fit per match day on everything before it; month: one per month")
             ->capture_default_str();
         sub.add_option("--coverage", o->coverage,
-                       "share of a competition-year's scoring matches with complete goal records needed to take it")
+                       "share of a competition-year's scoring matches with complete goal records "
+                       "needed to take it")
             ->capture_default_str();
-        sub.add_option("--min-matches", o->min_matches, "rating fit: teams with fewer weighted matches are shrunk")
+        sub.add_option("--min-matches", o->min_matches,
+                       "rating fit: teams with fewer weighted matches are shrunk")
             ->capture_default_str();
-        sub.add_option("--shrink-precision", o->shrink_precision, "rating fit: prior precision for shrunk teams")
+        sub.add_option("--shrink-precision", o->shrink_precision,
+                       "rating fit: prior precision for shrunk teams")
             ->capture_default_str();
-        sub.add_option("--from", o->from, "import matches on or after this date (the fits still use all before)");
+        sub.add_option("--from", o->from,
+                       "import matches on or after this date (the fits still use all before)");
         sub.add_option("--to", o->to, "import matches before this date");
         sub.add_flag("--quiet", o->quiet, "no progress bar");
         return [o] { return run_import(*o); };

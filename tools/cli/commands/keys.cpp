@@ -13,7 +13,8 @@ const Registration registration{{
     [](CLI::App& sub) -> std::function<int()> {
         auto directory = std::make_shared<std::string>(".");
         auto name = std::make_shared<std::string>();
-        sub.add_option("--dir", *directory, "directory to write into")->check(CLI::ExistingDirectory);
+        sub.add_option("--dir", *directory, "directory to write into")
+            ->check(CLI::ExistingDirectory);
         sub.add_option("--name", *name, "base name of the two files")->required();
         return [directory, name] {
             if (name->empty() || name->find('/') != std::string::npos) {

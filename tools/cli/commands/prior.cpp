@@ -28,14 +28,16 @@ int run_prior(const PriorOptions& o) {
     const fit::Ratings ratings = liveprob::files::load_ratings_file(o.ratings);
     std::vector<std::string> known;
     for (const auto& t : ratings.teams) known.push_back(t.name);
-    const fit::TeamNameResolver names(known, o.aliases.empty() ? std::map<std::string, std::string>{}
-                                                               : liveprob::files::load_alias_file(o.aliases));
+    const fit::TeamNameResolver names(known, o.aliases.empty()
+                                                 ? std::map<std::string, std::string>{}
+                                                 : liveprob::files::load_alias_file(o.aliases));
     const fit::TeamRating& home = *ratings.find(names.resolve(o.home));
     const fit::TeamRating& away = *ratings.find(names.resolve(o.away));
     const fit::ExpectedGoals e = fit::expected_goals(ratings, home, away, o.neutral);
     if (!o.setup_line) {
-        std::cout << fmt::format("{} v {}{}: expected regulation goals {:.4f} - {:.4f}\n", home.name, away.name,
-                                 o.neutral ? " (neutral venue)" : "", e.home, e.away);
+        std::cout << fmt::format("{} v {}{}: expected regulation goals {:.4f} - {:.4f}\n",
+                                 home.name, away.name, o.neutral ? " (neutral venue)" : "", e.home,
+                                 e.away);
         return liveprob::cli::kExitOk;
     }
     liveprob::core::MatchSetup setup;
@@ -50,18 +52,19 @@ int run_prior(const PriorOptions& o) {
     return liveprob::cli::kExitOk;
 }
 
-const liveprob::cli::Registration registration{{
-    "prior", "expected regulation goals for a fixture from a ratings file",
-    [](CLI::App& app) {
-        auto o = std::make_shared<PriorOptions>();
-        app.add_option("--ratings", o->ratings, "ratings file written by `liveprob fit`")->required();
-        app.add_option("--home", o->home, "home side (feed name)")->required();
-        app.add_option("--away", o->away, "away side (feed name)")->required();
-        app.add_option("--aliases", o->aliases, "CSV feed_name,rating_name");
-        app.add_flag("--neutral", o->neutral, "neutral venue: no home advantage");
-        app.add_option("--match-id", o->match_id, "match id for the setup message");
-        app.add_flag("--setup-message", o->setup_line, "print the match-setup message (one JSON feed line)");
-        return [o] { return run_prior(*o); };
-    }}};
+const liveprob::cli::Registration registration{
+    {"prior", "expected regulation goals for a fixture from a ratings file", [](CLI::App& app) {
+         auto o = std::make_shared<PriorOptions>();
+         app.add_option("--ratings", o->ratings, "ratings file written by `liveprob fit`")
+             ->required();
+         app.add_option("--home", o->home, "home side (feed name)")->required();
+         app.add_option("--away", o->away, "away side (feed name)")->required();
+         app.add_option("--aliases", o->aliases, "CSV feed_name,rating_name");
+         app.add_flag("--neutral", o->neutral, "neutral venue: no home advantage");
+         app.add_option("--match-id", o->match_id, "match id for the setup message");
+         app.add_flag("--setup-message", o->setup_line,
+                      "print the match-setup message (one JSON feed line)");
+         return [o] { return run_prior(*o); };
+     }}};
 
 }  // namespace

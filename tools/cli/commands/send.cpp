@@ -17,11 +17,11 @@
 #include "command_registry.hpp"
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
-#include "liveprob/protocol/whole_file.hpp"
-#include "liveprob/system/wall_clock.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/whole_file.hpp"
+#include "liveprob/system/wall_clock.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -47,23 +47,27 @@ std::vector<core::InboundMessage> read_json_lines(const std::string& path) {
     std::size_t number = 0;
     while (std::getline(in, line)) {
         auto result = reader.read_line(line, ++number);
-        if (result.kind == protocol::JsonLineKind::bad) throw std::runtime_error(path + ": " + result.error);
+        if (result.kind == protocol::JsonLineKind::bad)
+            throw std::runtime_error(path + ": " + result.error);
         if (result.message) messages.push_back(std::move(*result.message));
     }
     return messages;
 }
 
-std::vector<core::InboundMessage> read_frames(const std::string& path, const std::vector<std::uint8_t>& bytes) {
+std::vector<core::InboundMessage> read_frames(const std::string& path,
+                                              const std::vector<std::uint8_t>& bytes) {
     protocol::FrameCursor cursor(bytes);
     std::vector<core::InboundMessage> messages;
     while (const auto frame = cursor.next()) {
         auto decoded = protocol::decode_feed_message(frame->payload);
         if (!decoded.message) {
-            throw std::runtime_error(fmt::format("{}: frame at offset {}: {}", path, frame->offset, decoded.detail));
+            throw std::runtime_error(
+                fmt::format("{}: frame at offset {}: {}", path, frame->offset, decoded.detail));
         }
         messages.push_back(std::move(*decoded.message));
     }
-    if (cursor.end() != protocol::StreamEnd::clean) throw std::runtime_error(path + ": " + cursor.end_detail());
+    if (cursor.end() != protocol::StreamEnd::clean)
+        throw std::runtime_error(path + ": " + cursor.end_detail());
     return messages;
 }
 
@@ -92,8 +96,8 @@ int run_send(const SendFlags& f) {
     clients::ShardSender sender(context, f.to, options);
 
     clients::FeedPacer pacer = f.rate > 0.0    ? clients::FeedPacer::at_rate(f.rate)
-                                : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
-                                                : clients::FeedPacer::as_fast_as_possible();
+                               : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
+                                               : clients::FeedPacer::as_fast_as_possible();
     for (std::size_t i = 0; i < messages.size(); ++i) {
         pacer.wait_for(messages[i]);
         core::InboundMessage& m = messages[i];
@@ -104,10 +108,12 @@ int run_send(const SendFlags& f) {
         sender.send(m.header.match_id, bytes);
     }
     if (sender.shard_count() == 1) {
-        std::cout << fmt::format("sent {} messages to {}", messages.size(), f.to.front()) << std::endl;
+        std::cout << fmt::format("sent {} messages to {}", messages.size(), f.to.front())
+                  << std::endl;
     } else {
-        std::cout << fmt::format("sent {} messages to {} shards ({} each, in shard order)", messages.size(),
-                                 sender.shard_count(), fmt::join(sender.sent_per_shard(), ", "))
+        std::cout << fmt::format("sent {} messages to {} shards ({} each, in shard order)",
+                                 messages.size(), sender.shard_count(),
+                                 fmt::join(sender.sent_per_shard(), ", "))
                   << std::endl;
     }
     return kExitOk;
@@ -118,17 +124,22 @@ const Registration registration{{
     "push a feed file (JSON lines or a recorded stream) to a service's ingest endpoint",
     [](CLI::App& sub) -> std::function<int()> {
         auto f = std::make_shared<SendFlags>();
-        sub.add_option("--to", f->to,
-                       "ingest endpoint, e.g. tcp://127.0.0.1:7430; for shards, every shard's in order "
-                       "(0/N first, comma-separated): each match goes to the shard that owns it")
+        sub.add_option(
+               "--to", f->to,
+               "ingest endpoint, e.g. tcp://127.0.0.1:7430; for shards, every shard's in order "
+               "(0/N first, comma-separated): each match goes to the shard that owns it")
             ->required()
-            ->allow_extra_args(false)  // one argument (split at commas): the feed file is never taken for an endpoint
+            ->allow_extra_args(false)  // one argument (split at commas): the feed file is never
+                                       // taken for an endpoint
             ->delimiter(',');
         sub.add_option("file", f->file, "feed file")->required()->check(CLI::ExistingFile);
         sub.add_option("--format", f->format, "auto | jsonl | frames (size-prefixed stream)");
-        sub.add_option("--speed", f->speed, "pace by the match clock, this many times real time (0: no pacing)");
-        sub.add_option("--rate", f->rate, "send this many messages per second (0: as fast as possible)");
-        sub.add_flag("--stamp", f->stamp, "set each message's source time to the moment it is sent");
+        sub.add_option("--speed", f->speed,
+                       "pace by the match clock, this many times real time (0: no pacing)");
+        sub.add_option("--rate", f->rate,
+                       "send this many messages per second (0: as fast as possible)");
+        sub.add_flag("--stamp", f->stamp,
+                     "set each message's source time to the moment it is sent");
         sub.add_option("--server-key", f->server_key, "CURVE: the service's .public key file");
         sub.add_option("--client-key", f->client_key, "CURVE: this feed's .secret key file");
         sub.add_option("--linger-ms", f->linger_ms, "how long to wait at exit for unsent messages")

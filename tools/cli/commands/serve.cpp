@@ -27,7 +27,8 @@ int run_serve(const ServeFlags& f) {
         if (!f.config_file.empty()) config = service::load_service_config(f.config_file);
         for (const service::ConfigKey& key : service::config_keys()) {
             if (key.value == service::ConfigValue::flag) {
-                if (f.switches.at(key.name)) service::set_config_value(config, key, "true", key.flag);
+                if (f.switches.at(key.name))
+                    service::set_config_value(config, key, "true", key.flag);
             } else if (const auto& value = f.values.at(key.name)) {
                 service::set_config_value(config, key, *value, key.flag);
             }
@@ -37,8 +38,9 @@ int run_serve(const ServeFlags& f) {
         throw UsageError(e.what());
     }
     spdlog::set_level(spdlog::level::from_str(config.log_level));
-    const core::ModelParams params =
-        config.params_file.empty() ? core::ModelParams{} : files::load_params_file(config.params_file);
+    const core::ModelParams params = config.params_file.empty()
+                                         ? core::ModelParams{}
+                                         : files::load_params_file(config.params_file);
     service::LiveService live(config, params);
     live.run();
     return kExitOk;

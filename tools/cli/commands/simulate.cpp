@@ -7,8 +7,8 @@
 #include <fmt/format.h>
 
 #include "command_registry.hpp"
-#include "liveprob/demo/demo_season.hpp"
 #include "liveprob/backtest/recorded_stream.hpp"
+#include "liveprob/demo/demo_season.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -25,8 +25,10 @@ const Registration registration{{
     [](CLI::App& sub) -> std::function<int()> {
         auto o = std::make_shared<SimulateOptions>();
         sub.add_option("--out", o->out_dir, "directory for the streams")->required();
-        sub.add_option("--seed", o->seed, "seed of the league and of every match")->capture_default_str();
-        sub.add_option("--form", o->form, "frames (size-prefixed binary) or json (JSON lines)")->capture_default_str();
+        sub.add_option("--seed", o->seed, "seed of the league and of every match")
+            ->capture_default_str();
+        sub.add_option("--form", o->form, "frames (size-prefixed binary) or json (JSON lines)")
+            ->capture_default_str();
         return [o] {
             backtest::StreamForm form{};
             try {
@@ -41,10 +43,15 @@ const Registration registration{{
             std::filesystem::create_directories(dir / "cup");
             const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
             for (const auto& match : season.league) {
-                backtest::write_stream(dir / "league" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
+                backtest::write_stream(
+                    dir / "league" /
+                        fmt::format("{}.{}", match.messages.front().header.match_id, ext),
+                    match.messages, form);
             }
             for (const auto& match : season.cup) {
-                backtest::write_stream(dir / "cup" / fmt::format("{}.{}", match.messages.front().header.match_id, ext), match.messages, form);
+                backtest::write_stream(
+                    dir / "cup" / fmt::format("{}.{}", match.messages.front().header.match_id, ext),
+                    match.messages, form);
             }
             std::cout << fmt::format("{}: {} league matches, {} cup ties in {}\n", league.name,
                                      season.league.size(), season.cup.size(), dir.string());

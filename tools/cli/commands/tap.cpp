@@ -83,10 +83,10 @@ std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
 std::string table_row(const protocol::DecodedUpdate& u) {
     const core::Outputs& o = u.outputs;
     const std::uint32_t seconds = o.clock.clock_ms / 1000;
-    return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}", u.meta.match_id,
-                       u.meta.output_seq, status_name(o.status), seconds / 60, seconds % 60, o.home_goals,
-                       o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw, 100.0 * o.p_away,
-                       u.meta.receive_time_us == 0 ? "tick" : "event");
+    return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}",
+                       u.meta.match_id, u.meta.output_seq, status_name(o.status), seconds / 60,
+                       seconds % 60, o.home_goals, o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw,
+                       100.0 * o.p_away, u.meta.receive_time_us == 0 ? "tick" : "event");
 }
 
 void print_update(const TapFlags& f, const protocol::DecodedUpdate& u, const char* source) {
@@ -107,16 +107,18 @@ double percentile(std::vector<std::int64_t>& v, double q) {
 
 void report_latency(std::vector<std::int64_t>& end_to_end, std::vector<std::int64_t>& in_service) {
     const auto line = [](const char* what, std::vector<std::int64_t>& v) {
-        std::cerr << fmt::format("latency {} (us, n={}): p50 {:.0f} p99 {:.0f} p99.9 {:.0f} max {:.0f}\n", what,
-                                 v.size(), percentile(v, 0.5), percentile(v, 0.99), percentile(v, 0.999),
-                                 percentile(v, 1.0));
+        std::cerr << fmt::format(
+            "latency {} (us, n={}): p50 {:.0f} p99 {:.0f} p99.9 {:.0f} max {:.0f}\n", what,
+            v.size(), percentile(v, 0.5), percentile(v, 0.99), percentile(v, 0.999),
+            percentile(v, 1.0));
     };
     line("receive-to-tap", end_to_end);
     line("receive-to-publish", in_service);
 }
 
 int run_tap(const TapFlags& f) {
-    if (f.format != "table" && f.format != "jsonl") throw UsageError("--format must be table or jsonl");
+    if (f.format != "table" && f.format != "jsonl")
+        throw UsageError("--format must be table or jsonl");
     if (f.snapshot_only && f.snapshot.empty()) throw UsageError("--snapshot-only needs --snapshot");
     const auto keys = clients::load_curve_client_keys(f.server_key, f.client_key);
     std::signal(SIGINT, on_interrupt);
@@ -130,14 +132,15 @@ int run_tap(const TapFlags& f) {
     clients::UpdateSubscriber sub(context, f.from, subscription);
 
     if (f.format == "table") {
-        std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match", "seq", "status",
-                                 "clock", "score", "home", "draw", "away", "cause");
+        std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match",
+                                 "seq", "status", "clock", "score", "home", "draw", "away",
+                                 "cause");
     }
     // Subscribed first, then the snapshot: nothing published in between is missed (it may
     // arrive twice; the output sequence tells).
     if (!f.snapshot.empty()) {
         const auto reply = clients::request_snapshot(context, f.snapshot, f.match.value_or(0),
-                                                      std::chrono::milliseconds(5000), keys);
+                                                     std::chrono::milliseconds(5000), keys);
         if (!reply.error.empty()) std::cerr << "liveprob tap: snapshot: " << reply.error << "\n";
         for (const auto& u : reply.updates) print_update(f, u, "snapshot");
         if (f.snapshot_only) return reply.error.empty() ? kExitOk : kExitFailure;
@@ -150,9 +153,10 @@ int run_tap(const TapFlags& f) {
     while (!interrupted && (f.count == 0 || printed < f.count)) {
         const auto received = sub.receive();
         if (!received) {
-            if (f.timeout_ms > 0 &&
-                std::chrono::steady_clock::now() - last_message > std::chrono::milliseconds(f.timeout_ms)) {
-                std::cerr << fmt::format("liveprob tap: error: nothing received for {} ms\n", f.timeout_ms);
+            if (f.timeout_ms > 0 && std::chrono::steady_clock::now() - last_message >
+                                        std::chrono::milliseconds(f.timeout_ms)) {
+                std::cerr << fmt::format("liveprob tap: error: nothing received for {} ms\n",
+                                         f.timeout_ms);
                 if (f.latency) report_latency(end_to_end, in_service);
                 return kExitFailure;
             }
@@ -161,12 +165,14 @@ int run_tap(const TapFlags& f) {
         last_message = std::chrono::steady_clock::now();
         if (received->kind == clients::ReceivedMessage::Kind::counters) {
             std::string line;
-            for (const auto& [name, value] : received->counters.values) line += fmt::format(" {}={}", name, value);
+            for (const auto& [name, value] : received->counters.values)
+                line += fmt::format(" {}={}", name, value);
             std::cout << "counters:" << line << '\n' << std::flush;
             continue;
         }
         if (received->kind == clients::ReceivedMessage::Kind::undecodable) {
-            std::cerr << "liveprob tap: dropped an update that does not decode: " << received->problem << "\n";
+            std::cerr << "liveprob tap: dropped an update that does not decode: "
+                      << received->problem << "\n";
             continue;
         }
         const protocol::DecodedUpdate& u = received->update;
@@ -190,14 +196,18 @@ const Registration registration{{
         auto f = std::make_shared<TapFlags>();
         sub.add_option("--from", f->from, "publish endpoint of serve (or relay)")->required();
         sub.add_option("--match", f->match, "only this match id");
-        sub.add_option("--snapshot", f->snapshot, "snapshot endpoint: print the current state first");
+        sub.add_option("--snapshot", f->snapshot,
+                       "snapshot endpoint: print the current state first");
         sub.add_flag("--snapshot-only", f->snapshot_only, "print the snapshot and exit");
         sub.add_option("--format", f->format, "table | jsonl");
-        sub.add_option("--count", f->count, "exit after this many live updates (0: until interrupted)");
+        sub.add_option("--count", f->count,
+                       "exit after this many live updates (0: until interrupted)");
         sub.add_flag("--events-only", f->events_only, "skip the timer's republications");
-        sub.add_flag("--latency", f->latency, "at exit, print delay percentiles from the timestamps");
+        sub.add_flag("--latency", f->latency,
+                     "at exit, print delay percentiles from the timestamps");
         sub.add_flag("--counters", f->counters, "also print the service's counters");
-        sub.add_option("--timeout-ms", f->timeout_ms, "fail when nothing arrives for this long (0: wait)")
+        sub.add_option("--timeout-ms", f->timeout_ms,
+                       "fail when nothing arrives for this long (0: wait)")
             ->check(CLI::Range(0, 3600000));
         sub.add_option("--server-key", f->server_key, "CURVE: the service's .public key file");
         sub.add_option("--client-key", f->client_key, "CURVE: this subscriber's .secret key file");

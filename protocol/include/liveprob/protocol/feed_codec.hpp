@@ -24,7 +24,7 @@ inline constexpr std::size_t kMaxFeedMessageBytes = 64 * 1024;
 struct FeedDecodeResult {
     std::optional<core::InboundMessage> message;  // set exactly when error == none
     DecodeError error = DecodeError::none;
-    std::string detail;                      // one line, for logs
+    std::string detail;  // one line, for logs
 };
 
 // Verifies `bytes` (size limit, identifier, FlatBuffers Verifier, schema major version, then the

@@ -22,16 +22,16 @@ void append_frame(std::vector<std::uint8_t>& stream, std::span<const std::uint8_
                   std::size_t max_payload = kMaxFeedMessageBytes);
 
 struct Frame {
-    std::size_t offset = 0;                   // of the length prefix within the stream
+    std::size_t offset = 0;  // of the length prefix within the stream
     std::span<const std::uint8_t> payload;
 };
 
 // How the stream ended.
 enum class StreamEnd : std::uint8_t {
-    clean,          // the last frame ended exactly at the end
-    torn_prefix,    // 1-3 bytes left, too few for a length prefix
-    torn_payload,   // a prefix promises more bytes than remain
-    oversize,       // a prefix declares a frame larger than the limit (reading stops there)
+    clean,         // the last frame ended exactly at the end
+    torn_prefix,   // 1-3 bytes left, too few for a length prefix
+    torn_payload,  // a prefix promises more bytes than remain
+    oversize,      // a prefix declares a frame larger than the limit (reading stops there)
 };
 const char* stream_end_name(StreamEnd end) noexcept;
 
@@ -45,7 +45,7 @@ public:
     std::optional<Frame> next() noexcept;
 
     StreamEnd end() const noexcept { return end_; }
-    std::size_t end_offset() const noexcept { return offset_; }     // where the damage begins
+    std::size_t end_offset() const noexcept { return offset_; }  // where the damage begins
     std::uint32_t declared_length() const noexcept { return declared_; }
     std::size_t bytes_left() const noexcept { return stream_.size() - offset_; }
     std::string end_detail() const;

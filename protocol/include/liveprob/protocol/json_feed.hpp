@@ -23,9 +23,9 @@ enum class JsonLineKind : std::uint8_t {
 struct JsonLineResult {
     JsonLineKind kind = JsonLineKind::skipped;
     std::optional<core::InboundMessage> message;  // set exactly when kind == message
-    std::string field;    // the field at fault ("" when the line is not a JSON object)
-    std::string reason;   // what is wrong with it
-    std::string error;    // one line: "line 12: field 'side': expected 'home' or 'away', got 'hme'"
+    std::string field;   // the field at fault ("" when the line is not a JSON object)
+    std::string reason;  // what is wrong with it
+    std::string error;   // one line: "line 12: field 'side': expected 'home' or 'away', got 'hme'"
     std::string kind_hint;  // the line's "type" when it could be read, for per-kind counts
 };
 

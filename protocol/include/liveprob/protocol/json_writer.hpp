@@ -48,8 +48,7 @@ public:
     JsonWriter& value(bool flag);
     JsonWriter& value(double number);  // throws std::invalid_argument for NaN or infinity
     template <std::integral T>
-        requires(!std::same_as<T, bool> && !std::same_as<T, char>)
-    JsonWriter& value(T number) {
+    requires(!std::same_as<T, bool> && !std::same_as<T, char>) JsonWriter& value(T number) {
         if constexpr (std::is_signed_v<T>) return integer(static_cast<std::int64_t>(number));
         else return unsigned_integer(static_cast<std::uint64_t>(number));
     }

@@ -26,7 +26,7 @@ struct UpdateMeta {
     std::uint64_t match_id = 0;
     std::uint64_t output_seq = 0;
     std::uint64_t input_seq = 0;
-    std::int64_t receive_time_us = 0;   // 0 for updates driven by the clock alone
+    std::int64_t receive_time_us = 0;  // 0 for updates driven by the clock alone
     std::int64_t publish_time_us = 0;
     std::uint32_t compute_ns = 0;
     friend bool operator==(const UpdateMeta&, const UpdateMeta&) = default;

@@ -22,7 +22,8 @@ std::vector<std::uint8_t> read_whole_file_bytes(const std::filesystem::path& pat
 // renamed over `path`, and the folder flushed. A reader sees the old file or the new one, never
 // part of one; a crash leaves one of the two; on failure the old file is untouched and the
 // temporary one removed. The new file's mode is 0666 less the umask.
-void write_file_atomically(const std::filesystem::path& path, std::span<const std::uint8_t> contents,
+void write_file_atomically(const std::filesystem::path& path,
+                           std::span<const std::uint8_t> contents,
                            std::string_view what = "the file");
 void write_file_atomically(const std::filesystem::path& path, std::string_view contents,
                            std::string_view what = "the file");

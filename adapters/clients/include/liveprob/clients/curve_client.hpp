@@ -17,7 +17,8 @@ struct CurveClientKeys {
 
 // Reads the three key files (server .public, own .public and .secret). With an empty server
 // key file, CURVE stays off and the other two are ignored.
-CurveClientKeys load_curve_client_keys(const std::string& server_public_file, const std::string& client_secret_file);
+CurveClientKeys load_curve_client_keys(const std::string& server_public_file,
+                                       const std::string& client_secret_file);
 void apply_curve_client(zmq::socket_t& socket, const CurveClientKeys& keys);
 
 }  // namespace liveprob::clients

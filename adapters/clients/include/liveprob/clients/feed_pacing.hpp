@@ -15,7 +15,9 @@ namespace liveprob::clients {
 class FeedPacer {
 public:
     static FeedPacer as_fast_as_possible() { return FeedPacer(Mode::asap, 0.0); }
-    static FeedPacer at_rate(double messages_per_second) { return FeedPacer(Mode::rate, messages_per_second); }
+    static FeedPacer at_rate(double messages_per_second) {
+        return FeedPacer(Mode::rate, messages_per_second);
+    }
     // `speed` times real time, by the match clock between consecutive messages.
     static FeedPacer by_match_clock(double speed) { return FeedPacer(Mode::match_clock, speed); }
     // `speed` times real time, by the messages' source timestamps.

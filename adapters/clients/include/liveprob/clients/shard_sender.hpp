@@ -18,9 +18,9 @@
 namespace liveprob::clients {
 
 struct ShardSenderOptions {
-    int linger_ms = 5000;           // how long closing waits for unsent messages
+    int linger_ms = 5000;  // how long closing waits for unsent messages
     int send_high_water_mark = 1'000'000;
-    CurveClientKeys keys;           // the same feed key for every shard
+    CurveClientKeys keys;  // the same feed key for every shard
 };
 
 class ShardSender {
@@ -33,7 +33,9 @@ public:
     // queue is full.
     void send(std::uint64_t match_id, std::span<const std::uint8_t> bytes);
 
-    std::uint32_t shard_count() const noexcept { return static_cast<std::uint32_t>(sockets_.size()); }
+    std::uint32_t shard_count() const noexcept {
+        return static_cast<std::uint32_t>(sockets_.size());
+    }
     const std::vector<std::string>& endpoints() const noexcept { return endpoints_; }
     // Messages sent to each shard so far, in shard order.
     const std::vector<std::uint64_t>& sent_per_shard() const noexcept { return sent_; }

@@ -15,8 +15,10 @@
 namespace liveprob::clients {
 
 // Throws std::runtime_error on timeout or on a reply that does not decode.
-protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context, const std::string& endpoint,
-                                                 std::uint64_t match_id, std::chrono::milliseconds timeout,
+protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context,
+                                                 const std::string& endpoint,
+                                                 std::uint64_t match_id,
+                                                 std::chrono::milliseconds timeout,
                                                  const CurveClientKeys& keys = {});
 
 }  // namespace liveprob::clients

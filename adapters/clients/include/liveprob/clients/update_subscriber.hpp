@@ -17,9 +17,9 @@
 namespace liveprob::clients {
 
 struct SubscriberOptions {
-    std::optional<std::uint64_t> match;  // one match; none: every match
-    bool counters = false;               // also the service's counters topic
-    std::chrono::milliseconds poll{100}; // how long receive() waits before it returns nothing
+    std::optional<std::uint64_t> match;       // one match; none: every match
+    bool counters = false;                    // also the service's counters topic
+    std::chrono::milliseconds poll{100};      // how long receive() waits before it returns nothing
     int receive_high_water_mark = 1'000'000;  // messages queued here before ZeroMQ drops
     CurveClientKeys keys;
 };
@@ -36,7 +36,8 @@ struct ReceivedMessage {
 class UpdateSubscriber {
 public:
     // Subscribes, then connects (so nothing published after the connection is filtered out).
-    UpdateSubscriber(zmq::context_t& context, const std::string& endpoint, const SubscriberOptions& options);
+    UpdateSubscriber(zmq::context_t& context, const std::string& endpoint,
+                     const SubscriberOptions& options);
 
     // The next message, or nothing when none arrived within the poll time.
     std::optional<ReceivedMessage> receive();

@@ -14,7 +14,8 @@ namespace liveprob::datasets {
 
 // Both sources put a stoppage-time goal in its period's last minute (45, 90, 105, 120), the
 // championship files adding how far in: the fits use the minute (the order is kept).
-fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior, bool listed_for_goals);
+fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior,
+                              bool listed_for_goals);
 
 // Regulation goals (minutes 1..90) per minute, over the given matches.
 fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches);

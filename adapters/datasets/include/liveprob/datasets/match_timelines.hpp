@@ -31,18 +31,18 @@ struct TimelineGoal {
 
 struct TimelineShootout {
     core::Side winner = core::Side::home;
-    std::optional<core::Side> first_kicker;        // when the source names it
-    std::optional<std::array<int, 2>> tally; // kicks scored per side, when the source gives them
+    std::optional<core::Side> first_kicker;   // when the source names it
+    std::optional<std::array<int, 2>> tally;  // kicks scored per side, when the source gives them
 };
 
 struct MatchTimeline {
-    int day = 0;  // day number (engine/fit/calendar.hpp)
+    int day = 0;                        // day number (engine/fit/calendar.hpp)
     std::optional<int> kickoff_minute;  // minutes after midnight when the source gives a time
     std::string home, away;             // as the source spells them
     bool neutral = false;
     std::string competition;
-    std::string origin;                 // file and line or match number, for messages
-    std::uint32_t origin_number = 0;    // that line or match number (a stable identity)
+    std::string origin;               // file and line or match number, for messages
+    std::uint32_t origin_number = 0;  // that line or match number (a stable identity)
     std::array<int, 2> regulation_goals{};
     std::array<int, 2> extra_time_goals{};
     bool extra_time = false;  // extra time was played
@@ -51,19 +51,21 @@ struct MatchTimeline {
 };
 
 struct TimelineSkips {
-    int no_result = 0;             // no final score in the source
-    int duplicates = 0;            // the same (date, home, away) again
-    int goals_incomplete = 0;      // goal records missing, without a minute, or not adding up
-    int not_covered = 0;           // competition and year without complete goal records (below)
-    int aggregate_tie = 0;         // extra time or a shoot-out after an unlevel match: the second
-                                   // leg of a two-legged tie, whose first leg the source lacks
-    int total() const noexcept { return no_result + duplicates + goals_incomplete + not_covered + aggregate_tie; }
+    int no_result = 0;         // no final score in the source
+    int duplicates = 0;        // the same (date, home, away) again
+    int goals_incomplete = 0;  // goal records missing, without a minute, or not adding up
+    int not_covered = 0;       // competition and year without complete goal records (below)
+    int aggregate_tie = 0;     // extra time or a shoot-out after an unlevel match: the second
+                               // leg of a two-legged tie, whose first leg the source lacks
+    int total() const noexcept {
+        return no_result + duplicates + goals_incomplete + not_covered + aggregate_tie;
+    }
 };
 
 struct TimelinesRead {
     std::vector<MatchTimeline> matches;  // by date, then source order
     TimelineSkips skipped;
-    int shootouts_without_tally = 0;     // shoot-outs whose kicks the source does not give
+    int shootouts_without_tally = 0;  // shoot-outs whose kicks the source does not give
 };
 
 struct InternationalSelection {
@@ -77,7 +79,8 @@ struct InternationalSelection {
 
 // `dir` holds results.csv, goalscorers.csv and shootouts.csv. Throws std::runtime_error naming
 // the file when one cannot be read or lacks a column.
-TimelinesRead read_international_timelines(const std::string& dir, const InternationalSelection& selection = {});
+TimelinesRead read_international_timelines(const std::string& dir,
+                                           const InternationalSelection& selection = {});
 
 // The rows of the international shoot-outs file (shootouts.csv), in file order: every
 // shoot-out the source records, whether or not its match has complete goal records.

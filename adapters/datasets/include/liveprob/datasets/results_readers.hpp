@@ -18,8 +18,8 @@ namespace liveprob::datasets {
 
 struct ResultsRead {
     std::vector<fit::MatchResult> matches;  // in file order
-    int skipped = 0;     // rows without a usable result (open formats only)
-    int duplicates = 0;  // repeated (date, home, away)
+    int skipped = 0;                        // rows without a usable result (open formats only)
+    int duplicates = 0;                     // repeated (date, home, away)
 };
 
 ResultsRead read_project_results(const std::string& path);

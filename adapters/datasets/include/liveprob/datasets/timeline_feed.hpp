@@ -26,15 +26,16 @@
 #include <cstdint>
 #include <vector>
 
-#include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/core/messages.hpp"
+#include "liveprob/datasets/match_timelines.hpp"
 
 namespace liveprob::datasets {
 
 inline constexpr std::uint32_t kTimelineClockSyncMinutes = 5;
 
-std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match, std::uint64_t match_id,
-                                               const core::PriorMeans& prior);
+std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match,
+                                                     std::uint64_t match_id,
+                                                     const core::PriorMeans& prior);
 
 // The shoot-out kicks written for `shootout` (exposed for tests): ABAB order from the first
 // kicker, ending as soon as the shoot-out is decided, with the winner ahead.

@@ -15,6 +15,7 @@ std::map<std::string, std::string> read_endpoints_file(const std::string& path);
 
 // Writes the "name=endpoint" lines in the order given, replacing the file atomically (a tool
 // polling for it never reads half of it).
-void write_endpoints_file(const std::string& path, const std::vector<std::pair<std::string, std::string>>& endpoints);
+void write_endpoints_file(const std::string& path,
+                          const std::vector<std::pair<std::string, std::string>>& endpoints);
 
 }  // namespace liveprob::files

@@ -1,6 +1,6 @@
 // The service's journal: every accepted inbound message, appended before it is applied, as one
-// size-prefixed frame (protocol/framing.hpp: the same layout as recorded streams). State is a fold of
-// these frames, so replaying the file rebuilds every match exactly.
+// size-prefixed frame (protocol/framing.hpp: the same layout as recorded streams). State is a fold
+// of these frames, so replaying the file rebuilds every match exactly.
 #pragma once
 
 #include <sys/types.h>
@@ -19,12 +19,13 @@ namespace liveprob::files {
 
 // When the journal reaches the disk.
 enum class JournalSync : std::uint8_t {
-    none,           // leave flushing to the operating system (fastest; a machine crash may lose the tail)
+    none,  // leave flushing to the operating system (fastest; a machine crash may lose the tail)
     interval,       // write each frame at once, fsync at most every `journal_sync_interval_ms`
     every_message,  // fsync after every frame, before the message is applied
 };
 // The policies' names, in the enum's order (configuration values and logs).
-inline constexpr std::array<std::string_view, 3> kJournalSyncNames = {"none", "interval", "every_message"};
+inline constexpr std::array<std::string_view, 3> kJournalSyncNames = {"none", "interval",
+                                                                      "every_message"};
 const char* journal_sync_name(JournalSync s) noexcept;
 
 struct JournalError : std::runtime_error {
@@ -38,7 +39,8 @@ inline constexpr std::size_t kMaxJournalFrameBytes = 64 * 1024;  // protocol::kM
 // append() returns loses nothing; only a machine crash can, and the sync policy bounds that).
 class JournalWriter {
 public:
-    JournalWriter(const std::string& path, JournalSync sync, std::chrono::milliseconds sync_interval);
+    JournalWriter(const std::string& path, JournalSync sync,
+                  std::chrono::milliseconds sync_interval);
     ~JournalWriter();
     JournalWriter(const JournalWriter&) = delete;
     JournalWriter& operator=(const JournalWriter&) = delete;
@@ -69,10 +71,10 @@ private:
 };
 
 struct JournalReplayReport {
-    std::uint64_t frames = 0;          // whole frames handed to the visitor
-    std::uint64_t valid_bytes = 0;     // file length up to the end of the last whole frame
-    std::uint64_t torn_bytes = 0;      // bytes after it (a frame cut short by a crash), truncated
-    std::string torn_detail;           // why the tail was cut, for the log; empty when clean
+    std::uint64_t frames = 0;       // whole frames handed to the visitor
+    std::uint64_t valid_bytes = 0;  // file length up to the end of the last whole frame
+    std::uint64_t torn_bytes = 0;   // bytes after it (a frame cut short by a crash), truncated
+    std::string torn_detail;        // why the tail was cut, for the log; empty when clean
 };
 
 // Reads every whole frame in order. A torn or damaged tail (short length field, length beyond

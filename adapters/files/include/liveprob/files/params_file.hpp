@@ -22,8 +22,8 @@
 #include <stdexcept>
 #include <string>
 
-#include "liveprob/files/one_line.hpp"
 #include "liveprob/core/params.hpp"
+#include "liveprob/files/one_line.hpp"
 
 namespace liveprob::files {
 

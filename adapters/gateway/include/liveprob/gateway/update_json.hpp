@@ -12,11 +12,11 @@ namespace liveprob::gateway {
 // What the gateway keeps of one decoded Update buffer.
 struct GatewayUpdate {
     std::uint64_t match_id = 0;
-    std::uint64_t output_seq = 0;        // per match, +1 per published update
-    std::uint64_t input_seq = 0;         // feed sequence number the update reflects
-    std::int64_t engine_receive_us = 0;  // when the engine got that input (0 for clock ticks)
-    std::int64_t engine_publish_us = 0;  // when the engine published the update
-    std::int64_t gateway_receive_us = 0; // when the gateway read it off the feed
+    std::uint64_t output_seq = 0;         // per match, +1 per published update
+    std::uint64_t input_seq = 0;          // feed sequence number the update reflects
+    std::int64_t engine_receive_us = 0;   // when the engine got that input (0 for clock ticks)
+    std::int64_t engine_publish_us = 0;   // when the engine published the update
+    std::int64_t gateway_receive_us = 0;  // when the gateway read it off the feed
     core::Outputs outputs;
 };
 

@@ -5,8 +5,8 @@
 
 #include <memory>
 
-#include "liveprob/service/service_config.hpp"
 #include "liveprob/core/params.hpp"
+#include "liveprob/service/service_config.hpp"
 
 namespace liveprob::service {
 

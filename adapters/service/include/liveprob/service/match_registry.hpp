@@ -23,21 +23,21 @@ inline constexpr std::size_t kMaxWaitingPerMatch = 256;
 inline constexpr std::size_t kMaxWaitingMatches = 1024;
 
 enum class MessageOutcome : std::uint8_t {
-    applied,          // accepted or late: the state changed, publish an update
-    duplicate,        // nothing changed
-    rejected,         // the engine refused it (reason counted by the match)
-    created,          // a setup created the match: publish its first update
-    bad_setup,        // the setup is unusable (no prior, bad format); nothing created
-    waiting,          // no setup yet: held until it arrives
-    waiting_overflow, // no setup yet and the waiting room is full: dropped
+    applied,           // accepted or late: the state changed, publish an update
+    duplicate,         // nothing changed
+    rejected,          // the engine refused it (reason counted by the match)
+    created,           // a setup created the match: publish its first update
+    bad_setup,         // the setup is unusable (no prior, bad format); nothing created
+    waiting,           // no setup yet: held until it arrives
+    waiting_overflow,  // no setup yet and the waiting room is full: dropped
 };
 
 struct LiveMatch {
     explicit LiveMatch(core::Match m) : match(std::move(m)) {}
     core::Match match;
-    std::uint64_t output_seq = 0;       // last published output sequence
-    std::uint64_t input_seq = 0;        // source_seq of the last message applied
-    std::int64_t receive_time_us = 0;   // when that message arrived (0 once a tick is published)
+    std::uint64_t output_seq = 0;      // last published output sequence
+    std::uint64_t input_seq = 0;       // source_seq of the last message applied
+    std::int64_t receive_time_us = 0;  // when that message arrived (0 once a tick is published)
     // The timer's clock: the feed clock as of the last applied message, advanced by local
     // elapsed time since it arrived.
     core::MatchClock anchor_clock;
@@ -53,7 +53,8 @@ public:
     // Messages released from the waiting room by a setup are applied too; `touched` lists
     // every match whose state changed (to publish).
     MessageOutcome handle(const core::InboundMessage& message, std::int64_t receive_time_us,
-                       std::chrono::steady_clock::time_point now, std::vector<std::uint64_t>& touched);
+                          std::chrono::steady_clock::time_point now,
+                          std::vector<std::uint64_t>& touched);
 
     // Moves a live match's clock to its anchor plus elapsed time; true when the clock moved.
     bool advance(LiveMatch& m, std::chrono::steady_clock::time_point now);
@@ -67,8 +68,9 @@ public:
     core::MatchCounters totals() const;
 
 private:
-    MessageOutcome apply_to(LiveMatch& m, const core::InboundMessage& message, std::int64_t receive_time_us,
-                         std::chrono::steady_clock::time_point now);
+    MessageOutcome apply_to(LiveMatch& m, const core::InboundMessage& message,
+                            std::int64_t receive_time_us,
+                            std::chrono::steady_clock::time_point now);
 
     core::ModelParams params_;
     std::unordered_map<std::uint64_t, LiveMatch> matches_;

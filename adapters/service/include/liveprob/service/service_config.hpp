@@ -77,14 +77,15 @@ struct ConfigKey {
     using Member = std::variant<std::string ServiceConfig::*, std::uint32_t ServiceConfig::*,
                                 std::int32_t ServiceConfig::*, bool ServiceConfig::*,
                                 files::JournalSync ServiceConfig::*>;
-    std::string_view name;        // the JSON key
-    std::string_view flag;        // serve's flag
+    std::string_view name;  // the JSON key
+    std::string_view flag;  // serve's flag
     ConfigValue value;
     Member member;
-    std::string_view meaning;     // the flag's help and the README's meaning column
-    std::uint64_t lowest = 0;     // whole numbers
+    std::string_view meaning;  // the flag's help and the README's meaning column
+    std::uint64_t lowest = 0;  // whole numbers
     std::uint64_t highest = 0;
-    std::span<const std::string_view> choices = {};  // choice; an enum member's i-th name is value i
+    std::span<const std::string_view> choices =
+        {};                       // choice; an enum member's i-th name is value i
     std::string_view unset = {};  // how the README shows an empty default ("none", "built-in")
 };
 
@@ -93,7 +94,8 @@ std::span<const ConfigKey> config_keys();
 
 // Sets `key` in `config` from text (a command-line value; "true"/"false" for a flag), checked
 // exactly as the file's value is. Throws ConfigError "<where>: <reason>".
-void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text, std::string_view where);
+void set_config_value(ServiceConfig& config, const ConfigKey& key, std::string_view text,
+                      std::string_view where);
 
 // Reads a configuration file over the defaults. Unknown keys are errors (a typo must not be
 // silently ignored).

@@ -15,21 +15,22 @@ namespace liveprob::service {
 inline constexpr std::size_t kDecodeErrorKinds = 8;  // protocol::DecodeError values
 
 struct ServiceCounters {
-    std::uint64_t frames_received = 0;     // ingest messages of any kind
-    std::uint64_t multipart_dropped = 0;   // feeds send one frame per message
+    std::uint64_t frames_received = 0;    // ingest messages of any kind
+    std::uint64_t multipart_dropped = 0;  // feeds send one frame per message
     std::array<std::uint64_t, kDecodeErrorKinds> decode_rejected{};  // by protocol::DecodeError
     std::uint64_t not_our_shard = 0;
     std::uint64_t bad_setup = 0;
-    std::uint64_t waiting = 0;             // held for a setup that had not arrived
+    std::uint64_t waiting = 0;  // held for a setup that had not arrived
     std::uint64_t waiting_overflow = 0;
-    std::uint64_t updates_published = 0;   // event-driven updates
-    std::uint64_t ticks_published = 0;     // timer republications
+    std::uint64_t updates_published = 0;  // event-driven updates
+    std::uint64_t ticks_published = 0;    // timer republications
     std::uint64_t snapshot_requests = 0;
     std::uint64_t snapshot_bad_requests = 0;
     std::uint64_t journal_frames = 0;      // appended this run
     std::uint64_t journal_replayed = 0;    // replayed at start
     std::uint64_t journal_torn_bytes = 0;  // cut from the tail at start
-    std::uint64_t journal_write_failed = 0; // not journalled (disk full, I/O error), so not applied
+    std::uint64_t journal_write_failed =
+        0;  // not journalled (disk full, I/O error), so not applied
     std::uint64_t curve_refused = 0;
     std::uint64_t curve_accepted = 0;
     std::uint64_t live_matches = 0;
@@ -40,6 +41,7 @@ struct ServiceCounters {
 
 // Flattens the service's and the engine's counters into (name, value) pairs, reusing `out`.
 using CounterList = std::vector<std::pair<std::string, std::uint64_t>>;
-void list_counters(const ServiceCounters& service, const core::MatchCounters& engine, CounterList& out);
+void list_counters(const ServiceCounters& service, const core::MatchCounters& engine,
+                   CounterList& out);
 
 }  // namespace liveprob::service

@@ -29,7 +29,8 @@ CurveKeyPair generate_curve_key_pair();
 std::string public_key_of(const std::string& secret_z85);
 
 // Writes <directory>/<name>.public and <directory>/<name>.secret; refuses to overwrite.
-void write_key_pair(const CurveKeyPair& pair, const std::string& directory, const std::string& name);
+void write_key_pair(const CurveKeyPair& pair, const std::string& directory,
+                    const std::string& name);
 
 // Reads a one-key file (.public or .secret); checks it is 40 valid Z85 characters.
 std::string read_key_file(const std::string& path);

@@ -10,7 +10,8 @@
 
 namespace liveprob::transport {
 
-inline constexpr std::string_view kMatchTopicPrefix = "match.";  // subscribe to this for every match
+inline constexpr std::string_view kMatchTopicPrefix =
+    "match.";  // subscribe to this for every match
 inline constexpr std::string_view kCountersTopic = "service.counters";
 inline constexpr std::size_t kMatchTopicLength = kMatchTopicPrefix.size() + 20;
 

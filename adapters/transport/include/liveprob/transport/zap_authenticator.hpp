@@ -22,7 +22,8 @@ inline constexpr const char* kPublishZapDomain = "publish";
 class ZapAuthenticator {
 public:
     // Binds the ZAP endpoint; must exist before any CURVE server socket binds.
-    ZapAuthenticator(boost::asio::io_context& io, zmq::context_t& context, std::set<RawKey> allowed_feeds);
+    ZapAuthenticator(boost::asio::io_context& io, zmq::context_t& context,
+                     std::set<RawKey> allowed_feeds);
 
     void start();
     void stop() { socket_.stop(); }

@@ -26,16 +26,16 @@ extern "C" {
 #endif
 
 #define LIVEPROB_C_ABI_VERSION 1
-#define LIVEPROB_C_GRID 16         /* score-grid cells per side (goals still to come 0..15) */
-#define LIVEPROB_C_TOTALS_LINES 6  /* totals lines 0.5 .. 5.5 */
+#define LIVEPROB_C_GRID 16        /* score-grid cells per side (goals still to come 0..15) */
+#define LIVEPROB_C_TOTALS_LINES 6 /* totals lines 0.5 .. 5.5 */
 
 typedef enum liveprob_status {
     LIVEPROB_OK = 0,
-    LIVEPROB_ERR_NULL_ARGUMENT = 1,   /* a required pointer was NULL */
-    LIVEPROB_ERR_INVALID_SETUP = 2,   /* the setup or parameters are unusable */
-    LIVEPROB_ERR_INVALID_EVENT = 3,   /* unknown event kind or field value outside its enum */
+    LIVEPROB_ERR_NULL_ARGUMENT = 1, /* a required pointer was NULL */
+    LIVEPROB_ERR_INVALID_SETUP = 2, /* the setup or parameters are unusable */
+    LIVEPROB_ERR_INVALID_EVENT = 3, /* unknown event kind or field value outside its enum */
     LIVEPROB_ERR_OUT_OF_MEMORY = 4,
-    LIVEPROB_ERR_INTERNAL = 5         /* an unexpected failure inside the engine */
+    LIVEPROB_ERR_INTERNAL = 5 /* an unexpected failure inside the engine */
     /* liveprob_last_error() says more in each case */
 } liveprob_status;
 
@@ -58,13 +58,13 @@ typedef struct liveprob_clock {
 
 typedef struct liveprob_setup {
     uint64_t match_id;
-    double home_goals;          /* expected regulation goals (the prior), > 0 */
+    double home_goals; /* expected regulation goals (the prior), > 0 */
     double away_goals;
-    uint16_t half_minutes;      /* 45 */
-    uint16_t extra_half_minutes;/* 15 */
-    int32_t extra_time;         /* 0/1: extra time when level after regulation */
-    int32_t shootout;           /* 0/1: penalty shoot-out when still level */
-    int32_t has_first_leg;      /* 0/1: this is the second leg of a two-legged tie */
+    uint16_t half_minutes;         /* 45 */
+    uint16_t extra_half_minutes;   /* 15 */
+    int32_t extra_time;            /* 0/1: extra time when level after regulation */
+    int32_t shootout;              /* 0/1: penalty shoot-out when still level */
+    int32_t has_first_leg;         /* 0/1: this is the second leg of a two-legged tie */
     uint16_t first_leg_home_goals; /* first-leg goals of THIS match's home side */
     uint16_t first_leg_away_goals;
 } liveprob_setup;
@@ -98,16 +98,16 @@ typedef enum liveprob_event_kind {
     LIVEPROB_EVENT_SHOT_XG = 10,         /* side, xg */
     LIVEPROB_EVENT_ABANDONED = 11,
     LIVEPROB_EVENT_FINAL_WHISTLE = 12,
-    LIVEPROB_EVENT_CLOCK = 13            /* flag = clock running */
+    LIVEPROB_EVENT_CLOCK = 13 /* flag = clock running */
 } liveprob_event_kind;
 
 typedef struct liveprob_event {
-    uint64_t source_seq;     /* per match, from the feed: the de-duplication key */
-    int64_t source_time_us;  /* feed wall time, microseconds since the Unix epoch */
-    liveprob_clock clock;    /* match clock when the event was produced */
-    int32_t kind;            /* a liveprob_event_kind */
-    int32_t side;            /* a liveprob_side */
-    int32_t period;          /* a liveprob_period */
+    uint64_t source_seq;    /* per match, from the feed: the de-duplication key */
+    int64_t source_time_us; /* feed wall time, microseconds since the Unix epoch */
+    liveprob_clock clock;   /* match clock when the event was produced */
+    int32_t kind;           /* a liveprob_event_kind */
+    int32_t side;           /* a liveprob_side */
+    int32_t period;         /* a liveprob_period */
     int32_t flag;
     uint64_t ref_seq;
     uint16_t home_goals, away_goals;
@@ -117,9 +117,9 @@ typedef struct liveprob_event {
 
 typedef enum liveprob_verdict {
     LIVEPROB_ACCEPTED = 0,
-    LIVEPROB_LATE = 1,       /* older than the newest event: inserted, state re-folded */
-    LIVEPROB_DUPLICATE = 2,  /* source_seq already seen: nothing changed */
-    LIVEPROB_REJECTED = 3    /* impossible; reason says why (liveprob_reject_reason_name) */
+    LIVEPROB_LATE = 1,      /* older than the newest event: inserted, state re-folded */
+    LIVEPROB_DUPLICATE = 2, /* source_seq already seen: nothing changed */
+    LIVEPROB_REJECTED = 3   /* impossible; reason says why (liveprob_reject_reason_name) */
 } liveprob_verdict;
 
 typedef struct liveprob_apply_result {
@@ -128,16 +128,20 @@ typedef struct liveprob_apply_result {
 } liveprob_apply_result;
 
 typedef enum liveprob_match_status {
-    LIVEPROB_NOT_STARTED = 0, LIVEPROB_IN_PLAY = 1, LIVEPROB_INTERVAL = 2,
-    LIVEPROB_IN_SHOOTOUT = 3, LIVEPROB_ENDED = 4, LIVEPROB_ABANDONED = 5
+    LIVEPROB_NOT_STARTED = 0,
+    LIVEPROB_IN_PLAY = 1,
+    LIVEPROB_INTERVAL = 2,
+    LIVEPROB_IN_SHOOTOUT = 3,
+    LIVEPROB_ENDED = 4,
+    LIVEPROB_ABANDONED = 5
 } liveprob_match_status;
 
 typedef struct liveprob_outputs {
-    int32_t status;  /* a liveprob_match_status */
+    int32_t status; /* a liveprob_match_status */
     liveprob_clock clock;
     int32_t home_goals, away_goals, home_reds, away_reds;
-    double p_home, p_draw, p_away;     /* result at full time */
-    int32_t has_advance;               /* 1 when the format needs a winner */
+    double p_home, p_draw, p_away; /* result at full time */
+    int32_t has_advance;           /* 1 when the format needs a winner */
     double p_advance_home, p_advance_away;
     double expected_home_goals, expected_away_goals;
     double next_goal_home, next_goal_away, next_goal_none;

@@ -12,8 +12,8 @@ namespace liveprob::core {
 // m_X: the score-state effect (leading / level / trailing by `goal_diff_for_side`, the side's
 // own goals minus its opponent's; for the second leg of a tie pass the aggregate difference)
 // times the red-card effects, each per card and capped at `max_cards` per side.
-double state_multiplier(const ModelParams& params, Side side, int goal_diff_for_side,
-                        int own_reds, int opp_reds);
+double state_multiplier(const ModelParams& params, Side side, int goal_diff_for_side, int own_reds,
+                        int opp_reds);
 
 // Gamma posterior of a side's strength θ (mean shape / rate). shape = +inf means θ = 1 exactly.
 struct StrengthPosterior {

@@ -17,8 +17,12 @@ struct JumpCounts {
     double shape = std::numeric_limits<double>::infinity();
     double scale = 0.0;
 
-    static JumpCounts poisson(double mean) noexcept { return {std::numeric_limits<double>::infinity(), mean}; }
-    static JumpCounts negative_binomial(double shape, double scale) noexcept { return {shape, scale}; }
+    static JumpCounts poisson(double mean) noexcept {
+        return {std::numeric_limits<double>::infinity(), mean};
+    }
+    static JumpCounts negative_binomial(double shape, double scale) noexcept {
+        return {shape, scale};
+    }
     bool is_poisson() const noexcept { return shape == std::numeric_limits<double>::infinity(); }
 
     // The count over a second horizon of scale `later_scale` that follows a first horizon of

@@ -60,7 +60,8 @@ struct MatchCounters {
     std::uint64_t accepted = 0;
     std::uint64_t late = 0;
     std::uint64_t duplicates = 0;
-    std::uint64_t conflicting_duplicates = 0;  // same source_seq, different content (also duplicates)
+    std::uint64_t conflicting_duplicates =
+        0;  // same source_seq, different content (also duplicates)
     std::uint64_t rejected = 0;
     std::array<std::uint64_t, kRejectReasonCount> rejected_by_reason{};
 };
@@ -69,7 +70,8 @@ class Match {
 public:
     // Throws std::invalid_argument when the setup has no usable prior (ratings must be
     // resolved to expected goals first) or the format or parameters are unusable.
-    Match(std::uint64_t match_id, const MatchSetup& setup, const ModelParams& params = ModelParams{});
+    Match(std::uint64_t match_id, const MatchSetup& setup,
+          const ModelParams& params = ModelParams{});
 
     ApplyResult apply(const InboundMessage& message);
 

@@ -38,9 +38,9 @@ struct MatchClock {
 // Every inbound message carries this header.
 struct MessageHeader {
     std::uint64_t match_id = 0;
-    std::uint64_t source_seq = 0;       // per match, from the feed; the de-duplication key
-    std::int64_t source_time_us = 0;    // feed's wall time, microseconds since the Unix epoch
-    MatchClock clock;                   // match clock when the message was produced
+    std::uint64_t source_seq = 0;     // per match, from the feed; the de-duplication key
+    std::int64_t source_time_us = 0;  // feed's wall time, microseconds since the Unix epoch
+    MatchClock clock;                 // match clock when the message was produced
 
     friend bool operator==(const MessageHeader&, const MessageHeader&) = default;
 };
@@ -68,10 +68,10 @@ struct FirstLegResult {
 };
 
 struct CompetitionFormat {
-    std::uint16_t half_minutes = 45;        // regulation is two halves of this length
-    bool extra_time = false;                // played when the tie is level after regulation
-    std::uint16_t extra_half_minutes = 15;  // each extra-time half
-    bool shootout = false;                  // penalty shoot-out when still level
+    std::uint16_t half_minutes = 45;          // regulation is two halves of this length
+    bool extra_time = false;                  // played when the tie is level after regulation
+    std::uint16_t extra_half_minutes = 15;    // each extra-time half
+    bool shootout = false;                    // penalty shoot-out when still level
     std::optional<FirstLegResult> first_leg;  // second leg of a two-legged tie
     friend bool operator==(const CompetitionFormat&, const CompetitionFormat&) = default;
 
@@ -82,7 +82,7 @@ struct MatchSetup {
     std::string home_name;
     std::string away_name;
     bool neutral_venue = false;
-    std::optional<PriorMeans> prior;          // one of prior / ratings must be present
+    std::optional<PriorMeans> prior;  // one of prior / ratings must be present
     std::optional<RatingReference> ratings;
     CompetitionFormat format;
     std::int64_t scheduled_kickoff_us = 0;
@@ -91,8 +91,14 @@ struct MatchSetup {
 
 // ---- in-play events ----------------------------------------------------------------------
 
-struct PeriodStart { Period period = Period::first_half; friend bool operator==(const PeriodStart&, const PeriodStart&) = default; };
-struct PeriodEnd { Period period = Period::first_half; friend bool operator==(const PeriodEnd&, const PeriodEnd&) = default; };
+struct PeriodStart {
+    Period period = Period::first_half;
+    friend bool operator==(const PeriodStart&, const PeriodStart&) = default;
+};
+struct PeriodEnd {
+    Period period = Period::first_half;
+    friend bool operator==(const PeriodEnd&, const PeriodEnd&) = default;
+};
 
 // `side` is the side credited with the goal (for an own goal: the side that benefits).
 struct Goal {
@@ -103,7 +109,10 @@ struct Goal {
 };
 
 // A goal disallowed after review; names the goal by its source sequence number.
-struct GoalCancelled { std::uint64_t goal_seq = 0; friend bool operator==(const GoalCancelled&, const GoalCancelled&) = default; };
+struct GoalCancelled {
+    std::uint64_t goal_seq = 0;
+    friend bool operator==(const GoalCancelled&, const GoalCancelled&) = default;
+};
 
 struct RedCard {
     Side side = Side::home;
@@ -111,7 +120,10 @@ struct RedCard {
     friend bool operator==(const RedCard&, const RedCard&) = default;
 };
 
-struct CardRescinded { std::uint64_t card_seq = 0; friend bool operator==(const CardRescinded&, const CardRescinded&) = default; };
+struct CardRescinded {
+    std::uint64_t card_seq = 0;
+    friend bool operator==(const CardRescinded&, const CardRescinded&) = default;
+};
 
 // Stoppage time announced for `period` (the board at the end of a half), in whole minutes.
 struct StoppageAnnounced {
@@ -140,11 +152,19 @@ struct ShotXg {
     friend bool operator==(const ShotXg&, const ShotXg&) = default;
 };
 
-struct MatchAbandoned { std::string reason; friend bool operator==(const MatchAbandoned&, const MatchAbandoned&) = default; };
-struct FinalWhistle { friend bool operator==(const FinalWhistle&, const FinalWhistle&) = default; };
+struct MatchAbandoned {
+    std::string reason;
+    friend bool operator==(const MatchAbandoned&, const MatchAbandoned&) = default;
+};
+struct FinalWhistle {
+    friend bool operator==(const FinalWhistle&, const FinalWhistle&) = default;
+};
 
 // Clock sync: the feed's clock reading (in the header) and whether the clock is running.
-struct ClockSync { bool running = true; friend bool operator==(const ClockSync&, const ClockSync&) = default; };
+struct ClockSync {
+    bool running = true;
+    friend bool operator==(const ClockSync&, const ClockSync&) = default;
+};
 
 using MessageBody = std::variant<MatchSetup, PeriodStart, PeriodEnd, Goal, GoalCancelled, RedCard,
                                  CardRescinded, StoppageAnnounced, ScoreCorrection, ShootoutKick,

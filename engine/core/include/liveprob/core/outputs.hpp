@@ -20,7 +20,7 @@ inline constexpr int kTotalsLines = 6;
 enum class MatchStatus : std::uint8_t {
     not_started = 0,
     in_play = 1,
-    interval = 2,   // between periods (half-time, before extra time, before the shoot-out)
+    interval = 2,  // between periods (half-time, before extra time, before the shoot-out)
     shootout = 3,
     finished = 4,
     abandoned = 5,

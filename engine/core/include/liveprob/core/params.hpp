@@ -59,9 +59,9 @@ struct RedCardEffects {
 };
 
 struct ShootoutParams {
-    double conversion = 0.674;        // per kick (fitted on the championship files' tallies)
-    double first_kicker_edge = 0.028; // added to the first-kicking side's conversion (fitted on
-                                      // who won the shoot-outs naming the first kicker)
+    double conversion = 0.674;         // per kick (fitted on the championship files' tallies)
+    double first_kicker_edge = 0.028;  // added to the first-kicking side's conversion (fitted on
+                                       // who won the shoot-outs naming the first kicker)
 };
 
 struct ModelParams {

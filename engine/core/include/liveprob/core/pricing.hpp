@@ -15,22 +15,22 @@
 namespace liveprob::core {
 
 struct ShootoutState {
-    std::array<int, 2> taken{};   // kicks taken per side (index by liveprob::index(Side))
+    std::array<int, 2> taken{};  // kicks taken per side (index by liveprob::index(Side))
     std::array<int, 2> scored{};
-    Side first = Side::home;      // side that kicks first
+    Side first = Side::home;  // side that kicks first
 };
 
 struct PricingState {
     CompetitionFormat format;
-    PriorMeans prior;              // λ_H, λ_A: expected regulation goals
+    PriorMeans prior;  // λ_H, λ_A: expected regulation goals
     MatchStatus status = MatchStatus::not_started;
-    MatchClock clock;              // now; during an interval the START of the next period
+    MatchClock clock;  // now; during an interval the START of the next period
     std::optional<double> announced_stoppage_minutes;  // for the current period, if announced
-    std::array<int, 2> goals{};    // current score (this match)
+    std::array<int, 2> goals{};                        // current score (this match)
     std::array<int, 2> reds{};
     std::array<double, 2> theta_shape{}, theta_rate{};  // Gamma posterior of θ_X;
-                                   // shape = +inf means θ = 1 exactly (κ = ∞)
-    ShootoutState shootout;        // meaningful when status == shootout
+                                                        // shape = +inf means θ = 1 exactly (κ = ∞)
+    ShootoutState shootout;  // meaningful when status == shootout
 };
 
 class PricingModel {

@@ -20,7 +20,9 @@ namespace liveprob::core {
 // A side's scoring rate per unit exposure depends on the state only through the sign of the
 // home side's goal difference: index 0 home trailing, 1 level, 2 home leading.
 inline constexpr int kDiffClasses = 3;
-constexpr int diff_class(int home_diff) noexcept { return home_diff < 0 ? 0 : home_diff == 0 ? 1 : 2; }
+constexpr int diff_class(int home_diff) noexcept {
+    return home_diff < 0 ? 0 : home_diff == 0 ? 1 : 2;
+}
 
 struct ClassRates {
     std::array<double, kDiffClasses> home{};
@@ -56,8 +58,8 @@ public:
     // weight · P(N = n) · v_n(level) on the cells where start_diff + i - j == level_diff
     // (overflow buckets counted where they left the grid): see level_trace(). Returns the
     // number of jump counts summed.
-    std::size_t add(const ClassRates& rates, int start_diff, const JumpCounts& counts, double weight,
-                    ScoreGrid& out, const int* level_diff = nullptr);
+    std::size_t add(const ClassRates& rates, int start_diff, const JumpCounts& counts,
+                    double weight, ScoreGrid& out, const int* level_diff = nullptr);
 
     // After add() with a level_diff: entry n is weight · P(N = n) · (mass on the level
     // diagonal after n jumps).
@@ -99,7 +101,8 @@ struct DifferenceOutcome {
 // uniformized at rates.max_total() and started at start_diff, of 1 when the home side is
 // ahead, `level_value` when level, 0 when behind. (Extra time: a level tie goes to the
 // shoot-out, which the home side wins with probability level_value.) Allocates nothing.
-void difference_values(const ClassRates& rates, int start_diff, double level_value, std::span<double> out);
+void difference_values(const ClassRates& rates, int start_diff, double level_value,
+                       std::span<double> out);
 
 // Which compiled form of the chain step this processor runs: "x86-64-v3" (AVX2 with FMA) or
 // "baseline" (the same figures, several times slower). For benchmarks and checks.

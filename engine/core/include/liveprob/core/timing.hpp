@@ -52,9 +52,9 @@ public:
 
 private:
     struct Segment {
-        double start_min = 0.0;  // nominal start on the running clock
-        double end_min = 0.0;    // nominal end
-        double rate_start = 0.0; // scaled rate at start and nominal end (linear between)
+        double start_min = 0.0;   // nominal start on the running clock
+        double end_min = 0.0;     // nominal end
+        double rate_start = 0.0;  // scaled rate at start and nominal end (linear between)
         double rate_end = 0.0;
         double stoppage_rate = 0.0;
         double expected_stoppage = 0.0;

@@ -44,7 +44,7 @@ struct TeamRating {
 struct FitDiagnostics {
     double log_likelihood = 0.0;  // weighted, including −log(y!) terms and τ; no penalty
     int matches = 0;
-    int iterations = 0;           // Newton iterations, all ρ rounds together
+    int iterations = 0;  // Newton iterations, all ρ rounds together
     bool converged = false;
     std::vector<std::string> warnings;
 };
@@ -57,7 +57,7 @@ struct Ratings {
     double intercept_se = 0.0;
     double home_advantage_se = 0.0;
     double rho_se = 0.0;
-    std::optional<int> as_of_day;  // only matches strictly before this day were used
+    std::optional<int> as_of_day;   // only matches strictly before this day were used
     std::vector<TeamRating> teams;  // sorted by name
     FitDiagnostics diagnostics;
 

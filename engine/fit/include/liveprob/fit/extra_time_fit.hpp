@@ -8,7 +8,8 @@
 // and rate, a match contributes
 //
 //   no goal in extra time (τ = all of it):  Π_X (b_X / (b_X + f c_X τ))^{a_X}
-//   first goal by X after τ:                f c_X a_X / (b_X + f c_X τ) · Π_Y (b_Y / (b_Y + f c_Y τ))^{a_Y}
+//   first goal by X after τ:                f c_X a_X / (b_X + f c_X τ) · Π_Y (b_Y / (b_Y + f c_Y
+//   τ))^{a_Y}
 //
 // (with κ = ∞ each factor is the Poisson one, exp(−f c_X τ), and f̂ = goals / Σ (c_H + c_A) τ in
 // closed form). Only the first goal is used, so the estimate holds whether or not the
@@ -18,8 +19,8 @@
 
 #include <span>
 
-#include "liveprob/fit/inplay_sample.hpp"
 #include "liveprob/core/params.hpp"
+#include "liveprob/fit/inplay_sample.hpp"
 
 namespace liveprob::fit {
 
@@ -28,7 +29,7 @@ struct ExtraTimeFit {
     double factor_se = 0.0;
     double log_likelihood = 0.0;
     int matches = 0;
-    int first_goals = 0;          // matches whose extra time had a goal
+    int first_goals = 0;                // matches whose extra time had a goal
     double expected_first_goals = 0.0;  // at the fitted factor, under the same model
     int iterations = 0;
     bool converged = false;
@@ -36,7 +37,7 @@ struct ExtraTimeFit {
 
 // `effects` and `kappa` are the regulation model's (the fitted score-state effects and κ).
 // Throws std::invalid_argument when there is no record.
-ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records, const core::ScoreStateEffects& effects,
-                                   double kappa);
+ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records,
+                                   const core::ScoreStateEffects& effects, double kappa);
 
 }  // namespace liveprob::fit

@@ -18,7 +18,8 @@ using MinuteCounts = std::array<double, 90>;  // [m − 1] = goals recorded in m
 
 struct TimingFit {
     core::TimingProfile profile;
-    double first_half_start_se = 0, second_half_start_se = 0, second_half_end_se = 0, stoppage_factor_se = 0;
+    double first_half_start_se = 0, second_half_start_se = 0, second_half_end_se = 0,
+           stoppage_factor_se = 0;
     double second_half_share = 0;     // of regulation goals, by the fitted profile
     double second_half_share_se = 0;  // delta method
     double data_second_half_share = 0;
@@ -48,6 +49,7 @@ struct StoppageFit {
     int stoppage_goals = 0;
 };
 // Throws std::invalid_argument unless 0 < stoppage_goals < regulation_goals.
-StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals, const core::TimingProfile& shape);
+StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals,
+                                const core::TimingProfile& shape);
 
 }  // namespace liveprob::fit

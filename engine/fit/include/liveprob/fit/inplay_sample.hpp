@@ -25,7 +25,7 @@ struct InplayGoal {
 };
 
 struct InplayMatch {
-    core::PriorMeans prior;               // expected regulation goals
+    core::PriorMeans prior;         // expected regulation goals
     std::vector<InplayGoal> goals;  // in the order scored
     bool extra_time = false;        // extra time was played (the match was level after 90)
     // The source lists this match only because it had a goal: goalless matches cannot be told
@@ -38,9 +38,9 @@ inline constexpr int kScoreStates = 3;
 
 // One side of one match over regulation.
 struct SideStates {
-    double prior = 0.0;                             // λ of the side
-    std::array<double, kScoreStates> exposure{};    // by ScoreState
-    std::array<int, kScoreStates> goals{};          // goals scored while in that state
+    double prior = 0.0;                           // λ of the side
+    std::array<double, kScoreStates> exposure{};  // by ScoreState
+    std::array<int, kScoreStates> goals{};        // goals scored while in that state
     double total_exposure() const noexcept { return exposure[0] + exposure[1] + exposure[2]; }
     int total_goals() const noexcept { return goals[0] + goals[1] + goals[2]; }
 };
@@ -51,10 +51,10 @@ struct RegulationRecord {
 };
 
 struct ExtraTimeRecord {
-    RegulationRecord regulation;           // for the strength posterior at the start of extra time
-    double extra_time_exposure = 0.0;      // all of extra time (extra_time_factor = 1)
-    double exposure_to_first_goal = 0.0;   // the part before its first goal (all of it when
-                                           // none came)
+    RegulationRecord regulation;          // for the strength posterior at the start of extra time
+    double extra_time_exposure = 0.0;     // all of extra time (extra_time_factor = 1)
+    double exposure_to_first_goal = 0.0;  // the part before its first goal (all of it when
+                                          // none came)
     std::optional<core::Side> first_scorer;
 };
 
@@ -62,7 +62,8 @@ struct ExtraTimeRecord {
 // extra-time goals beyond 1 at `timing.extra_time_factor`. A match's exposure is its expected
 // one (the stoppage actually played is unknown), so a late stoppage goal sits inside the
 // expected stoppage.
-std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals, const core::TimingProfile& timing);
+std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals,
+                                   const core::TimingProfile& timing);
 
 // Regulation goals only (minutes 1..90), in the goals' order.
 RegulationRecord regulation_record(const InplayMatch& match, const core::TimingProfile& timing);

@@ -22,8 +22,8 @@
 
 #include <span>
 
-#include "liveprob/fit/inplay_sample.hpp"
 #include "liveprob/core/params.hpp"
+#include "liveprob/fit/inplay_sample.hpp"
 
 namespace liveprob::fit {
 
@@ -40,7 +40,7 @@ struct ScoreStateFitOptions {
 
 struct ScoreStateFit {
     core::ScoreStateEffects effects;  // level included: it absorbs any overall scale of the priors
-    double kappa = 0.0;         // +inf when not fitted or when the data show no dispersion
+    double kappa = 0.0;               // +inf when not fitted or when the data show no dispersion
     double leading_se = 0, level_se = 0, trailing_se = 0, kappa_se = 0;
     double log_likelihood = 0.0;
     int sides = 0, goals = 0, listed_for_goals = 0;
@@ -50,11 +50,13 @@ struct ScoreStateFit {
 };
 
 // Throws std::invalid_argument when no record carries exposure.
-ScoreStateFit fit_score_state(std::span<const RegulationRecord> records, const ScoreStateFitOptions& options = {});
+ScoreStateFit fit_score_state(std::span<const RegulationRecord> records,
+                              const ScoreStateFitOptions& options = {});
 
 // The log-likelihood above (with the listing condition when asked) at given values: for
 // checks and profile plots.
-double score_state_log_likelihood(std::span<const RegulationRecord> records, const core::ScoreStateEffects& effects,
-                                  double kappa, bool condition_on_listing = true);
+double score_state_log_likelihood(std::span<const RegulationRecord> records,
+                                  const core::ScoreStateEffects& effects, double kappa,
+                                  bool condition_on_listing = true);
 
 }  // namespace liveprob::fit

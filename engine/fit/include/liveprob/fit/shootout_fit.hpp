@@ -37,8 +37,8 @@ struct ShootoutFit {
     int records = 0;
     int with_first_kicker = 0, first_kicker_wins = 0;  // records naming the first kicker
     int with_tally = 0, tally_kicks_scored = 0;
-    int uninformative = 0;                             // winner only
-    double first_kicker_win_probability = 0.0;         // q at the fit
+    int uninformative = 0;                      // winner only
+    double first_kicker_win_probability = 0.0;  // q at the fit
     double first_kicker_win_probability_se = 0.0;
     double log_likelihood = 0.0;
     int iterations = 0;
@@ -47,11 +47,12 @@ struct ShootoutFit {
 
 // Throws std::invalid_argument when a tally is impossible under the rules (a level tally, or
 // one no kick sequence ends on) or the starting values lie outside (0, 1).
-ShootoutFit fit_shootout(std::span<const ShootoutRecord> records, const core::ShootoutParams& start);
+ShootoutFit fit_shootout(std::span<const ShootoutRecord> records,
+                         const core::ShootoutParams& start);
 
 // P(a shoot-out ends with the first-kicking side on `first_scored` and the other on
 // `second_scored`), the kicks converting with the given probabilities, by the engine's rules.
-double shootout_tally_probability(double first_conversion, double second_conversion, int first_scored,
-                                  int second_scored);
+double shootout_tally_probability(double first_conversion, double second_conversion,
+                                  int first_scored, int second_scored);
 
 }  // namespace liveprob::fit

@@ -8,11 +8,11 @@
 #include <string>
 #include <vector>
 
+#include "liveprob/backtest/match_replay.hpp"
+#include "liveprob/backtest/recorded_stream.hpp"
 #include "liveprob/core/messages.hpp"
 #include "liveprob/core/params.hpp"
 #include "liveprob/scoring/bucket_scores.hpp"
-#include "liveprob/backtest/match_replay.hpp"
-#include "liveprob/backtest/recorded_stream.hpp"
 
 namespace liveprob::backtest {
 
@@ -35,8 +35,9 @@ struct BacktestResult {
     std::array<std::array<scoring::ScoreAccumulator, kForecasters>, scoring::kBuckets> scores{};
     std::uint64_t matches = 0, scored = 0, abandoned = 0, unfinished = 0, unusable = 0;
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
-    std::uint64_t evaluations = 0;      // model outputs read (buckets, and events on request)
-    std::uint64_t invalid_outputs = 0;  // of those, not finite, below -1e-12 or not summing to 1 (1e-9)
+    std::uint64_t evaluations = 0;  // model outputs read (buckets, and events on request)
+    std::uint64_t invalid_outputs =
+        0;  // of those, not finite, below -1e-12 or not summing to 1 (1e-9)
     std::vector<Timeline> timelines;
     std::vector<std::string> problems;  // one line per unusable match (the first few)
 
@@ -47,12 +48,14 @@ struct BacktestResult {
 
 // Every match replayed in process on `options.threads` threads, one result per match in stream
 // order (the same whatever the number of threads).
-std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches, const BacktestOptions& options);
+std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches,
+                                        const BacktestOptions& options);
 
 // Adds up per-match results in order, keeping the timelines of the first `timelines` scored.
 BacktestResult sum_replays(const std::vector<MatchReplay>& replays, std::size_t timelines);
 
 // replay_matches, then sum_replays.
-BacktestResult run_backtest(const std::vector<MatchMessages>& matches, const BacktestOptions& options);
+BacktestResult run_backtest(const std::vector<MatchMessages>& matches,
+                            const BacktestOptions& options);
 
 }  // namespace liveprob::backtest

@@ -30,7 +30,7 @@ const char* forecaster_name(Forecaster f) noexcept;
 core::ModelParams uniform_timing_no_state(const core::ModelParams& params);
 
 struct TimelinePoint {
-    double minute = 0.0;  // running match clock in minutes
+    double minute = 0.0;           // running match clock in minutes
     scoring::Forecast forecast{};  // full model
 };
 
@@ -47,20 +47,21 @@ struct Timeline {
 };
 
 enum class ReplayFate : std::uint8_t {
-    scored = 0,     // finished: scored
-    abandoned = 1,  // not scored
-    unfinished = 2, // the stream stops before the final whistle: not scored
-    unusable = 3,   // no setup, or the engine refused the setup
+    scored = 0,      // finished: scored
+    abandoned = 1,   // not scored
+    unfinished = 2,  // the stream stops before the final whistle: not scored
+    unusable = 3,    // no setup, or the engine refused the setup
 };
 
 struct MatchReplay {
     std::uint64_t match_id = 0;
     ReplayFate fate = ReplayFate::unusable;
-    std::string problem;                   // why unusable
-    scoring::Outcome result = scoring::Outcome::draw;        // regulation result, when scored
+    std::string problem;                               // why unusable
+    scoring::Outcome result = scoring::Outcome::draw;  // regulation result, when scored
     std::array<int, 2> regulation_goals{};
     // Forecast per bucket and forecaster; empty where the match never reached the minute.
-    std::array<std::array<std::optional<scoring::Forecast>, kForecasters>, scoring::kBuckets> forecasts{};
+    std::array<std::array<std::optional<scoring::Forecast>, kForecasters>, scoring::kBuckets>
+        forecasts{};
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
     std::uint64_t evaluations = 0, invalid_outputs = 0;  // see BacktestResult
     std::optional<Timeline> timeline;
@@ -72,8 +73,9 @@ struct ReplayChoices {
 };
 
 // `messages`: the match's setup first, then its feed in arrival order.
-MatchReplay replay_match(const std::vector<core::InboundMessage>& messages, const core::ModelParams& params,
-                         const core::ModelParams& baseline_params, ReplayChoices choices);
+MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
+                         const core::ModelParams& params, const core::ModelParams& baseline_params,
+                         ReplayChoices choices);
 
 // The clock at which a bucket's forecast is read: its minute of the running clock, in the half
 // that minute belongs to (45:00 is the end of the first half's nominal time).
@@ -81,6 +83,7 @@ core::MatchClock bucket_clock(const core::CompetitionFormat& format, int bucket)
 
 // Whether the clock has passed a bucket once a message at `message_clock` arrives: it is later,
 // or it ends play (`ends_play`: the end of a period or the final whistle) exactly at the bucket.
-bool bucket_passed(const core::MatchClock& bucket, const core::MatchClock& message_clock, bool ends_play);
+bool bucket_passed(const core::MatchClock& bucket, const core::MatchClock& message_clock,
+                   bool ends_play);
 
 }  // namespace liveprob::backtest

@@ -9,9 +9,9 @@
 #include <string>
 #include <vector>
 
+#include "liveprob/core/messages.hpp"
 #include "liveprob/fit/dixon_coles.hpp"
 #include "liveprob/fit/match_result.hpp"
-#include "liveprob/core/messages.hpp"
 
 namespace liveprob::backtest {
 
@@ -49,15 +49,16 @@ struct WalkForwardPriors {
     // shrunk, not unrated), so the prior rests on their own results.
     std::vector<bool> both_sides_rated;
     std::size_t refits = 0;
-    std::size_t not_converged = 0;   // refits whose Newton iterations did not converge
-    std::size_t unrated_sides = 0;   // sides with no result before the day: rated as average
-    std::size_t held_at_maximum = 0; // expected goals held at max_expected_goals
-    std::size_t no_history = 0;      // fixtures before any usable result: no prior (0, 0)
+    std::size_t not_converged = 0;    // refits whose Newton iterations did not converge
+    std::size_t unrated_sides = 0;    // sides with no result before the day: rated as average
+    std::size_t held_at_maximum = 0;  // expected goals held at max_expected_goals
+    std::size_t no_history = 0;       // fixtures before any usable result: no prior (0, 0)
 };
 
 // `fixtures` in any order. A fixture whose day has no earlier result gets PriorMeans{0, 0} and
 // is counted in `no_history` (the engine refuses such a setup; callers leave it out).
 WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
-                                      std::span<const FixtureToPrice> fixtures, const WalkForwardOptions& options);
+                                      std::span<const FixtureToPrice> fixtures,
+                                      const WalkForwardOptions& options);
 
 }  // namespace liveprob::backtest

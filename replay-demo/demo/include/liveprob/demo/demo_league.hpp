@@ -18,8 +18,8 @@ struct DemoClub {
 };
 
 struct Fixture {
-    int round = 0;   // 1-based
-    int home = 0;    // index into clubs
+    int round = 0;  // 1-based
+    int home = 0;   // index into clubs
     int away = 0;
 };
 
@@ -30,8 +30,8 @@ std::vector<Fixture> double_round_robin(int clubs);
 struct DemoLeague {
     std::string name;
     std::vector<DemoClub> clubs;
-    std::vector<Fixture> season;   // 2(n-1) rounds
-    std::vector<int> cup_entrants; // 16 clubs in bracket order (1 v 2, 3 v 4, ...)
+    std::vector<Fixture> season;    // 2(n-1) rounds
+    std::vector<int> cup_entrants;  // 16 clubs in bracket order (1 v 2, 3 v 4, ...)
 };
 
 // The league with its clubs drawn from `seed`; the same seed gives the same league.

@@ -27,7 +27,7 @@ struct MatchPlan {
 
 struct SimulatedMatch {
     std::vector<core::InboundMessage> messages;  // the setup first, then the feed in order
-    std::array<int, 2> regulation_goals{};  // goals that stood (not cancelled)
+    std::array<int, 2> regulation_goals{};       // goals that stood (not cancelled)
     std::array<int, 2> extra_time_goals{};
     std::array<int, 2> shootout_goals{};
     bool abandoned = false;

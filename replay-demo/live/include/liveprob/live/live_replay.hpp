@@ -21,8 +21,8 @@
 #include <string>
 #include <vector>
 
-#include "liveprob/clients/snapshot_client.hpp"
 #include "liveprob/backtest/backtest.hpp"
+#include "liveprob/clients/snapshot_client.hpp"
 
 namespace liveprob::live {
 
@@ -30,8 +30,9 @@ struct LiveReplayOptions {
     std::vector<std::string> ingest;  // serve's ingest endpoint(s), one per shard in shard order
     std::string publish;              // serve's (or the relay's) publish endpoint
     double speed = 0.0;               // times real time by the streams' source times; 0: at once
-    clients::CurveClientKeys keys;   // CURVE, when serve uses it
-    backtest::BacktestOptions in_process;       // for the outcomes and the baseline (serve's parameters!)
+    clients::CurveClientKeys keys;    // CURVE, when serve uses it
+    // for the outcomes and the baseline (serve's parameters!)
+    backtest::BacktestOptions in_process;
     // How long to wait for the first update (the subscription reaching serve, the first setup
     // applied), and, after everything was sent, for the last updates.
     std::chrono::milliseconds first_update_timeout{10'000};
@@ -41,22 +42,24 @@ struct LiveReplayOptions {
 };
 
 struct LiveReplayResult {
-    backtest::BacktestResult scores;  // model: as received; fixed_prior: received kick-off; flat: in process
+    // model: as received; fixed_prior: received kick-off; flat: in process
+    backtest::BacktestResult scores;
     std::uint64_t messages_sent = 0;
-    std::uint64_t updates_received = 0;     // on events
-    std::uint64_t ticks_received = 0;       // on the service's timer
-    std::uint64_t missed_updates = 0;       // gaps between a match's received output sequence numbers
-    std::uint64_t undecodable = 0;          // messages that did not decode (not used)
+    std::uint64_t updates_received = 0;  // on events
+    std::uint64_t ticks_received = 0;    // on the service's timer
+    std::uint64_t missed_updates = 0;    // gaps between a match's received output sequence numbers
+    std::uint64_t undecodable = 0;       // messages that did not decode (not used)
     std::uint64_t matches_without_updates = 0;
-    std::uint64_t matches_not_ended = 0;    // finished in the stream, no final update received
-    double send_seconds = 0.0;              // from the first message sent to the last
+    std::uint64_t matches_not_ended = 0;  // finished in the stream, no final update received
+    double send_seconds = 0.0;            // from the first message sent to the last
     // The largest |received - in process| of any probability at any bucket of a scored match.
     double largest_difference_from_in_process = 0.0;
-    std::vector<std::string> problems;      // one line each, the first few
+    std::vector<std::string> problems;  // one line each, the first few
 };
 
 // Throws std::runtime_error when no update arrives within first_update_timeout (a wrong
 // endpoint, or a serve that already holds these matches).
-LiveReplayResult run_live_replay(const std::vector<backtest::MatchMessages>& matches, const LiveReplayOptions& options);
+LiveReplayResult run_live_replay(const std::vector<backtest::MatchMessages>& matches,
+                                 const LiveReplayOptions& options);
 
 }  // namespace liveprob::live

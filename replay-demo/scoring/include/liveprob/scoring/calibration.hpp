@@ -17,8 +17,12 @@ struct ReliabilityBin {
     double forecast_sum = 0.0;  // sum of the forecast probabilities in the bin
     double observed_sum = 0.0;  // number of times the outcome happened
 
-    double mean_forecast() const noexcept { return count ? forecast_sum / static_cast<double>(count) : 0.0; }
-    double observed_rate() const noexcept { return count ? observed_sum / static_cast<double>(count) : 0.0; }
+    double mean_forecast() const noexcept {
+        return count ? forecast_sum / static_cast<double>(count) : 0.0;
+    }
+    double observed_rate() const noexcept {
+        return count ? observed_sum / static_cast<double>(count) : 0.0;
+    }
 };
 
 using ReliabilityDiagram = std::array<ReliabilityBin, kReliabilityBins>;
