@@ -4,7 +4,7 @@
 set -euo pipefail
 
 packages=(
-  build-essential cmake ninja-build pkg-config git ccache clang-format-14   # clang-format: tools/setup/check-format
+  build-essential cmake ninja-build pkg-config git ccache mold clang-format-14   # clang-format: tools/setup/check-format
   clang libclang-rt-14-dev                      # sanitizer and fuzzer runtimes
   libzmq3-dev cppzmq-dev libsodium-dev          # ZeroMQ (with CURVE) and its C++ binding
   flatbuffers-compiler libflatbuffers-dev python3-flatbuffers
