@@ -1,26 +1,28 @@
 // `liveprob send`: pushes a feed file (JSON lines, or a recorded size-prefixed stream) to a
 // service's ingest endpoint, or with several endpoints (shards in order) each match to the
 // shard that owns it. This is also the JSON feed adapter: JSON lines are read, checked and
-// turned into FlatBuffers messages here. The whole file is read and checked first, so a bad
-// line stops the run before anything is sent. Pacing: as fast as possible, at a fixed rate,
-// or by the match clock with a speed factor.
+// turned into FlatBuffers messages here. The feed is read as it arrives (standard input, a
+// pipe, a growing file with --follow), one message at a time: each is sent before the next is
+// read. A bad line is reported with its line number and field, counted and skipped (exit 1 at
+// the end). Pacing: as fast as possible, at a fixed rate, or by the match clock.
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
-#include <chrono>
-#include <fstream>
+#include <signal.h>
+
+#include <atomic>
 #include <iostream>
-#include <thread>
+#include <optional>
 #include <vector>
 #include <zmq.hpp>
 
 #include "command_registry.hpp"
+#include "liveprob/clients/feed_input.hpp"
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
-#include "liveprob/protocol/whole_file.hpp"
 #include "liveprob/system/wall_clock.hpp"
 
 namespace liveprob::cli {
@@ -36,49 +38,78 @@ struct SendFlags {
     std::string server_key;
     std::string client_key;
     int linger_ms = 5000;
+    bool follow = false;
 };
 
-std::vector<core::InboundMessage> read_json_lines(const std::string& path) {
-    std::ifstream in(path);
-    if (!in) throw std::runtime_error(path + ": cannot open");
-    protocol::JsonFeedReader reader;
-    std::vector<core::InboundMessage> messages;
-    std::string line;
-    std::size_t number = 0;
-    while (std::getline(in, line)) {
-        auto result = reader.read_line(line, ++number);
-        if (result.kind == protocol::JsonLineKind::bad)
-            throw std::runtime_error(path + ": " + result.error);
-        if (result.message) messages.push_back(std::move(*result.message));
-    }
-    return messages;
+// Where `stop` comes from: SIGINT or SIGTERM end a followed feed (or a stalled read) cleanly.
+std::atomic<bool> g_stop{false};
+void on_send_stop_signal(int) { g_stop.store(true, std::memory_order_relaxed); }
+
+void install_stop_handlers() {
+    struct sigaction action {};
+    action.sa_handler = on_send_stop_signal;
+    sigemptyset(&action.sa_mask);
+    action.sa_flags = 0;  // no SA_RESTART: a blocked read returns so the stop flag is seen
+    ::sigaction(SIGINT, &action, nullptr);
+    ::sigaction(SIGTERM, &action, nullptr);
 }
 
-std::vector<core::InboundMessage> read_frames(const std::string& path,
-                                              const std::vector<std::uint8_t>& bytes) {
-    protocol::FrameCursor cursor(bytes);
-    std::vector<core::InboundMessage> messages;
-    while (const auto frame = cursor.next()) {
-        auto decoded = protocol::decode_feed_message(frame->payload);
-        if (!decoded.message) {
-            throw std::runtime_error(
-                fmt::format("{}: frame at offset {}: {}", path, frame->offset, decoded.detail));
+// The line source in front of the sending loop: units from the input as they arrive, each
+// turned into a message; a unit that cannot be is reported on standard error (its line and
+// field) and counted, and the next one is read.
+class FeedMessages {
+public:
+    FeedMessages(const SendFlags& f)
+        : input_(f.file, input_form(f.format),
+                 clients::FeedInputOptions{.follow = f.follow, .stop = &g_stop}) {}
+
+    std::optional<core::InboundMessage> next() {
+        while (const auto unit = input_.next()) {
+            if (auto message = decode(*unit)) return message;
         }
-        messages.push_back(std::move(*decoded.message));
+        if (!input_.end_detail().empty()) refuse(input_.end_detail());
+        return std::nullopt;
     }
-    if (cursor.end() != protocol::StreamEnd::clean)
-        throw std::runtime_error(path + ": " + cursor.end_detail());
-    return messages;
-}
+    std::uint64_t refused() const noexcept { return refused_; }
+    std::uint64_t skipped() const noexcept { return skipped_; }
 
-std::vector<core::InboundMessage> read_feed(const SendFlags& f) {
-    if (f.format == "jsonl") return read_json_lines(f.file);
-    const std::vector<std::uint8_t> bytes = protocol::read_whole_file_bytes(f.file, "the feed");
-    if (f.format == "frames" || (f.format == "auto" && protocol::looks_like_frame_stream(bytes))) {
-        return read_frames(f.file, bytes);
+private:
+    static std::optional<clients::FeedInputForm> input_form(const std::string& format) {
+        if (format == "jsonl") return clients::FeedInputForm::json_lines;
+        if (format == "frames") return clients::FeedInputForm::frames;
+        return std::nullopt;
     }
-    return read_json_lines(f.file);
-}
+
+    std::optional<core::InboundMessage> decode(const clients::FeedUnit& unit) {
+        if (input_.form() == clients::FeedInputForm::frames) {
+            const auto* bytes = reinterpret_cast<const std::uint8_t*>(unit.bytes.data());
+            auto decoded = protocol::decode_feed_message({bytes, unit.bytes.size()});
+            if (!decoded.message) {
+                refuse(fmt::format("frame at offset {}: {}", unit.offset, decoded.detail));
+                return std::nullopt;
+            }
+            return std::move(decoded.message);
+        }
+        if (unit.too_long) {
+            refuse(fmt::format("line {}: longer than {} bytes", unit.number,
+                               clients::FeedInput::kMaxLineBytes));
+            return std::nullopt;
+        }
+        auto result = reader_.read_line(unit.bytes, unit.number);
+        if (result.kind == protocol::JsonLineKind::bad) refuse(result.error);
+        if (result.kind == protocol::JsonLineKind::skipped) ++skipped_;
+        return std::move(result.message);
+    }
+
+    void refuse(const std::string& problem) {
+        ++refused_;
+        std::cerr << problem << std::endl;
+    }
+
+    clients::FeedInput input_;
+    protocol::JsonFeedReader reader_;
+    std::uint64_t refused_ = 0, skipped_ = 0;
+};
 
 int run_send(const SendFlags& f) {
     if (f.speed < 0.0 || f.rate < 0.0) throw UsageError("--speed and --rate must not be negative");
@@ -87,7 +118,8 @@ int run_send(const SendFlags& f) {
         throw UsageError("--format must be auto, jsonl or frames");
     }
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
-    std::vector<core::InboundMessage> messages = read_feed(f);
+    install_stop_handlers();
+    FeedMessages source(f);
     clients::ShardSenderOptions options;
     options.keys = clients::load_curve_client_keys(f.server_key, f.client_key);
     options.linger_ms = f.linger_ms;
@@ -98,25 +130,30 @@ int run_send(const SendFlags& f) {
     clients::FeedPacer pacer = f.rate > 0.0    ? clients::FeedPacer::at_rate(f.rate)
                                : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
                                                : clients::FeedPacer::as_fast_as_possible();
-    for (std::size_t i = 0; i < messages.size(); ++i) {
-        pacer.wait_for(messages[i]);
-        core::InboundMessage& m = messages[i];
+    std::uint64_t sent = 0;
+    // One message read, then sent: the next is read only once this one is handed to the socket,
+    // so a slow service (a full queue) holds the reading back.
+    while (auto m = source.next()) {
+        pacer.wait_for(*m);
         if (f.stamp) {
-            m.header.source_time_us = liveprob::system::wall_clock_us();
+            m->header.source_time_us = liveprob::system::wall_clock_us();
         }
-        const std::vector<std::uint8_t> bytes = protocol::encode_feed_message(m);
-        sender.send(m.header.match_id, bytes);
+        const std::vector<std::uint8_t> bytes = protocol::encode_feed_message(*m);
+        sender.send(m->header.match_id, bytes);
+        ++sent;
     }
+    const std::string refused =
+        source.refused() > 0 ? fmt::format("; {} refused (see above)", source.refused()) : "";
     if (sender.shard_count() == 1) {
-        std::cout << fmt::format("sent {} messages to {}", messages.size(), f.to.front())
+        std::cout << fmt::format("sent {} messages to {}{}", sent, f.to.front(), refused)
                   << std::endl;
     } else {
-        std::cout << fmt::format("sent {} messages to {} shards ({} each, in shard order)",
-                                 messages.size(), sender.shard_count(),
-                                 fmt::join(sender.sent_per_shard(), ", "))
+        std::cout << fmt::format("sent {} messages to {} shards ({} each, in shard order){}", sent,
+                                 sender.shard_count(), fmt::join(sender.sent_per_shard(), ", "),
+                                 refused)
                   << std::endl;
     }
-    return kExitOk;
+    return source.refused() > 0 ? kExitFailure : kExitOk;
 }
 
 const Registration registration{{
@@ -132,7 +169,12 @@ const Registration registration{{
             ->allow_extra_args(false)  // one argument (split at commas): the feed file is never
                                        // taken for an endpoint
             ->delimiter(',');
-        sub.add_option("file", f->file, "feed file")->required()->check(CLI::ExistingFile);
+        sub.add_option("file", f->file,
+                       "feed: a file, a pipe, or - for standard input; read as it arrives")
+            ->required();
+        sub.add_flag("--follow", f->follow,
+                     "at the end of a regular file, wait for it to grow (like tail -f) until "
+                     "SIGINT/SIGTERM");
         sub.add_option("--format", f->format, "auto | jsonl | frames (size-prefixed stream)");
         sub.add_option("--speed", f->speed,
                        "pace by the match clock, this many times real time (0: no pacing)");
