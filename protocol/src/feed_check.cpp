@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/feed_mapping.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/protocol/json_writer.hpp"
@@ -42,16 +43,16 @@ void count_message(const core::InboundMessage& m, FeedCheckSummary& summary, Seq
     watch.see(m.header, summary);
 }
 
+template <class LineReader>
 void check_lines(std::string_view text, FeedCheckSummary& summary,
-                 const std::function<void(const std::string&)>& report) {
-    JsonFeedReader reader;
+                 const std::function<void(const std::string&)>& report, LineReader&& read_line) {
     SequenceWatch watch;
     std::size_t start = 0;
     while (start < text.size()) {
         auto end = text.find('\n', start);
         if (end == std::string_view::npos) end = text.size();
         ++summary.units;
-        const auto result = reader.read_line(text.substr(start, end - start), summary.units);
+        const auto result = read_line(text.substr(start, end - start), summary.units);
         switch (result.kind) {
             case JsonLineKind::message: count_message(*result.message, summary, watch); break;
             case JsonLineKind::skipped: ++summary.skipped; break;
@@ -93,13 +94,23 @@ const char* feed_form_name(FeedForm form) noexcept {
 }
 
 FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
-                            const std::function<void(const std::string&)>& report) {
+                            const std::function<void(const std::string&)>& report,
+                            const FeedMapping* mapping) {
     FeedCheckSummary summary;
-    if (looks_like_frame_stream(bytes)) {
+    const std::string_view text(reinterpret_cast<const char*>(bytes.data()), bytes.size());
+    if (mapping) {
+        FeedMapper mapper(*mapping);
+        check_lines(text, summary, report, [&](std::string_view line, std::size_t number) {
+            return mapper.map_line(line, number);
+        });
+    } else if (looks_like_frame_stream(bytes)) {
         summary.form = FeedForm::frame_stream;
         check_frames(bytes, summary, report);
     } else {
-        check_lines({reinterpret_cast<const char*>(bytes.data()), bytes.size()}, summary, report);
+        JsonFeedReader reader;
+        check_lines(text, summary, report, [&](std::string_view line, std::size_t number) {
+            return reader.read_line(line, number);
+        });
     }
     return summary;
 }

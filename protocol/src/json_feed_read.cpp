@@ -164,6 +164,17 @@ struct JsonFeedReader::Parser {
     simdjson::dom::parser dom;
 };
 
+JsonLineResult refused_line(std::size_t line_number, std::string field, std::string reason) {
+    JsonLineResult result;
+    result.kind = JsonLineKind::bad;
+    result.field = std::move(field);
+    result.reason = std::move(reason);
+    result.error = result.field.empty() ? fmt::format("line {}: {}", line_number, result.reason)
+                                        : fmt::format("line {}: field '{}': {}", line_number,
+                                                      result.field, result.reason);
+    return result;
+}
+
 JsonFeedReader::JsonFeedReader() : parser_(std::make_unique<Parser>()) {}
 JsonFeedReader::~JsonFeedReader() = default;
 
@@ -173,13 +184,9 @@ JsonLineResult JsonFeedReader::read_line(std::string_view line, std::size_t line
     if (is_blank_or_comment(line)) return result;
 
     auto refuse = [&](std::string field, std::string reason) {
-        result.kind = JsonLineKind::bad;
-        result.field = std::move(field);
-        result.reason = std::move(reason);
-        result.error = result.field.empty() ? fmt::format("line {}: {}", line_number, result.reason)
-                                            : fmt::format("line {}: field '{}': {}", line_number,
-                                                          result.field, result.reason);
-        return result;
+        JsonLineResult refused = refused_line(line_number, std::move(field), std::move(reason));
+        refused.kind_hint = std::move(result.kind_hint);
+        return refused;
     };
 
     simdjson::dom::element doc;

@@ -1,13 +1,16 @@
 // `liveprob check-feed FILE`: validates a feed file (JSON lines, or a size-prefixed binary
-// stream such as a journal, told apart by content) and reports every bad line on stderr.
+// stream such as a journal, told apart by content) and reports every bad line on stderr. With
+// --mapping RULES the file is a provider's JSON lines, each mapped by the rules and then checked.
 // Exit 0 when every line is good, 1 when any is bad or the file cannot be read.
 #include <fmt/format.h>
 
 #include <iostream>
 #include <memory>
+#include <optional>
 
 #include "command_registry.hpp"
 #include "liveprob/protocol/feed_check.hpp"
+#include "liveprob/protocol/feed_mapping.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
 namespace {
@@ -16,6 +19,7 @@ namespace lp = liveprob::protocol;
 
 struct CheckFeedOptions {
     std::string path;
+    std::string mapping;  // a provider's rules file, or "" for the native forms
     bool json = false;
 };
 
@@ -36,8 +40,12 @@ void print_summary(const std::string& path, const lp::FeedCheckSummary& s) {
 int run_check_feed(const CheckFeedOptions& options) {
     const auto bytes =
         lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
-    const auto summary =
-        lp::check_feed(bytes, [](const std::string& problem) { std::cerr << problem << "\n"; });
+    const std::optional<lp::FeedMapping> mapping =
+        options.mapping.empty() ? std::nullopt
+                                : std::optional(lp::FeedMapping::from_file(options.mapping));
+    const auto summary = lp::check_feed(
+        bytes, [](const std::string& problem) { std::cerr << problem << "\n"; },
+        mapping ? &*mapping : nullptr);
     if (options.json) {
         fmt::print("{}\n", lp::summary_json(summary));
     } else {
@@ -53,6 +61,9 @@ const liveprob::cli::Registration registration{
          auto options = std::make_shared<CheckFeedOptions>();
          app.add_option("FILE", options->path, "the feed file to check")->required();
          app.add_flag("--json", options->json, "print the summary as one JSON object");
+         app.add_option("--mapping", options->mapping,
+                        "a provider's feed: map each line with this rules file first (a dry "
+                        "run of `send --mapping`)");
          return [options] { return run_check_feed(*options); };
      }}};
 

@@ -3,8 +3,10 @@
 // shard that owns it. This is also the JSON feed adapter: JSON lines are read, checked and
 // turned into FlatBuffers messages here. The feed is read as it arrives (standard input, a
 // pipe, a growing file with --follow), one message at a time: each is sent before the next is
-// read. A bad line is reported with its line number and field, counted and skipped (exit 1 at
-// the end). Pacing: as fast as possible, at a fixed rate, or by the match clock.
+// read. With --mapping RULES the lines are a data provider's own JSON, mapped by a rules file
+// (protocol/feed_mapping.hpp) before they are sent. A bad line is reported with its line number and
+// field, counted and skipped (exit 1 at the end). Pacing: as fast as possible, at a fixed rate, or
+// by the match clock.
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
@@ -21,6 +23,7 @@
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/feed_mapping.hpp"
 #include "liveprob/protocol/framing.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/system/wall_clock.hpp"
@@ -39,6 +42,7 @@ struct SendFlags {
     std::string client_key;
     int linger_ms = 5000;
     bool follow = false;
+    std::string mapping;  // a provider's rules file: lines are the provider's, mapped first
 };
 
 // Where `stop` comes from: SIGINT or SIGTERM end a followed feed (or a stalled read) cleanly.
@@ -60,8 +64,11 @@ void install_stop_handlers() {
 class FeedMessages {
 public:
     FeedMessages(const SendFlags& f)
-        : input_(f.file, input_form(f.format),
-                 clients::FeedInputOptions{.follow = f.follow, .stop = &g_stop}) {}
+        : input_(f.file,
+                 f.mapping.empty() ? input_form(f.format) : clients::FeedInputForm::json_lines,
+                 clients::FeedInputOptions{.follow = f.follow, .stop = &g_stop}) {
+        if (!f.mapping.empty()) mapper_.emplace(protocol::FeedMapping::from_file(f.mapping));
+    }
 
     std::optional<core::InboundMessage> next() {
         while (const auto unit = input_.next()) {
@@ -95,7 +102,8 @@ private:
                                clients::FeedInput::kMaxLineBytes));
             return std::nullopt;
         }
-        auto result = reader_.read_line(unit.bytes, unit.number);
+        auto result = mapper_ ? mapper_->map_line(unit.bytes, unit.number)
+                              : reader_.read_line(unit.bytes, unit.number);
         if (result.kind == protocol::JsonLineKind::bad) refuse(result.error);
         if (result.kind == protocol::JsonLineKind::skipped) ++skipped_;
         return std::move(result.message);
@@ -108,6 +116,7 @@ private:
 
     clients::FeedInput input_;
     protocol::JsonFeedReader reader_;
+    std::optional<protocol::FeedMapper> mapper_;  // with --mapping
     std::uint64_t refused_ = 0, skipped_ = 0;
 };
 
@@ -117,6 +126,8 @@ int run_send(const SendFlags& f) {
     if (f.format != "auto" && f.format != "jsonl" && f.format != "frames") {
         throw UsageError("--format must be auto, jsonl or frames");
     }
+    if (!f.mapping.empty() && f.format == "frames")
+        throw UsageError("--mapping reads a provider's JSON lines, not frames");
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
     install_stop_handlers();
     FeedMessages source(f);
@@ -180,6 +191,10 @@ const Registration registration{{
                        "pace by the match clock, this many times real time (0: no pacing)");
         sub.add_option("--rate", f->rate,
                        "send this many messages per second (0: as fast as possible)");
+        sub.add_option("--mapping", f->mapping,
+                       "the feed is a data provider's own JSON lines: map each with this rules "
+                       "file (protocol/README.md, \"Feed mappings\")")
+            ->check(CLI::ExistingFile);
         sub.add_flag("--stamp", f->stamp,
                      "set each message's source time to the moment it is sent");
         sub.add_option("--server-key", f->server_key, "CURVE: the service's .public key file");

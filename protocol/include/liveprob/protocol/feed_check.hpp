@@ -10,6 +10,8 @@
 
 namespace liveprob::protocol {
 
+class FeedMapping;
+
 enum class FeedForm : std::uint8_t { json_lines, frame_stream };
 const char* feed_form_name(FeedForm form) noexcept;
 
@@ -28,9 +30,11 @@ struct FeedCheckSummary {
 };
 
 // Calls `report` once per problem with one line ("line 12: field 'side': ..." or
-// "frame 3 at offset 120: bad_value: ..."), in order, and returns the totals.
+// "frame 3 at offset 120: bad_value: ..."), in order, and returns the totals. With a `mapping`
+// the feed is a provider's JSON lines, each mapped by the rules before it is checked.
 FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
-                            const std::function<void(const std::string&)>& report);
+                            const std::function<void(const std::string&)>& report,
+                            const FeedMapping* mapping = nullptr);
 
 // The summary as one JSON object (for scripts).
 std::string summary_json(const FeedCheckSummary& summary);

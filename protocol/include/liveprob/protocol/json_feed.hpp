@@ -29,6 +29,9 @@ struct JsonLineResult {
     std::string kind_hint;  // the line's "type" when it could be read, for per-kind counts
 };
 
+// A refused line: kind bad, the field and reason, and the one-line error naming the line.
+JsonLineResult refused_line(std::size_t line_number, std::string field, std::string reason);
+
 // Reads lines one at a time; keeps its parser between lines so long feeds parse fast.
 class JsonFeedReader {
 public:
