@@ -164,3 +164,53 @@ TEST_CASE("a bad line in a stream is reported with its line and field, counted, 
     CHECK(send.output().find("1 refused") != std::string::npos);
     wait_until_applied(serve, 305, folded(feed, feed.size()));
 }
+
+TEST_CASE("a provider's feed piped through send --mapping reaches serve as the native feed does",
+          "[integration][send][feed_mapping][sockets]") {
+    const auto dir = scratch_dir("send-mapping");
+    const auto mappings = source_dir() / "protocol" / "mappings";
+    // The native sample, match by match, through the engine in this process.
+    std::map<std::uint64_t, std::vector<core::InboundMessage>> native;
+    {
+        protocol::JsonFeedReader reader;
+        std::istringstream in(read_whole_file(mappings / "native.sample.jsonl"));
+        std::string line;
+        std::size_t number = 0;
+        while (std::getline(in, line)) {
+            auto r = reader.read_line(line, ++number);
+            REQUIRE(r.kind == protocol::JsonLineKind::message);
+            native[r.message->header.match_id].push_back(std::move(*r.message));
+        }
+    }
+    REQUIRE(native.size() == 5);
+    for (const std::string provider : {"harbour", "meadow"}) {
+        INFO("provider " << provider);
+        ServeProcess serve(dir, "serve-" + provider, {"--tick-ms", "600000"});
+        const std::string command =
+            fmt::format("cat '{}' | '{}' send --to '{}' --mapping '{}' -",
+                        (mappings / (provider + ".sample.jsonl")).string(), bin(), serve.ingest(),
+                        (mappings / (provider + ".rules.json")).string());
+        ChildProcess send({"/bin/sh", "-c", command}, dir / "send.out", dir / "send.err");
+        const auto code = send.wait(30s);
+        REQUIRE(code.has_value());
+        INFO(send.output() << read_whole_file(dir / "send.err"));
+        CHECK(*code == 0);
+        CHECK(send.output().find("sent 190 messages") != std::string::npos);
+        for (const auto& [match_id, feed] : native) {
+            const auto expected = engine_outputs(feed);
+            wait_until_applied(serve, match_id, expected.back().outputs.events_applied);
+            zmq::context_t context(1);
+            const auto reply = clients::request_snapshot(context, serve.snapshot(), match_id, 5s);
+            REQUIRE(reply.updates.size() == 1);
+            const core::Outputs& got = reply.updates[0].outputs;
+            const core::Outputs& want = expected.back().outputs;
+            CHECK(got.events_applied == want.events_applied);
+            CHECK(got.home_goals == want.home_goals);
+            CHECK(got.away_goals == want.away_goals);
+            CHECK(got.p_home == want.p_home);
+            CHECK(got.p_draw == want.p_draw);
+            CHECK(got.p_away == want.p_away);
+            CHECK(got.expected_home_goals == want.expected_home_goals);
+        }
+    }
+}
