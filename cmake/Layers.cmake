@@ -29,6 +29,9 @@ liveprob_outside(beast       Boost::boost             "^boost/beast")
 liveprob_outside(threads     Threads::Threads         "^(thread|mutex|shared_mutex|condition_variable|future)$")
 liveprob_outside(cli11       CLI11::CLI11             "^CLI/")
 liveprob_outside(tools       ""                       "^(harness/|command_registry[.]hpp|progress_bar[.]hpp)")
+# Header-only outside libraries: nothing of them is linked, so an installed static archive that
+# uses them privately passes nothing on (cmake/LiveprobLibrary.cmake).
+set(LIVEPROB_OUTSIDE_HEADER_ONLY eigen asio beast cli11)
 # What PURE folders may not include beyond the libraries above: files, clocks, threads, streams.
 set(LIVEPROB_IMPURE_PATTERN "^(fstream|filesystem|chrono|ctime|time[.]h|iostream|unistd[.]h|fcntl[.]h|sys/)")
 

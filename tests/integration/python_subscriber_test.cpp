@@ -1,12 +1,14 @@
-// The documented Python subscriber (tools/python/liveprob_subscribe.py) against a live serve:
-// it must print, for each update, exactly the probabilities the engine published, start from
-// the snapshot, and count nothing as rejected.
+// The Python subscriber (python3 -m liveprob.subscribe, tools/python/liveprob/subscribe.py)
+// against a live serve: it must print, for each update, exactly the probabilities the engine
+// published, start from the snapshot, and count nothing as rejected.
 #include <catch2/catch.hpp>
 
 #include <fmt/format.h>
 
+#include <filesystem>
 #include <regex>
 #include <sstream>
+#include <system_error>
 
 #include "feed_builder.hpp"
 #include "live_stack.hpp"
@@ -17,7 +19,8 @@ using namespace liveprob;
 using namespace liveprob::core;
 
 namespace {
-// flatc writes the Python modules to <build>/python (protocol/CMakeLists.txt); the program is
+// The build assembles the Python package in <build>/python (tools/python/CMakeLists.txt: the
+// package's files, its compiled engine, flatc's wire tables); the program is
 // <build>/tools/liveprob.
 std::filesystem::path python_modules() {
     return test::liveprob_binary().parent_path().parent_path() / "python";
@@ -36,25 +39,34 @@ TEST_CASE("the Python subscriber prints what serve published", "[python][gateway
     stack.send(feed.start(Period::first_half, 0.0));
     REQUIRE(stack.await_update(55, feed.last_seq()));  // the snapshot will hold this one
 
-    const std::string script =
-        (test::source_dir() / "tools" / "python" / "liveprob_subscribe.py").string();
+    const auto printed_path = dir / "python.out";
     const std::string command = fmt::format(
-        "{} {} --modules {} --feed {} --snapshot {} --match 55 --count 3 --seconds 20 2>{}",
-        test::system_python(), script, python_modules().string(), stack.publish_endpoint(),
-        stack.snapshot_endpoint(), (dir / "python.err").string());
+        "PYTHONPATH={} {} -m liveprob.subscribe --feed {} --snapshot {} --match 55 --count 3 "
+        "--seconds 20 >{} 2>{}",
+        python_modules().string(), test::system_python(), stack.publish_endpoint(),
+        stack.snapshot_endpoint(), printed_path.string(), (dir / "python.err").string());
     // Two more events while the script runs: it gets one update from the snapshot, two live.
+    // They are sent once it has printed the snapshot's line: it subscribes before it asks for
+    // the snapshot, so from then on it cannot miss them (however slowly Python starts).
+    const auto printed_a_line = [&] {
+        std::error_code ec;
+        const auto size = std::filesystem::file_size(printed_path, ec);
+        return !ec && size > 0;
+    };
     std::thread more([&] {
-        std::this_thread::sleep_for(std::chrono::milliseconds(1500));
+        for (int i = 0; i < 400 && !printed_a_line(); ++i)
+            std::this_thread::sleep_for(std::chrono::milliseconds(50));
         stack.send(feed.goal(Side::home, Period::first_half, 20.0));
         stack.send(feed.red(Side::away, Period::first_half, 30.0));
     });
     const auto result = test::run_command(command);
     more.join();
-    INFO(result.out << test::read_whole_file(dir / "python.err"));
+    const std::string out = test::read_whole_file(printed_path);
+    INFO(out << test::read_whole_file(dir / "python.err"));
     REQUIRE(result.exit_code == 0);
     REQUIRE(stack.await_update(55, feed.last_seq()));
 
-    std::istringstream lines(result.out);
+    std::istringstream lines(out);
     std::vector<std::string> printed;
     for (std::string line; std::getline(lines, line);) printed.push_back(line);
     REQUIRE(printed.size() == 3);

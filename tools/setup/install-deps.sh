@@ -11,6 +11,9 @@ packages=(
   libeigen3-dev libboost-dev libboost-system-dev
   catch2 libbenchmark-dev libcli11-dev libfmt-dev libspdlog-dev libsimdjson-dev
   python3 python3-scipy python3-statsmodels python3-numpy python3-zmq   # reference checks, Python client
+  python3-dev python3-pybind11 pybind11-dev python3-setuptools python3-venv python3-pip  # the Python package
+  python3-pytest python3-pandas python3-matplotlib   # its tests, its tables, the plotting example
+  dpkg-dev fakeroot file                        # the .deb (CPack, dpkg-shlibdeps)
   chromium fonts-dejavu-core                    # the gateway page's browser test (headless)
   qemu-user                                     # same figures on an emulated older processor
 )

@@ -125,16 +125,18 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
                 break;
             }
             // Priced there already (a message at the bucket's minute): the outputs stand, and
-            // moving the clock onto itself would only price them again.
-            if (!(model->priced_clock() == at)) model->advance_to(at);
-            if (!(baseline->priced_clock() == at)) baseline->advance_to(at);
+            // moving the clock onto itself would only price them again. A clock that cannot
+            // move there (stopped, another period) leaves the last priced outputs: what a
+            // subscriber would have seen at that minute.
+            if (!(model->priced_clock() == at)) (void)model->advance_to(at);
+            if (!(baseline->priced_clock() == at)) (void)baseline->advance_to(at);
             record_bucket(next_bucket++);
             if (out.timeline)
                 out.timeline->points.push_back(
                     {minutes_of(model->priced_clock()), forecast_of(model->outputs())});
         }
         const auto verdict = model->apply(m).verdict;
-        baseline->apply(m);
+        (void)baseline->apply(m);  // the same stream: its verdict is the model's
         ++out.messages;
         if (verdict == core::Verdict::rejected) ++out.rejected;
         if (verdict == core::Verdict::duplicate) ++out.duplicates;

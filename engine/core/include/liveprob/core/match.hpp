@@ -73,12 +73,12 @@ public:
     Match(std::uint64_t match_id, const MatchSetup& setup,
           const ModelParams& params = ModelParams{});
 
-    ApplyResult apply(const InboundMessage& message);
+    [[nodiscard]] ApplyResult apply(const InboundMessage& message);
 
     // Moves the clock the outputs are priced at. Returns false (and changes nothing) when the
     // clock cannot move there: not in play, clock stopped, another period, or earlier than the
     // feed's last reading. Clocks far beyond the period's end are held at its latest point.
-    bool advance_to(MatchClock now);
+    [[nodiscard]] bool advance_to(MatchClock now);
 
     // Prices the state at the priced clock into `out` (allocation-free once the thread has
     // priced once). The same state and clock always give the same figures, to the last bit.
@@ -88,7 +88,7 @@ public:
 
     // The same, kept in a buffer the match allocates on first use: priced on demand, so a
     // burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
-    const Outputs& outputs() const;
+    [[nodiscard]] const Outputs& outputs() const;
     const MatchState& state() const noexcept { return state_; }
     const MatchCounters& counters() const noexcept { return counters_; }
     MatchClock priced_clock() const noexcept { return priced_clock_; }

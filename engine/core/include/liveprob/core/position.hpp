@@ -29,10 +29,11 @@ struct MatchPosition {
 // given is the regulation score), then the announced stoppage. Throws std::invalid_argument
 // when the position is impossible (say why: clock outside every period, extra time with the
 // score not level, more than the score grid holds).
-std::vector<InboundMessage> position_messages(std::uint64_t match_id, const MatchPosition& position,
-                                              const ModelParams& params);
+[[nodiscard]] std::vector<InboundMessage> position_messages(std::uint64_t match_id,
+                                                            const MatchPosition& position,
+                                                            const ModelParams& params);
 
 // A Match with those messages applied (every one of them must be accepted).
-Match match_at(const MatchPosition& position, const ModelParams& params);
+[[nodiscard]] Match match_at(const MatchPosition& position, const ModelParams& params);
 
 }  // namespace liveprob::core
