@@ -51,7 +51,7 @@ cmake --build "$scratch/cpp_find_package" >>"$scratch/cpp_find_package.log"
 compare "C++ with find_package" "$scratch/cpp_find_package.txt"
 
 # 4. The installed program, and its gateway's page found from the prefix.
-"$prefix/bin/liveprob" --version | grep -q . || fail "liveprob --version printed nothing"
+[ -n "$("$prefix/bin/liveprob" --version)" ] || fail "liveprob --version printed nothing"
 "$prefix/bin/liveprob" gateway --feed tcp://127.0.0.1:9 --port 0 \
   --port-file "$scratch/gateway.port" >"$scratch/gateway.log" 2>&1 &
 gateway=$!
