@@ -8,6 +8,7 @@
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/feed_mapping.hpp"
 #include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/journal_format.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/protocol/json_writer.hpp"
 
@@ -87,10 +88,42 @@ void check_frames(std::span<const std::uint8_t> bytes, FeedCheckSummary& summary
     }
 }
 
+void check_journal_records(std::span<const std::uint8_t> bytes, FeedCheckSummary& summary,
+                           const std::function<void(const std::string&)>& report) {
+    JournalRecordReader reader(bytes);
+    SequenceWatch watch;
+    while (auto record = reader.next()) {
+        ++summary.units;
+        const auto decoded = decode_feed_message(record->payload);
+        if (decoded.message) {
+            count_message(*decoded.message, summary, watch);
+        } else {
+            ++summary.bad;
+            report(fmt::format("record {} at offset {}: {}", summary.units, record->offset,
+                               decoded.detail));
+        }
+    }
+    for (const auto& note : reader.damage_notes()) {
+        ++summary.units;
+        ++summary.bad;
+        report(note);
+    }
+    if (reader.tail() == JournalTail::torn) {
+        ++summary.units;
+        ++summary.bad;
+        report(fmt::format("torn tail at offset {} (a record cut short)", reader.tail_offset()));
+    }
+}
+
 }  // namespace
 
 const char* feed_form_name(FeedForm form) noexcept {
-    return form == FeedForm::json_lines ? "json_lines" : "frame_stream";
+    switch (form) {
+        case FeedForm::json_lines: return "json_lines";
+        case FeedForm::frame_stream: return "frame_stream";
+        case FeedForm::journal: return "journal";
+    }
+    return "unknown";
 }
 
 FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
@@ -103,6 +136,9 @@ FeedCheckSummary check_feed(std::span<const std::uint8_t> bytes,
         check_lines(text, summary, report, [&](std::string_view line, std::size_t number) {
             return mapper.map_line(line, number);
         });
+    } else if (classify_journal_file(bytes) == JournalFileKind::segment) {
+        summary.form = FeedForm::journal;
+        check_journal_records(bytes, summary, report);
     } else if (looks_like_frame_stream(bytes)) {
         summary.form = FeedForm::frame_stream;
         check_frames(bytes, summary, report);

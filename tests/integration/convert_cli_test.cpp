@@ -59,3 +59,34 @@ TEST_CASE("convert: frames to JSON lines and back gives the same bytes, damaged 
     CHECK(skipped.exit_code == 0);
     CHECK(backtest::read_stream(dir / "c.stream").messages.size() == messages.size() - 1);
 }
+
+TEST_CASE(
+    "convert: a journal of the previous format (bare frames) becomes a journal folder that "
+    "check-feed and the replay read",
+    "[convert]") {
+    const auto dir = liveprob::test::scratch_dir("convert-journal");
+    const auto season = demo::simulate_demo_season(demo::make_demo_league(4), 4);
+    std::vector<InboundMessage> messages;
+    for (std::size_t i = 0; i < 3; ++i)
+        messages.insert(messages.end(), season.league[i].messages.begin(),
+                        season.league[i].messages.end());
+    backtest::write_stream(dir / "old.lpf", messages, backtest::StreamForm::frames);
+    const auto old_bytes = liveprob::test::read_whole_file(dir / "old.lpf");
+    const std::string bin = liveprob::test::liveprob_binary().string();
+    const auto converted = liveprob::test::run_command(
+        fmt::format("{} convert {} --out {} --form journal 2>&1", bin, (dir / "old.lpf").string(),
+                    (dir / "journal").string()));
+    REQUIRE(converted.exit_code == 0);
+    CHECK(liveprob::test::read_whole_file(dir / "old.lpf") == old_bytes);
+    CHECK(backtest::read_stream(dir / "journal").messages == messages);
+    const auto checked = liveprob::test::run_command(
+        fmt::format("{} check-feed --json {} 2>&1", bin, (dir / "journal").string()));
+    CHECK(checked.exit_code == 0);
+    CHECK(checked.out.find("\"form\": \"journal\"") != std::string::npos);
+    CHECK(checked.out.find(fmt::format("\"ok\": {}", messages.size())) != std::string::npos);
+    // Never over an existing folder (a journal a serve may hold).
+    const auto again = liveprob::test::run_command(
+        fmt::format("{} convert {} --out {} --form journal 2>&1", bin, (dir / "old.lpf").string(),
+                    (dir / "journal").string()));
+    CHECK(again.exit_code != 0);
+}

@@ -6,6 +6,9 @@
 #include <random>
 
 #include "live_service_harness.hpp"
+#include "liveprob/protocol/journal_format.hpp"
+#include "liveprob/protocol/json_feed.hpp"
+#include "liveprob/protocol/whole_file.hpp"
 
 using namespace liveprob;
 
@@ -42,6 +45,22 @@ void send_file(const std::filesystem::path& dir, const std::string& endpoint,
     const auto code = send.wait(30s);
     REQUIRE(code.has_value());
     REQUIRE(*code == 0);
+}
+
+// Starts serve with `extra` and expects it to refuse to start: a non-zero exit, and what it
+// printed, for the reason.
+std::string refused_start(const std::filesystem::path& dir, const std::string& name,
+                          const std::vector<std::string>& extra) {
+    std::vector<std::string> args = {bin(),        "serve",
+                                     "--ingest",   "tcp://127.0.0.1:*",
+                                     "--publish",  "tcp://127.0.0.1:*",
+                                     "--snapshot", "tcp://127.0.0.1:*"};
+    args.insert(args.end(), extra.begin(), extra.end());
+    ChildProcess serve(args, dir / (name + ".out"), dir / (name + ".err"));
+    const auto code = serve.wait(20s);
+    REQUIRE(code.has_value());
+    CHECK(*code != 0);
+    return read_whole_file(dir / (name + ".err")) + serve.output();
 }
 
 protocol::SnapshotReplyContents snapshot(const ServeProcess& serve, std::uint64_t match_id) {
@@ -206,7 +225,7 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
     write_frames(dir / "after.lpf", after);
     const auto uninterrupted = engine_outputs(feed);
     const auto before_outputs = engine_outputs(before);
-    const std::vector<std::string> journal = {"--journal",      (dir / "journal.lpf").string(),
+    const std::vector<std::string> journal = {"--journal",      (dir / "journal").string(),
                                               "--journal-sync", "every_message",
                                               "--tick-ms",      "600000"};
 
@@ -219,15 +238,18 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
         first.process().signal(SIGKILL);
         REQUIRE(first.process().wait(10s) == std::optional<int>(-SIGKILL));
     }
-    // A torn frame at the end, as a crash in the middle of a write leaves it.
+    // A torn record at the end, as a crash in the middle of a write leaves it: the record
+    // marker, then a length promising 200 bytes, and two of them.
     {
-        std::ofstream torn(dir / "journal.lpf", std::ios::binary | std::ios::app);
-        const char partial[] = {static_cast<char>(200), 0, 0, 0, 'L', 'P'};
+        std::ofstream torn(dir / "journal" / protocol::journal_segment_name(1),
+                           std::ios::binary | std::ios::app);
+        const char partial[] = {
+            '\xF5', '\x4A', '\x52', '\x0C', static_cast<char>(200), 0, 0, 0, 1, 2, 3, 4, 'L', 'P'};
         torn.write(partial, sizeof partial);
     }
     // Restart on the same endpoints, so the subscriber below reconnects by itself.
     ServeProcess second(dir, "second", journal, endpoints);
-    CHECK(second.log().find("cut 6 bytes") != std::string::npos);
+    CHECK(second.log().find("torn tail of 14 bytes") != std::string::npos);
     const auto restored = snapshot(second, 404);
     REQUIRE(restored.updates.size() == 1);
     CHECK(same_outputs(restored.updates[0].outputs, before_outputs.back().outputs));
@@ -248,6 +270,73 @@ TEST_CASE("kill -9 mid-match and restart: the next outputs equal an uninterrupte
         CHECK(next[i].meta.input_seq == want.input_seq);
         CHECK(same_outputs(next[i].outputs, want.outputs));
     }
+}
+
+TEST_CASE(
+    "a damaged journal record: serve skips it, replays every record after it, and "
+    "refuses a second serve and a file that is no journal",
+    "[integration][serve][sockets]") {
+    const auto dir = scratch_dir("serve-damaged-journal");
+    const auto first_match = invented_match(501), second_match = invented_match(502);
+    const std::vector<InboundMessage> part_a(first_match.begin(), first_match.begin() + 20);
+    const std::vector<InboundMessage> part_b(second_match.begin(), second_match.begin() + 20);
+    write_frames(dir / "a.lpf", part_a);
+    write_frames(dir / "b.lpf", part_b);
+    const std::vector<std::string> journal = {"--journal",      (dir / "journal").string(),
+                                              "--journal-sync", "every_message",
+                                              "--tick-ms",      "600000",
+                                              "--counters-ms",  "100"};
+    {
+        ServeProcess first(dir, "first", journal);
+        send_file(dir, first.ingest(), dir / "a.lpf");
+        send_file(dir, first.ingest(), dir / "b.lpf");
+        wait_for_events(first, 501, engine_outputs(part_a).back().outputs.events_applied);
+        wait_for_events(first, 502, engine_outputs(part_b).back().outputs.events_applied);
+        first.process().signal(SIGKILL);
+        REQUIRE(first.process().wait(10s).has_value());
+    }
+    // Record 10 (match 501's red card) gets a damaged length field, mid-file.
+    const auto segment = dir / "journal" / protocol::journal_segment_name(1);
+    auto bytes = protocol::read_whole_file_bytes(segment);
+    std::vector<std::size_t> offsets;
+    {
+        protocol::JournalRecordReader reader(bytes);
+        while (const auto r = reader.next()) offsets.push_back(r->offset);
+    }
+    REQUIRE(offsets.size() == part_a.size() + part_b.size());
+    bytes[offsets[10] + 5] ^= 0x40;  // the length grows by 16 KiB, past the end of the file
+    protocol::write_file_atomically(segment, bytes);
+
+    ServeProcess second(dir, "second", journal);
+    CHECK(second.log().find("1 damaged record(s)") != std::string::npos);
+    CHECK(second.log().find("skipped (length past the end)") != std::string::npos);
+    // The state equals a clean run's on the same messages without the damaged one.
+    std::vector<InboundMessage> a_without = part_a;
+    a_without.erase(a_without.begin() + 10);
+    const auto restored_a = snapshot(second, 501);
+    REQUIRE(restored_a.updates.size() == 1);
+    CHECK(same_outputs(restored_a.updates[0].outputs, engine_outputs(a_without).back().outputs));
+    const auto restored_b = snapshot(second, 502);
+    REQUIRE(restored_b.updates.size() == 1);
+    CHECK(same_outputs(restored_b.updates[0].outputs, engine_outputs(part_b).back().outputs));
+    zmq::context_t context(1);
+    TestSubscriber sub(context, second.publish(), "service.");
+    const auto counters = sub.next_counters(20s);
+    REQUIRE(counters.has_value());
+    CHECK(counter(*counters, "journal.replayed") == offsets.size() - 1);
+    CHECK(counter(*counters, "journal.damaged_records") == 1);
+    CHECK(counter(*counters, "journal.torn_bytes") == 0);
+    CHECK(protocol::read_whole_file_bytes(segment) == bytes);  // the damage kept, nothing cut
+
+    // A second serve on the same journal refuses to start, naming the holder.
+    CHECK(refused_start(dir, "third", {"--journal", (dir / "journal").string()})
+              .find("in use by another process") != std::string::npos);
+    // A JSON-lines feed passed as the journal by mistake: refused, byte for byte untouched.
+    const std::string feed = protocol::to_json_line(part_a[0]) + "\n";
+    protocol::write_file_atomically(dir / "feed.jsonl", feed);
+    CHECK(refused_start(dir, "wrong", {"--journal", (dir / "feed.jsonl").string()})
+              .find("not a journal folder") != std::string::npos);
+    CHECK(read_whole_file(dir / "feed.jsonl") == feed);
 }
 
 TEST_CASE("garbage frames are counted and dropped and the service keeps serving",

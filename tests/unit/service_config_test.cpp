@@ -1,4 +1,4 @@
-// The service's configuration file and the journal's crash-tail handling.
+// The service's configuration file.
 #include <catch2/catch.hpp>
 
 #include <filesystem>
@@ -101,7 +101,7 @@ TEST_CASE("configuration: flags and file values are checked alike, by the one ke
         CHECK(names.insert(k.name).second);
         CHECK(flags.insert(k.flag).second);
     }
-    CHECK(names.size() == 17);
+    CHECK(names.size() == 18);
 }
 
 TEST_CASE("configuration: the README's table of keys is the key table", "[unit][serve]") {
@@ -118,50 +118,4 @@ TEST_CASE("configuration: the README's table of keys is the key table", "[unit][
     INFO("the table config_key_table_markdown() makes, to paste into adapters/service/README.md:\n"
          << config_key_table_markdown());
     CHECK(table == config_key_table_markdown());
-}
-
-TEST_CASE("journal: frames replay in order, a torn tail is reported and cut, nothing earlier lost",
-          "[unit][serve]") {
-    const auto dir = liveprob::test::scratch_dir("journal-tail");
-    const std::string path = (dir / "journal.lpf").string();
-    const std::vector<std::vector<std::uint8_t>> frames = {
-        {1, 2, 3}, {4}, std::vector<std::uint8_t>(1000, 7)};
-    {
-        JournalWriter writer(path, JournalSync::every_message, std::chrono::milliseconds(10));
-        for (const auto& f : frames) writer.append(f);
-        CHECK(writer.frames_written() == 3);
-    }
-    const auto whole_size = std::filesystem::file_size(path);
-    {
-        // A crash mid-write: a length prefix promising 50 bytes, and 2 of them.
-        std::ofstream out(path, std::ios::binary | std::ios::app);
-        const char torn[] = {50, 0, 0, 0, 9, 9};
-        out.write(torn, sizeof torn);
-    }
-    std::vector<std::vector<std::uint8_t>> seen;
-    const auto report = replay_journal(
-        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); },
-        true);
-    CHECK(seen == frames);
-    CHECK(report.frames == 3);
-    CHECK(report.torn_bytes == 6);
-    CHECK_FALSE(report.torn_detail.empty());
-    CHECK(std::filesystem::file_size(path) == whole_size);
-
-    // Appending after the cut continues a clean journal.
-    {
-        JournalWriter writer(path, JournalSync::none, std::chrono::milliseconds(10));
-        writer.append(std::vector<std::uint8_t>{5, 5});
-    }
-    seen.clear();
-    const auto again = replay_journal(
-        path, [&](std::span<const std::uint8_t> f) { seen.emplace_back(f.begin(), f.end()); },
-        true);
-    CHECK(again.frames == 4);
-    CHECK(again.torn_bytes == 0);
-    CHECK(seen.back() == std::vector<std::uint8_t>{5, 5});
-
-    // A missing journal is an empty one.
-    CHECK(replay_journal((dir / "none.lpf").string(), [](std::span<const std::uint8_t>) {}, true)
-              .frames == 0);
 }

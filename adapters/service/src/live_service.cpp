@@ -77,7 +77,7 @@ struct LiveService::Impl {
     std::optional<transport::ReactorSocket> ingest;
     zmq::socket_t publisher;
     std::optional<transport::ReactorSocket> snapshot;
-    std::unique_ptr<files::JournalWriter> journal;
+    std::unique_ptr<files::Journal> journal;
     MatchRegistry registry;
     ServiceCounters counters;
     protocol::UpdateEncoder encoder;
@@ -107,10 +107,12 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
     }
 
     if (!config.journal_path.empty()) {
-        replay();
-        journal = std::make_unique<files::JournalWriter>(
+        // Opened (and locked) before it is read, so a second serve on it refuses to start.
+        journal = std::make_unique<files::Journal>(
             config.journal_path, config.journal_sync,
-            std::chrono::milliseconds(config.journal_sync_interval_ms));
+            std::chrono::milliseconds(config.journal_sync_interval_ms),
+            std::uint64_t{config.journal_segment_kib} * 1024);
+        replay();
     }
 
     zmq::socket_t pull(context, zmq::socket_type::pull);
@@ -151,9 +153,8 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
 
 void LiveService::Impl::replay() {
     replaying = true;
-    const files::JournalReplayReport report = files::replay_journal(
-        config.journal_path,
-        [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); }, true);
+    const files::JournalReplayReport report = journal->replay(
+        [this](std::span<const std::uint8_t> frame) { handle_buffer(frame, true); });
     replaying = false;
     // A rebuilt match continues its output sequence from the restart time in microseconds since
     // the Unix epoch, not from 1. The run before published fewer updates per match than
@@ -164,12 +165,17 @@ void LiveService::Impl::replay() {
     for (auto& [id, m] : registry.matches()) m.output_seq = restart_seq;
     counters.journal_replayed = report.frames;
     counters.journal_torn_bytes = report.torn_bytes;
-    if (!report.torn_detail.empty()) {
-        spdlog::warn("journal {}: {}; cut {} bytes, {} whole frames kept", config.journal_path,
-                     report.torn_detail, report.torn_bytes, report.frames);
+    counters.journal_damaged_records = report.damaged_records;
+    counters.journal_damaged_bytes = report.damaged_bytes;
+    for (const auto& note : report.notes) spdlog::warn("journal {}: {}", config.journal_path, note);
+    if (report.damaged_records > 0) {
+        spdlog::warn(
+            "journal {}: {} damaged record(s), {} bytes, skipped and kept on disk; "
+            "every readable record after them replayed",
+            config.journal_path, report.damaged_records, report.damaged_bytes);
     }
-    spdlog::info("journal {}: replayed {} frames into {} matches", config.journal_path,
-                 report.frames, registry.matches().size());
+    spdlog::info("journal {}: replayed {} records from {} segment(s) into {} matches",
+                 config.journal_path, report.frames, report.segments, registry.matches().size());
 }
 
 void LiveService::Impl::start() {

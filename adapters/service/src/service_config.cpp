@@ -21,7 +21,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 17> kKeys = {{
+const std::array<ConfigKey, 18> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "PULL socket feeds push to"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -45,7 +45,8 @@ const std::array<ConfigKey, 17> kKeys = {{
      "--journal",
      ConfigValue::text,
      &S::journal_path,
-     "journal file, replayed at start and appended while running; none: no recovery",
+     "journal folder (segment files), replayed at start and appended while running; none: "
+     "no recovery",
      0,
      0,
      {},
@@ -55,6 +56,8 @@ const std::array<ConfigKey, 17> kKeys = {{
      files::kJournalSyncNames},
     {"journal_sync_interval_ms", "--journal-sync-ms", ConfigValue::whole,
      &S::journal_sync_interval_ms, "fsync interval for `interval` (ms)", 1, kMaxMilliseconds},
+    {"journal_segment_kib", "--journal-segment-kib", ConfigValue::whole, &S::journal_segment_kib,
+     "a journal segment is closed and the next begun at this size (KiB)", 4, 4u << 20},
     {"publish_high_water_mark", "--publish-hwm", ConfigValue::whole, &S::publish_high_water_mark,
      "messages queued per subscriber before dropping", 1, kMaxHighWaterMark},
     {"ingest_high_water_mark", "--ingest-hwm", ConfigValue::whole, &S::ingest_high_water_mark,

@@ -47,6 +47,8 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("journal.frames", s.journal_frames);
     add("journal.replayed", s.journal_replayed);
     add("journal.torn_bytes", s.journal_torn_bytes);
+    add("journal.damaged_records", s.journal_damaged_records);
+    add("journal.damaged_bytes", s.journal_damaged_bytes);
     add("journal.write_failed", s.journal_write_failed);
     add("curve.accepted", s.curve_accepted);
     add("curve.refused", s.curve_refused);

@@ -7,6 +7,7 @@
 
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/framing.hpp"
+#include "liveprob/protocol/journal_format.hpp"
 #include "liveprob/protocol/json_feed.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
@@ -36,6 +37,29 @@ void read_frames(std::span<const std::uint8_t> bytes, StreamContents& out) {
     if (cursor.end() != protocol::StreamEnd::clean) note_problem(out, cursor.end_detail());
 }
 
+// One journal segment: damaged records are skipped (and counted) and reading goes on after them.
+void read_journal_segment(std::span<const std::uint8_t> bytes, const std::string& name,
+                          StreamContents& out) {
+    protocol::JournalRecordReader reader(bytes);
+    std::size_t record_number = 0;
+    while (const auto record = reader.next()) {
+        ++record_number;
+        auto decoded = protocol::decode_feed_message(record->payload);
+        if (decoded.message) {
+            out.messages.push_back(std::move(*decoded.message));
+        } else {
+            note_problem(out,
+                         fmt::format("{}: record {} at offset {}: {}: {}", name, record_number,
+                                     record->offset, protocol::decode_error_name(decoded.error),
+                                     decoded.detail));
+        }
+    }
+    for (const auto& note : reader.damage_notes()) note_problem(out, name + ": " + note);
+    if (reader.tail() == protocol::JournalTail::torn) {
+        note_problem(out, fmt::format("{}: torn tail at offset {}", name, reader.tail_offset()));
+    }
+}
+
 void read_json_lines(std::string_view text, StreamContents& out) {
     protocol::JsonFeedReader reader;
     std::size_t line_number = 0;
@@ -55,9 +79,25 @@ void read_json_lines(std::string_view text, StreamContents& out) {
 }  // namespace
 
 StreamContents read_stream(const std::filesystem::path& path) {
-    const auto bytes = protocol::read_whole_file_bytes(path, "the recorded stream");
     StreamContents out;
-    if (protocol::looks_like_frame_stream(bytes)) {
+    if (std::filesystem::is_directory(path)) {  // a journal folder: its segments in order
+        for (const auto& segment : protocol::list_journal_segments(path)) {
+            const auto bytes = protocol::read_whole_file_bytes(segment, "the journal segment");
+            const auto kind = protocol::classify_journal_file(bytes);
+            if (kind == protocol::JournalFileKind::segment) {
+                read_journal_segment(bytes, segment.filename().string(), out);
+            } else if (kind != protocol::JournalFileKind::empty) {
+                note_problem(out, fmt::format("{}: {}", segment.filename().string(),
+                                              protocol::describe_journal_file_kind(kind)));
+            }
+        }
+        if (!out.first_problem.empty()) out.first_problem = path.string() + "/" + out.first_problem;
+        return out;
+    }
+    const auto bytes = protocol::read_whole_file_bytes(path, "the recorded stream");
+    if (protocol::classify_journal_file(bytes) == protocol::JournalFileKind::segment) {
+        read_journal_segment(bytes, path.filename().string(), out);
+    } else if (protocol::looks_like_frame_stream(bytes)) {
         read_frames(bytes, out);
     } else {
         read_json_lines(std::string_view(reinterpret_cast<const char*>(bytes.data()), bytes.size()),
@@ -70,6 +110,20 @@ StreamContents read_stream(const std::filesystem::path& path) {
 void write_stream(const std::filesystem::path& path,
                   const std::vector<core::InboundMessage>& messages, StreamForm form) {
     std::vector<std::uint8_t> bytes;
+    if (form == StreamForm::journal) {
+        // A new journal folder of one segment, for `serve --journal`.
+        if (std::filesystem::exists(path)) {
+            throw std::runtime_error(path.string() +
+                                     ": a journal is written into a new folder; this exists");
+        }
+        protocol::append_journal_header(bytes);
+        for (const auto& m : messages)
+            protocol::append_journal_record(bytes, protocol::encode_feed_message(m));
+        std::filesystem::create_directories(path);
+        protocol::write_file_atomically(path / protocol::journal_segment_name(1), bytes,
+                                        "the journal segment");
+        return;
+    }
     if (form == StreamForm::frames) {
         for (const auto& m : messages)
             protocol::append_frame(bytes, protocol::encode_feed_message(m));
@@ -86,7 +140,9 @@ void write_stream(const std::filesystem::path& path,
 StreamForm parse_stream_form(const std::string& text) {
     if (text == "frames" || text == "binary") return StreamForm::frames;
     if (text == "json" || text == "jsonl") return StreamForm::json_lines;
-    throw std::invalid_argument("stream form must be 'frames' or 'json', got '" + text + "'");
+    if (text == "journal") return StreamForm::journal;
+    throw std::invalid_argument("stream form must be 'frames', 'json' or 'journal', got '" + text +
+                                "'");
 }
 
 }  // namespace liveprob::backtest

@@ -1,9 +1,11 @@
-// `liveprob check-feed FILE`: validates a feed file (JSON lines, or a size-prefixed binary
-// stream such as a journal, told apart by content) and reports every bad line on stderr. With
-// --mapping RULES the file is a provider's JSON lines, each mapped by the rules and then checked.
+// `liveprob check-feed FILE`: validates a feed file (JSON lines, a size-prefixed binary stream,
+// or a journal segment, told apart by content; a folder is a journal, its segments checked in
+// order) and reports every bad line on stderr. With --mapping RULES the file is a provider's
+// JSON lines, each mapped by the rules and then checked.
 // Exit 0 when every line is good, 1 when any is bad or the file cannot be read.
 #include <fmt/format.h>
 
+#include <filesystem>
 #include <iostream>
 #include <memory>
 #include <optional>
@@ -11,6 +13,7 @@
 #include "command_registry.hpp"
 #include "liveprob/protocol/feed_check.hpp"
 #include "liveprob/protocol/feed_mapping.hpp"
+#include "liveprob/protocol/journal_format.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
 namespace {
@@ -24,10 +27,14 @@ struct CheckFeedOptions {
 };
 
 void print_summary(const std::string& path, const lp::FeedCheckSummary& s) {
-    const bool lines = s.form == lp::FeedForm::json_lines;
-    fmt::print("{}: {}, {} {}: {} ok, {} skipped, {} bad\n", path,
-               lines ? "JSON lines" : "size-prefixed stream", s.units, lines ? "lines" : "frames",
-               s.ok, s.skipped, s.bad);
+    const char* form = s.form == lp::FeedForm::json_lines     ? "JSON lines"
+                       : s.form == lp::FeedForm::frame_stream ? "size-prefixed stream"
+                                                              : "journal";
+    const char* units = s.form == lp::FeedForm::json_lines     ? "lines"
+                        : s.form == lp::FeedForm::frame_stream ? "frames"
+                                                               : "records";
+    fmt::print("{}: {}, {} {}: {} ok, {} skipped, {} bad\n", path, form, s.units, units, s.ok,
+               s.skipped, s.bad);
     for (const auto& [kind, count] : s.kinds) fmt::print("  {:<17} {}\n", kind, count);
     if (s.repeated_seq + s.out_of_order_seq > 0) {
         fmt::print(
@@ -37,15 +44,48 @@ void print_summary(const std::string& path, const lp::FeedCheckSummary& s) {
     }
 }
 
+// A journal folder: every segment checked, problems named by segment, the totals summed.
+lp::FeedCheckSummary check_journal_folder(const std::filesystem::path& folder) {
+    lp::FeedCheckSummary total;
+    total.form = lp::FeedForm::journal;
+    for (const auto& segment : lp::list_journal_segments(folder)) {
+        const std::string name = segment.filename().string();
+        const auto bytes = lp::read_whole_file_bytes(segment, "the journal segment");
+        const auto kind = lp::classify_journal_file(bytes);
+        if (kind != lp::JournalFileKind::segment) {
+            if (kind == lp::JournalFileKind::empty) continue;
+            ++total.units;
+            ++total.bad;
+            std::cerr << name << ": " << lp::describe_journal_file_kind(kind) << "\n";
+            continue;
+        }
+        const auto one = lp::check_feed(bytes, [&](const std::string& problem) {
+            std::cerr << name << ": " << problem << "\n";
+        });
+        total.units += one.units;
+        total.ok += one.ok;
+        total.bad += one.bad;
+        for (const auto& [kind_name, count] : one.kinds) total.kinds[kind_name] += count;
+        total.repeated_seq += one.repeated_seq;
+        total.out_of_order_seq += one.out_of_order_seq;
+    }
+    return total;
+}
+
 int run_check_feed(const CheckFeedOptions& options) {
-    const auto bytes =
-        lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
-    const std::optional<lp::FeedMapping> mapping =
-        options.mapping.empty() ? std::nullopt
-                                : std::optional(lp::FeedMapping::from_file(options.mapping));
-    const auto summary = lp::check_feed(
-        bytes, [](const std::string& problem) { std::cerr << problem << "\n"; },
-        mapping ? &*mapping : nullptr);
+    lp::FeedCheckSummary summary;
+    if (std::filesystem::is_directory(options.path) && options.mapping.empty()) {
+        summary = check_journal_folder(options.path);
+    } else {
+        const auto bytes =
+            lp::read_whole_file_bytes(options.path, "the feed");  // throws: exit 1 with the reason
+        const std::optional<lp::FeedMapping> mapping =
+            options.mapping.empty() ? std::nullopt
+                                    : std::optional(lp::FeedMapping::from_file(options.mapping));
+        summary = lp::check_feed(
+            bytes, [](const std::string& problem) { std::cerr << problem << "\n"; },
+            mapping ? &*mapping : nullptr);
+    }
     if (options.json) {
         fmt::print("{}\n", lp::summary_json(summary));
     } else {
@@ -56,7 +96,8 @@ int run_check_feed(const CheckFeedOptions& options) {
 
 const liveprob::cli::Registration registration{
     {"check-feed",
-     "check a feed file (JSON lines or size-prefixed stream) and report every bad line",
+     "check a feed file (JSON lines, size-prefixed stream or journal) and report every bad "
+     "line",
      [](CLI::App& app) {
          auto options = std::make_shared<CheckFeedOptions>();
          app.add_option("FILE", options->path, "the feed file to check")->required();

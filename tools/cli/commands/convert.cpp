@@ -1,5 +1,7 @@
-// `liveprob convert`: a recorded stream (or a journal) from one form to the other: size-prefixed
-// frames <-> JSON lines. The input's form is told by its content. A damaged record stops the
+// `liveprob convert`: a recorded stream or a journal from one form to another: size-prefixed
+// frames, JSON lines, a journal folder. The input's form is told by its content (a folder is a
+// journal), so this is also how a journal of the previous format (bare frames) becomes one
+// `serve --journal` opens. A damaged record stops the
 // conversion before anything is written, unless --skip-bad (then it is counted and left out).
 #include <fmt/format.h>
 
@@ -37,25 +39,28 @@ int run_convert(const ConvertOptions& o) {
         return kExitFailure;
     }
     backtest::write_stream(o.out, contents.messages, form);
-    std::cout << fmt::format(
-        "{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
-        form == backtest::StreamForm::frames ? "size-prefixed frames" : "JSON lines",
-        contents.bad_records ? fmt::format(" ({} bad record(s) left out; first: {})",
-                                           contents.bad_records, contents.first_problem)
-                             : "");
+    std::cout << fmt::format("{} messages written to {} as {}{}\n", contents.messages.size(), o.out,
+                             form == backtest::StreamForm::frames    ? "size-prefixed frames"
+                             : form == backtest::StreamForm::journal ? "a journal folder"
+                                                                     : "JSON lines",
+                             contents.bad_records
+                                 ? fmt::format(" ({} bad record(s) left out; first: {})",
+                                               contents.bad_records, contents.first_problem)
+                                 : "");
     return kExitOk;
 }
 
 const Registration registration{{
     "convert",
-    "convert a recorded stream or journal between size-prefixed frames and JSON lines",
+    "convert a recorded stream or journal between size-prefixed frames, JSON lines and a journal "
+    "folder",
     [](CLI::App& sub) -> std::function<int()> {
         auto o = std::make_shared<ConvertOptions>();
-        sub.add_option("input", o->in, "stream or journal file (either form)")
+        sub.add_option("input", o->in, "stream file (either form), journal folder or segment")
             ->required()
-            ->check(CLI::ExistingFile);
-        sub.add_option("--out", o->out, "file to write")->required();
-        sub.add_option("--form", o->form, "form to write: frames or json")->required();
+            ->check(CLI::ExistingPath);
+        sub.add_option("--out", o->out, "file to write (a new folder for journal)")->required();
+        sub.add_option("--form", o->form, "form to write: frames, json or journal")->required();
         sub.add_flag("--skip-bad", o->skip_bad,
                      "leave damaged records out (counted) instead of stopping");
         return [o] { return run_convert(*o); };

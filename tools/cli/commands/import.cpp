@@ -85,7 +85,9 @@ int run_import(const ImportOptions& o) {
         throw UsageError(e.what());
     }
     const auto from = date_option(o.from, "--from"), to = date_option(o.to, "--to");
-    const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
+    const char* ext = form == backtest::StreamForm::frames    ? "stream"
+                      : form == backtest::StreamForm::journal ? "journal"
+                                                              : "jsonl";
     using Clock = std::chrono::steady_clock;
     auto since = [](Clock::time_point t) {
         return std::chrono::duration<double>(Clock::now() - t).count();

@@ -41,7 +41,9 @@ const Registration registration{{
             const std::filesystem::path dir(o->out_dir);
             std::filesystem::create_directories(dir / "league");
             std::filesystem::create_directories(dir / "cup");
-            const char* ext = form == backtest::StreamForm::frames ? "stream" : "jsonl";
+            const char* ext = form == backtest::StreamForm::frames    ? "stream"
+                              : form == backtest::StreamForm::journal ? "journal"
+                                                                      : "jsonl";
             for (const auto& match : season.league) {
                 backtest::write_stream(
                     dir / "league" /

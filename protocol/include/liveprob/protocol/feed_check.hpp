@@ -1,5 +1,5 @@
-// Checks a whole feed (JSON lines or a size-prefixed binary stream, told apart by content)
-// and reports every bad line or frame. Backs `liveprob check-feed`.
+// Checks a whole feed (JSON lines, a size-prefixed binary stream or a journal segment, told
+// apart by content) and reports every bad line, frame or record. Backs `liveprob check-feed`.
 #pragma once
 
 #include <cstdint>
@@ -12,7 +12,7 @@ namespace liveprob::protocol {
 
 class FeedMapping;
 
-enum class FeedForm : std::uint8_t { json_lines, frame_stream };
+enum class FeedForm : std::uint8_t { json_lines, frame_stream, journal };
 const char* feed_form_name(FeedForm form) noexcept;
 
 struct FeedCheckSummary {

@@ -36,9 +36,10 @@ struct ServiceConfig {
     std::uint32_t tick_interval_ms = 1000;      // republish every live match this often
     std::uint32_t counters_interval_ms = 5000;  // counters topic and log line
 
-    std::string journal_path;  // empty: no journal (and no recovery)
+    std::string journal_path;  // a folder of segments; empty: no journal (and no recovery)
     files::JournalSync journal_sync = files::JournalSync::interval;
     std::uint32_t journal_sync_interval_ms = 200;
+    std::uint32_t journal_segment_kib = 64 * 1024;  // segments rotate at this size
 
     // Back-pressure: messages queued per subscriber before ZeroMQ drops for that subscriber,
     // and inbound messages queued before feeds block (PUSH) on the ingest socket.

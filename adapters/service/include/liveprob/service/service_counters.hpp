@@ -26,9 +26,11 @@ struct ServiceCounters {
     std::uint64_t ticks_published = 0;    // timer republications
     std::uint64_t snapshot_requests = 0;
     std::uint64_t snapshot_bad_requests = 0;
-    std::uint64_t journal_frames = 0;      // appended this run
-    std::uint64_t journal_replayed = 0;    // replayed at start
-    std::uint64_t journal_torn_bytes = 0;  // cut from the tail at start
+    std::uint64_t journal_frames = 0;           // appended this run
+    std::uint64_t journal_replayed = 0;         // replayed at start
+    std::uint64_t journal_torn_bytes = 0;       // cut from the tail at start
+    std::uint64_t journal_damaged_records = 0;  // damaged regions skipped at start (kept)
+    std::uint64_t journal_damaged_bytes = 0;    // their bytes
     std::uint64_t journal_write_failed =
         0;  // not journalled (disk full, I/O error), so not applied
     std::uint64_t curve_refused = 0;

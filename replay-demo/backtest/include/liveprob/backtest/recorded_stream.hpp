@@ -1,5 +1,7 @@
-// Recorded streams on disk: the journal's size-prefixed frames, or the JSON-lines form (told
-// apart by content). Reading never stops at a bad record: it is counted, described, skipped.
+// Recorded streams on disk: size-prefixed frames, the JSON-lines form (told apart by content),
+// or a journal (a folder of checksummed segments, or one segment file;
+// protocol/journal_format.hpp). Reading never stops at a bad record: it is counted, described,
+// skipped.
 #pragma once
 
 #include <cstdint>
@@ -11,7 +13,7 @@
 
 namespace liveprob::backtest {
 
-enum class StreamForm : std::uint8_t { frames, json_lines };
+enum class StreamForm : std::uint8_t { frames, json_lines, journal };
 
 struct StreamContents {
     std::vector<core::InboundMessage> messages;  // valid ones, in file order
@@ -21,11 +23,13 @@ struct StreamContents {
 
 StreamContents read_stream(const std::filesystem::path& path);
 
-// Writes atomically enough for the tools: the whole file in one go.
+// Writes atomically enough for the tools: the whole file in one go. `journal` writes a new
+// folder (refused when `path` exists) holding one segment.
 void write_stream(const std::filesystem::path& path,
                   const std::vector<core::InboundMessage>& messages, StreamForm form);
 
-// "frames" (also "binary") or "json" (also "jsonl"); throws std::invalid_argument otherwise.
+// "frames" (also "binary"), "json" (also "jsonl") or "journal"; throws std::invalid_argument
+// otherwise.
 StreamForm parse_stream_form(const std::string& text);
 
 }  // namespace liveprob::backtest
