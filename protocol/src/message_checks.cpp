@@ -1,5 +1,6 @@
 #include "liveprob/protocol/message_checks.hpp"
 #include "liveprob/core/overloaded.hpp"
+#include "liveprob/core/validate.hpp"
 
 #include <fmt/format.h>
 #include <cmath>
@@ -42,25 +43,10 @@ Problem check_name(const std::string& value, const std::string& field) {
     return std::nullopt;
 }
 
-Problem check_prior_goals(double value, const std::string& field) {
-    if (!std::isfinite(value)) return bad(field, fmt::format("must be finite, got {}", value));
-    if (value <= 0.0 || value > kMaxPriorGoals) {
-        return bad(field, fmt::format("must be in (0, {}], got {}", kMaxPriorGoals, value));
-    }
-    return std::nullopt;
-}
-
-Problem check_format(const core::CompetitionFormat& format) {
-    if (format.half_minutes == 0 || format.half_minutes > kMaxHalfMinutes) {
-        return bad("half_minutes",
-                   fmt::format("must be 1..{}, got {}", kMaxHalfMinutes, format.half_minutes));
-    }
-    if (format.extra_time &&
-        (format.extra_half_minutes == 0 || format.extra_half_minutes > kMaxHalfMinutes)) {
-        return bad("extra_half_minutes", fmt::format("must be 1..{}, got {}", kMaxHalfMinutes,
-                                                     format.extra_half_minutes));
-    }
-    return std::nullopt;
+// The engine's own limits (core/validate.hpp), so a setup this accepts the engine accepts.
+Problem engine_problem(const std::optional<core::InputProblem>& problem) {
+    if (!problem) return std::nullopt;
+    return bad(problem->field, problem->reason);
 }
 
 Problem check_setup(const core::MatchSetup& setup) {
@@ -72,15 +58,11 @@ Problem check_setup(const core::MatchSetup& setup) {
     if (setup.prior && setup.ratings) {
         return bad("ratings", "give 'prior' or 'ratings', not both");
     }
-    if (setup.prior) {
-        if (auto p = check_prior_goals(setup.prior->home_goals, "prior.home")) return p;
-        if (auto p = check_prior_goals(setup.prior->away_goals, "prior.away")) return p;
-    }
     if (setup.ratings) {
         if (auto p = check_name(setup.ratings->home_key, "ratings.home")) return p;
         if (auto p = check_name(setup.ratings->away_key, "ratings.away")) return p;
     }
-    return check_format(setup.format);
+    return engine_problem(core::validate_setup(setup));
 }
 
 Problem check_body(const core::MessageBody& body) {

@@ -1,13 +1,15 @@
 // Fuzz the two configuration readers (service settings and model parameters): any text is
 // either read or refused with one line naming the file and the problem (ConfigError,
-// ParamsFileError) — never a crash, a hang or another kind of exception — and model parameters that
-// were read write back to a file that reads back to the same parameters.
+// ParamsFileError) — never a crash, a hang or another kind of exception — model parameters that
+// were read write back to a file that reads back to the same parameters, and whatever the loader
+// accepts the engine accepts (one set of limits: core/validate.hpp).
 #include <cstddef>
 #include <cstdint>
 #include <cstdlib>
 #include <stdexcept>
 #include <string>
 
+#include "liveprob/core/pricing.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/service/service_config.hpp"
 
@@ -41,6 +43,11 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
             liveprob::files::params_to_json(params), "again.json");
         if (liveprob::files::params_to_json(again) != liveprob::files::params_to_json(params))
             std::abort();
+        try {
+            const liveprob::core::PricingModel model(params);
+        } catch (const std::invalid_argument&) {
+            std::abort();  // the loader let through what the engine refuses
+        }
     } catch (const liveprob::files::ParamsFileError& e) {
         require_one_line(e);
         if (std::string(e.what()).find("fuzz.json") == std::string::npos) std::abort();

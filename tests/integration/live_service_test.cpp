@@ -479,3 +479,17 @@ TEST_CASE(
     CHECK(serve.process().wait(0ms) == std::nullopt);  // still running
     CHECK(serve.log().find("No space left on device") != std::string::npos);
 }
+
+TEST_CASE(
+    "serve refuses to start on a parameter file the engine would refuse and on an unknown "
+    "log level, saying why",
+    "[integration][serve][sockets]") {
+    const auto dir = scratch_dir("serve-refuses");
+    protocol::write_file_atomically(
+        dir / "params.json",
+        std::string(R"({"kind":"liveprob-model-params","version":1,"quadrature_nodes":20})"));
+    CHECK(refused_start(dir, "params", {"--params", (dir / "params.json").string()})
+              .find("quadrature_nodes': must be 1..16, got 20") != std::string::npos);
+    CHECK(refused_start(dir, "log", {"--log-level", "loud"})
+              .find("must be one of trace, debug, info, warn, error, off") != std::string::npos);
+}

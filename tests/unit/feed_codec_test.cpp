@@ -152,7 +152,7 @@ TEST_CASE("a setup needs exactly one prior source and sane format", "[feed_codec
     setup.prior = PriorMeans{-1.0, 1.0};
     m.body = setup;
     CHECK(decode(encode_feed_message(m)).detail ==
-          "bad_value: field 'prior.home': must be in (0, 15], got -1");
+          "bad_value: field 'prior.home': must be in (0, 10], got -1");
 
     setup.prior = PriorMeans{1.0, 1.0};
     setup.format.half_minutes = 0;

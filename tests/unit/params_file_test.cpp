@@ -81,9 +81,8 @@ TEST_CASE("bad parameter files are errors naming the key and the reason") {
     CHECK_THAT(error_of(head + R"("colour":"red"})"), Catch::Contains("'colour': unknown key"));
     CHECK_THAT(error_of(head + R"("col\nour":"red"})"),
                Catch::Contains(R"('col\nour': unknown key)"));
-    CHECK_THAT(
-        error_of(head + R"("shootout":{"conversion":1.5}})"),
-        Catch::Contains("shootout.conversion") && Catch::Contains("outside the allowed range"));
+    CHECK_THAT(error_of(head + R"("shootout":{"conversion":1.5}})"),
+               Catch::Contains("shootout.conversion") && Catch::Contains("must be in (0, 1)"));
     CHECK_THAT(error_of(head + R"("kappa":"lots"})"), Catch::Contains("'kappa'"));
     CHECK_THAT(error_of(head + R"("kappa":-1})"), Catch::Contains("'kappa'"));
     CHECK_THAT(error_of(head + R"("red_cards":{"max_cards":1.5}})"),

@@ -6,6 +6,8 @@
 #include <fmt/format.h>
 #include <simdjson.h>
 
+#include "liveprob/core/validate.hpp"
+
 #include <cmath>
 #include <limits>
 #include <string_view>
@@ -17,45 +19,45 @@ namespace {
 constexpr std::string_view kKind = "liveprob-model-params";
 constexpr int kVersion = 1;
 
-// One number in the file: its section ("" for the top level), its key, where it lives in
-// ModelParams and the range it must lie in.
+// One number in the file: its section ("" for the top level), its key and where it lives in
+// ModelParams. The range each must lie in is the engine's (core::validate_params), checked once
+// the whole file is read, so a file this accepts the engine accepts.
 struct NumberField {
     std::string_view section;
     std::string_view key;
     double& (*ref)(core::ModelParams&);
-    double min;
-    double max;
 };
 
-constexpr double kBig = 1e6;
+// Whole numbers are read within this before the engine's own limits apply.
+constexpr int kWholeNumberBound = 1'000'000;
 
 // clang-format off (it cannot tell the braces of a macro body)
-#define LIVEPROB_FIELD(section, member, lo, hi)                                            \
-    NumberField {                                                                          \
-        section, #member, [](core::ModelParams& p) -> double& { return p.member; }, lo, hi \
+#define LIVEPROB_FIELD(section, member)                                            \
+    NumberField {                                                                  \
+        section, #member, [](core::ModelParams& p) -> double& { return p.member; } \
     }
 // clang-format on
 
 // The file's keys are the member names of ModelParams, so the two cannot drift apart.
 const std::vector<NumberField>& number_fields() {
     static const std::vector<NumberField> fields = {
-        LIVEPROB_FIELD("timing", timing.first_half_start, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.first_half_end, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.second_half_start, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.second_half_end, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.stoppage_factor, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.expected_stoppage_first, 0.0, 45.0),
-        LIVEPROB_FIELD("timing", timing.expected_stoppage_second, 0.0, 45.0),
-        LIVEPROB_FIELD("timing", timing.extra_time_factor, 0.0, kBig),
-        LIVEPROB_FIELD("timing", timing.expected_stoppage_extra, 0.0, 15.0),
-        LIVEPROB_FIELD("score_state", score_state.leading, 0.0, kBig),
-        LIVEPROB_FIELD("score_state", score_state.level, 0.0, kBig),
-        LIVEPROB_FIELD("score_state", score_state.trailing, 0.0, kBig),
-        LIVEPROB_FIELD("red_cards", red_cards.own_per_card, 0.0, kBig),
-        LIVEPROB_FIELD("red_cards", red_cards.opponent_per_card, 0.0, kBig),
-        LIVEPROB_FIELD("shootout", shootout.conversion, 0.0, 1.0),
-        LIVEPROB_FIELD("shootout", shootout.first_kicker_edge, -1.0, 1.0),
-        LIVEPROB_FIELD("", xg_weight, 0.0, kBig),
+        LIVEPROB_FIELD("timing", timing.first_half_start),
+        LIVEPROB_FIELD("timing", timing.first_half_end),
+        LIVEPROB_FIELD("timing", timing.second_half_start),
+        LIVEPROB_FIELD("timing", timing.second_half_end),
+        LIVEPROB_FIELD("timing", timing.stoppage_factor),
+        LIVEPROB_FIELD("timing", timing.expected_stoppage_first),
+        LIVEPROB_FIELD("timing", timing.expected_stoppage_second),
+        LIVEPROB_FIELD("timing", timing.extra_time_factor),
+        LIVEPROB_FIELD("timing", timing.expected_stoppage_extra),
+        LIVEPROB_FIELD("score_state", score_state.leading),
+        LIVEPROB_FIELD("score_state", score_state.level),
+        LIVEPROB_FIELD("score_state", score_state.trailing),
+        LIVEPROB_FIELD("red_cards", red_cards.own_per_card),
+        LIVEPROB_FIELD("red_cards", red_cards.opponent_per_card),
+        LIVEPROB_FIELD("shootout", shootout.conversion),
+        LIVEPROB_FIELD("shootout", shootout.first_kicker_edge),
+        LIVEPROB_FIELD("", xg_weight),
     };
     return fields;
 }
@@ -81,15 +83,15 @@ public:
         throw ParamsFileError(fmt::format("{}: key '{}': {}", origin_, key, reason));
     }
 
-    double number(simdjson::dom::element v, const std::string& key, double lo, double hi) const {
+    double number(simdjson::dom::element v, const std::string& key) const {
         double x = 0.0;
         if (v.get_double().get(x) != simdjson::SUCCESS) fail(key, "expected a number");
-        if (!std::isfinite(x) || x < lo || x > hi)
-            fail(key, fmt::format("{} is outside the allowed range [{}, {}]", x, lo, hi));
+        if (!std::isfinite(x)) fail(key, fmt::format("must be finite, got {}", x));
         return x;
     }
 
-    int integer(simdjson::dom::element v, const std::string& key, int lo, int hi) const {
+    int integer(simdjson::dom::element v, const std::string& key, int lo = -kWholeNumberBound,
+                int hi = kWholeNumberBound) const {
         int64_t x = 0;
         if (v.get_int64().get(x) != simdjson::SUCCESS) fail(key, "expected a whole number");
         if (x < lo || x > hi)
@@ -107,12 +109,12 @@ public:
         for (auto [raw_key, value] : object(v, std::string(name))) {
             const std::string key = dotted(name, raw_key);
             if (name == "red_cards" && raw_key == "max_cards") {
-                p.red_cards.max_cards = integer(value, key, 0, 11);
+                p.red_cards.max_cards = integer(value, key);
                 continue;
             }
             const NumberField* field = find(name, raw_key);
             if (!field) fail(key, "unknown key");
-            number_in(p, *field) = number(value, key, field->min, field->max);
+            number_in(p, *field) = number(value, key);
         }
     }
 
@@ -124,7 +126,7 @@ public:
                 std::string_view s;
                 if (value.get_string().get(s) != simdjson::SUCCESS) fail(key, "expected a string");
             } else {
-                number(value, key, 0.0, std::numeric_limits<double>::max());
+                if (number(value, key) < 0.0) fail(key, "a standard error must not be negative");
             }
         }
     }
@@ -170,19 +172,20 @@ core::ModelParams parse_params_json(const std::string& text, const std::string& 
                 if (s != "infinity") reader.fail(key, "expected a positive number or \"infinity\"");
                 p.kappa = std::numeric_limits<double>::infinity();
             } else {
-                p.kappa = reader.number(value, key, 1e-9, 1e12);
+                p.kappa = reader.number(value, key);
             }
         } else if (key == "quadrature_nodes") {
-            p.quadrature_nodes = reader.integer(value, key, 1, 64);
+            p.quadrature_nodes = reader.integer(value, key);
         } else if (key == "notes" || key == "standard_errors") {
             reader.notes(value, key == "notes");
         } else if (const NumberField* f = Reader::find("", raw_key)) {
-            number_in(p, *f) = reader.number(value, key, f->min, f->max);
+            number_in(p, *f) = reader.number(value, key);
         } else {
             reader.fail(key, "unknown key");
         }
     }
     if (!saw_kind) reader.fail("kind", fmt::format("missing; expected \"{}\"", kKind));
+    if (const auto problem = core::validate_params(p)) reader.fail(problem->field, problem->reason);
     return p;
 }
 

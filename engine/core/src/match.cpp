@@ -7,38 +7,28 @@
 #include <string>
 
 #include "liveprob/core/intensity.hpp"
+#include "liveprob/core/validate.hpp"
 
 namespace liveprob::core {
 
 namespace {
 
 constexpr std::size_t kReservedLog = 16;  // grows (geometrically) past the first messages
-constexpr double kMaxPriorGoals = 10.0;   // the pricing model's own bound
 
 const PriorMeans& checked_prior(const MatchSetup& setup) {
     if (!setup.prior) {
         throw std::invalid_argument(
             "match setup has no expected goals (resolve ratings to a prior first)");
     }
-    const PriorMeans& p = *setup.prior;
-    for (double v : {p.home_goals, p.away_goals}) {
-        if (!std::isfinite(v) || v <= 0.0 || v > kMaxPriorGoals) {
-            throw std::invalid_argument(
-                "match setup prior must be expected goals in (0, 10], got " + std::to_string(v));
-        }
-    }
-    return p;
+    if (const auto problem = validate_prior(*setup.prior))
+        throw std::invalid_argument("match setup " + problem->describe());
+    return *setup.prior;
 }
 
 const CompetitionFormat& checked_format(const MatchSetup& setup) {
-    const CompetitionFormat& f = setup.format;
-    if (f.half_minutes == 0 || f.half_minutes > 60) {
-        throw std::invalid_argument("match setup half_minutes must be 1..60");
-    }
-    if (f.extra_time && (f.extra_half_minutes == 0 || f.extra_half_minutes > 30)) {
-        throw std::invalid_argument("match setup extra_half_minutes must be 1..30");
-    }
-    return f;
+    if (const auto problem = validate_format(setup.format))
+        throw std::invalid_argument("match setup " + problem->describe());
+    return setup.format;
 }
 
 }  // namespace

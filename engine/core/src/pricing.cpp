@@ -26,6 +26,7 @@
 #include "liveprob/core/score_chain.hpp"
 #include "liveprob/core/shootout.hpp"
 #include "liveprob/core/timing.hpp"
+#include "liveprob/core/validate.hpp"
 
 namespace liveprob::core {
 namespace {
@@ -33,7 +34,6 @@ namespace {
 // Longest goal-count distribution kept for the closed forms; the mass beyond it is far below
 // 1e-15 for prior means up to kMaxPriorGoals.
 constexpr int kPmfLength = 96;
-constexpr double kMaxPriorGoals = 10.0;
 
 using Pmf = std::array<double, kPmfLength>;
 
@@ -398,16 +398,9 @@ struct PricingModel::Workspace {
 };
 
 PricingModel::PricingModel(const ModelParams& params) : ws_(std::make_unique<Workspace>()) {
-    require(params.quadrature_nodes >= 1 && params.quadrature_nodes <= kMaxQuadratureNodes,
-            "model parameters: quadrature_nodes must be between 1 and 16");
-    require(params.kappa > 0.0, "model parameters: kappa must be positive (or infinite)");
-    require(params.xg_weight >= 0.0, "model parameters: xg_weight must be non-negative");
-    const ScoreStateEffects& s = params.score_state;
-    require(s.leading > 0 && s.level > 0 && s.trailing > 0,
-            "model parameters: score-state multipliers must be positive");
-    require(params.red_cards.own_per_card > 0 && params.red_cards.opponent_per_card > 0 &&
-                params.red_cards.max_cards >= 0,
-            "model parameters: red-card multipliers must be positive, max_cards non-negative");
+    // The one set of limits every reader of parameters applies (validate.hpp).
+    if (const auto problem = validate_params(params))
+        throw std::invalid_argument("model parameters: " + problem->describe());
     ws_->params = params;
     ws_->shootout_before_toss = shootout_home_win_before_toss(params.shootout);  // validates
     TimingCurve check(params.timing, CompetitionFormat{});  // validates the timing profile

@@ -13,6 +13,7 @@
 
 #include "command_registry.hpp"
 #include "liveprob/core/position.hpp"
+#include "liveprob/core/validate.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/protocol/json_writer.hpp"
 
@@ -64,9 +65,9 @@ lp::core::PriorMeans parse_prior(const std::string& text) {
     if (text.empty()) throw UsageError("--prior is required (expected regulation goals H,A)");
     const auto [h, a] = split_pair(text, ',', "--prior", "H,A (expected regulation goals)");
     const lp::core::PriorMeans prior{parse_number(h, "--prior"), parse_number(a, "--prior")};
-    for (double v : {prior.home_goals, prior.away_goals}) {
-        if (v <= 0.0 || v > 10.0) throw UsageError("--prior: expected goals must be in (0, 10]");
-    }
+    // The engine's own limits, so anything accepted here prices.
+    if (const auto problem = lp::core::validate_prior(prior))
+        throw UsageError("--prior: " + problem->describe());
     return prior;
 }
 

@@ -14,11 +14,11 @@
 namespace liveprob::protocol {
 
 // Limits beyond which a value is taken as a feed fault rather than football. They are bounds
-// of plausibility, not of the rules of the game (common practice: reject, do not clamp).
+// of plausibility, not of the rules of the game (common practice: reject, do not clamp). A
+// setup's prior and format are checked by the engine's own validate_setup
+// (core/validate.hpp), so the wire never passes a setup the engine would refuse.
 inline constexpr std::uint32_t kMaxClockMs = 180u * 60u * 1000u;  // 180 minutes of match clock
-inline constexpr std::uint16_t kMaxHalfMinutes = 60;
 inline constexpr std::uint16_t kMaxStoppageMinutes = 30;
-inline constexpr double kMaxPriorGoals = 15.0;     // expected regulation goals of one side
 inline constexpr std::size_t kMaxNameBytes = 200;  // team names, rating keys
 inline constexpr std::size_t kMaxReasonBytes = 500;
 

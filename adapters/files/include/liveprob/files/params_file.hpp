@@ -15,7 +15,9 @@
 //
 // "notes" and "standard_errors" are documentation for people; the loader checks their types
 // and otherwise ignores them. Any other key is an error, as is a value of the wrong type or
-// outside its range: the message names the key ("timing.second_half_end") and the reason.
+// outside the engine's limits (core::validate_params, checked once the file is read, so what
+// this accepts the engine accepts): the message names the key ("timing.second_half_end") and
+// the reason.
 #pragma once
 
 #include <map>
