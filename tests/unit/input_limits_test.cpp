@@ -64,7 +64,7 @@ bool check_feed_accepts(const MatchSetup& setup) {
 
 bool capi_accepts(const MatchSetup& setup) {
     liveprob_setup c;
-    liveprob_setup_init(&c);
+    liveprob_setup_init(&c, sizeof c);
     c.match_id = 1;
     c.home_goals = setup.prior->home_goals;
     c.away_goals = setup.prior->away_goals;
@@ -73,7 +73,7 @@ bool capi_accepts(const MatchSetup& setup) {
     liveprob_match* match = nullptr;
     const liveprob_status status = liveprob_match_create(&c, nullptr, &match);
     liveprob_match_destroy(match);
-    return status == LIVEPROB_OK;
+    return status == LIVEPROB_STATUS_OK;
 }
 
 bool params_file_accepts(const std::string& members) {
