@@ -61,6 +61,6 @@ liveprob_layer(clients    FOLDER adapters/clients     USES transport system prot
 liveprob_layer(gateway    FOLDER adapters/gateway     USES transport system protocol core                PRIVATE_LINKS zmq asio beast simdjson fmt spdlog)
 liveprob_layer(scoring    FOLDER replay-demo/scoring)
 liveprob_layer(backtest   FOLDER replay-demo/backtest USES scoring protocol fit core                     PRIVATE_LINKS fmt threads)
-liveprob_layer(report     FOLDER replay-demo/report   USES backtest scoring protocol                     PRIVATE_LINKS fmt)
+liveprob_layer(report     FOLDER replay-demo/report   USES backtest scoring protocol fit                 PRIVATE_LINKS fmt)
 liveprob_layer(demo       FOLDER replay-demo/demo     USES core)
 liveprob_layer(live       FOLDER replay-demo/live     USES clients backtest scoring protocol core        PRIVATE_LINKS zmq fmt threads)

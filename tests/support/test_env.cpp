@@ -25,6 +25,13 @@ std::filesystem::path liveprob_binary() { return LIVEPROB_BINARY_PATH; }
 
 std::string system_python() { return "/usr/bin/python3"; }
 
+CommandResult python_sha256(const std::string& paths) {
+    return run_command(system_python() +
+                       " -c 'import hashlib,sys\nfor p in sys.argv[1:]: "
+                       "print(hashlib.sha256(open(p,\"rb\").read()).hexdigest())' " +
+                       paths);
+}
+
 CommandResult run_command(const std::string& command) {
     CommandResult result;
     FILE* pipe = ::popen(command.c_str(), "r");

@@ -41,6 +41,10 @@ struct CommandResult {
 // Runs `command` through /bin/sh, capturing standard output (standard error passes through).
 CommandResult run_command(const std::string& command);
 
+// Each file's SHA-256 as Python's hashlib computes it, one lower-case hex line per file
+// (`paths`: space-separated); the exit code is the interpreter's.
+CommandResult python_sha256(const std::string& paths);
+
 // A fresh, empty directory for one test (under the build tree's temporary folder).
 std::filesystem::path scratch_dir(const std::string& name);
 

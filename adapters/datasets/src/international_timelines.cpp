@@ -7,6 +7,7 @@
 #include <stdexcept>
 #include <tuple>
 
+#include "csv_reader.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/files/csv_line.hpp"
 #include "liveprob/fit/calendar.hpp"
@@ -16,6 +17,7 @@
 namespace liveprob::datasets {
 namespace {
 
+using detail::CsvReader;
 using MatchKey = std::tuple<int, std::string, std::string>;  // day, home, away
 
 std::optional<int> whole_number(std::string_view s) {
@@ -26,46 +28,6 @@ std::optional<int> whole_number(std::string_view s) {
 }
 
 bool true_flag(std::string_view s) { return s == "TRUE" || s == "True" || s == "true" || s == "1"; }
-
-// Reads a CSV file with a header row; `row` gets the line number and a field lookup by column.
-class CsvReader {
-public:
-    CsvReader(const std::string& path, const std::string& what, std::vector<std::string> columns)
-        : path_(path), text_(protocol::read_whole_file(path, what)), names_(std::move(columns)) {}
-
-    template <typename Row>
-    void for_each_row(Row&& row) {
-        files::for_each_text_line(text_, [&](int line, std::string_view view) {
-            std::vector<std::string> fields;
-            try {
-                fields = files::split_csv_line(view);
-            } catch (const std::exception& e) {
-                throw std::runtime_error(fmt::format("{}:{}: {}", path_, line, e.what()));
-            }
-            if (line == 1) {
-                for (const auto& name : names_) {
-                    const int c = files::column_index(fields, name);
-                    if (c < 0)
-                        throw std::runtime_error(
-                            fmt::format("{}: header lacks the column '{}'", path_, name));
-                    index_.push_back(static_cast<std::size_t>(c));
-                }
-                return;
-            }
-            auto field = [&](std::size_t column) -> std::string_view {
-                const std::size_t c = index_.at(column);
-                return c < fields.size() ? std::string_view(fields[c]) : std::string_view{};
-            };
-            row(line, field);
-        });
-    }
-
-private:
-    std::string path_;
-    std::string text_;
-    std::vector<std::string> names_;
-    std::vector<std::size_t> index_;
-};
 
 struct GoalRecords {
     std::vector<TimelineGoal> goals;

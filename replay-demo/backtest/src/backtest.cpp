@@ -68,15 +68,20 @@ void add_up(BacktestResult& total, const MatchReplay& replay, std::size_t timeli
 
 std::vector<MatchReplay> replay_matches(const std::vector<MatchMessages>& matches,
                                         const BacktestOptions& options) {
-    const core::ModelParams baseline = uniform_timing_no_state(options.params);
+    const auto params = ForecasterParams::derived_from(options.params);
     std::vector<MatchReplay> replays(matches.size());
     std::atomic<std::size_t> next{0}, done{0};
     // Timelines for the first matches only (a few more than wanted, in case some are not scored).
     const std::size_t timeline_matches = options.timelines ? options.timelines * 2 : 0;
     auto work = [&] {
         for (std::size_t i = next.fetch_add(1); i < matches.size(); i = next.fetch_add(1)) {
-            replays[i] = replay_match(matches[i], options.params, baseline,
-                                      {i < timeline_matches, options.every_event});
+            const ReferenceMeans* elo = nullptr;
+            if (options.elo && !matches[i].empty()) {
+                const auto it = options.elo->find(matches[i].front().header.match_id);
+                if (it != options.elo->end()) elo = &it->second;
+            }
+            replays[i] =
+                replay_match(matches[i], params, {i < timeline_matches, options.every_event, elo});
             done.fetch_add(1, std::memory_order_relaxed);
         }
     };

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <exception>
 #include <optional>
+#include <vector>
 
 #include "liveprob/core/match.hpp"
 
@@ -14,6 +15,8 @@ const char* forecaster_name(Forecaster f) noexcept {
         case Forecaster::model: return "model";
         case Forecaster::fixed_prior: return "fixed_prior";
         case Forecaster::uniform_timing_no_state: return "uniform_timing_no_state";
+        case Forecaster::independent_poisson: return "independent_poisson";
+        case Forecaster::elo_reference: return "elo_reference";
     }
     return "unknown";
 }
@@ -27,6 +30,46 @@ core::ModelParams uniform_timing_no_state(const core::ModelParams& params) {
     flat.score_state = {1.0, 1.0, 1.0};
     flat.red_cards = {1.0, 1.0, 0};
     return flat;
+}
+
+core::ModelParams independent_poisson(const core::ModelParams& params) {
+    const core::ModelParams plain = core::ModelParams::plain_poisson();
+    core::ModelParams out = params;
+    out.score_state = plain.score_state;
+    out.red_cards = plain.red_cards;
+    out.kappa = plain.kappa;
+    return out;
+}
+
+ForecasterParams ForecasterParams::derived_from(const core::ModelParams& model) {
+    return {model, uniform_timing_no_state(model), independent_poisson(model)};
+}
+
+scoring::Forecast independent_poisson_outcome(const std::array<int, 2>& score, double home_mean,
+                                              double away_mean) {
+    // Poisson probabilities up to the count where the tail is below 1e-16 of the mass; the
+    // outcome sums the product over the grid (means here are a few goals at most).
+    auto pmf = [](double mean) {
+        std::vector<double> p{std::exp(-mean)};
+        double tail = 1.0 - p.back();
+        for (int k = 1; tail > 1e-16 && k < 200; ++k) {
+            p.push_back(p.back() * mean / k);
+            tail -= p.back();
+        }
+        return p;
+    };
+    const auto home = pmf(std::max(0.0, home_mean)), away = pmf(std::max(0.0, away_mean));
+    scoring::Forecast f{0.0, 0.0, 0.0};
+    const int lead = score[0] - score[1];
+    for (std::size_t h = 0; h < home.size(); ++h) {
+        for (std::size_t a = 0; a < away.size(); ++a) {
+            const long diff = lead + static_cast<long>(h) - static_cast<long>(a);
+            f[diff > 0 ? 0 : diff == 0 ? 1 : 2] += home[h] * away[a];
+        }
+    }
+    const double sum = f[0] + f[1] + f[2];
+    for (auto& p : f) p /= sum;
+    return f;
 }
 
 namespace {
@@ -73,8 +116,7 @@ bool bucket_passed(const core::MatchClock& bucket, const core::MatchClock& messa
 }
 
 MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
-                         const core::ModelParams& params, const core::ModelParams& baseline_params,
-                         ReplayChoices choices) {
+                         const ForecasterParams& params, ReplayChoices choices) {
     MatchReplay out;
     if (messages.empty() || !std::holds_alternative<core::MatchSetup>(messages.front().body)) {
         out.problem = "no match setup before the feed";
@@ -83,10 +125,14 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
     }
     out.match_id = messages.front().header.match_id;
     const auto& setup = std::get<core::MatchSetup>(messages.front().body);
-    std::optional<core::Match> model, baseline;
+    out.scheduled_kickoff_us = setup.scheduled_kickoff_us;
+    out.home_name = setup.home_name;
+    out.away_name = setup.away_name;
+    std::optional<core::Match> model, baseline, independent;
     try {
-        model.emplace(out.match_id, setup, params);
-        baseline.emplace(out.match_id, setup, baseline_params);
+        model.emplace(out.match_id, setup, params.model);
+        baseline.emplace(out.match_id, setup, params.flat);
+        independent.emplace(out.match_id, setup, params.independent);
     } catch (const std::exception& e) {
         out.problem = e.what();
         return out;
@@ -104,6 +150,15 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
         slot[static_cast<std::size_t>(Forecaster::model)] = forecast_of(evaluate());
         slot[static_cast<std::size_t>(Forecaster::uniform_timing_no_state)] =
             forecast_of(baseline->outputs());
+        slot[static_cast<std::size_t>(Forecaster::independent_poisson)] =
+            forecast_of(independent->outputs());
+        out.score_at_bucket[static_cast<std::size_t>(bucket)] = model->state().regulation_goals;
+        if (choices.elo) {
+            const auto& e = *choices.elo;
+            const double share = e.remaining_share[static_cast<std::size_t>(bucket)];
+            slot[static_cast<std::size_t>(Forecaster::elo_reference)] = independent_poisson_outcome(
+                model->state().regulation_goals, e.home_goals * share, e.away_goals * share);
+        }
     };
     // Kick-off: the pre-match forecast, which the fixed-prior baseline keeps for every bucket.
     record_bucket(0);
@@ -130,6 +185,7 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
             // subscriber would have seen at that minute.
             if (!(model->priced_clock() == at)) (void)model->advance_to(at);
             if (!(baseline->priced_clock() == at)) (void)baseline->advance_to(at);
+            if (!(independent->priced_clock() == at)) (void)independent->advance_to(at);
             record_bucket(next_bucket++);
             if (out.timeline)
                 out.timeline->points.push_back(
@@ -137,6 +193,7 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
         }
         const auto verdict = model->apply(m).verdict;
         (void)baseline->apply(m);  // the same stream: its verdict is the model's
+        (void)independent->apply(m);
         ++out.messages;
         if (verdict == core::Verdict::rejected) ++out.rejected;
         if (verdict == core::Verdict::duplicate) ++out.duplicates;

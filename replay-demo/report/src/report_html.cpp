@@ -5,7 +5,9 @@
 #include <algorithm>
 #include <string_view>
 
+#include "html_text.hpp"
 #include "liveprob/protocol/whole_file.hpp"
+#include "liveprob/report/comparison_report.hpp"
 #include "liveprob/report/report_json.hpp"
 
 namespace liveprob::report {
@@ -14,31 +16,18 @@ namespace {
 
 // The report's own plain palette: one colour per forecaster and per outcome.
 constexpr std::array<std::string_view, backtest::kForecasters> kForecasterColour{
-    "#1f5fa8", "#9a9a9a", "#d08a1e"};
+    "#1f5fa8", "#9a9a9a", "#d08a1e", "#3c8d4f", "#8a4fa8"};
 constexpr std::array<std::string_view, scoring::kOutcomes> kOutcomeColour{"#1f5fa8", "#7a7a7a",
                                                                           "#b8322a"};
 
-// The one HTML escape: text placed in the page's elements and attributes.
-std::string html_escape(std::string_view text) {
-    std::string out;
-    for (const char c : text) {
-        switch (c) {
-            case '<': out += "&lt;"; break;
-            case '>': out += "&gt;"; break;
-            case '&': out += "&amp;"; break;
-            case '"': out += "&quot;"; break;
-            default: out += c;
-        }
-    }
-    return out;
-}
-
 std::string score_table(const backtest::BacktestResult& r) {
     std::string out = "<table><tr><th>minute</th><th>n</th>";
+    auto present = [&](int f) { return r.at(0, static_cast<backtest::Forecaster>(f)).count() > 0; };
     for (const char* score : {"RPS", "Brier", "log loss"}) {
         for (int f = 0; f < backtest::kForecasters; ++f)
-            out += fmt::format("<th>{}<br><small>{}</small></th>", score,
-                               backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
+            if (present(f))
+                out += fmt::format("<th>{}<br><small>{}</small></th>", score,
+                                   backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
     }
     out += "<th>ECE<br><small>model</small></th></tr>\n";
     for (int b = 0; b < scoring::kBuckets; ++b) {
@@ -46,6 +35,7 @@ std::string score_table(const backtest::BacktestResult& r) {
                            r.at(b, backtest::Forecaster::model).count());
         for (int s = 0; s < 3; ++s) {
             for (int f = 0; f < backtest::kForecasters; ++f) {
+                if (!present(f)) continue;
                 const auto& acc = r.at(b, static_cast<backtest::Forecaster>(f));
                 const double v = s == 0   ? acc.mean_rps()
                                  : s == 1 ? acc.mean_brier()
@@ -83,6 +73,7 @@ std::string rps_chart(const backtest::BacktestResult& r) {
             "<text x=\"{}\" y=\"{:.1f}\" font-size=\"10\" text-anchor=\"end\">{:.3f}</text>",
             left - 4, y(high * t / 4) + 3, high * t / 4);
     for (int f = 0; f < backtest::kForecasters; ++f) {
+        if (r.at(0, static_cast<backtest::Forecaster>(f)).count() == 0) continue;
         std::string points;
         for (int b = 0; b < scoring::kBuckets; ++b)
             points += fmt::format("{:.1f},{:.1f} ", x(b),
@@ -91,7 +82,7 @@ std::string rps_chart(const backtest::BacktestResult& r) {
             fmt::format("<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"2\" points=\"{}\"/>",
                         kForecasterColour[static_cast<std::size_t>(f)], points);
         out += fmt::format("<text x=\"{}\" y=\"{}\" font-size=\"11\" fill=\"{}\">{}</text>",
-                           left + 10 + 190 * f, top + 12,
+                           left + 10 + 110 * f, top + 12,
                            kForecasterColour[static_cast<std::size_t>(f)],
                            backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
     }
@@ -177,13 +168,15 @@ std::string timeline_chart(const backtest::Timeline& t) {
 
 }  // namespace
 
-std::string report_html(const backtest::BacktestResult& r, const ReportHeading& heading) {
+std::string report_html(const backtest::BacktestResult& r, const ReportHeading& heading,
+                        const Comparison* comparison) {
     std::string out =
         "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>" +
         html_escape(heading.title) +
         "</title><style>body{font-family:sans-serif;margin:2em;color:#222;max-width:1100px}"
         "table{border-collapse:collapse;font-size:13px}td,th{border:1px solid #ccc;padding:3px "
-        "6px;text-align:right}"
+        "6px;text-align:right}.better{background:#e3f1e3}.worse{background:#f6e0de}.tied{color:#"
+        "555}"
         ".note{background:#f6f1e3;padding:8px;border-left:4px solid #d08a1e}.grid "
         "svg{margin:2px}</style></head><body>\n";
     out += "<h1>" + html_escape(heading.title) + "</h1>\n";
@@ -198,8 +191,14 @@ std::string report_html(const backtest::BacktestResult& r, const ReportHeading& 
     out +=
         "<h2>Scores by minute</h2><p>Lower is better. <b>fixed_prior</b>: the pre-match forecast "
         "held all match; <b>uniform_timing_no_state</b>: the engine with a flat goal-timing "
-        "profile and no score-state or red-card effects.</p>\n";
+        "profile and no score-state or red-card effects; <b>independent_poisson</b>: the same "
+        "priors and timing profile, no state effects, no strength update; "
+        "<b>elo_reference</b>: the naive Elo reference (walk-forward Elo ratings as commonly "
+        "published for national teams, Poisson means log-linear in the rating difference "
+        "fitted on the ten years before, independent Poisson over the remaining share of the "
+        "earlier goal-minute histogram), when the run was given its data.</p>\n";
     out += rps_chart(r) + score_table(r);
+    if (comparison) out += comparison_html(comparison->evaluation);
     out +=
         "<h2>Reliability of the model</h2><p>Observed frequency against forecast probability, ten "
         "bins; on the dashed line a forecast of p happens p of the time. Dot size grows with the "
@@ -218,14 +217,19 @@ std::string report_html(const backtest::BacktestResult& r, const ReportHeading& 
         "</div><h2>Match timelines</h2><p>Home win (blue), draw (grey), away win (red) against the "
         "clock; solid lines are goals, dashed red cards, grey a goal cancelled on review.</p>\n";
     for (const auto& t : r.timelines) out += timeline_chart(t);
+    if (comparison) out += matches_html(comparison->table, 40) + inputs_html(comparison->inputs);
     return out + "</body></html>\n";
 }
 
 void write_report(const std::filesystem::path& dir, const backtest::BacktestResult& result,
-                  const ReportHeading& heading) {
+                  const ReportHeading& heading, const Comparison* comparison) {
     std::filesystem::create_directories(dir);
-    protocol::write_file_atomically(dir / "report.json", report_json(result), "the JSON report");
-    protocol::write_file_atomically(dir / "index.html", report_html(result, heading),
+    if (comparison)
+        protocol::write_file_atomically(dir / "matches.csv", matches_csv(comparison->table),
+                                        "the per-match table");
+    protocol::write_file_atomically(dir / "report.json", report_json(result, comparison),
+                                    "the JSON report");
+    protocol::write_file_atomically(dir / "index.html", report_html(result, heading, comparison),
                                     "the HTML report");
 }
 

@@ -50,7 +50,7 @@ void write_scores(JsonWriter& json, const scoring::ScoreAccumulator& acc) {
 
 }  // namespace
 
-std::string report_json(const backtest::BacktestResult& r) {
+std::string report_json(const backtest::BacktestResult& r, const Comparison* comparison) {
     std::string out;
     // Compact, with a line per section and per bucket for a person skimming the file.
     JsonWriter json(out);
@@ -91,7 +91,14 @@ std::string report_json(const backtest::BacktestResult& r) {
         }
         json.end_object();
     }
-    json.line_break().end_array().end_object();
+    json.line_break().end_array();
+    if (comparison) {
+        json.line_break();
+        write_comparison_json(json, comparison->evaluation);
+        json.line_break();
+        write_inputs_json(json, comparison->inputs);
+    }
+    json.end_object();
     out.push_back('\n');
     return out;
 }

@@ -6,18 +6,27 @@
 #include <chrono>
 #include <filesystem>
 #include <iostream>
+#include <map>
 #include <memory>
+#include <optional>
 #include <thread>
+#include <tuple>
+#include <unordered_map>
 
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
 #include "command_registry.hpp"
 #include "liveprob/backtest/backtest.hpp"
+#include "liveprob/backtest/comparison.hpp"
+#include "liveprob/backtest/elo_reference.hpp"
+#include "liveprob/datasets/international_history.hpp"
 #include "liveprob/files/endpoints_file.hpp"
+#include "liveprob/files/file_fingerprint.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/live/live_replay.hpp"
 #include "liveprob/report/report_html.hpp"
+#include "liveprob/system/version.hpp"
 #include "progress_bar.hpp"
 
 namespace liveprob::cli {
@@ -31,6 +40,12 @@ struct ReplayOptions {
     std::size_t timelines = 12;
     bool every_event = false;
     bool quiet = false;
+    // the comparison (in process)
+    std::string elo_data;
+    std::vector<std::string> variants;  // NAME=[PARAMS][@STREAMS]
+    std::uint64_t seed = 20261202;
+    int resamples = 1000;
+    int calibration_draws = 200;
     // --live
     bool live = false;
     std::vector<std::string> ingest;
@@ -62,7 +77,7 @@ std::vector<std::filesystem::path> stream_files(const std::vector<std::string>& 
 
 struct LoadedStreams {
     std::vector<backtest::MatchMessages> matches;
-    std::size_t files = 0;
+    std::vector<std::filesystem::path> files;
     std::uint64_t bad_records = 0;
 };
 
@@ -80,7 +95,7 @@ LoadedStreams load_streams(const std::vector<std::string>& args) {
         all.insert(all.end(), std::make_move_iterator(contents.messages.begin()),
                    std::make_move_iterator(contents.messages.end()));
     }
-    out.files = files.size();
+    out.files = files;
     out.matches = backtest::group_by_match(all);
     return out;
 }
@@ -91,6 +106,45 @@ std::string endpoint_from_file(const std::string& path, const std::string& name)
     const auto it = endpoints.find(name);
     if (it == endpoints.end()) throw UsageError(fmt::format("{}: no {}= line", path, name));
     return it->second;
+}
+
+// The comparison: every forecaster's RPS, the model against each (relative difference, %, with
+// its interval), and the model's ECE beside a perfectly calibrated forecaster's mean and 95th
+// percentile at that n.
+void print_comparison(const backtest::Evaluation& e) {
+    std::string head = fmt::format("{:>5} {:>6}", "min", "n");
+    for (std::size_t c = 0; c < e.columns.size(); ++c)
+        if (e.buckets[0].columns[c].n) head += fmt::format(" {:>9.9}", e.columns[c]);
+    for (std::size_t c = 1; c < e.columns.size(); ++c)
+        if (e.buckets[0].columns[c].n) head += fmt::format(" {:>24.24}", "vs " + e.columns[c]);
+    std::cout << head << fmt::format(" {:>7} {:>15}\n", "ece", "calibrated");
+    for (int b = 0; b < scoring::kBuckets; ++b) {
+        const auto& bucket = e.buckets[static_cast<std::size_t>(b)];
+        std::string line =
+            fmt::format("{:>5} {:>6}", scoring::bucket_label(b), bucket.columns[0].n);
+        for (std::size_t c = 0; c < e.columns.size(); ++c) {
+            if (!e.buckets[0].columns[c].n) continue;
+            const auto& s = bucket.columns[c];
+            line += s.n ? fmt::format(" {:>9.5f}", s.rps) : fmt::format(" {:>9}", "-");
+        }
+        for (std::size_t c = 1; c < e.columns.size(); ++c) {
+            const auto& d = bucket.model_against[c];
+            if (!e.buckets[0].columns[c].n) continue;
+            line += d.n ? fmt::format(" {:>+7.2f}% [{:+6.2f},{:+6.2f}]", 100 * d.relative,
+                                      100 * d.relative_low, 100 * d.relative_high)
+                        : fmt::format(" {:>24}", "-");
+        }
+        const auto& m = bucket.columns[0];
+        line +=
+            fmt::format(" {:>7.4f} {:>6.4f}/{:>6.4f}", m.ece, m.calibrated.mean, m.calibrated.p95);
+        std::cout << line << "\n";
+    }
+    std::cout << fmt::format(
+        "paired bootstrap: {} resamples, seed {}, {:.0f}% intervals; negative: the model is "
+        "better\n",
+        e.settings.bootstrap.resamples, e.settings.bootstrap.seed,
+        100 * e.settings.bootstrap.level);
+    for (const auto& w : e.warnings) std::cout << "warning: " << w << "\n";
 }
 
 void print_table(const backtest::BacktestResult& result) {
@@ -127,11 +181,106 @@ live::LiveReplayOptions live_options(const ReplayOptions& o) {
     return live;
 }
 
+// --variant NAME=[PARAMETER_FILE][@STREAMS]: a further configuration, its own parameter file
+// (default: the model's) and its own streams of the same matches (default: the same streams).
+struct VariantSpec {
+    std::string name, params, streams;
+};
+VariantSpec parse_variant(const std::string& text) {
+    const auto eq = text.find('=');
+    if (eq == std::string::npos || eq == 0 || eq + 1 == text.size())
+        throw UsageError("--variant takes NAME=PARAMETER_FILE[@STREAMS] or NAME=@STREAMS, not '" +
+                         text + "'");
+    const std::string rest = text.substr(eq + 1);
+    const auto at = rest.rfind('@');
+    VariantSpec spec{text.substr(0, eq), rest.substr(0, at),
+                     at == std::string::npos ? "" : rest.substr(at + 1)};
+    if (spec.params.empty() && spec.streams.empty())
+        throw UsageError("--variant " + text + ": give a parameter file, streams, or both");
+    return spec;
+}
+
+// The day (UTC) of a scheduled kick-off.
+int day_of(std::int64_t us) {
+    constexpr std::int64_t kDayUs = 86'400'000'000LL;
+    return static_cast<int>(us >= 0 ? us / kDayUs : (us - kDayUs + 1) / kDayUs);
+}
+
+// The Elo reference's means for every match with a setup, from the international record in
+// `dir`; fills each match's competition where the record has its (day, home, away).
+std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo_reference_for(
+    const std::vector<backtest::MatchMessages>& matches, const std::string& dir,
+    std::unordered_map<std::uint64_t, backtest::MatchFacts>& facts) {
+    const auto history = datasets::read_international_history(dir);
+    std::vector<std::string> names;
+    for (const auto& r : history.results) names.push_back(r.competition);
+    const std::string world_finals = backtest::world_finals_in(names);
+    std::vector<backtest::EloResult> results;
+    std::map<std::tuple<int, std::string, std::string>, std::string> competition;
+    for (const auto& r : history.results) {
+        results.push_back({r.result, backtest::elo_match_class(r.competition, world_finals)});
+        competition.emplace(std::tuple{r.result.day, r.result.home, r.result.away}, r.competition);
+    }
+    std::vector<backtest::GoalMinute> minutes;
+    for (const auto& g : history.goal_minutes) minutes.push_back({g.day, g.minute});
+    std::vector<backtest::EloFixture> fixtures;
+    std::vector<std::uint64_t> ids;
+    for (const auto& m : matches) {
+        if (m.empty()) continue;
+        const auto* setup = std::get_if<core::MatchSetup>(&m.front().body);
+        if (!setup) continue;
+        const int day = day_of(setup->scheduled_kickoff_us);
+        fixtures.push_back({day, setup->home_name, setup->away_name, setup->neutral_venue});
+        ids.push_back(m.front().header.match_id);
+        if (const auto it = competition.find({day, setup->home_name, setup->away_name});
+            it != competition.end())
+            facts[ids.back()].competition = it->second;
+    }
+    const auto reference = backtest::elo_reference(results, minutes, fixtures);
+    std::unordered_map<std::uint64_t, backtest::ReferenceMeans> out;
+    for (std::size_t i = 0; i < fixtures.size(); ++i)
+        if (reference.means[i]) out.emplace(ids[i], *reference.means[i]);
+    return out;
+}
+
+// What the run read, fingerprinted.
+report::RunInputs run_inputs(const ReplayOptions& o, const LoadedStreams& loaded) {
+    report::RunInputs inputs;
+    inputs.program_version = system::version_string();
+    // The options that decide the figures (paths as given).
+    inputs.command_line = fmt::format("liveprob replay {}", fmt::join(o.streams, " "));
+    if (!o.params_file.empty()) inputs.command_line += " --params " + o.params_file;
+    for (const auto& v : o.variants) inputs.command_line += " --variant " + v;
+    if (!o.elo_data.empty()) inputs.command_line += " --elo-data " + o.elo_data;
+    inputs.command_line += fmt::format(" --seed {} --resamples {} --calibration-draws {}", o.seed,
+                                       o.resamples, o.calibration_draws);
+    auto add = [&](const char* role, const std::string& path) {
+        inputs.files.push_back({role, path, files::file_sha256_hex(path)});
+    };
+    if (!o.params_file.empty()) add("parameters", o.params_file);
+    for (const auto& v : o.variants) {
+        const auto spec = parse_variant(v);
+        if (!spec.params.empty()) add("variant parameters", spec.params);
+        if (!spec.streams.empty())
+            for (const auto& f : stream_files({spec.streams})) add("variant stream", f.string());
+    }
+    if (!o.elo_data.empty()) {
+        for (const char* name : {"results.csv", "goalscorers.csv"})
+            add("reference data", (std::filesystem::path(o.elo_data) / name).string());
+    }
+    for (const auto& f : loaded.files) add("stream", f.string());
+    return inputs;
+}
+
 int run_replay(const ReplayOptions& o) {
     if (!o.live && (!o.ingest.empty() || !o.publish.empty() || !o.endpoints_file.empty() ||
                     o.speed != 0.0 || !o.server_key.empty() || !o.client_key.empty())) {
         throw UsageError("--ingest, --publish, --endpoints, --speed and the keys belong to --live");
     }
+    if (o.live && (!o.elo_data.empty() || !o.variants.empty()))
+        throw UsageError(
+            "--elo-data and --variant compare forecasters in process, not with --live");
+    if (o.resamples < 1) throw UsageError("--resamples must be at least 1");
     backtest::BacktestOptions options;
     if (!o.params_file.empty()) options.params = files::load_params_file(o.params_file);
     options.threads = o.threads ? o.threads : std::max(1U, std::thread::hardware_concurrency());
@@ -146,6 +295,11 @@ int run_replay(const ReplayOptions& o) {
     const double read_seconds = since(start);
     const auto replay_start = Clock::now();
 
+    std::unordered_map<std::uint64_t, backtest::MatchFacts> facts;
+    std::optional<report::Comparison> comparison;
+    std::vector<VariantSpec> variants;
+    for (const auto& v : o.variants) variants.push_back(parse_variant(v));
+    const report::RunInputs inputs = run_inputs(o, loaded);
     backtest::BacktestResult result;
     std::string how;
     std::vector<std::string> problems;
@@ -181,8 +335,42 @@ int run_replay(const ReplayOptions& o) {
             options.progress = [&bar](std::size_t done, std::size_t total) {
                 bar.update(done, total);
             };
-        result = backtest::run_backtest(loaded.matches, options);
+        // The Elo reference and the matches' competitions, from the international record.
+        std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo;
+        if (!o.elo_data.empty()) {
+            const auto reference = elo_reference_for(loaded.matches, o.elo_data, facts);
+            elo = reference;
+            options.elo = &elo;
+        }
+        const auto replays = backtest::replay_matches(loaded.matches, options);
+        result = backtest::sum_replays(replays, options.timelines);
         problems = result.problems;
+        // Further configurations on the same matches.
+        std::vector<std::vector<backtest::MatchReplay>> variant_replays;
+        std::vector<backtest::ConfigurationRun> runs;
+        for (const auto& v : variants) {
+            backtest::BacktestOptions vo = options;
+            if (!v.params.empty()) vo.params = files::load_params_file(v.params);
+            vo.elo = nullptr;
+            vo.timelines = 0;
+            vo.progress = nullptr;
+            if (v.streams.empty()) {
+                variant_replays.push_back(backtest::replay_matches(loaded.matches, vo));
+            } else {
+                const auto own = load_streams({v.streams});
+                variant_replays.push_back(backtest::replay_matches(own.matches, vo));
+            }
+        }
+        for (std::size_t v = 0; v < variants.size(); ++v)
+            runs.push_back({variants[v].name, &variant_replays[v]});
+        comparison.emplace();
+        comparison->table = backtest::scored_table(replays, runs, facts);
+        backtest::EvaluationSettings settings;
+        settings.bootstrap.seed = o.seed;
+        settings.bootstrap.resamples = o.resamples;
+        settings.calibration_draws = o.calibration_draws;
+        comparison->evaluation = backtest::evaluate(comparison->table, settings);
+        comparison->inputs = inputs;
         how = fmt::format(
             "in process on {} thread(s){}", options.threads,
             o.every_event
@@ -196,9 +384,10 @@ int run_replay(const ReplayOptions& o) {
     report::ReportHeading heading;
     heading.source = fmt::format(
         "{} stream file(s) read in {:.2f} s, {} bad record(s) skipped; replayed {} in {:.2f} s.",
-        loaded.files, read_seconds, loaded.bad_records, how, replay_seconds);
-    report::write_report(o.report_dir, result, heading);
-    print_table(result);
+        loaded.files.size(), read_seconds, loaded.bad_records, how, replay_seconds);
+    report::write_report(o.report_dir, result, heading, comparison ? &*comparison : nullptr);
+    if (comparison) print_comparison(comparison->evaluation);
+    else print_table(result);
     std::cout << fmt::format(
         "{} matches scored ({} abandoned, {} unfinished, {} unusable), replayed {}; {:.2f} s in "
         "all: streams read {:.2f} s, replay {:.2f} s, report written {:.2f} s; report: {}\n",
@@ -206,6 +395,11 @@ int run_replay(const ReplayOptions& o) {
         read_seconds, replay_seconds, since(report_start),
         (std::filesystem::path(o.report_dir) / "index.html").string());
     for (const auto& problem : problems) std::cerr << "liveprob replay: " << problem << "\n";
+    if (result.scored == 0) {
+        std::cerr << "liveprob replay: no match was scored (" << result.matches
+                  << " matches in the streams)\n";
+        return kExitFailure;
+    }
     return kExitOk;
 }
 
@@ -227,6 +421,21 @@ const Registration registration{{
         sub.add_flag("--every-event", o->every_event,
                      "also price the model after every event, as serve publishes");
         sub.add_flag("--quiet", o->quiet, "no progress bar");
+        sub.add_option("--elo-data", o->elo_data,
+                       "folder with the international results.csv and goalscorers.csv: adds the "
+                       "naive Elo reference and each match's competition");
+        sub.add_option("--variant", o->variants,
+                       "NAME=PARAMETER_FILE[@STREAMS]: a further configuration scored on the "
+                       "same matches (paired by match id), with its own parameter file and/or "
+                       "streams of the same matches imported with other rating settings "
+                       "(repeatable)");
+        sub.add_option("--seed", o->seed, "seed of the bootstrap and the calibration draws")
+            ->capture_default_str();
+        sub.add_option("--resamples", o->resamples, "bootstrap resamples of the matches")
+            ->capture_default_str();
+        sub.add_option("--calibration-draws", o->calibration_draws,
+                       "outcome sets drawn for a perfectly calibrated forecaster's ECE")
+            ->capture_default_str();
         sub.add_flag("--live", o->live,
                      "send the streams to a running serve and score what a subscriber receives");
         sub.add_option("--ingest", o->ingest,

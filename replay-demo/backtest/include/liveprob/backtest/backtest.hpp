@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <functional>
 #include <string>
+#include <unordered_map>
 #include <vector>
 
 #include "liveprob/backtest/match_replay.hpp"
@@ -27,6 +28,8 @@ struct BacktestOptions {
     // Also price the model after every accepted event, as serve publishes it (the whole live
     // path's work), and check each of those outputs (finite, summing to 1).
     bool every_event = false;
+    // The Elo reference's means by match id (matches without an entry get no Elo forecast).
+    const std::unordered_map<std::uint64_t, ReferenceMeans>* elo = nullptr;
     // Called from the calling thread about ten times a second, and once at the end.
     std::function<void(std::size_t done, std::size_t total)> progress;
 };

@@ -22,12 +22,38 @@ enum class Forecaster : std::uint8_t {
     fixed_prior = 1,              // the pre-match forecast, never updated
     uniform_timing_no_state = 2,  // the engine with a flat goal-timing profile and no
                                   // score-state or red-card effects
+    independent_poisson = 3,      // the same priors and timing profile, no score-state or
+                                  // red-card effects, no strength update (kappa infinite):
+                                  // what the in-play machinery must beat
+    elo_reference = 4,            // the naive Elo reference (elo_reference.hpp), when the
+                                  // replay is given its means; absent otherwise
 };
-inline constexpr int kForecasters = 3;
+inline constexpr int kForecasters = 5;
 const char* forecaster_name(Forecaster f) noexcept;
 
 // The baseline's parameters: `params` with a uniform timing profile and every state effect 1.
 core::ModelParams uniform_timing_no_state(const core::ModelParams& params);
+// Independent Poisson on the same priors and timing: `params` with every state effect 1 and
+// kappa infinite (the plain-Poisson settings of core::ModelParams::plain_poisson()).
+core::ModelParams independent_poisson(const core::ModelParams& params);
+
+// The parameters of the forecasters the engine prices, derived once per run.
+struct ForecasterParams {
+    core::ModelParams model, flat, independent;
+    static ForecasterParams derived_from(const core::ModelParams& model);
+};
+
+// Expected goals of a reference forecaster that is not the engine: its pre-match means and, per
+// bucket, the share of a match's goals still to come when that bucket is read.
+struct ReferenceMeans {
+    double home_goals = 0.0, away_goals = 0.0;
+    std::array<double, scoring::kBuckets> remaining_share{};
+};
+
+// Home win / draw / away win when `score` stands and each side adds independent Poisson goals
+// with the given means (the Skellam distribution of the difference, summed to 1e-15).
+scoring::Forecast independent_poisson_outcome(const std::array<int, 2>& score, double home_mean,
+                                              double away_mean);
 
 struct TimelinePoint {
     double minute = 0.0;           // running match clock in minutes
@@ -59,6 +85,10 @@ struct MatchReplay {
     std::string problem;                               // why unusable
     scoring::Outcome result = scoring::Outcome::draw;  // regulation result, when scored
     std::array<int, 2> regulation_goals{};
+    std::int64_t scheduled_kickoff_us = 0;  // from the setup
+    std::string home_name, away_name;
+    // The score each bucket was read at (as the engine had it), where the match reached it.
+    std::array<std::array<int, 2>, scoring::kBuckets> score_at_bucket{};
     // Forecast per bucket and forecaster; empty where the match never reached the minute.
     std::array<std::array<std::optional<scoring::Forecast>, kForecasters>, scoring::kBuckets>
         forecasts{};
@@ -69,13 +99,13 @@ struct MatchReplay {
 
 struct ReplayChoices {
     bool keep_timeline = false;
-    bool every_event = false;  // price the model after every accepted event too
+    bool every_event = false;             // price the model after every accepted event too
+    const ReferenceMeans* elo = nullptr;  // the Elo reference's means for this match, if any
 };
 
 // `messages`: the match's setup first, then its feed in arrival order.
 MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
-                         const core::ModelParams& params, const core::ModelParams& baseline_params,
-                         ReplayChoices choices);
+                         const ForecasterParams& params, ReplayChoices choices);
 
 // The clock at which a bucket's forecast is read: its minute of the running clock, in the half
 // that minute belongs to (45:00 is the end of the first half's nominal time).

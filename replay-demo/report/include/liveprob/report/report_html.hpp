@@ -6,6 +6,7 @@
 #include <string>
 
 #include "liveprob/backtest/backtest.hpp"
+#include "liveprob/report/report_json.hpp"
 
 namespace liveprob::report {
 
@@ -14,10 +15,12 @@ struct ReportHeading {
     std::string source;  // what was replayed, one line
 };
 
-std::string report_html(const backtest::BacktestResult& result, const ReportHeading& heading);
+std::string report_html(const backtest::BacktestResult& result, const ReportHeading& heading,
+                        const Comparison* comparison = nullptr);
 
-// Writes DIR/index.html and DIR/report.json (creating DIR).
+// Writes DIR/index.html and DIR/report.json (creating DIR), and with a comparison
+// DIR/matches.csv.
 void write_report(const std::filesystem::path& dir, const backtest::BacktestResult& result,
-                  const ReportHeading& heading);
+                  const ReportHeading& heading, const Comparison* comparison = nullptr);
 
 }  // namespace liveprob::report
