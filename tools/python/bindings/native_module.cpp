@@ -32,7 +32,7 @@ core::ModelParams params_from(const std::optional<std::string>& params_file,
                               std::optional<double> kappa, bool plain_poisson) {
     if (plain_poisson && params_file)
         throw std::invalid_argument("give params_file or plain_poisson, not both");
-    core::ModelParams p = params_file    ? files::load_params_file(*params_file)
+    core::ModelParams p = params_file     ? files::load_params_file(*params_file)
                           : plain_poisson ? core::ModelParams::plain_poisson()
                                           : core::ModelParams{};
     if (kappa) p.kappa = *kappa;
@@ -117,7 +117,8 @@ py::dict price(double home_goals, double away_goals, int period, std::int64_t cl
     position.score = {score.first, score.second};
     position.reds = {reds.first, reds.second};
     position.stoppage_minutes = stoppage;
-    const core::Match match = core::match_at(position, params_from(params_file, kappa, plain_poisson));
+    const core::Match match =
+        core::match_at(position, params_from(params_file, kappa, plain_poisson));
     return outputs_dict(match.outputs());
 }
 
@@ -139,10 +140,9 @@ public:
         m.header.clock = clock_from(period, clock_ms);
         m.body = body_of(kind, fields);
         const core::ApplyResult r = match_.apply(m);
-        return py::make_tuple(core::verdict_name(r.verdict),
-                              r.verdict == core::Verdict::rejected
-                                  ? core::reject_reason_name(r.reason)
-                                  : "");
+        return py::make_tuple(
+            core::verdict_name(r.verdict),
+            r.verdict == core::Verdict::rejected ? core::reject_reason_name(r.reason) : "");
     }
 
     bool advance(int period, std::int64_t clock_ms) {
@@ -172,7 +172,8 @@ private:
             if (n < 0 || n > 99) throw std::invalid_argument(std::string(name) + " must be 0..99");
             return static_cast<std::uint16_t>(n);
         };
-        if (kind == "period_start") return core::PeriodStart{period_from(field<int>(f, "period", 0))};
+        if (kind == "period_start")
+            return core::PeriodStart{period_from(field<int>(f, "period", 0))};
         if (kind == "period_end") return core::PeriodEnd{period_from(field<int>(f, "period", 0))};
         if (kind == "goal")
             return core::Goal{side(), field<bool>(f, "penalty", false),
@@ -188,7 +189,8 @@ private:
                                            goals("minutes")};
         if (kind == "score_correction")
             return core::ScoreCorrection{goals("home_goals"), goals("away_goals")};
-        if (kind == "shootout_kick") return core::ShootoutKick{side(), field<bool>(f, "scored", false)};
+        if (kind == "shootout_kick")
+            return core::ShootoutKick{side(), field<bool>(f, "scored", false)};
         if (kind == "shot_xg") return core::ShotXg{side(), field<double>(f, "xg", 0.0)};
         if (kind == "abandoned") return core::MatchAbandoned{};
         if (kind == "final_whistle") return core::FinalWhistle{};
@@ -240,12 +242,12 @@ py::dict replay(const std::vector<std::string>& paths, unsigned threads,
         rejected.mutable_at(m) = r.rejected;
         static const char* const fates[] = {"scored", "abandoned", "unfinished", "unusable"};
         fate.emplace_back(fates[static_cast<int>(r.fate)]);
-        result.emplace_back(r.fate == backtest::ReplayFate::scored
-                                ? scoring::outcome_name(r.result)
-                                : "");
+        result.emplace_back(r.fate == backtest::ReplayFate::scored ? scoring::outcome_name(r.result)
+                                                                   : "");
         for (int b = 0; b < kB; ++b)
             for (int f = 0; f < kF; ++f) {
-                const auto& fc = r.forecasts[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
+                const auto& fc =
+                    r.forecasts[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
                 for (int o = 0; o < 3; ++o)
                     forecasts.mutable_at(m, b, f, o) =
                         fc ? (*fc)[static_cast<std::size_t>(o)] : std::nan("");
@@ -259,7 +261,8 @@ py::dict replay(const std::vector<std::string>& paths, unsigned threads,
         bucket_minute.mutable_at(b) = scoring::kBucketMinutes[static_cast<std::size_t>(b)];
         bucket_label.emplace_back(scoring::bucket_label(b));
         for (int f = 0; f < kF; ++f) {
-            const auto& acc = summed.scores[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
+            const auto& acc =
+                summed.scores[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
             count.mutable_at(b, f) = acc.count();
             brier.mutable_at(b, f) = acc.mean_brier();
             log_loss.mutable_at(b, f) = acc.mean_log_loss();
