@@ -7,6 +7,7 @@
 
 #include <cmath>
 #include <iostream>
+#include <vector>
 
 #include "liveprob/datasets/inplay_records.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
@@ -79,4 +80,29 @@ TEST_CASE(
     CHECK(fit.factor == Approx(0.5 * (a + b)).epsilon(1e-6));
     // Common practice: stoppage time is played at about the rate of the end of its half.
     CHECK(std::abs(fit.factor - 1.0) < 2.0 * fit.factor_se);
+}
+
+TEST_CASE("time-decayed goal minutes: weights 2^(-age/half-life), scaled to Kish's effective n") {
+    // Three goals: two in the latest match (minutes 10 and 90), one a half-life earlier
+    // (minute 10). Weights 1, 1, 0.5: Σw = 2.5, Σw² = 2.25, Kish's effective sample size
+    // (Σw)² / Σw² = 25/9 (Kish 1965, Survey Sampling, eq. 11.7.5); the counts are scaled by
+    // Σw / Σw² = 10/9 so they sum to it.
+    using liveprob::datasets::MatchTimeline;
+    MatchTimeline old_match, new_match;
+    old_match.day = 1000;
+    new_match.day = 1000 + 1461;
+    old_match.goals.push_back({.minute = 10});
+    new_match.goals.push_back({.minute = 10});
+    new_match.goals.push_back({.minute = 90, .stoppage = 3});
+    const std::vector<MatchTimeline> matches = {old_match, new_match};
+    const auto weighted = liveprob::datasets::regulation_minute_counts(matches, 1461.0);
+    CHECK(weighted[9] == Approx(1.5 * 10.0 / 9.0).epsilon(1e-12));
+    CHECK(weighted[89] == Approx(10.0 / 9.0).epsilon(1e-12));  // a stoppage goal stays at 90
+    double total = 0.0;
+    for (double c : weighted) total += c;
+    CHECK(total == Approx(25.0 / 9.0).epsilon(1e-12));
+    // No half-life: every goal counts once.
+    const auto plain = liveprob::datasets::regulation_minute_counts(matches);
+    CHECK(plain[9] == 2.0);
+    CHECK(plain[89] == 1.0);
 }

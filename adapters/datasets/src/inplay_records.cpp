@@ -1,5 +1,7 @@
 #include "liveprob/datasets/inplay_records.hpp"
 
+#include <algorithm>
+#include <cmath>
 #include <optional>
 
 namespace liveprob::datasets {
@@ -15,12 +17,27 @@ fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans
     return out;
 }
 
-fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches) {
+fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches,
+                                           double half_life_days) {
     fit::MinuteCounts counts{};
-    for (const MatchTimeline& m : matches)
+    if (matches.empty()) return counts;
+    int latest = matches.front().day;
+    for (const MatchTimeline& m : matches) latest = std::max(latest, m.day);
+    // Each goal weighs 2^(−age / half-life), its age counted from the latest match given.
+    double sum = 0.0, sum_squares = 0.0;
+    for (const MatchTimeline& m : matches) {
+        const double w = half_life_days > 0.0 ? std::exp2(-(latest - m.day) / half_life_days) : 1.0;
         for (const TimelineGoal& g : m.goals)
-            if (g.minute >= 1 && g.minute <= 90)
-                counts[static_cast<std::size_t>(g.minute - 1)] += 1.0;
+            if (g.minute >= 1 && g.minute <= 90) {
+                counts[static_cast<std::size_t>(g.minute - 1)] += w;
+                sum += w;
+                sum_squares += w * w;
+            }
+    }
+    // Rescaled to the effective number of goals (Kish: (Σw)² / Σw²), so that the likelihood's
+    // curvature, and with it every standard error, counts the information the weights leave.
+    if (half_life_days > 0.0 && sum > 0.0)
+        for (double& c : counts) c *= sum / sum_squares;
     return counts;
 }
 

@@ -6,6 +6,7 @@
 // memory": the data carry no cards).
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <iostream>
@@ -41,6 +42,8 @@ struct FitInplayOptions {
     std::string base_params;
     std::string out;
     double half_life_days = 730.0;
+    double timing_half_life_days = 0.0;
+    bool fit_dispersion = true;  // false: κ = ∞, the state multipliers fitted under plain Poisson
     double min_matches = 6.0;
     int extra_time_from_year = 1970;
 };
@@ -74,8 +77,18 @@ std::string span_of_years(int first_day, int last_day) {
     return fit::iso_date(first_day).substr(0, 4) + "-" + fit::iso_date(last_day).substr(0, 4);
 }
 
+// The years a set of timelines spans ("1872-2009"), for the notes.
+std::string years_of(const std::vector<datasets::MatchTimeline>& matches) {
+    if (matches.empty()) return "no matches";
+    const auto [first, last] = std::minmax_element(
+        matches.begin(), matches.end(), [](const auto& a, const auto& b) { return a.day < b.day; });
+    return span_of_years(first->day, last->day);
+}
+
 int run_fit_inplay(const FitInplayOptions& o) {
     if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
+    if (o.timing_half_life_days < 0.0)
+        throw UsageError("--timing-half-life must be 0 (no decay) or positive");
     const fs::path dir(o.international_dir);
     // Every international match with complete goal records (no coverage filter: a goalless
     // match is left out below, and those with goals are conditioned on having one).
@@ -101,9 +114,10 @@ int run_fit_inplay(const FitInplayOptions& o) {
     liveprob::files::ParamsFileNotes notes;
 
     // 1. The goal-timing profile, from every regulation goal minute.
-    fit::MinuteCounts counts = datasets::regulation_minute_counts(international.matches);
+    fit::MinuteCounts counts =
+        datasets::regulation_minute_counts(international.matches, o.timing_half_life_days);
     for (const auto& read : championships) {
-        const auto more = datasets::regulation_minute_counts(read.matches);
+        const auto more = datasets::regulation_minute_counts(read.matches, o.timing_half_life_days);
         for (std::size_t i = 0; i < counts.size(); ++i) counts[i] += more[i];
     }
     const auto timing = fit::fit_goal_timing(counts, params.timing);
@@ -177,7 +191,9 @@ int run_fit_inplay(const FitInplayOptions& o) {
     }
 
     // 4. Score-state multipliers and κ, jointly.
-    const auto states = fit::fit_score_state(samples.regulation);
+    fit::ScoreStateFitOptions state_options;
+    state_options.fit_dispersion = o.fit_dispersion;
+    const auto states = fit::fit_score_state(samples.regulation, state_options);
     if (!states.converged) throw std::runtime_error("the score-state fit did not converge");
     params.score_state = states.effects;
     params.kappa = states.kappa;
@@ -205,8 +221,14 @@ int run_fit_inplay(const FitInplayOptions& o) {
         o.half_life_days);
     const std::string timing_text = fmt::format(
         "fitted by fit-inplay: multinomial likelihood of {} regulation goal "
-        "minutes (international{})",
-        timing.goals, championships.empty() ? "" : " and championship files");
+        "minutes (international{}, {}){}",
+        timing.goals, championships.empty() ? "" : " and championship files",
+        years_of(international.matches),
+        o.timing_half_life_days > 0.0
+            ? fmt::format(", each weighted 2^(-age/{} days) from the latest match, counted as "
+                          "the effective number of goals",
+                          o.timing_half_life_days)
+            : ", every goal weighted alike");
     for (const char* key :
          {"timing.first_half_start", "timing.second_half_start", "timing.second_half_end"})
         notes.sources[key] = timing_text;
@@ -239,13 +261,18 @@ int run_fit_inplay(const FitInplayOptions& o) {
     notes.sources["timing.expected_stoppage_extra"] =
         notes.sources["timing.expected_stoppage_first"];
     const std::string states_text = fmt::format(
-        "fitted by fit-inplay: joint likelihood with the strength dispersion (Gamma mixing, "
-        "matches conditioned on "
+        "fitted by fit-inplay: {} (matches conditioned on "
         "a regulation goal) on {} international matches {} with complete goal minutes, {}",
+        o.fit_dispersion ? "joint likelihood with the strength dispersion (Gamma mixing)"
+                         : "plain Poisson likelihood (kappa held at infinity)",
         samples.regulation.size(), span_of_years(samples.first_day, samples.last_day), priors_text);
-    for (const char* key :
-         {"score_state.leading", "score_state.level", "score_state.trailing", "kappa"})
+    for (const char* key : {"score_state.leading", "score_state.level", "score_state.trailing"})
         notes.sources[key] = states_text;
+    notes.sources["kappa"] = o.fit_dispersion
+                                 ? states_text
+                                 : std::string(
+                                       "held at infinity (fit-inplay --dispersion none): chosen "
+                                       "by walk-forward backtests (replay-demo/README.md)");
     notes.standard_errors["score_state.leading"] = states.leading_se;
     notes.standard_errors["score_state.level"] = states.level_se;
     notes.standard_errors["score_state.trailing"] = states.trailing_se;
@@ -302,7 +329,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
     row("score_state.leading", states.effects.leading, states.leading_se);
     row("score_state.level", states.effects.level, states.level_se);
     row("score_state.trailing", states.effects.trailing, states.trailing_se);
-    row("kappa", states.kappa, states.kappa_se);
+    if (o.fit_dispersion) row("kappa", states.kappa, states.kappa_se);
+    else std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "kappa", "infinity", "held");
     row("timing.extra_time_factor", extra.factor, extra.factor_se);
     row("shootout.conversion", kicks.params.conversion, kicks.conversion_se);
     row("shootout.first_kicker_edge", kicks.params.first_kicker_edge, kicks.edge_se);
@@ -340,6 +368,14 @@ const liveprob::cli::Registration registration{
          app.add_option("--out", o->out, "parameter file to write")->required();
          app.add_option("--half-life", o->half_life_days,
                         "time-decay half-life in days of the prior ratings");
+         app.add_option_function<std::string>(
+                "--dispersion", [o](const std::string& v) { o->fit_dispersion = v == "fit"; },
+                "fit: the strength dispersion kappa fitted jointly with the state multipliers "
+                "(default); none: kappa = infinity, the multipliers fitted under plain Poisson")
+             ->check(CLI::IsMember({"fit", "none"}));
+         app.add_option("--timing-half-life", o->timing_half_life_days,
+                        "time-decay half-life in days of the goal-minute weights of the timing "
+                        "profile (0: every goal alike)");
          app.add_option(
              "--min-matches", o->min_matches,
              "a match is used only when both sides have this many weighted earlier matches");

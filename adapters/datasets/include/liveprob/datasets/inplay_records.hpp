@@ -17,8 +17,13 @@ namespace liveprob::datasets {
 fit::InplayMatch inplay_match(const MatchTimeline& match, const core::PriorMeans& prior,
                               bool listed_for_goals);
 
-// Regulation goals (minutes 1..90) per minute, over the given matches.
-fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches);
+// Regulation goals (minutes 1..90) per minute, over the given matches. Stoppage goals count in
+// the minute the source records them in (the international source: 45 or 90), which is where
+// the timing profile's fit puts stoppage exposure. With a half-life (days, > 0) each goal weighs
+// 2^(−age / half-life), its age counted from the latest of the matches, and the counts are
+// scaled to the effective number of goals; 0 counts every goal once.
+fit::MinuteCounts regulation_minute_counts(std::span<const MatchTimeline> matches,
+                                           double half_life_days = 0.0);
 
 // Regulation goals, and those of them in stoppage time (45+k, 90+k with k ≥ 1), for a source that
 // gives stoppage minutes (the championship files; the international reader marks every goal of
