@@ -96,7 +96,10 @@ struct LiveService::Impl {
 
 LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params)
     : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)),
-      publisher(context, zmq::socket_type::pub), registry(params) {
+      publisher(context, zmq::socket_type::pub),
+      registry(params,
+               RegistryLimits{std::chrono::seconds(cfg.retention_s),
+                              std::chrono::seconds(cfg.waiting_ttl_s), cfg.match_message_cap}) {
     validate_service_config(config);
     std::string secret;
     if (config.curve_enabled()) {
@@ -272,6 +275,7 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
             break;
         case MessageOutcome::waiting: ++counters.waiting; break;
         case MessageOutcome::waiting_overflow: ++counters.waiting_overflow; break;
+        case MessageOutcome::over_cap: ++counters.over_cap; break;
         case MessageOutcome::created:
             spdlog::info("match {}: created", decoded.message->header.match_id);
             break;
@@ -372,6 +376,10 @@ void LiveService::Impl::schedule_tick() {
             registry.advance(m, started);
             publish(m, true, started);
         }
+        // Every update handed to the publisher by now: finished matches past the retention go.
+        const RetireReport retired = registry.retire(SteadyClock::now());
+        counters.retired += retired.matches;
+        counters.waiting_expired += retired.waiting_expired;
         schedule_tick();
     });
 }

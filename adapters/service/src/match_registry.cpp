@@ -18,6 +18,9 @@ LiveMatch* MatchRegistry::find(std::uint64_t match_id) {
 MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage& message,
                                        std::int64_t receive_time_us,
                                        std::chrono::steady_clock::time_point now) {
+    if (limits_.max_messages_per_match != 0 && m.messages >= limits_.max_messages_per_match)
+        return MessageOutcome::over_cap;
+    ++m.messages;
     const core::ApplyResult result = m.match.apply(message);
     switch (result.verdict) {
         case core::Verdict::duplicate: return MessageOutcome::duplicate;
@@ -29,6 +32,7 @@ MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage&
     m.receive_time_us = receive_time_us;
     m.anchor_clock = m.match.priced_clock();
     m.anchor_time = now;
+    if (!m.ended_at && !m.live()) m.ended_at = now;
     return MessageOutcome::applied;
 }
 
@@ -44,12 +48,14 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
     }
     const auto* setup = std::get_if<core::MatchSetup>(&message.body);
     if (setup == nullptr) {
-        auto& queue = waiting_[id];
+        auto& room = waiting_[id];
+        auto& queue = room.messages;
         if ((queue.empty() && waiting_.size() > kMaxWaitingMatches) ||
             queue.size() >= kMaxWaitingPerMatch) {
             if (queue.empty()) waiting_.erase(id);
             return MessageOutcome::waiting_overflow;
         }
+        if (queue.empty()) room.since = now;
         queue.push_back(message);
         ++waiting_count_;
         return MessageOutcome::waiting;
@@ -61,6 +67,7 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
         created.receive_time_us = receive_time_us;
         created.anchor_clock = created.match.priced_clock();
         created.anchor_time = now;
+        created.messages = 1;
     } catch (const std::invalid_argument& e) {
         last_setup_error_ = e.what();
         return MessageOutcome::bad_setup;
@@ -68,9 +75,9 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
     touched.push_back(id);
     if (auto queued = waiting_.find(id); queued != waiting_.end()) {
         LiveMatch& created = matches_.at(id);
-        for (const core::InboundMessage& held : queued->second)
+        for (const core::InboundMessage& held : queued->second.messages)
             apply_to(created, held, receive_time_us, now);
-        waiting_count_ -= queued->second.size();
+        waiting_count_ -= queued->second.messages.size();
         waiting_.erase(queued);
     }
     return MessageOutcome::created;
@@ -87,19 +94,49 @@ bool MatchRegistry::advance(LiveMatch& m, std::chrono::steady_clock::time_point 
     return m.match.advance_to(target);
 }
 
-core::MatchCounters MatchRegistry::totals() const {
-    core::MatchCounters sum;
-    for (const auto& [id, m] : matches_) {
-        const core::MatchCounters& c = m.match.counters();
-        sum.accepted += c.accepted;
-        sum.late += c.late;
-        sum.duplicates += c.duplicates;
-        sum.conflicting_duplicates += c.conflicting_duplicates;
-        sum.rejected += c.rejected;
-        for (std::size_t i = 0; i < sum.rejected_by_reason.size(); ++i) {
-            sum.rejected_by_reason[i] += c.rejected_by_reason[i];
+namespace {
+void add_counters(core::MatchCounters& sum, const core::MatchCounters& c) {
+    sum.accepted += c.accepted;
+    sum.late += c.late;
+    sum.duplicates += c.duplicates;
+    sum.conflicting_duplicates += c.conflicting_duplicates;
+    sum.rejected += c.rejected;
+    for (std::size_t i = 0; i < sum.rejected_by_reason.size(); ++i) {
+        sum.rejected_by_reason[i] += c.rejected_by_reason[i];
+    }
+}
+}  // namespace
+
+RetireReport MatchRegistry::retire(std::chrono::steady_clock::time_point now) {
+    RetireReport report;
+    if (limits_.retention.count() > 0) {
+        for (auto it = matches_.begin(); it != matches_.end();) {
+            if (it->second.ended_at && now - *it->second.ended_at >= limits_.retention) {
+                add_counters(retired_totals_, it->second.match.counters());
+                it = matches_.erase(it);
+                ++report.matches;
+            } else {
+                ++it;
+            }
         }
     }
+    if (limits_.waiting_ttl.count() > 0) {
+        for (auto it = waiting_.begin(); it != waiting_.end();) {
+            if (now - it->second.since >= limits_.waiting_ttl) {
+                report.waiting_expired += it->second.messages.size();
+                waiting_count_ -= it->second.messages.size();
+                it = waiting_.erase(it);
+            } else {
+                ++it;
+            }
+        }
+    }
+    return report;
+}
+
+core::MatchCounters MatchRegistry::totals() const {
+    core::MatchCounters sum = retired_totals_;
+    for (const auto& [id, m] : matches_) add_counters(sum, m.match.counters());
     return sum;
 }
 

@@ -21,7 +21,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 18> kKeys = {{
+const std::array<ConfigKey, 21> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "PULL socket feeds push to"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -41,6 +41,15 @@ const std::array<ConfigKey, 18> kKeys = {{
      "republish every live match this often (ms)", 10, kMaxMilliseconds},
     {"counters_interval_ms", "--counters-ms", ConfigValue::whole, &S::counters_interval_ms,
      "counters topic and log line interval (ms)", 100, kMaxMilliseconds},
+    {"retention_s", "--retention-s", ConfigValue::whole, &S::retention_s,
+     "a finished or abandoned match leaves memory this long after its final update (s); 0: "
+     "never",
+     0, 365u * 24 * 3600},
+    {"waiting_ttl_s", "--waiting-ttl-s", ConfigValue::whole, &S::waiting_ttl_s,
+     "messages of a match whose setup has not come are dropped after this (s); 0: never", 0,
+     24u * 3600},
+    {"match_message_cap", "--match-message-cap", ConfigValue::whole, &S::match_message_cap,
+     "messages one match accepts; later ones are refused and counted; 0: no cap", 0, 100'000'000},
     {"journal_path",
      "--journal",
      ConfigValue::text,

@@ -29,6 +29,8 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("ingest.bad_setup", s.bad_setup);
     add("ingest.waiting_for_setup", s.waiting);
     add("ingest.waiting_overflow", s.waiting_overflow);
+    add("ingest.waiting_expired", s.waiting_expired);
+    add("ingest.over_match_cap", s.over_cap);
     add("engine.accepted", e.accepted);
     add("engine.late", e.late);
     add("engine.duplicate", e.duplicates);
@@ -54,6 +56,7 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("curve.refused", s.curve_refused);
     add("matches", s.matches);
     add("matches.live", s.live_matches);
+    add("matches.retired", s.retired);
 }
 
 }  // namespace liveprob::service

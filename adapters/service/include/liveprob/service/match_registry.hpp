@@ -9,6 +9,7 @@
 #include <cstdint>
 #include <deque>
 #include <memory>
+#include <optional>
 #include <string>
 #include <unordered_map>
 #include <vector>
@@ -22,6 +23,24 @@ namespace liveprob::service {
 inline constexpr std::size_t kMaxWaitingPerMatch = 256;
 inline constexpr std::size_t kMaxWaitingMatches = 1024;
 
+// What the operator bounds (service_config.hpp holds the keys). Zero turns a bound off.
+struct RegistryLimits {
+    // A finished or abandoned match leaves memory this long after its final update.
+    std::chrono::seconds retention{600};
+    // Messages held for a setup that has not come are dropped this long after the first one, so
+    // junk ids cannot fill the room for good.
+    std::chrono::seconds waiting_ttl{60};
+    // Messages one match accepts (of any verdict); past it they are refused and counted, so one
+    // runaway feed cannot make its re-folds stall the loop for every other match.
+    std::uint32_t max_messages_per_match = 50000;
+};
+
+// What retire() removed, for the counters.
+struct RetireReport {
+    std::uint64_t matches = 0;          // finished or abandoned, past the retention
+    std::uint64_t waiting_expired = 0;  // held messages whose setup never came in time
+};
+
 enum class MessageOutcome : std::uint8_t {
     applied,           // accepted or late: the state changed, publish an update
     duplicate,         // nothing changed
@@ -30,6 +49,7 @@ enum class MessageOutcome : std::uint8_t {
     bad_setup,         // the setup is unusable (no prior, bad format); nothing created
     waiting,           // no setup yet: held until it arrives
     waiting_overflow,  // no setup yet and the waiting room is full: dropped
+    over_cap,          // the match has had its share of messages: refused, state unchanged
 };
 
 struct LiveMatch {
@@ -42,12 +62,16 @@ struct LiveMatch {
     // elapsed time since it arrived.
     core::MatchClock anchor_clock;
     std::chrono::steady_clock::time_point anchor_time{};
+    // When the match was first seen finished or abandoned (its final update); unset while live.
+    std::optional<std::chrono::steady_clock::time_point> ended_at;
+    std::uint32_t messages = 0;  // every message handed to the match, setup included
     bool live() const noexcept;
 };
 
 class MatchRegistry {
 public:
-    explicit MatchRegistry(core::ModelParams params) : params_(std::move(params)) {}
+    explicit MatchRegistry(core::ModelParams params, RegistryLimits limits = {})
+        : params_(std::move(params)), limits_(limits) {}
 
     // `receive_time_us` is wall time for the update's timestamp; `now` anchors the clock.
     // Messages released from the waiting room by a setup are applied too; `touched` lists
@@ -64,7 +88,12 @@ public:
     std::size_t waiting_messages() const noexcept { return waiting_count_; }
     const std::string& last_setup_error() const noexcept { return last_setup_error_; }
 
-    // Engine verdict totals over all matches (the counters topic).
+    // Forgets finished matches past the retention and waiting messages past their TTL. The
+    // service calls it after publishing, so every retired match's final update is out (and
+    // journaled: messages are written before they are applied).
+    RetireReport retire(std::chrono::steady_clock::time_point now);
+
+    // Engine verdict totals over all matches (the counters topic), retired ones included.
     core::MatchCounters totals() const;
 
 private:
@@ -72,9 +101,16 @@ private:
                             std::int64_t receive_time_us,
                             std::chrono::steady_clock::time_point now);
 
+    struct Waiting {
+        std::chrono::steady_clock::time_point since;  // the first held message's arrival
+        std::deque<core::InboundMessage> messages;
+    };
+
     core::ModelParams params_;
+    RegistryLimits limits_;
     std::unordered_map<std::uint64_t, LiveMatch> matches_;
-    std::unordered_map<std::uint64_t, std::deque<core::InboundMessage>> waiting_;
+    std::unordered_map<std::uint64_t, Waiting> waiting_;
+    core::MatchCounters retired_totals_;
     std::size_t waiting_count_ = 0;
     std::string last_setup_error_;
 };

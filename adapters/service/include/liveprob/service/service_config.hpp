@@ -36,6 +36,11 @@ struct ServiceConfig {
     std::uint32_t tick_interval_ms = 1000;      // republish every live match this often
     std::uint32_t counters_interval_ms = 5000;  // counters topic and log line
 
+    // Bounded memory (match_registry.hpp, RegistryLimits); 0 turns a bound off.
+    std::uint32_t retention_s = 600;   // finished matches leave memory this long after the end
+    std::uint32_t waiting_ttl_s = 60;  // held messages of a match without setup expire
+    std::uint32_t match_message_cap = 50000;  // messages one match accepts
+
     std::string journal_path;  // a folder of segments; empty: no journal (and no recovery)
     files::JournalSync journal_sync = files::JournalSync::interval;
     std::uint32_t journal_sync_interval_ms = 200;

@@ -22,6 +22,9 @@ struct ServiceCounters {
     std::uint64_t bad_setup = 0;
     std::uint64_t waiting = 0;  // held for a setup that had not arrived
     std::uint64_t waiting_overflow = 0;
+    std::uint64_t waiting_expired = 0;    // held past the waiting TTL, setup never came
+    std::uint64_t over_cap = 0;           // refused: the match had its share of messages
+    std::uint64_t retired = 0;            // finished matches that left memory after retention
     std::uint64_t updates_published = 0;  // event-driven updates
     std::uint64_t ticks_published = 0;    // timer republications
     std::uint64_t snapshot_requests = 0;
