@@ -104,7 +104,7 @@ TEST_CASE("a finished match leaves memory after the retention, its verdicts stay
             MessageOutcome::applied);
     REQUIRE(registry.handle(done.start(Period::second_half, 45), 1, t0, touched) ==
             MessageOutcome::applied);
-    REQUIRE(registry.handle(done.end(Period::second_half, 93), 1, t0 + seconds(10), touched) ==
+    REQUIRE(registry.handle(done.whistle(Period::second_half, 93), 1, t0 + seconds(10), touched) ==
             MessageOutcome::applied);
     REQUIRE_FALSE(registry.find(5)->live());
     const std::uint64_t accepted_before = registry.totals().accepted;
@@ -148,7 +148,7 @@ TEST_CASE("waiting messages expire, so junk ids cannot keep a real match sent se
     CHECK(registry.find(77)->match.state().goals(Side::home) == 1);
 }
 
-TEST_CASE("one match accepts at most its cap of messages; the rest are refused and change nothing",
+TEST_CASE("one match accepts at most its cap of messages, the rest are refused and change nothing",
           "[match_registry]") {
     using std::chrono::seconds;
     MatchRegistry registry{ModelParams{}, RegistryLimits{seconds(600), seconds(60), 4}};
