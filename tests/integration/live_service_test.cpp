@@ -347,7 +347,7 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
     TestSubscriber sub(context, serve.publish(), "match.");
     REQUIRE(sub.next_counters(20s).has_value());
 
-    zmq::socket_t push(context, zmq::socket_type::push);
+    zmq::socket_t push(context, zmq::socket_type::dealer);
     push.set(zmq::sockopt::linger, 2000);
     push.connect(serve.ingest());
     std::mt19937 random(20261201);  // fixed seed: the same garbage every run
@@ -369,7 +369,12 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
     protocol::UpdateEncoder update_encoder;
     const auto update = update_encoder.encode({}, Outputs{});
     push.send(zmq::buffer(update.data(), update.size()));
-    push.send(zmq::buffer(valid), zmq::send_flags::sndmore);  // multipart: not a feed message
+    // Three frames: neither a message nor a ticket and a message.
+    push.send(zmq::buffer(valid), zmq::send_flags::sndmore);
+    push.send(zmq::buffer(valid), zmq::send_flags::sndmore);
+    push.send(zmq::buffer(valid));
+    // Two frames whose first is no delivery ticket.
+    push.send(zmq::buffer(valid), zmq::send_flags::sndmore);
     push.send(zmq::buffer(valid));
 
     // Still serving: a valid match goes through.
@@ -392,6 +397,7 @@ TEST_CASE("garbage frames are counted and dropped and the service keeps serving"
     CHECK(counter(*counters, "ingest.rejected.too_small") >= 1);
     CHECK(counter(*counters, "ingest.rejected.wrong_identifier") >= 2);
     CHECK(counter(*counters, "ingest.multipart_dropped") == 1);
+    CHECK(counter(*counters, "ingest.bad_ticket") == 1);
     CHECK(serve.process().wait(0ms) == std::nullopt);  // still running
 }
 
@@ -419,7 +425,7 @@ TEST_CASE("a subscriber that never reads does not hold up others, and serve's me
     TestSubscriber reader(context, serve.publish(), "match.", 100000);
     REQUIRE(reader.next_counters(20s).has_value());
 
-    zmq::socket_t push(context, zmq::socket_type::push);
+    zmq::socket_t push(context, zmq::socket_type::dealer);
     push.set(zmq::sockopt::linger, 5000);
     push.connect(serve.ingest());
     constexpr std::uint64_t kMatches = 50;
@@ -458,7 +464,7 @@ TEST_CASE(
     TestSubscriber sub(context, serve.publish(), "match.");
     REQUIRE(sub.next_counters(20s).has_value());
 
-    zmq::socket_t push(context, zmq::socket_type::push);
+    zmq::socket_t push(context, zmq::socket_type::dealer);
     push.set(zmq::sockopt::linger, 2000);
     push.connect(serve.ingest());
     const auto feed = invented_match(606);

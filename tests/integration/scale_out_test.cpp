@@ -353,7 +353,7 @@ TEST_CASE(
         const std::uint64_t stray = owned[0].front();
         TestSubscriber counters(context, shards[2]->publish(), "no.match.");
         REQUIRE(counters.next_counters(20s).has_value());
-        zmq::socket_t push(context, zmq::socket_type::push);
+        zmq::socket_t push(context, zmq::socket_type::dealer);
         push.set(zmq::sockopt::linger, 2000);
         push.connect(shards[2]->ingest());
         push.send(zmq::buffer(protocol::encode_feed_message(varied_match(stray).front())));

@@ -1,5 +1,5 @@
 // `liveprob serve` (and optionally `liveprob gateway`) as separate processes on ephemeral
-// ports, a feed sender (PUSH to serve's ingest) and a recorder of what serve published (SUB),
+// ports, a feed sender (DEALER to serve's ingest, no acknowledgements) and a recorder of what serve published (SUB),
 // for tests that check a client against what the engine really published.
 #pragma once
 
@@ -106,7 +106,7 @@ private:
     std::unique_ptr<ChildProcess> gateway_;
     std::string ingest_, publish_, snapshot_;
     zmq::context_t context_{1};
-    zmq::socket_t push_{context_, zmq::socket_type::push};
+    zmq::socket_t push_{context_, zmq::socket_type::dealer};
     zmq::socket_t sub_{context_, zmq::socket_type::sub};
     std::map<std::uint64_t, protocol::DecodedUpdate> latest_;
 };

@@ -100,7 +100,7 @@ void run_relay(const std::string& pull_at, const std::string& pub_at) {
 void run_feed(const std::string& push_to, const std::vector<std::vector<std::uint8_t>>& buffers,
               double rate, std::int64_t* sent_ns) {
     zmq::context_t context(1);
-    zmq::socket_t push(context, zmq::socket_type::push);
+    zmq::socket_t push(context, zmq::socket_type::dealer);
     push.set(zmq::sockopt::sndhwm, 1'000'000);
     push.set(zmq::sockopt::linger, 2000);
     push.connect(push_to);

@@ -13,7 +13,9 @@ ShardSender::ShardSender(zmq::context_t& context, const std::vector<std::string>
     if (endpoints_.size() > 1024) throw std::invalid_argument("more than 1024 shard endpoints");
     sockets_.reserve(endpoints_.size());
     for (const std::string& endpoint : endpoints_) {
-        zmq::socket_t& push = sockets_.emplace_back(context, zmq::socket_type::push);
+        // DEALER: the service's ingest is a ROUTER; a single-frame message asks for no
+        // acknowledgement (AckedSender asks for them).
+        zmq::socket_t& push = sockets_.emplace_back(context, zmq::socket_type::dealer);
         push.set(zmq::sockopt::linger, options.linger_ms);
         push.set(zmq::sockopt::sndhwm, options.send_high_water_mark);
         apply_curve_client(push, options.keys);

@@ -5,6 +5,7 @@
 #include <boost/asio/signal_set.hpp>
 #include <boost/asio/steady_timer.hpp>
 
+#include <algorithm>
 #include <chrono>
 #include <csignal>
 #include <filesystem>
@@ -14,6 +15,7 @@
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/files/journal.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/ingest_ack_codec.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/service/match_registry.hpp"
@@ -36,6 +38,24 @@ constexpr int kDrainBatch = 512;
 // Largest inbound message ZeroMQ accepts at all (bigger: the peer is disconnected). Buffers
 // between the decoder's own limit and this are received, counted as oversize and dropped.
 constexpr std::int64_t kMaxIngestMessageBytes = 1 << 20;
+// At shutdown, what the ingest socket already holds is drained, journaled and acknowledged for
+// at most this long (a feed that keeps sending must not hold the exit up for ever).
+constexpr auto kShutdownDrain = std::chrono::seconds(2);
+// How long closing waits for the last acknowledgements to leave.
+constexpr int kIngestLingerMs = 2000;
+
+// What became of one inbound message, as its acknowledgement tells the feed.
+enum class Intake : std::uint8_t {
+    durable,        // journaled (or applied, with no journal)
+    refused,        // never will be: not a valid message, or another shard's match
+    not_journaled,  // the journal write failed: not applied, not acknowledged, the feed resends
+};
+
+// Acknowledgements owed to one feed connection (the ingest ROUTER's routing id).
+struct OwedAcks {
+    std::string peer;
+    protocol::IngestAckContents ack;
+};
 
 void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, const char* domain) {
     socket.set(zmq::sockopt::zap_domain, domain);
@@ -53,7 +73,14 @@ struct LiveService::Impl {
 
     // Ingest: one buffer from the socket or the journal.
     void drain_ingest(zmq::socket_t& socket);
-    void handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal);
+    Intake handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal);
+    // Acknowledgements: owed as messages are handled, sent once the sync policy is met.
+    void owe_ack(const zmq::message_t& peer, std::uint64_t ticket, Intake intake);
+    void settle_acks();
+    void sync_journal_if_due();
+    void withhold_acks();
+    void send_acks();
+    void drain_before_exit();
     void replay();
 
     // Outbound.
@@ -86,10 +113,12 @@ struct LiveService::Impl {
     protocol::CounterSet counter_set;
     protocol::SnapshotReplyContents snapshot_reply;
     std::vector<zmq::message_t> request_frames;
+    std::vector<zmq::message_t> ingest_frames;
+    std::vector<OwedAcks> owed;  // one entry per feed with tickets since the last send
     boost::asio::steady_timer tick_timer{io};
     boost::asio::steady_timer counters_timer{io};
     boost::asio::steady_timer sync_timer{io};
-    boost::asio::signal_set signals{io, SIGINT, SIGTERM};
+    boost::asio::signal_set signals{io, SIGINT, SIGTERM, SIGQUIT};
     bool replaying = false;
     bool stopping = false;
 };
@@ -118,10 +147,13 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
         replay();
     }
 
-    zmq::socket_t pull(context, zmq::socket_type::pull);
+    // ROUTER: each feed connection has a routing id, so acknowledgements go back to the feed
+    // that sent the messages. Feeds connect a DEALER.
+    zmq::socket_t pull(context, zmq::socket_type::router);
     pull.set(zmq::sockopt::rcvhwm, config.ingest_high_water_mark);
+    pull.set(zmq::sockopt::sndhwm, 10000);  // acknowledgements to a feed that does not read them
     pull.set(zmq::sockopt::maxmsgsize, kMaxIngestMessageBytes);
-    pull.set(zmq::sockopt::linger, 0);
+    pull.set(zmq::sockopt::linger, kIngestLingerMs);
     if (config.curve_enabled()) make_curve_server(pull, secret, transport::kIngestZapDomain);
     pull.bind(config.ingest_endpoint);
 
@@ -183,7 +215,7 @@ void LiveService::Impl::replay() {
 
 void LiveService::Impl::start() {
     signals.async_wait([this](const boost::system::error_code& ec, int signal) {
-        if (!ec) stop(signal == SIGINT ? "SIGINT" : "SIGTERM");
+        if (!ec) stop(signal == SIGINT ? "SIGINT" : signal == SIGTERM ? "SIGTERM" : "SIGQUIT");
     });
     if (zap) zap->start();
     ingest->start([this](zmq::socket_t& s) { drain_ingest(s); });
@@ -205,34 +237,138 @@ void LiveService::Impl::stop(const char* why) {
     signals.cancel();
     ingest->stop();
     snapshot->stop();
+    drain_before_exit();
     if (zap) zap->stop();
     if (journal) {
         try {
             journal->sync();
         } catch (const files::JournalError& e) {
-            spdlog::error("{}", e.what());
+            spdlog::error("{}; acknowledgements withheld", e.what());
+            withhold_acks();
         }
     }
+    send_acks();
     publish_counters();  // the final figures, on the topic and in the log
     io.stop();
 }
 
 void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
     for (int i = 0; i < kDrainBatch; ++i) {
-        zmq::message_t frame;
-        if (!socket.recv(frame, zmq::recv_flags::dontwait)) return;
+        // Envelope: [routing id] then [FeedMessage] (no acknowledgement wanted) or
+        // [DeliveryTicket] [FeedMessage].
+        zmq::message_t peer;
+        if (!socket.recv(peer, zmq::recv_flags::dontwait)) break;
         ++counters.frames_received;
-        if (frame.more()) {
-            // A feed message is one frame: drop the whole multipart message.
-            ++counters.multipart_dropped;
-            while (frame.more() && socket.recv(frame, zmq::recv_flags::dontwait)) {}
-            continue;
+        ingest_frames.clear();
+        bool more = peer.more();
+        while (more) {
+            zmq::message_t frame;
+            if (!socket.recv(frame, zmq::recv_flags::dontwait)) break;
+            more = frame.more();
+            if (ingest_frames.size() < 3) ingest_frames.push_back(std::move(frame));
         }
-        handle_buffer({frame.data<std::uint8_t>(), frame.size()}, false);
+        const auto bytes = [](const zmq::message_t& m) {
+            return std::span<const std::uint8_t>(m.data<std::uint8_t>(), m.size());
+        };
+        if (ingest_frames.size() == 1) {
+            handle_buffer(bytes(ingest_frames[0]), false);
+        } else if (ingest_frames.size() == 2) {
+            const auto ticket = protocol::decode_delivery_ticket(bytes(ingest_frames[0]));
+            if (!ticket.ok()) {
+                // No number to answer with: counted and dropped; the feed resends it.
+                const std::uint64_t seen = ++counters.bad_ticket;
+                if (seen <= 10 || seen % 1000 == 0)
+                    spdlog::warn("dropped an inbound message: its delivery ticket {} ({} so far)",
+                                 ticket.detail, seen);
+                continue;
+            }
+            owe_ack(peer, *ticket.value, handle_buffer(bytes(ingest_frames[1]), false));
+        } else {
+            ++counters.multipart_dropped;
+        }
+    }
+    if (!stopping) settle_acks();
+}
+
+void LiveService::Impl::owe_ack(const zmq::message_t& peer, std::uint64_t ticket, Intake intake) {
+    if (intake == Intake::not_journaled) return;  // nothing promised: the feed resends
+    const std::string_view id(peer.data<char>(), peer.size());
+    auto it = std::find_if(owed.begin(), owed.end(),
+                           [&](const OwedAcks& o) { return o.peer == id; });
+    if (it == owed.end()) {
+        owed.push_back({std::string(id), {}});
+        it = owed.end() - 1;
+    }
+    protocol::add_ticket(intake == Intake::durable ? it->ack.durable : it->ack.refused, ticket);
+}
+
+void LiveService::Impl::sync_journal_if_due() {
+    try {
+        journal->sync_if_due(SteadyClock::now());
+    } catch (const files::JournalError& e) {
+        // The records are written; whether they reached the disk is unknown: promise nothing
+        // for them, and the feeds resend (duplicates are harmless).
+        spdlog::error("{}; acknowledgements withheld", e.what());
+        withhold_acks();
     }
 }
 
-void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal) {
+void LiveService::Impl::withhold_acks() {
+    for (const OwedAcks& o : owed) {
+        for (const auto& r : o.ack.durable) counters.acks_withheld += r.last - r.first + 1;
+    }
+    owed.clear();
+}
+
+void LiveService::Impl::settle_acks() {
+    if (owed.empty()) return;
+    if (journal && journal->awaiting_sync()) {
+        sync_journal_if_due();
+        if (journal->awaiting_sync()) return;  // the sync timer sends them
+    }
+    send_acks();
+}
+
+void LiveService::Impl::send_acks() {
+    zmq::socket_t& socket = ingest->socket();
+    for (OwedAcks& o : owed) {
+        // Split so that no acknowledgement holds more ranges than the decoder accepts.
+        std::size_t d = 0, r = 0;
+        while (d < o.ack.durable.size() || r < o.ack.refused.size()) {
+            protocol::IngestAckContents part;
+            const std::size_t dn = std::min(o.ack.durable.size() - d, protocol::kMaxAckRanges);
+            const std::size_t rn = std::min(o.ack.refused.size() - r, protocol::kMaxAckRanges);
+            part.durable.assign(o.ack.durable.begin() + static_cast<std::ptrdiff_t>(d),
+                                o.ack.durable.begin() + static_cast<std::ptrdiff_t>(d + dn));
+            part.refused.assign(o.ack.refused.begin() + static_cast<std::ptrdiff_t>(r),
+                                o.ack.refused.begin() + static_cast<std::ptrdiff_t>(r + rn));
+            d += dn;
+            r += rn;
+            for (const auto& x : part.durable) counters.acked_durable += x.last - x.first + 1;
+            for (const auto& x : part.refused) counters.acked_refused += x.last - x.first + 1;
+            const std::vector<std::uint8_t> bytes = protocol::encode_ingest_ack(part);
+            // A feed that has gone, or stopped reading, loses its acknowledgements (ROUTER
+            // drops them); it resends what it never heard about.
+            socket.send(zmq::const_buffer(o.peer.data(), o.peer.size()),
+                        zmq::send_flags::sndmore | zmq::send_flags::dontwait);
+            socket.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
+            ++counters.acks_sent;
+        }
+    }
+    owed.clear();
+}
+
+void LiveService::Impl::drain_before_exit() {
+    // What the ingest socket already holds: journaled now, acknowledged after the final sync.
+    const auto until = SteadyClock::now() + kShutdownDrain;
+    zmq::socket_t& socket = ingest->socket();
+    while (SteadyClock::now() < until &&
+           (socket.get(zmq::sockopt::events) & ZMQ_POLLIN) != 0) {
+        drain_ingest(socket);
+    }
+}
+
+Intake LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool from_journal) {
     const auto received_at = SteadyClock::now();
     const std::int64_t receive_us = system::wall_clock_us();
     protocol::FeedDecodeResult decoded = protocol::decode_feed_message(bytes);
@@ -243,11 +379,11 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
             spdlog::warn("dropped an inbound buffer of {} bytes{}: {} ({} so far)", bytes.size(),
                          from_journal ? " from the journal" : "", decoded.detail, seen);
         }
-        return;
+        return Intake::refused;
     }
     if (!protocol::owns(shard, decoded.message->header.match_id)) {
         ++counters.not_our_shard;
-        return;
+        return Intake::refused;
     }
     // Written before it is applied: what the engine has seen, the journal has.
     // A message that cannot be journalled (disk full) is not applied either: the state stays
@@ -260,7 +396,7 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
             const std::uint64_t failed = ++counters.journal_write_failed;
             if (failed <= 10 || failed % 1000 == 0)
                 spdlog::error("{}; message not applied ({} so far)", e.what(), failed);
-            return;
+            return Intake::not_journaled;
         }
         ++counters.journal_frames;
     }
@@ -286,6 +422,7 @@ void LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, bool 
     for (const std::uint64_t id : touched) {
         if (LiveMatch* m = registry.find(id)) publish(*m, false, received_at);
     }
+    return Intake::durable;
 }
 
 protocol::UpdateMeta LiveService::Impl::meta_of(const LiveMatch& m) {
@@ -419,11 +556,8 @@ void LiveService::Impl::schedule_journal_sync() {
     sync_timer.expires_after(std::chrono::milliseconds(config.journal_sync_interval_ms));
     sync_timer.async_wait([this](const boost::system::error_code& ec) {
         if (ec || stopping) return;
-        try {
-            journal->sync_if_due(SteadyClock::now());
-        } catch (const files::JournalError& e) {  // the frames are written; only durability is late
-            spdlog::error("{}", e.what());
-        }
+        sync_journal_if_due();
+        settle_acks();  // what the sync made durable
         schedule_journal_sync();
     });
 }

@@ -23,7 +23,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
 // The one table of keys.
 const std::array<ConfigKey, 21> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
-     "PULL socket feeds push to"},
+     "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
      "PUB socket subscribers connect to"},
     {"snapshot_endpoint", "--snapshot", ConfigValue::endpoint, &S::snapshot_endpoint,

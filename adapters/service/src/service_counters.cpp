@@ -25,6 +25,7 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
                 protocol::decode_error_name(static_cast<protocol::DecodeError>(i)),
             s.decode_rejected[i]);
     }
+    add("ingest.bad_ticket", s.bad_ticket);
     add("ingest.not_our_shard", s.not_our_shard);
     add("ingest.bad_setup", s.bad_setup);
     add("ingest.waiting_for_setup", s.waiting);
@@ -52,6 +53,10 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("journal.damaged_records", s.journal_damaged_records);
     add("journal.damaged_bytes", s.journal_damaged_bytes);
     add("journal.write_failed", s.journal_write_failed);
+    add("ack.messages", s.acks_sent);
+    add("ack.durable", s.acked_durable);
+    add("ack.refused", s.acked_refused);
+    add("ack.withheld", s.acks_withheld);
     add("curve.accepted", s.curve_accepted);
     add("curve.refused", s.curve_refused);
     add("matches", s.matches);

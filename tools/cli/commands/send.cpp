@@ -6,7 +6,9 @@
 // read. With --mapping RULES the lines are a data provider's own JSON, mapped by a rules file
 // (protocol/feed_mapping.hpp) before they are sent. A bad line is reported with its line number and
 // field, counted and skipped (exit 1 at the end). Pacing: as fast as possible, at a fixed rate, or
-// by the match clock.
+// by the match clock. Every message waits for the service's acknowledgement that it is journaled
+// (adapters/clients/acked_sender.hpp): send exits 1 saying how many never were (--no-ack: fire
+// and forget).
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
@@ -19,6 +21,7 @@
 #include <zmq.hpp>
 
 #include "command_registry.hpp"
+#include "liveprob/clients/acked_sender.hpp"
 #include "liveprob/clients/feed_input.hpp"
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
@@ -43,6 +46,10 @@ struct SendFlags {
     int linger_ms = 5000;
     bool follow = false;
     std::string mapping;  // a provider's rules file: lines are the provider's, mapped first
+    bool no_ack = false;
+    std::size_t window = 20'000;
+    int resend_ms = 5'000;
+    int give_up_ms = 30'000;
 };
 
 // Where `stop` comes from: SIGINT or SIGTERM end a followed feed (or a stalled read) cleanly.
@@ -120,6 +127,47 @@ private:
     std::uint64_t refused_ = 0, skipped_ = 0;
 };
 
+clients::FeedPacer pacer_for(const SendFlags& f) {
+    return f.rate > 0.0    ? clients::FeedPacer::at_rate(f.rate)
+           : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
+                           : clients::FeedPacer::as_fast_as_possible();
+}
+
+// Each message waits for room in its shard's window; at the end, for every answer.
+int send_acknowledged(const SendFlags& f, FeedMessages& source,
+                      const clients::CurveClientKeys& keys) {
+    clients::AckedSenderOptions options;
+    options.keys = keys;
+    options.window = f.window;
+    options.resend_after = std::chrono::milliseconds(f.resend_ms);
+    options.give_up_after = std::chrono::milliseconds(f.give_up_ms);
+    zmq::context_t context(1);
+    clients::AckedSender sender(context, f.to, options);
+    clients::FeedPacer pacer = pacer_for(f);
+    while (!sender.gave_up()) {
+        auto m = source.next();
+        if (!m) break;
+        pacer.wait_for(*m);
+        if (f.stamp) m->header.source_time_us = liveprob::system::wall_clock_us();
+        sender.send(m->header.match_id, protocol::encode_feed_message(*m));
+    }
+    sender.finish();
+    const std::string where =
+        sender.shard_count() == 1 ? f.to.front() : fmt::format("{} shards", sender.shard_count());
+    std::string line = fmt::format("sent {} messages to {}: {} of {} acknowledged", sender.handed(),
+                                   where, sender.durable(), sender.handed());
+    if (sender.refused() > 0)
+        line += fmt::format(", {} refused by the service (see its log)", sender.refused());
+    if (sender.unanswered() > 0)
+        line += fmt::format(", {} never acknowledged", sender.unanswered());
+    if (sender.resent() > 0) line += fmt::format(" ({} sent again)", sender.resent());
+    if (source.refused() > 0) line += fmt::format("; {} refused (see above)", source.refused());
+    std::cout << line << std::endl;
+    if (sender.gave_up()) std::cerr << "send: gave up: " << sender.give_up_reason() << std::endl;
+    const bool all = sender.durable() == sender.handed();
+    return all && source.refused() == 0 ? kExitOk : kExitFailure;
+}
+
 int run_send(const SendFlags& f) {
     if (f.speed < 0.0 || f.rate < 0.0) throw UsageError("--speed and --rate must not be negative");
     if (f.speed > 0.0 && f.rate > 0.0) throw UsageError("--speed and --rate are alternatives");
@@ -131,16 +179,16 @@ int run_send(const SendFlags& f) {
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
     install_stop_handlers();
     FeedMessages source(f);
+    const clients::CurveClientKeys keys = clients::load_curve_client_keys(f.server_key, f.client_key);
+    if (!f.no_ack) return send_acknowledged(f, source, keys);
     clients::ShardSenderOptions options;
-    options.keys = clients::load_curve_client_keys(f.server_key, f.client_key);
+    options.keys = keys;
     options.linger_ms = f.linger_ms;
 
     zmq::context_t context(1);
     clients::ShardSender sender(context, f.to, options);
 
-    clients::FeedPacer pacer = f.rate > 0.0    ? clients::FeedPacer::at_rate(f.rate)
-                               : f.speed > 0.0 ? clients::FeedPacer::by_match_clock(f.speed)
-                                               : clients::FeedPacer::as_fast_as_possible();
+    clients::FeedPacer pacer = pacer_for(f);
     std::uint64_t sent = 0;
     // One message read, then sent: the next is read only once this one is handed to the socket,
     // so a slow service (a full queue) holds the reading back.
@@ -199,8 +247,23 @@ const Registration registration{{
                      "set each message's source time to the moment it is sent");
         sub.add_option("--server-key", f->server_key, "CURVE: the service's .public key file");
         sub.add_option("--client-key", f->client_key, "CURVE: this feed's .secret key file");
-        sub.add_option("--linger-ms", f->linger_ms, "how long to wait at exit for unsent messages")
+        sub.add_option("--linger-ms", f->linger_ms,
+                       "--no-ack: how long to wait at exit for unsent messages")
             ->check(CLI::Range(0, 600000));
+        sub.add_flag("--no-ack", f->no_ack,
+                     "fire and forget: do not wait for the service to acknowledge (exit 0 even "
+                     "if nothing arrived)");
+        sub.add_option("--window", f->window,
+                       "messages per shard sent but not yet acknowledged (default 20000)")
+            ->check(CLI::Range(1, 10'000'000));
+        sub.add_option("--resend-ms", f->resend_ms,
+                       "send unacknowledged messages again after this long without an "
+                       "acknowledgement (default 5000)")
+            ->check(CLI::Range(1, 3'600'000));
+        sub.add_option("--give-up-ms", f->give_up_ms,
+                       "stop, and exit 1 naming how many were never acknowledged, after this long "
+                       "without an acknowledgement (default 30000)")
+            ->check(CLI::Range(1, 3'600'000));
         return [f] { return run_send(*f); };
     },
 }};

@@ -1,9 +1,9 @@
-// Pushes encoded feed messages to engine shards: one PUSH socket per shard's ingest endpoint
-// (given in shard order, 0/N first), each message to the shard that owns its match id
-// (protocol/sharding.hpp), so `serve --shard K/N` only ever receives its own matches. With one
-// endpoint it is a plain PUSH. A shard that is down holds up only its own queue: every socket
-// is separate, and a connecting PUSH keeps what it could not deliver (up to the high-water
-// mark) until the shard is back.
+// Pushes encoded feed messages to engine shards without asking for acknowledgements (see
+// acked_sender.hpp for that): one DEALER socket per shard's ingest endpoint (given in shard
+// order, 0/N first), each message one frame, to the shard that owns its match id
+// (protocol/sharding.hpp), so `serve --shard K/N` only ever receives its own matches. A shard
+// that is down holds up only its own queue: every socket is separate, and a connecting DEALER
+// keeps what it could not deliver (up to the high-water mark) until the shard is back.
 #pragma once
 
 #include <cstdint>

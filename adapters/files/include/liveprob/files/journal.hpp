@@ -87,6 +87,10 @@ public:
     void sync();
     // Called by the loop's timer; syncs when the policy is `interval` and the interval has passed.
     void sync_if_due(std::chrono::steady_clock::time_point now);
+    // True while records written under `interval` wait for their fsync: acknowledging them to a
+    // feed now would promise more than the policy gives (`none` promises the write alone,
+    // `every_message` syncs in append()).
+    bool awaiting_sync() const noexcept { return sync_ == JournalSync::interval && dirty_; }
 
     // Closes the segment being written (the next append begins a new one), then rewrites every
     // segment keeping only the records `keep` says yes to: a segment left with none is removed,

@@ -47,7 +47,7 @@ struct ServiceConfig {
     std::uint32_t journal_segment_kib = 64 * 1024;  // segments rotate at this size
 
     // Back-pressure: messages queued per subscriber before ZeroMQ drops for that subscriber,
-    // and inbound messages queued before feeds block (PUSH) on the ingest socket.
+    // and inbound messages queued before feeds block on the ingest socket.
     std::int32_t publish_high_water_mark = 20000;
     std::int32_t ingest_high_water_mark = 100000;
 

@@ -16,7 +16,12 @@ inline constexpr std::size_t kDecodeErrorKinds = 8;  // protocol::DecodeError va
 
 struct ServiceCounters {
     std::uint64_t frames_received = 0;    // ingest messages of any kind
-    std::uint64_t multipart_dropped = 0;  // feeds send one frame per message
+    std::uint64_t multipart_dropped = 0;  // a message, or a ticket and a message, per send
+    std::uint64_t bad_ticket = 0;         // a delivery ticket that failed to decode
+    std::uint64_t acks_sent = 0;          // acknowledgement messages (each names ranges)
+    std::uint64_t acked_durable = 0;      // tickets acknowledged as journaled
+    std::uint64_t acked_refused = 0;      // tickets acknowledged as refused for good
+    std::uint64_t acks_withheld = 0;      // tickets never acknowledged (a failed fsync)
     std::array<std::uint64_t, kDecodeErrorKinds> decode_rejected{};  // by protocol::DecodeError
     std::uint64_t not_our_shard = 0;
     std::uint64_t bad_setup = 0;
