@@ -104,9 +104,10 @@ void wait_for_journal(const std::filesystem::path& journal, std::uint64_t bytes,
 
 }  // namespace
 
-TEST_CASE("serve killed or stopped mid-burst: what send reports acknowledged is journaled and "
-          "applied after restart, and send reports the rest",
-          "[integration][serve][send][ack][sockets]") {
+TEST_CASE(
+    "serve killed or stopped mid-burst: what send reports acknowledged is journaled and "
+    "applied after restart, and send reports the rest",
+    "[integration][serve][send][ack][sockets]") {
     const int sig = GENERATE(SIGKILL, SIGTERM);
     const auto dir = scratch_dir(fmt::format("acked-burst-{}", sig));
     const auto feed = burst_feed();
@@ -117,10 +118,10 @@ TEST_CASE("serve killed or stopped mid-burst: what send reports acknowledged is 
     ServeProcess first(dir, "serve1", {"--journal", journal.string(), "--tick-ms", "600000"},
                        {{"ingest", ingest}});
     // Paced (not a timing check) so that the signal lands while the burst is on its way.
-    ChildProcess send({liveprob_binary().string(), "send", "--to", ingest,
-                       (dir / "burst.frames").string(), "--rate", "15000", "--resend-ms",
-                       "600000", "--give-up-ms", "4000"},
-                      dir / "send.out", dir / "send.err");
+    ChildProcess send(
+        {liveprob_binary().string(), "send", "--to", ingest, (dir / "burst.frames").string(),
+         "--rate", "15000", "--resend-ms", "600000", "--give-up-ms", "4000"},
+        dir / "send.out", dir / "send.err");
     wait_for_journal(journal, 400'000, send);  // about a tenth of the burst
     first.process().signal(sig);
     const auto served = first.process().wait(60s);
@@ -147,9 +148,10 @@ TEST_CASE("serve killed or stopped mid-burst: what send reports acknowledged is 
     check_acknowledged_kept(feed, acked, journal, second);
 }
 
-TEST_CASE("send resends what a killed serve never acknowledged once serve is back, and then "
-          "every message is acknowledged and applied",
-          "[integration][serve][send][ack][sockets]") {
+TEST_CASE(
+    "send resends what a killed serve never acknowledged once serve is back, and then "
+    "every message is acknowledged and applied",
+    "[integration][serve][send][ack][sockets]") {
     const auto dir = scratch_dir("acked-resend");
     const auto feed = burst_feed();
     write_frames(dir / "burst.frames", feed);
@@ -157,12 +159,13 @@ TEST_CASE("send resends what a killed serve never acknowledged once serve is bac
     const std::string ingest = fmt::format("ipc://{}", (dir / "ingest.sock").string());
 
     auto first = std::make_unique<ServeProcess>(
-        dir, "serve1", std::vector<std::string>{"--journal", journal.string(), "--tick-ms", "600000"},
+        dir, "serve1",
+        std::vector<std::string>{"--journal", journal.string(), "--tick-ms", "600000"},
         std::map<std::string, std::string>{{"ingest", ingest}});
-    ChildProcess send({liveprob_binary().string(), "send", "--to", ingest,
-                       (dir / "burst.frames").string(), "--rate", "15000", "--resend-ms", "1000",
-                       "--give-up-ms", "120000"},
-                      dir / "send.out", dir / "send.err");
+    ChildProcess send(
+        {liveprob_binary().string(), "send", "--to", ingest, (dir / "burst.frames").string(),
+         "--rate", "15000", "--resend-ms", "1000", "--give-up-ms", "120000"},
+        dir / "send.out", dir / "send.err");
     wait_for_journal(journal, 400'000, send);
     first->process().signal(SIGKILL);
     REQUIRE(first->process().wait(60s).has_value());
@@ -197,9 +200,10 @@ TEST_CASE("send exits non-zero, saying none was acknowledged, when nobody listen
     CHECK(said.find("gave up") != std::string::npos);
 }
 
-TEST_CASE("send exits non-zero when its CURVE key is not on serve's allow-list or the server key "
-          "is wrong",
-          "[integration][send][ack][curve][sockets]") {
+TEST_CASE(
+    "send exits non-zero when its CURVE key is not on serve's allow-list or the server key "
+    "is wrong",
+    "[integration][send][ack][curve][sockets]") {
     const auto dir = scratch_dir("acked-curve");
     const std::string bin = liveprob_binary().string();
     std::filesystem::create_directories(dir / "keys");
@@ -209,10 +213,10 @@ TEST_CASE("send exits non-zero when its CURVE key is not on serve's allow-list o
         REQUIRE(keys.wait(30s) == 0);
     }
     std::filesystem::copy_file(dir / "keys" / "feed.public", dir / "allowed.txt");
-    ServeProcess serve(dir, "serve",
-                       {"--server-secret-key", (dir / "keys" / "server.secret").string(),
-                        "--allowed-feed-keys", (dir / "allowed.txt").string(), "--tick-ms",
-                        "600000"});
+    ServeProcess serve(
+        dir, "serve",
+        {"--server-secret-key", (dir / "keys" / "server.secret").string(), "--allowed-feed-keys",
+         (dir / "allowed.txt").string(), "--tick-ms", "600000"});
     const auto feed = invented_match(88);
     write_frames(dir / "match.frames", feed);
     const auto run = [&](const std::string& server_key, const std::string& client_key) {

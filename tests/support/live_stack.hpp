@@ -1,6 +1,6 @@
 // `liveprob serve` (and optionally `liveprob gateway`) as separate processes on ephemeral
-// ports, a feed sender (DEALER to serve's ingest, no acknowledgements) and a recorder of what serve published (SUB),
-// for tests that check a client against what the engine really published.
+// ports, a feed sender (DEALER to serve's ingest, no acknowledgements) and a recorder of what serve
+// published (SUB), for tests that check a client against what the engine really published.
 #pragma once
 
 #include <zmq.hpp>

@@ -79,17 +79,19 @@ struct Child {
     }
 };
 
-// The baseline: a process that forwards every ingest message to PUB untouched.
+// The baseline: a process that forwards every ingest message to PUB untouched (a ROUTER, like
+// serve's ingest: its first frame, the feed's routing id, is dropped).
 void run_relay(const std::string& pull_at, const std::string& pub_at) {
     zmq::context_t context(1);
-    zmq::socket_t pull(context, zmq::socket_type::pull);
+    zmq::socket_t pull(context, zmq::socket_type::router);
     zmq::socket_t pub(context, zmq::socket_type::pub);
     pull.bind(pull_at);
     pub.bind(pub_at);
     zmq::message_t topic(std::string_view("match.relay"));
     for (;;) {
+        zmq::message_t peer;
         zmq::message_t m;
-        if (!pull.recv(m)) continue;
+        if (!pull.recv(peer) || !peer.more() || !pull.recv(m)) continue;
         zmq::message_t t(topic.data(), topic.size());
         pub.send(t, zmq::send_flags::sndmore);
         pub.send(m, zmq::send_flags::none);

@@ -293,8 +293,8 @@ void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
 void LiveService::Impl::owe_ack(const zmq::message_t& peer, std::uint64_t ticket, Intake intake) {
     if (intake == Intake::not_journaled) return;  // nothing promised: the feed resends
     const std::string_view id(peer.data<char>(), peer.size());
-    auto it = std::find_if(owed.begin(), owed.end(),
-                           [&](const OwedAcks& o) { return o.peer == id; });
+    auto it =
+        std::find_if(owed.begin(), owed.end(), [&](const OwedAcks& o) { return o.peer == id; });
     if (it == owed.end()) {
         owed.push_back({std::string(id), {}});
         it = owed.end() - 1;
@@ -362,8 +362,7 @@ void LiveService::Impl::drain_before_exit() {
     // What the ingest socket already holds: journaled now, acknowledged after the final sync.
     const auto until = SteadyClock::now() + kShutdownDrain;
     zmq::socket_t& socket = ingest->socket();
-    while (SteadyClock::now() < until &&
-           (socket.get(zmq::sockopt::events) & ZMQ_POLLIN) != 0) {
+    while (SteadyClock::now() < until && (socket.get(zmq::sockopt::events) & ZMQ_POLLIN) != 0) {
         drain_ingest(socket);
     }
 }

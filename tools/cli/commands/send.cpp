@@ -179,7 +179,8 @@ int run_send(const SendFlags& f) {
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
     install_stop_handlers();
     FeedMessages source(f);
-    const clients::CurveClientKeys keys = clients::load_curve_client_keys(f.server_key, f.client_key);
+    const clients::CurveClientKeys keys =
+        clients::load_curve_client_keys(f.server_key, f.client_key);
     if (!f.no_ack) return send_acknowledged(f, source, keys);
     clients::ShardSenderOptions options;
     options.keys = keys;

@@ -40,15 +40,17 @@ public:
     // Waits until every message is answered, or the sender gives up. True when all were.
     bool finish();
 
-    std::uint64_t handed() const noexcept { return handed_; }        // messages given to send()
-    std::uint64_t durable() const noexcept { return durable_; }      // acknowledged as journaled
-    std::uint64_t refused() const noexcept { return refused_; }      // acknowledged as refused
-    std::uint64_t resent() const noexcept { return resent_; }        // sends after the first
-    std::uint64_t bad_acks() const noexcept { return bad_acks_; }    // answers that failed to decode
+    std::uint64_t handed() const noexcept { return handed_; }      // messages given to send()
+    std::uint64_t durable() const noexcept { return durable_; }    // acknowledged as journaled
+    std::uint64_t refused() const noexcept { return refused_; }    // acknowledged as refused
+    std::uint64_t resent() const noexcept { return resent_; }      // sends after the first
+    std::uint64_t bad_acks() const noexcept { return bad_acks_; }  // answers that failed to decode
     std::uint64_t unanswered() const noexcept { return handed_ - durable_ - refused_; }
     bool gave_up() const noexcept { return gave_up_; }
     const std::string& give_up_reason() const noexcept { return give_up_reason_; }
-    std::uint32_t shard_count() const noexcept { return static_cast<std::uint32_t>(shards_.size()); }
+    std::uint32_t shard_count() const noexcept {
+        return static_cast<std::uint32_t>(shards_.size());
+    }
 
 private:
     using Clock = std::chrono::steady_clock;
@@ -60,8 +62,8 @@ private:
     struct Shard {
         std::string endpoint;
         zmq::socket_t socket;
-        std::deque<Pending> window;  // tickets base, base + 1, ...
-        std::uint64_t base = 1;      // ticket of window.front()
+        std::deque<Pending> window;   // tickets base, base + 1, ...
+        std::uint64_t base = 1;       // ticket of window.front()
         std::size_t next_unsent = 0;  // index of the first message not (re)sent yet
         std::uint64_t outstanding = 0;
         Clock::time_point last_answer{};  // or when the window last became non-empty
