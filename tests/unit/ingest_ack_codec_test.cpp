@@ -17,7 +17,7 @@ TEST_CASE("a delivery ticket round-trips and is refused as an acknowledgement", 
 
 TEST_CASE("an acknowledgement round-trips its ranges", "[protocol][ack]") {
     IngestAckContents ack;
-    for (std::uint64_t t : {1, 2, 3, 7, 8, 20}) add_ticket(ack.durable, t);
+    for (std::uint64_t t : {1u, 2u, 3u, 7u, 8u, 20u}) add_ticket(ack.durable, t);
     add_ticket(ack.refused, 5);
     CHECK(ack.durable == std::vector<TicketRange>{{1, 3}, {7, 8}, {20, 20}});
     const auto decoded = decode_ingest_ack(encode_ingest_ack(ack));
