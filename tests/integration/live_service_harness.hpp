@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <chrono>
 #include <cstdlib>
 #include <filesystem>
@@ -51,9 +52,12 @@ public:
                                          "--snapshot",
                                          endpoint("snapshot"),
                                          "--endpoints-file",
-                                         endpoints_file.string(),
-                                         "--log-level",
-                                         "info"};
+                                         endpoints_file.string()};
+        // A configuration file given in `extra` says its own log level (a flag would win).
+        if (std::find(extra.begin(), extra.end(), "--config") == extra.end()) {
+            args.push_back("--log-level");
+            args.push_back("info");
+        }
         args.insert(args.end(), extra.begin(), extra.end());
         log_ = dir / (name + ".log");
         process_ = std::make_unique<ChildProcess>(args, dir / (name + ".out"), log_);

@@ -16,6 +16,7 @@ AckedSender::AckedSender(zmq::context_t& context, const std::vector<std::string>
         throw std::invalid_argument("more than 1024 shard endpoints");
     if (options.window == 0) throw std::invalid_argument("the window must hold a message");
     shards_.reserve(ingest_endpoints.size());
+    handed_per_shard_.assign(ingest_endpoints.size(), 0);
     for (const std::string& endpoint : ingest_endpoints) {
         Shard& shard = shards_.emplace_back();
         shard.endpoint = endpoint;
@@ -41,8 +42,14 @@ bool AckedSender::send(std::uint64_t match_id, std::span<const std::uint8_t> byt
     if (shard.outstanding == 0) shard.last_answer = Clock::now();
     shard.window.push_back({std::vector<std::uint8_t>(bytes.begin(), bytes.end())});
     ++shard.outstanding;
+    ++handed_per_shard_[static_cast<std::size_t>(&shard - shards_.data())];
+    // Out before the caller reads on (a live feed's next line may be minutes away): while the
+    // connection is down this waits, as a full queue would, until it is up or the sender gives
+    // up.
     flush(shard);
     pump(std::chrono::milliseconds(0));
+    while (!gave_up_ && shard.next_unsent < shard.window.size())
+        pump(std::chrono::milliseconds(50));
     return !gave_up_;
 }
 

@@ -66,10 +66,12 @@ void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, con
 }  // namespace
 
 struct LiveService::Impl {
-    Impl(const ServiceConfig& config, const core::ModelParams& params);
+    Impl(const ServiceConfig& config, const core::ModelParams& params, ConfigSource reread);
 
     void start();
     void stop(const char* why);
+    void wait_for_reload();
+    void reload();
 
     // Ingest: one buffer from the socket or the journal.
     void drain_ingest(zmq::socket_t& socket);
@@ -119,16 +121,20 @@ struct LiveService::Impl {
     boost::asio::steady_timer counters_timer{io};
     boost::asio::steady_timer sync_timer{io};
     boost::asio::signal_set signals{io, SIGINT, SIGTERM, SIGQUIT};
+    boost::asio::signal_set reload_signals{io, SIGHUP};
+    ConfigSource reread;
     bool replaying = false;
     bool stopping = false;
 };
 
-LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params)
+LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params,
+                        ConfigSource reread_config)
     : config(cfg), shard(protocol::parse_shard_spec(cfg.shard)),
       publisher(context, zmq::socket_type::pub),
       registry(params,
                RegistryLimits{std::chrono::seconds(cfg.retention_s),
-                              std::chrono::seconds(cfg.waiting_ttl_s), cfg.match_message_cap}) {
+                              std::chrono::seconds(cfg.waiting_ttl_s), cfg.match_message_cap}),
+      reread(std::move(reread_config)) {
     validate_service_config(config);
     std::string secret;
     if (config.curve_enabled()) {
@@ -217,6 +223,7 @@ void LiveService::Impl::start() {
     signals.async_wait([this](const boost::system::error_code& ec, int signal) {
         if (!ec) stop(signal == SIGINT ? "SIGINT" : signal == SIGTERM ? "SIGTERM" : "SIGQUIT");
     });
+    wait_for_reload();
     if (zap) zap->start();
     ingest->start([this](zmq::socket_t& s) { drain_ingest(s); });
     snapshot->start([this](zmq::socket_t& s) { answer_snapshots(s); });
@@ -235,6 +242,7 @@ void LiveService::Impl::stop(const char* why) {
     counters_timer.cancel();
     sync_timer.cancel();
     signals.cancel();
+    reload_signals.cancel();
     ingest->stop();
     snapshot->stop();
     drain_before_exit();
@@ -250,6 +258,54 @@ void LiveService::Impl::stop(const char* why) {
     send_acks();
     publish_counters();  // the final figures, on the topic and in the log
     io.stop();
+}
+
+void LiveService::Impl::wait_for_reload() {
+    reload_signals.async_wait([this](const boost::system::error_code& ec, int) {
+        if (ec || stopping) return;
+        reload();
+        wait_for_reload();
+    });
+}
+
+void LiveService::Impl::reload() {
+    if (!reread) {
+        spdlog::info("SIGHUP: no configuration to re-read");
+        return;
+    }
+    ServiceConfig fresh;
+    try {
+        fresh = reread();
+        validate_service_config(fresh);
+    } catch (const std::exception& e) {
+        spdlog::error("SIGHUP: configuration not re-read, nothing changed: {}", e.what());
+        return;
+    }
+    if (fresh.log_level != config.log_level) {
+        spdlog::info("SIGHUP: log level {} -> {}", config.log_level, fresh.log_level);
+        spdlog::set_level(spdlog::level::from_str(fresh.log_level));
+        config.log_level = fresh.log_level;
+    }
+    if (zap) {  // CURVE is on, so the (validated) configuration names an allow-list
+        try {
+            auto allowed = transport::read_allow_list(fresh.curve_allowed_keys_file);
+            spdlog::info("SIGHUP: allow-list {} read: {} feed key(s)",
+                         fresh.curve_allowed_keys_file, allowed.size());
+            zap->allow(std::move(allowed));
+            config.curve_allowed_keys_file = fresh.curve_allowed_keys_file;
+        } catch (const std::exception& e) {
+            spdlog::error("SIGHUP: allow-list {} not read, the previous one stays: {}",
+                          fresh.curve_allowed_keys_file, e.what());
+        }
+    }
+    // Everything else takes a restart: named, so an operator is not left guessing.
+    for (const ConfigKey& key : config_keys()) {
+        if (key.name == "log_level") continue;
+        const bool changed =
+            std::visit([&](auto member) { return config.*member != fresh.*member; }, key.member);
+        if (changed) spdlog::warn("SIGHUP: {} changed; it takes effect at a restart", key.name);
+    }
+    spdlog::info("SIGHUP: reloaded; {} matches kept", registry.matches().size());
 }
 
 void LiveService::Impl::drain_ingest(zmq::socket_t& socket) {
@@ -556,13 +612,15 @@ void LiveService::Impl::schedule_journal_sync() {
     sync_timer.async_wait([this](const boost::system::error_code& ec) {
         if (ec || stopping) return;
         sync_journal_if_due();
-        settle_acks();  // what the sync made durable
+        settle_acks();      // what the sync made durable
+        ingest->recheck();  // sending the acknowledgements may have swallowed an arrival
         schedule_journal_sync();
     });
 }
 
-LiveService::LiveService(const ServiceConfig& config, const core::ModelParams& params)
-    : impl_(std::make_unique<Impl>(config, params)) {}
+LiveService::LiveService(const ServiceConfig& config, const core::ModelParams& params,
+                         ConfigSource reread)
+    : impl_(std::make_unique<Impl>(config, params, std::move(reread))) {}
 
 LiveService::~LiveService() = default;
 

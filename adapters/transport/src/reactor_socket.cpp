@@ -25,6 +25,15 @@ void ReactorSocket::stop() {
     }
 }
 
+void ReactorSocket::recheck() {
+    if (!running_) return;
+    boost::asio::post(io_, [this] {
+        if (!running_ || (socket_.get(zmq::sockopt::events) & ZMQ_POLLIN) == 0) return;
+        drain_(socket_);
+        recheck();  // more than one batch: again on the next turn
+    });
+}
+
 void ReactorSocket::wait_or_drain() {
     while (running_ && (socket_.get(zmq::sockopt::events) & ZMQ_POLLIN) != 0) {
         drain_(socket_);

@@ -153,7 +153,10 @@ int send_acknowledged(const SendFlags& f, FeedMessages& source,
     }
     sender.finish();
     const std::string where =
-        sender.shard_count() == 1 ? f.to.front() : fmt::format("{} shards", sender.shard_count());
+        sender.shard_count() == 1
+            ? f.to.front()
+            : fmt::format("{} shards ({} each, in shard order)", sender.shard_count(),
+                          fmt::join(sender.handed_per_shard(), ", "));
     std::string line = fmt::format("sent {} messages to {}: {} of {} acknowledged", sender.handed(),
                                    where, sender.durable(), sender.handed());
     if (sender.refused() > 0)

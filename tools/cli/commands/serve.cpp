@@ -21,19 +21,25 @@ struct ServeFlags {
     std::map<std::string_view, bool> switches;
 };
 
+// The file, then the flags over it (SIGHUP calls this again: the file may have changed).
+service::ServiceConfig read_config(const ServeFlags& f) {
+    service::ServiceConfig config;
+    if (!f.config_file.empty()) config = service::load_service_config(f.config_file);
+    for (const service::ConfigKey& key : service::config_keys()) {
+        if (key.value == service::ConfigValue::flag) {
+            if (f.switches.at(key.name)) service::set_config_value(config, key, "true", key.flag);
+        } else if (const auto& value = f.values.at(key.name)) {
+            service::set_config_value(config, key, *value, key.flag);
+        }
+    }
+    service::validate_service_config(config);
+    return config;
+}
+
 int run_serve(const ServeFlags& f) {
     service::ServiceConfig config;
     try {
-        if (!f.config_file.empty()) config = service::load_service_config(f.config_file);
-        for (const service::ConfigKey& key : service::config_keys()) {
-            if (key.value == service::ConfigValue::flag) {
-                if (f.switches.at(key.name))
-                    service::set_config_value(config, key, "true", key.flag);
-            } else if (const auto& value = f.values.at(key.name)) {
-                service::set_config_value(config, key, *value, key.flag);
-            }
-        }
-        service::validate_service_config(config);
+        config = read_config(f);
     } catch (const service::ConfigError& e) {
         throw UsageError(e.what());
     }
@@ -41,7 +47,7 @@ int run_serve(const ServeFlags& f) {
     const core::ModelParams params = config.params_file.empty()
                                          ? core::ModelParams{}
                                          : files::load_params_file(config.params_file);
-    service::LiveService live(config, params);
+    service::LiveService live(config, params, [&f] { return read_config(f); });
     live.run();
     return kExitOk;
 }

@@ -35,7 +35,8 @@ public:
                 const AckedSenderOptions& options);
 
     // Hands one encoded feed message of `match_id` to its shard, first waiting for room in that
-    // shard's window. False once the sender has given up (the message is counted, not sent).
+    // shard's window, and returns once it is on the socket (so a feed that reads on slowly has
+    // sent everything it read). False once the sender has given up (counted, not sent).
     bool send(std::uint64_t match_id, std::span<const std::uint8_t> bytes);
     // Waits until every message is answered, or the sender gives up. True when all were.
     bool finish();
@@ -46,6 +47,10 @@ public:
     std::uint64_t resent() const noexcept { return resent_; }      // sends after the first
     std::uint64_t bad_acks() const noexcept { return bad_acks_; }  // answers that failed to decode
     std::uint64_t unanswered() const noexcept { return handed_ - durable_ - refused_; }
+    // Messages given to send() per shard, in shard order.
+    const std::vector<std::uint64_t>& handed_per_shard() const noexcept {
+        return handed_per_shard_;
+    }
     bool gave_up() const noexcept { return gave_up_; }
     const std::string& give_up_reason() const noexcept { return give_up_reason_; }
     std::uint32_t shard_count() const noexcept {
@@ -80,6 +85,7 @@ private:
 
     AckedSenderOptions options_;
     std::vector<Shard> shards_;
+    std::vector<std::uint64_t> handed_per_shard_;
     std::uint64_t handed_ = 0, durable_ = 0, refused_ = 0, resent_ = 0, bad_acks_ = 0;
     bool gave_up_ = false;
     std::string give_up_reason_;

@@ -3,6 +3,7 @@
 // timers, and the signal handler. Operation, drop policy and topics: adapters/service/README.md.
 #pragma once
 
+#include <functional>
 #include <memory>
 
 #include "liveprob/core/params.hpp"
@@ -12,13 +13,20 @@ namespace liveprob::service {
 
 class LiveService {
 public:
+    // Reads the configuration again (serve's file and flags) for SIGHUP; throws ConfigError.
+    using ConfigSource = std::function<ServiceConfig()>;
+
     // Opens the journal, replays it, binds every socket (throws on any failure, naming it).
-    LiveService(const ServiceConfig& config, const core::ModelParams& params);
+    // Without `reread`, SIGHUP re-reads nothing (it is still caught: it never ends serve).
+    LiveService(const ServiceConfig& config, const core::ModelParams& params,
+                ConfigSource reread = {});
     ~LiveService();
     LiveService(const LiveService&) = delete;
     LiveService& operator=(const LiveService&) = delete;
 
-    // Runs until SIGINT or SIGTERM; returns after the journal is flushed and sockets closed.
+    // Runs until SIGTERM, SIGINT or SIGQUIT; returns after what was received is journaled and
+    // acknowledged, the journal flushed and sockets closed. SIGHUP applies a changed log level
+    // and re-reads the feed-key allow-list; every match stays.
     void run();
 
 private:

@@ -31,6 +31,9 @@ public:
     void start(DrainFunction drain);
     // Stops waiting and hands the descriptor back to ZeroMQ (Asio must never close it).
     void stop();
+    // Call after using the socket outside `drain` (a send there can swallow the descriptor's
+    // edge, and the wait would then sleep on messages already queued): drains what is waiting.
+    void recheck();
 
 private:
     void wait_or_drain();

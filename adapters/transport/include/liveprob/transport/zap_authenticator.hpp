@@ -27,6 +27,9 @@ public:
 
     void start();
     void stop() { socket_.stop(); }
+    // Replaces the allow-list (serve's SIGHUP). It rules the next handshakes; a feed already
+    // connected stays connected.
+    void allow(std::set<RawKey> allowed_feeds) { allowed_feeds_ = std::move(allowed_feeds); }
 
     std::uint64_t accepted() const noexcept { return accepted_; }
     std::uint64_t refused() const noexcept { return refused_; }
