@@ -3,6 +3,8 @@
 // engine run in this process on the same messages.
 #include <catch2/catch.hpp>
 
+#include <csignal>
+#include <memory>
 #include <random>
 
 #include "live_service_harness.hpp"
@@ -142,6 +144,54 @@ TEST_CASE("a whole match sent through send and serve reaches tap exactly as the 
     // The last update is the result: the final score with certainty.
     CHECK(json_number(lines.back(), "home_goals") == 2);
     CHECK(json_number(lines.back(), "away_goals") == 1);
+}
+
+TEST_CASE("tap stopped by SIGINT or SIGTERM exits 0 and prints its latency summary",
+          "[integration][serve][sockets][tap]") {
+    const auto dir = scratch_dir("tap-interrupted");
+    const auto feed = invented_match(303);
+    write_frames(dir / "feed.lpf", feed);
+    const auto expected = engine_outputs(feed);
+
+    ServeProcess serve(dir, "serve", {"--tick-ms", "600000", "--counters-ms", "100"});
+    const auto start_tap = [&](const std::string& name) {
+        return std::make_unique<ChildProcess>(
+            std::vector<std::string>{bin(), "tap", "--from", serve.publish(), "--match", "303",
+                                     "--format", "jsonl", "--events-only", "--counters",
+                                     "--latency"},
+            dir / (name + ".out"), dir / (name + ".err"));
+    };
+    auto by_int = start_tap("tap-int");
+    auto by_term = start_tap("tap-term");
+    const auto ready_by = std::chrono::steady_clock::now() + 20s;
+    for (auto* tap : {by_int.get(), by_term.get()}) {
+        while (tap->output().find("counters:") == std::string::npos) {
+            REQUIRE(std::chrono::steady_clock::now() < ready_by);
+            std::this_thread::sleep_for(20ms);
+        }
+    }
+    send_file(dir, serve.ingest(), dir / "feed.lpf");
+    for (auto* tap : {by_int.get(), by_term.get()}) {
+        while (update_lines(tap->output()).size() < expected.size()) {
+            REQUIRE(std::chrono::steady_clock::now() < ready_by + 20s);
+            std::this_thread::sleep_for(20ms);
+        }
+    }
+    // Both wait inside a receive when the signal comes (nothing more is sent).
+    by_int->signal(SIGINT);
+    by_term->signal(SIGTERM);
+    const std::string summary =
+        "latency receive-to-tap (us, n=" + std::to_string(expected.size()) + ")";
+    for (const auto& [tap, name] :
+         {std::pair{by_int.get(), "tap-int"}, {by_term.get(), "tap-term"}}) {
+        INFO(name);
+        CHECK(tap->wait(20s) == std::optional<int>(0));
+        const auto err = read_whole_file(dir / (std::string(name) + ".err"));
+        INFO(err);
+        CHECK(err.find(summary) != std::string::npos);
+        CHECK(err.find("receive-to-publish") != std::string::npos);
+        CHECK(err.find("error") == std::string::npos);
+    }
 }
 
 TEST_CASE("a subscriber that joins late gets the current state from the snapshot socket",

@@ -3,8 +3,27 @@
 
 #include "liveprob/transport/topics.hpp"
 
+#include <cerrno>
+
 namespace liveprob::clients {
-namespace {}  // namespace
+namespace {
+
+// One frame, waiting at most the poll time. A signal (Ctrl-C on `tap`) interrupts the wait:
+// that is "nothing yet", so the caller's loop can look at its stop flag. A frame that follows
+// one already taken (a body after its topic) is waited for again: the parts of one message
+// arrive together, and dropping the half taken would lose the message.
+bool receive_frame(zmq::socket_t& socket, zmq::message_t& frame, bool retry_on_signal) {
+    for (;;) {
+        try {
+            return socket.recv(frame, zmq::recv_flags::none).has_value();
+        } catch (const zmq::error_t& e) {
+            if (e.num() != EINTR) throw;
+            if (!retry_on_signal) return false;
+        }
+    }
+}
+
+}  // namespace
 
 UpdateSubscriber::UpdateSubscriber(zmq::context_t& context, const std::string& endpoint,
                                    const SubscriberOptions& options)
@@ -23,18 +42,18 @@ UpdateSubscriber::UpdateSubscriber(zmq::context_t& context, const std::string& e
 
 std::optional<ReceivedMessage> UpdateSubscriber::receive() {
     zmq::message_t topic;
-    if (!socket_.recv(topic, zmq::recv_flags::none)) return std::nullopt;
+    if (!receive_frame(socket_, topic, false)) return std::nullopt;
     ReceivedMessage out;
     out.arrived_us = system::wall_clock_us();
     zmq::message_t body;
-    if (!topic.more() || !socket_.recv(body, zmq::recv_flags::none)) {
+    if (!topic.more() || !receive_frame(socket_, body, true)) {
         out.kind = ReceivedMessage::Kind::undecodable;
         out.problem = "a topic without a body";
         return out;
     }
     while (body.more()) {  // a publisher sends two frames; anything beyond is dropped
         zmq::message_t extra;
-        if (!socket_.recv(extra, zmq::recv_flags::none)) break;
+        if (!receive_frame(socket_, extra, true)) break;
         body = std::move(extra);
         out.kind = ReceivedMessage::Kind::undecodable;
         out.problem = "more than two frames";

@@ -203,8 +203,9 @@ const Registration registration{{
         sub.add_option("--count", f->count,
                        "exit after this many live updates (0: until interrupted)");
         sub.add_flag("--events-only", f->events_only, "skip the timer's republications");
-        sub.add_flag("--latency", f->latency,
-                     "at exit, print delay percentiles from the timestamps");
+        sub.add_flag(
+            "--latency", f->latency,
+            "at exit (also on Ctrl-C or SIGTERM), print delay percentiles from the timestamps");
         sub.add_flag("--counters", f->counters, "also print the service's counters");
         sub.add_option("--timeout-ms", f->timeout_ms,
                        "fail when nothing arrives for this long (0: wait)")

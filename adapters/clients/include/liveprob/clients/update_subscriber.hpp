@@ -39,7 +39,8 @@ public:
     UpdateSubscriber(zmq::context_t& context, const std::string& endpoint,
                      const SubscriberOptions& options);
 
-    // The next message, or nothing when none arrived within the poll time.
+    // The next message, or nothing when none arrived within the poll time or a signal
+    // interrupted the wait (the caller checks its stop flag and calls again).
     std::optional<ReceivedMessage> receive();
 
 private:
