@@ -8,8 +8,13 @@ find_package(CLI11 REQUIRED CONFIG)
 find_package(fmt REQUIRED)
 find_package(spdlog REQUIRED)
 find_package(simdjson REQUIRED)
+# NATS's C client (Debian's libnats-dev ships a pkg-config file) for the cluster mode.
+find_package(PkgConfig REQUIRED)
+pkg_check_modules(NATS REQUIRED IMPORTED_TARGET libnats)
 if(LIVEPROB_BUILD_TESTS)
   find_package(Catch2 2 REQUIRED)
+  # The cluster tests start real JetStream servers (Debian's nats-server).
+  find_program(LIVEPROB_NATS_SERVER nats-server REQUIRED)
 endif()
 if(LIVEPROB_BUILD_BENCHMARKS)
   find_package(benchmark REQUIRED)

@@ -9,6 +9,7 @@ packages=(
   libzmq3-dev cppzmq-dev libsodium-dev          # ZeroMQ (with CURVE) and its C++ binding
   flatbuffers-compiler libflatbuffers-dev python3-flatbuffers
   libeigen3-dev libboost-dev libboost-system-dev
+  nats-server libnats-dev                       # cluster mode: JetStream server (tests start three) and its C client
   catch2 libbenchmark-dev libcli11-dev libfmt-dev libspdlog-dev libsimdjson-dev
   python3 python3-scipy python3-statsmodels python3-numpy python3-zmq   # reference checks, Python client
   python3-dev python3-pybind11 pybind11-dev python3-setuptools python3-venv python3-pip  # the Python package
