@@ -25,6 +25,7 @@
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "test_env.hpp"
+#include "web_clients.hpp"
 
 namespace {
 
@@ -105,25 +106,11 @@ liveprob::gateway::GatewayConfig test_config(const FakeServe& serve) {
     return c;
 }
 
-struct HttpAnswer {
-    unsigned status = 0;
-    std::string body;
-};
+using liveprob::test::HttpAnswer;
 
 HttpAnswer http_get(std::uint16_t port, const std::string& target,
                     http::verb verb = http::verb::get) {
-    asio::io_context io;
-    beast::tcp_stream stream(io);
-    stream.expires_after(5s);
-    stream.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
-    http::request<http::string_body> request{verb, target, 11};
-    request.set(http::field::host, fmt::format("127.0.0.1:{}", port));
-    request.keep_alive(false);
-    http::write(stream, request);
-    beast::flat_buffer buffer;
-    http::response<http::string_body> response;
-    http::read(stream, buffer, response);
-    return {response.result_int(), response.body()};
+    return liveprob::test::http_request("127.0.0.1", port, target, verb);
 }
 
 // The counter `name` from GET /api/gateway (its JSON is flat: "name":number).
@@ -153,79 +140,7 @@ void wait_for_feed(FakeServe& serve, std::uint16_t port, std::uint64_t match_id)
     }));
 }
 
-// A WebSocket client whose every operation has a deadline (run_for), so a broken gateway fails
-// the test instead of hanging it.
-class TestClient {
-public:
-    explicit TestClient(std::uint16_t port, std::optional<std::string> origin = std::nullopt,
-                        int receive_buffer = 0)
-        : ws_(io_) {
-        auto& socket = beast::get_lowest_layer(ws_).socket();
-        socket.open(tcp::v4());
-        if (receive_buffer > 0)
-            socket.set_option(asio::socket_base::receive_buffer_size(receive_buffer));
-        socket.connect(tcp::endpoint(asio::ip::make_address("127.0.0.1"), port));
-        ws_.set_option(websocket::stream_base::decorator([origin](websocket::request_type& r) {
-            if (origin) r.set(http::field::origin, *origin);
-        }));
-        handshake_error_ = run([&](auto done) {
-            ws_.async_handshake(response_, fmt::format("127.0.0.1:{}", port), "/feed", done);
-        });
-    }
-    beast::error_code handshake_error() const { return handshake_error_; }
-    unsigned handshake_status() const { return response_.result_int(); }
-
-    void send(const std::string& text) {
-        const auto ec = run([&](auto done) {
-            ws_.async_write(asio::buffer(text),
-                            [done](beast::error_code e, std::size_t) { done(e); });
-        });
-        REQUIRE_FALSE(ec);
-    }
-    // The next text message, or nothing when the connection ends (see error()) or time runs out.
-    std::optional<std::string> receive(std::chrono::milliseconds limit = 5000ms) {
-        beast::flat_buffer buffer;
-        error_ = run(
-            [&](auto done) {
-                ws_.async_read(buffer, [done](beast::error_code e, std::size_t) { done(e); });
-            },
-            limit);
-        if (error_) return std::nullopt;
-        return beast::buffers_to_string(buffer.data());
-    }
-    // The next update frame, skipping replies.
-    std::optional<std::string> receive_update(std::chrono::milliseconds limit = 5000ms) {
-        while (auto message = receive(limit)) {
-            if (message->find(R"("kind":"update")") != std::string::npos) return message;
-        }
-        return std::nullopt;
-    }
-    beast::error_code error() const { return error_; }
-    std::uint16_t close_code() const { return static_cast<std::uint16_t>(ws_.reason().code); }
-
-private:
-    template <class Start>
-    beast::error_code run(Start start, std::chrono::milliseconds limit = 5000ms) {
-        std::optional<beast::error_code> result;
-        start([&result](beast::error_code ec) { result = ec; });
-        io_.restart();
-        const auto deadline = std::chrono::steady_clock::now() + limit;
-        while (!result && std::chrono::steady_clock::now() < deadline) io_.run_for(20ms);
-        if (!result) {
-            beast::get_lowest_layer(ws_).close();  // abandons the operation
-            io_.restart();
-            io_.run_for(1s);
-            return asio::error::timed_out;
-        }
-        return *result;
-    }
-
-    asio::io_context io_;
-    websocket::stream<beast::tcp_stream> ws_;
-    websocket::response_type response_;
-    beast::error_code handshake_error_;
-    beast::error_code error_;
-};
+using TestClient = liveprob::test::WebSocketClient;
 
 bool has(const std::string& frame, const std::string& part) {
     return frame.find(part) != std::string::npos;
@@ -391,6 +306,8 @@ TEST_CASE("a client message over the size limit closes the client with code 1009
     config.max_client_message_bytes = 256;
     RunningGateway gateway(config);
     TestClient client(gateway.port());
+    // Nothing heard from serve yet: a new client is told so at once.
+    CHECK(client.receive_containing(R"({"kind":"upstream","state":"waiting",)"));
     client.send(R"({"watch":[)" + std::string(300, '1') + "]}");
     CHECK_FALSE(client.receive());
     CHECK(client.error() == websocket::error::closed);
@@ -408,7 +325,9 @@ TEST_CASE("a client that answers nothing is cut off after the idle time-out",
     REQUIRE_FALSE(silent.handshake_error());
     REQUIRE(eventually([&] { return counter(gateway.port(), "clients_idle_timeout") == 1; }));
     CHECK(counter(gateway.port(), "clients_open") == 0);
-    CHECK_FALSE(silent.receive(1000ms));
+    CHECK_FALSE(
+        silent.receive_update(1000ms));  // the upstream notice sent at connect, then the end
+    CHECK(silent.error() != asio::error::timed_out);  // the gateway ended it
 }
 
 TEST_CASE("damaged, stale and out-of-sequence feed messages are counted, not forwarded",

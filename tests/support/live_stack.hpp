@@ -24,15 +24,26 @@ namespace liveprob::test {
 class LiveStack {
 public:
     // `tick_ms`: serve republishes live matches this often (large = a stable final state).
-    explicit LiveStack(const std::filesystem::path& dir, std::uint32_t tick_ms = 3'600'000)
+    // `serve_extra`: more of serve's options.
+    explicit LiveStack(const std::filesystem::path& dir, std::uint32_t tick_ms = 3'600'000,
+                       const std::vector<std::string>& serve_extra = {})
         : dir_(dir) {
-        serve_ = std::make_unique<ChildProcess>(
-            std::vector<std::string>{
-                liveprob_binary().string(), "serve", "--ingest", "tcp://127.0.0.1:*", "--publish",
-                "tcp://127.0.0.1:*", "--snapshot", "tcp://127.0.0.1:*", "--endpoints-file",
-                (dir / "serve.endpoints").string(), "--tick-ms", std::to_string(tick_ms)},
-            dir / "serve.log");
+        std::vector<std::string> argv{liveprob_binary().string(),
+                                      "serve",
+                                      "--ingest",
+                                      "tcp://127.0.0.1:*",
+                                      "--publish",
+                                      "tcp://127.0.0.1:*",
+                                      "--snapshot",
+                                      "tcp://127.0.0.1:*",
+                                      "--endpoints-file",
+                                      (dir / "serve.endpoints").string(),
+                                      "--tick-ms",
+                                      std::to_string(tick_ms)};
+        argv.insert(argv.end(), serve_extra.begin(), serve_extra.end());
+        serve_ = std::make_unique<ChildProcess>(argv, dir / "serve.log");
         const std::string endpoints = wait_for_file(dir / "serve.endpoints");
+        endpoints_ = endpoints;
         ingest_ = key_value(endpoints, "ingest");
         publish_ = key_value(endpoints, "publish");
         snapshot_ = key_value(endpoints, "snapshot");
@@ -98,13 +109,16 @@ public:
     const std::map<std::uint64_t, protocol::DecodedUpdate>& latest() const { return latest_; }
 
     const std::string& publish_endpoint() const { return publish_; }
+    // serve's endpoints file ("key=value" lines, "health=" with --health-address).
+    const std::string& serve_endpoints() const { return endpoints_; }
+    ChildProcess& serve_process() { return *serve_; }
     const std::string& snapshot_endpoint() const { return snapshot_; }
 
 private:
     std::filesystem::path dir_;
     std::unique_ptr<ChildProcess> serve_;
     std::unique_ptr<ChildProcess> gateway_;
-    std::string ingest_, publish_, snapshot_;
+    std::string ingest_, publish_, snapshot_, endpoints_;
     zmq::context_t context_{1};
     zmq::socket_t push_{context_, zmq::socket_type::dealer};
     zmq::socket_t sub_{context_, zmq::socket_type::sub};

@@ -10,6 +10,7 @@
 #include <boost/asio/signal_set.hpp>
 #include <boost/asio/steady_timer.hpp>
 
+#include <algorithm>
 #include <chrono>
 #include <fstream>
 #include <optional>
@@ -71,6 +72,8 @@ struct Gateway::Impl {
     void take(std::span<const std::uint8_t> payload);
     void apply(const GatewayUpdate& update);
     void drain_snapshot(zmq::socket_t& socket);
+    void heard_upstream();
+    void watch_upstream();
     void shut_down();
 
     GatewayHub hub;  // first: sessions still queued in the io_context refer to it
@@ -81,6 +84,7 @@ struct Gateway::Impl {
     std::optional<transport::ReactorSocket> snapshot;  // DEALER to serve's snapshot socket
     asio::signal_set signals{io};
     asio::steady_timer stop_timer{io};
+    asio::steady_timer upstream_timer{io};
 };
 
 Gateway::Impl::Impl(GatewayConfig config) : hub(make_hub(std::move(config))) {
@@ -100,8 +104,10 @@ Gateway::Impl::Impl(GatewayConfig config) : hub(make_hub(std::move(config))) {
     }
 
     zmq::socket_t subscriber(zmq_context, zmq::socket_type::sub);
-    // Every match's topic; the service's counters travel on another topic and are not ours.
+    // Every match's topic, and the service's counters: they come on a timer even when no match
+    // changes, so their silence tells a dead or cut-off service from a quiet one.
     subscriber.set(zmq::sockopt::subscribe, std::string(transport::kMatchTopicPrefix));
+    subscriber.set(zmq::sockopt::subscribe, std::string(transport::kCountersTopic));
     subscriber.set(zmq::sockopt::linger, 0);
     try {
         subscriber.connect(c.feed_endpoint);
@@ -140,11 +146,14 @@ void Gateway::Impl::drain_feed(zmq::socket_t& socket) {
         // A published update is [topic, payload]; the payload is the last part.
         zmq::message_t part;
         if (!socket.recv(part, zmq::recv_flags::dontwait)) return;
+        const bool counters = part.more() && part.to_string_view() == transport::kCountersTopic;
         while (part.more()) {
             zmq::message_t next;
             if (!socket.recv(next, zmq::recv_flags::dontwait)) break;
             part = std::move(next);
         }
+        heard_upstream();
+        if (counters) continue;  // a sign of life; the numbers are serve's own business
         take({static_cast<const std::uint8_t*>(part.data()), part.size()});
     }
 }
@@ -168,7 +177,8 @@ void Gateway::Impl::apply(const GatewayUpdate& update) {
         return;
     }
     if (accepted.arrival == Arrival::after_gap) ++hub.counters.update_gaps;
-    for (WebSocketSession* client : hub.clients) client->offer(update.match_id, accepted.frame);
+    for (WebSocketSession* client : hub.clients)
+        client->offer(update.match_id, accepted.frame, update.gateway_receive_us);
 }
 
 void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
@@ -191,12 +201,44 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
     }
 }
 
+void Gateway::Impl::heard_upstream() {
+    ++hub.counters.upstream_messages;
+    hub.last_upstream = std::chrono::steady_clock::now();
+    if (hub.upstream == Upstream::live) return;
+    if (hub.upstream == Upstream::lost)
+        spdlog::info("gateway: upstream back: {}", hub.config.feed_endpoint);
+    hub.upstream = Upstream::live;
+    const std::string status = hub.render_upstream_json(hub.last_upstream);
+    for (WebSocketSession* client : hub.clients) client->notify(status);
+}
+
+// Checks a few times per silence limit whether serve has gone quiet; on loss every client is
+// told at once (the page marks every match stale) and the loss is logged.
+void Gateway::Impl::watch_upstream() {
+    upstream_timer.expires_after(
+        std::max(hub.config.upstream_silence_limit / 4, std::chrono::milliseconds(10)));
+    upstream_timer.async_wait([this](boost::system::error_code ec) {
+        if (ec) return;
+        const auto now = std::chrono::steady_clock::now();
+        if (hub.upstream == Upstream::live &&
+            now - hub.last_upstream > hub.config.upstream_silence_limit) {
+            hub.upstream = Upstream::lost;
+            ++hub.counters.upstream_losses;
+            spdlog::warn("gateway: upstream lost: {}", hub.readiness_problem(now));
+            const std::string status = hub.render_upstream_json(now);
+            for (WebSocketSession* client : hub.clients) client->notify(status);
+        }
+        watch_upstream();
+    });
+}
+
 void Gateway::Impl::shut_down() {
     if (hub.shutting_down) return;
     hub.shutting_down = true;
     boost::system::error_code ignored;
     acceptor.close(ignored);
     signals.cancel(ignored);
+    upstream_timer.cancel();
     feed->stop();
     if (snapshot) snapshot->stop();
     const std::vector<WebSocketSession*> open(hub.clients.begin(), hub.clients.end());
@@ -223,6 +265,7 @@ void Gateway::run(bool handle_signals) {
         g.snapshot->start([&g](zmq::socket_t& socket) { g.drain_snapshot(socket); });
     }
     g.accept_next();
+    g.watch_upstream();
     if (handle_signals) {
         g.signals.add(SIGINT);
         g.signals.add(SIGTERM);

@@ -26,6 +26,8 @@ std::string GatewayCounters::render_json(std::size_t clients_open, std::size_t m
         .member("bad_requests", bad_requests)
         .member("http_requests", http_requests)
         .member("http_not_found", http_not_found)
+        .member("upstream_messages", upstream_messages)
+        .member("upstream_losses", upstream_losses)
         .end_object();
     return out;
 }

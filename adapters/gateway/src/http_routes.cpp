@@ -4,6 +4,9 @@
 
 #include <algorithm>
 #include <charconv>
+#include <chrono>
+
+#include "liveprob/monitoring/metrics_text.hpp"
 
 namespace liveprob::gateway {
 
@@ -92,6 +95,20 @@ HttpResponse answer_http(const HttpRequest& request, GatewayHub& hub) {
         return body_response(request,
                              hub.counters.render_json(hub.clients.size(), hub.latest.match_count()),
                              "application/json");
+    }
+    if (path == "/health/live")
+        return body_response(request, "live\n", "text/plain; charset=utf-8");
+    if (path == "/health/ready") {
+        const std::string problem = hub.readiness_problem(std::chrono::steady_clock::now());
+        if (problem.empty()) return body_response(request, "ready\n", "text/plain; charset=utf-8");
+        auto response =
+            plain_response(request, http::status::service_unavailable, "not ready: " + problem);
+        response.set(http::field::cache_control, "no-store");
+        if (request.method() == http::verb::head) response.body().clear();
+        return response;
+    }
+    if (path == "/metrics") {
+        return body_response(request, hub.render_metrics(), monitoring::kMetricsContentType);
     }
     if (path == kFeedPath) {
         return plain_response(request, http::status::upgrade_required,

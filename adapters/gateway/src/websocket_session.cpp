@@ -1,5 +1,7 @@
 #include "websocket_session.hpp"
 
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
 #include <boost/asio/buffer.hpp>
 
 #include <algorithm>
@@ -8,6 +10,7 @@
 
 #include "liveprob/gateway/client_request.hpp"
 #include "liveprob/protocol/json_writer.hpp"
+#include "liveprob/system/wall_clock.hpp"
 
 namespace liveprob::gateway {
 
@@ -20,6 +23,10 @@ WebSocketSession::WebSocketSession(beast::tcp_stream stream, GatewayHub& hub)
 WebSocketSession::~WebSocketSession() { hub_.clients.erase(this); }
 
 void WebSocketSession::start(HttpRequest request) {
+    beast::error_code no_peer;
+    const auto remote = beast::get_lowest_layer(ws_).socket().remote_endpoint(no_peer);
+    peer_ = no_peer ? "unknown peer"
+                    : fmt::format("{}:{}", remote.address().to_string(), remote.port());
     beast::get_lowest_layer(ws_).expires_never();  // the WebSocket timeouts take over
     // Pings go out at half the idle time; a client that answers nothing at all by the full
     // idle time is dead or stalled and is cut off.
@@ -34,11 +41,18 @@ void WebSocketSession::start(HttpRequest request) {
 }
 
 void WebSocketSession::on_accept(beast::error_code ec) {
-    if (ec) return finish();
+    if (ec) {
+        end_reason_ = "handshake failed: " + ec.message();
+        return finish();
+    }
     if (hub_.shutting_down) return begin_close(kCloseShuttingDown, "gateway shutting down");
     open_ = true;
     hub_.clients.insert(this);
     ++hub_.counters.clients_opened;
+    spdlog::info("gateway: client {} connected ({} open)", peer_, hub_.clients.size());
+    // Told at once when serve is not heard, so a new page never shows a dead feed as live.
+    if (hub_.upstream != Upstream::live)
+        queue_reply(hub_.render_upstream_json(std::chrono::steady_clock::now()));
     read_next();
 }
 
@@ -53,6 +67,12 @@ void WebSocketSession::on_read(beast::error_code ec) {
         // Beast has already sent close code 1009 for an oversize message.
         if (ec == websocket::error::message_too_big) ++hub_.counters.clients_closed_oversize;
         if (ec == beast::error::timeout) ++hub_.counters.clients_idle_timeout;
+        if (end_reason_.empty()) {
+            end_reason_ = ec == websocket::error::closed            ? "closed by the client"
+                          : ec == beast::error::timeout             ? "idle timeout (no pong)"
+                          : ec == websocket::error::message_too_big ? "message too big"
+                                                                    : ec.message();
+        }
         return finish();
     }
     const std::string text = beast::buffers_to_string(read_buffer_.data());
@@ -126,14 +146,20 @@ void WebSocketSession::queue_reply(std::string text) {
     write_next();
 }
 
-void WebSocketSession::offer(std::uint64_t match_id, const Frame& frame) {
+void WebSocketSession::notify(std::string text) {
+    if (!open_) return;
+    queue_reply(std::move(text));
+}
+
+void WebSocketSession::offer(std::uint64_t match_id, const Frame& frame, std::int64_t arrived_us) {
     if (!open_ || closing_ || !watches(match_id)) return;
     if (auto waiting = pending_.find(match_id); waiting != pending_.end()) {
-        waiting->second = frame;  // latest value wins; its place in the queue is kept
+        // Latest value wins; its place in the queue is kept.
+        waiting->second = Pending{frame, arrived_us};
         ++hub_.counters.frames_conflated;
         return;
     }
-    pending_.emplace(match_id, frame);
+    pending_.emplace(match_id, Pending{frame, arrived_us});
     pending_order_.push_back(match_id);
     if (over_cap()) return;
     write_next();
@@ -150,12 +176,14 @@ void WebSocketSession::write_next() {
     if (writing_ || closing_) return;
     if (!replies_.empty()) {
         in_flight_ = std::move(replies_.front());
+        in_flight_arrived_us_ = 0;
         replies_.pop_front();
     } else if (!pending_order_.empty()) {
         const std::uint64_t id = pending_order_.front();
         pending_order_.pop_front();
         auto waiting = pending_.find(id);
-        in_flight_ = std::move(waiting->second);
+        in_flight_ = std::move(waiting->second.frame);
+        in_flight_arrived_us_ = waiting->second.arrived_us;
         pending_.erase(waiting);
     } else {
         return;
@@ -170,8 +198,14 @@ void WebSocketSession::write_next() {
 void WebSocketSession::on_write(beast::error_code ec) {
     writing_ = false;
     in_flight_.reset();
-    if (ec) return finish();
+    if (ec) {
+        if (end_reason_.empty()) end_reason_ = "write failed: " + ec.message();
+        return finish();
+    }
     ++hub_.counters.frames_sent;
+    if (in_flight_arrived_us_ != 0) {
+        hub_.delivery.observe_us(system::wall_clock_us() - in_flight_arrived_us_);
+    }
     if (closing_) return send_close();
     write_next();
 }
@@ -181,6 +215,8 @@ void WebSocketSession::begin_close(std::uint16_t code, const char* reason) {
     closing_ = true;
     close_code_ = code;
     close_reason_ = reason;
+    if (end_reason_.empty())
+        end_reason_ = fmt::format("closed by the gateway ({} {})", code, reason);
     replies_.clear();
     pending_.clear();
     pending_order_.clear();
@@ -205,6 +241,8 @@ void WebSocketSession::send_close() {
 void WebSocketSession::finish() {
     if (finished_) return;
     finished_ = true;
+    if (end_reason_.empty()) end_reason_ = "connection ended";
+    spdlog::info("gateway: client {} dropped: {}", peer_, end_reason_);
     open_ = false;
     hub_.clients.erase(this);
     close_deadline_.cancel();

@@ -27,8 +27,11 @@ public:
     // Completes the upgrade that `request` asked for, then serves the client.
     void start(HttpRequest request);
 
-    // A new frame for `match_id`; queued only when this client watches the match.
-    void offer(std::uint64_t match_id, const Frame& frame);
+    // A new frame for `match_id`, read off the feed at `arrived_us` (wall clock; 0: not a fresh
+    // update, not timed); queued only when this client watches the match.
+    void offer(std::uint64_t match_id, const Frame& frame, std::int64_t arrived_us = 0);
+    // A message for every client whatever it watches (the upstream state).
+    void notify(std::string text);
     // Closes with "going away" (gateway shutdown).
     void close_going_away();
 
@@ -54,10 +57,17 @@ private:
     bool watch_all_ = false;
     std::unordered_set<std::uint64_t> watched_;
 
-    std::deque<Frame> replies_;                // answers to the client's requests
+    std::deque<Frame> replies_;  // answers to the client's requests
+    struct Pending {
+        Frame frame;
+        std::int64_t arrived_us = 0;  // when the gateway read it off the feed (0: not timed)
+    };
     std::deque<std::uint64_t> pending_order_;  // matches with a frame waiting, oldest first
-    std::unordered_map<std::uint64_t, Frame> pending_;  // latest waiting frame per match
-    Frame in_flight_;                                   // kept alive while Beast writes it
+    std::unordered_map<std::uint64_t, Pending> pending_;  // latest waiting frame per match
+    Frame in_flight_;                                     // kept alive while Beast writes it
+    std::int64_t in_flight_arrived_us_ = 0;
+    std::string peer_;        // "address:port", for the log
+    std::string end_reason_;  // why the connection ended, for the log
 
     bool open_ = false;  // handshake done, registered with the hub
     bool writing_ = false;

@@ -25,6 +25,7 @@
 #include "liveprob/transport/reactor_socket.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "liveprob/transport/zap_authenticator.hpp"
+#include "service_health.hpp"
 
 namespace liveprob::service {
 
@@ -92,6 +93,7 @@ struct LiveService::Impl {
     static protocol::UpdateMeta meta_of(const LiveMatch& m);
     void answer_snapshots(zmq::socket_t& socket);
     void publish_counters();
+    void refresh_counters();  // the gauges counted on demand (matches, CURVE verdicts)
 
     // Timers.
     void schedule_tick();
@@ -125,6 +127,12 @@ struct LiveService::Impl {
     ConfigSource reread;
     bool replaying = false;
     bool stopping = false;
+
+    // Operations (opt-in): health and metrics over HTTP.
+    std::optional<monitoring::HealthListener> health_listener;
+    ServiceHealth health;
+    monitoring::LatencyHistogram event_to_publish;
+    CounterList metrics_counters;
 };
 
 LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& params,
@@ -181,11 +189,21 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
     const std::string snapshot_at = router.get(zmq::sockopt::last_endpoint);
     ingest.emplace(io, std::move(pull));
     snapshot.emplace(io, std::move(router));
-    if (!config.endpoints_file.empty()) {
-        files::write_endpoints_file(
-            config.endpoints_file,
-            {{"ingest", ingest_at}, {"publish", publish_at}, {"snapshot", snapshot_at}});
+    std::vector<std::pair<std::string, std::string>> bound = {
+        {"ingest", ingest_at}, {"publish", publish_at}, {"snapshot", snapshot_at}};
+    if (!config.health_address.empty()) {
+        health_listener.emplace(io, config.health_address, [this](std::string_view path) {
+            refresh_counters();
+            list_counters(counters, registry.totals(), metrics_counters);
+            return answer_service_http(path, health, metrics_counters, event_to_publish);
+        });
+        const auto at = monitoring::parse_listen_address(config.health_address).address();
+        bound.emplace_back(
+            "health", fmt::format("{}:{}", at.is_v6() ? "[" + at.to_string() + "]" : at.to_string(),
+                                  health_listener->port()));
+        spdlog::info("health and metrics: http://{}/metrics", bound.back().second);
     }
+    if (!config.endpoints_file.empty()) files::write_endpoints_file(config.endpoints_file, bound);
     spdlog::info("serving: ingest {} publish {} snapshot {} (CURVE {}{}), journal {}", ingest_at,
                  publish_at, snapshot_at, config.curve_enabled() ? "on" : "off",
                  config.curve_publish ? ", publish encrypted" : "",
@@ -229,6 +247,8 @@ void LiveService::Impl::start() {
     snapshot->start([this](zmq::socket_t& s) { answer_snapshots(s); });
     // The states rebuilt from the journal, republished for subscribers already listening.
     for (auto& [id, m] : registry.matches()) publish(m, false, SteadyClock::now());
+    health.started = true;  // from here on, event -> publish delays are this run's own
+    if (health_listener) health_listener->start();
     schedule_tick();
     schedule_counters();
     if (journal && config.journal_sync == files::JournalSync::interval) schedule_journal_sync();
@@ -237,6 +257,8 @@ void LiveService::Impl::start() {
 void LiveService::Impl::stop(const char* why) {
     if (stopping) return;
     stopping = true;
+    health.stopping = true;
+    if (health_listener) health_listener->stop();
     spdlog::info("{}: stopping", why);
     tick_timer.cancel();
     counters_timer.cancel();
@@ -448,12 +470,14 @@ Intake LiveService::Impl::handle_buffer(std::span<const std::uint8_t> bytes, boo
         try {
             journal->append(bytes);
         } catch (const files::JournalError& e) {
+            health.journal_failing = true;
             const std::uint64_t failed = ++counters.journal_write_failed;
             if (failed <= 10 || failed % 1000 == 0)
                 spdlog::error("{}; message not applied ({} so far)", e.what(), failed);
             return Intake::not_journaled;
         }
         ++counters.journal_frames;
+        health.journal_failing = false;
     }
     touched.clear();
     const MessageOutcome outcome =
@@ -506,6 +530,8 @@ void LiveService::Impl::publish(LiveMatch& m, bool tick, SteadyClock::time_point
                    zmq::send_flags::sndmore | zmq::send_flags::dontwait);
     publisher.send(zmq::const_buffer(bytes.data(), bytes.size()), zmq::send_flags::dontwait);
     ++(tick ? counters.ticks_published : counters.updates_published);
+    if (!tick && health.started)
+        event_to_publish.observe_us(meta.publish_time_us - meta.receive_time_us);
 }
 
 void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
@@ -576,7 +602,7 @@ void LiveService::Impl::schedule_tick() {
     });
 }
 
-void LiveService::Impl::publish_counters() {
+void LiveService::Impl::refresh_counters() {
     counters.matches = registry.matches().size();
     counters.live_matches = 0;
     for (const auto& [id, m] : registry.matches()) counters.live_matches += m.live() ? 1u : 0u;
@@ -584,6 +610,10 @@ void LiveService::Impl::publish_counters() {
         counters.curve_accepted = zap->accepted();
         counters.curve_refused = zap->refused();
     }
+}
+
+void LiveService::Impl::publish_counters() {
+    refresh_counters();
     list_counters(counters, registry.totals(), counter_set.values);
     counter_set.publish_time_us = system::wall_clock_us();
     const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set);

@@ -6,6 +6,8 @@
 #include <array>
 #include <charconv>
 
+#include "liveprob/monitoring/health_listener.hpp"
+#include "liveprob/monitoring/log_format.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
@@ -21,7 +23,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 21> kKeys = {{
+const std::array<ConfigKey, 23> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -105,6 +107,17 @@ const std::array<ConfigKey, 21> kKeys = {{
      "CURVE on the publish and snapshot sockets too (any client key)"},
     {"log_level", "--log-level", ConfigValue::choice, &S::log_level, "how much to log", 0, 0,
      kLogLevels},
+    {"log_format", "--log-format", ConfigValue::choice, &S::log_format,
+     "log lines as text or as JSON objects", 0, 0, monitoring::kLogFormats},
+    {"health_address",
+     "--health-address",
+     ConfigValue::address,
+     &S::health_address,
+     "host:port for HTTP /health/live, /health/ready and /metrics (port 0: any free port)",
+     0,
+     0,
+     {},
+     "off"},
 }};
 
 std::string choice_list(const ConfigKey& key) {
@@ -134,6 +147,11 @@ public:
                 }
                 break;
             case ConfigValue::choice: choice(value); return;
+            case ConfigValue::address: try { monitoring::parse_listen_address(std::string(value));
+                } catch (const std::runtime_error& e) {
+                    fail(e.what());
+                }
+                break;
             case ConfigValue::text: break;
             default: fail("must not be a string");
         }
@@ -212,6 +230,7 @@ std::string allowed_text(const ConfigKey& key) {
         case ConfigValue::flag: return "true, false";
         case ConfigValue::choice: return choice_list(key);
         case ConfigValue::shard: return "K/N, K < N";
+        case ConfigValue::address: return "host:port";
     }
     return "";
 }

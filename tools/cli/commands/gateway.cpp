@@ -10,6 +10,7 @@
 #include "command_registry.hpp"
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/gateway/gateway.hpp"
+#include "liveprob/monitoring/log_format.hpp"
 #include "liveprob/protocol/whole_file.hpp"
 
 namespace {
@@ -22,6 +23,8 @@ struct GatewayOptions {
     std::string serve_endpoints;
     std::uint64_t idle_timeout_ms = 60'000;
     std::uint64_t handshake_timeout_ms = 10'000;
+    std::uint64_t upstream_silence_ms = 12'000;
+    std::string log_format = "text";
 };
 
 // serve's endpoints file: we want publish= and snapshot=.
@@ -48,6 +51,8 @@ int run_gateway(GatewayOptions& options) {
         throw liveprob::cli::UsageError("--idle-timeout-ms must be positive");
     config.idle_timeout = std::chrono::milliseconds(options.idle_timeout_ms);
     config.handshake_timeout = std::chrono::milliseconds(options.handshake_timeout_ms);
+    config.upstream_silence_limit = std::chrono::milliseconds(options.upstream_silence_ms);
+    liveprob::monitoring::use_log_format(options.log_format);
 
     liveprob::gateway::Gateway gateway(config);
     if (!options.port_file.empty()) {
@@ -96,6 +101,14 @@ const liveprob::cli::Registration registration{
                         "kernel send buffer per client in bytes (0: system default)")
              ->capture_default_str();
          app.add_option("--timeline-points", c.timeline_points, "chart points kept per match")
+             ->capture_default_str();
+         app.add_option("--upstream-silence-ms", options->upstream_silence_ms,
+                        "serve silent (no update, no counters) this long: every match stale, "
+                        "/health/ready 503; keep above serve's --counters-ms")
+             ->check(CLI::Range(10, 3'600'000))
+             ->capture_default_str();
+         app.add_option("--log-format", options->log_format, "text | json (JSON lines)")
+             ->check(CLI::IsMember({"text", "json"}))
              ->capture_default_str();
          return [options] { return run_gateway(*options); };
      }}};

@@ -8,6 +8,7 @@
 
 #include "command_registry.hpp"
 #include "liveprob/files/params_file.hpp"
+#include "liveprob/monitoring/log_format.hpp"
 #include "liveprob/service/live_service.hpp"
 #include "liveprob/service/service_config.hpp"
 
@@ -44,6 +45,7 @@ int run_serve(const ServeFlags& f) {
         throw UsageError(e.what());
     }
     spdlog::set_level(spdlog::level::from_str(config.log_level));
+    monitoring::use_log_format(config.log_format);
     const core::ModelParams params = config.params_file.empty()
                                          ? core::ModelParams{}
                                          : files::load_params_file(config.params_file);

@@ -44,6 +44,11 @@ struct GatewayConfig {
     // Points kept per match for the timeline chart (older points are thinned, never the
     // latest, so memory stays bounded for any match length).
     std::size_t timeline_points = 720;
+    // Nothing from serve (no update, no counters message) for this long: the upstream is lost,
+    // every match is shown stale and /health/ready answers 503. serve sends its counters every
+    // counters_interval_ms (default 5000) even when no match changes: the default limit is two
+    // of those missed plus slack. Keep it above serve's interval.
+    std::chrono::milliseconds upstream_silence_limit{12'000};
 };
 
 // The installed page folder when it exists, else the one in the source tree.

@@ -64,7 +64,11 @@ struct ServiceConfig {
     std::string curve_allowed_keys_file;
     bool curve_publish = false;
 
-    std::string log_level = "info";  // trace, debug, info, warn, error, off
+    std::string log_level = "info";   // trace, debug, info, warn, error, off
+    std::string log_format = "text";  // text or json (JSON lines; monitoring/log_format.hpp)
+
+    // Health and metrics over HTTP ("127.0.0.1:9464"; port 0: any free port); empty: off.
+    std::string health_address;
 
     bool curve_enabled() const noexcept { return !curve_secret_key_file.empty(); }
 };
@@ -77,6 +81,7 @@ enum class ConfigValue : std::uint8_t {
     flag,      // true or false (on the command line: the flag alone)
     choice,    // one of `choices`
     shard,     // "K/N" (protocol/sharding.hpp)
+    address,   // "host:port" for an HTTP listener (monitoring/health_listener.hpp)
 };
 
 struct ConfigKey {
