@@ -10,6 +10,7 @@
 #include "liveprob/core/match_state.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/fit/calendar.hpp"
 #include "test_env.hpp"
 
 using namespace liveprob;
@@ -208,4 +209,64 @@ TEST_CASE("championship timelines: stoppage offsets, extra time and shoot-out sc
         CHECK(match.apply(feed[i]).verdict == Verdict::accepted);
     CHECK(match.state().status == MatchStatus::finished);
     CHECK(match.state().shootout.scored == std::array<int, 2>{4, 3});
+}
+
+TEST_CASE("championship timelines: matches as one list, sides as names, minutes written \"90+4\"",
+          "[import]") {
+    const auto dir = liveprob::test::scratch_dir("timelines-championship-list");
+    // The same two matches in the two list layouts: {"matches": [...]} and a list at the top.
+    const std::string matches = R"([
+      {"round": "Final", "date": "2030-07-01", "time": "20:45", "team1": "Harbour", "team2": "Hillcrest",
+       "score": {"ht": [1, 0], "ft": [2, 1]},
+       "goals1": [{"name": "A", "minute": "45+2"}, {"name": "B", "minute": "90+4"}],
+       "goals2": [{"name": "C", "minute": "67"}]},
+      {"round": "Final", "date": "2030-07-02", "team1": "Millbrook", "team2": "Stonegate",
+       "score": {"ft": [1, 0]}, "goals1": [{"name": "D", "minute": "5x"}]}
+    ])";
+    write(dir / "object.json", R"({"name": "Coast Cup", "matches": )" + matches + "}");
+    write(dir / "list.json", matches);
+    for (const char* file : {"object.json", "list.json"}) {
+        INFO(file);
+        const auto read = read_championship_timelines((dir / file).string());
+        REQUIRE(read.matches.size() == 1);
+        CHECK(read.skipped.goals_incomplete == 1);  // "5x" is no minute: left out, counted
+        const MatchTimeline& t = read.matches[0];
+        CHECK(t.home == "Harbour");
+        CHECK(t.away == "Hillcrest");
+        CHECK(t.origin_number == 1);  // no "num": the match's place in the file
+        REQUIRE(t.goals.size() == 3);
+        CHECK(t.goals[0].minute == 45);
+        CHECK(t.goals[0].stoppage == 2);
+        CHECK(t.goals[1].minute == 67);
+        CHECK(t.goals[1].stoppage == 0);
+        CHECK(t.goals[2].minute == 90);
+        CHECK(t.goals[2].stoppage == 4);
+        CHECK(t.regulation_goals == std::array<int, 2>{2, 1});
+        // Both stoppage goals come after the half's last minute on the feed's clock.
+        const auto feed = feed_from_timeline(t, 5, PriorMeans{1.2, 1.2});
+        std::vector<MatchClock> goals;
+        for (const auto& m : feed)
+            if (std::holds_alternative<Goal>(m.body)) goals.push_back(m.header.clock);
+        CHECK(goals == std::vector<MatchClock>{{Period::first_half, 2'790'000},     // 45+2
+                                               {Period::second_half, 3'990'000},    // 67 -> 66:30
+                                               {Period::second_half, 5'610'000}});  // 90+4
+        // Every match with a result joins the rating history, the incomplete one too.
+        const auto results = read_championship_results((dir / file).string());
+        CHECK(results.matches.size() == 2);
+    }
+}
+
+TEST_CASE("the left-out count of a date window holds only the matches of those dates", "[import]") {
+    const auto read = read_international_timelines(international_fixture().string(), {0.5});
+    const auto all = read.skips_between(std::nullopt, std::nullopt);
+    CHECK(all.total() == read.skipped.total());
+    // Everything left out lies in March and April 2001.
+    const auto day = [](const char* iso) { return fit::parse_iso_date(iso); };
+    CHECK(read.skips_between(day("2001-05-01"), std::nullopt).total() == 0);
+    CHECK(read.taken_between(day("2001-05-01"), std::nullopt) == 0);
+    const auto april = read.skips_between(day("2001-04-01"), day("2001-05-01"));
+    CHECK(april.not_covered == 2);  // lines 7 and 8
+    CHECK(april.no_result == 1);    // line 9
+    CHECK(april.goals_incomplete == 0);
+    CHECK(read.skips_between(day("2001-03-01"), day("2001-04-01")).goals_incomplete == 1);
 }

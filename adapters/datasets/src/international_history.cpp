@@ -1,8 +1,6 @@
 #include "liveprob/datasets/international_history.hpp"
 
 #include <charconv>
-#include <set>
-#include <tuple>
 
 #include "csv_reader.hpp"
 #include "liveprob/fit/calendar.hpp"
@@ -19,38 +17,12 @@ std::optional<int> count(std::string_view s) {
 
 }  // namespace
 
-InternationalHistory read_international_history(const std::string& dir) {
+InternationalHistory read_international_history(const std::string& dir, BadRows bad_rows) {
     InternationalHistory out;
-    {
-        enum { date, home, away, home_score, away_score, tournament, neutral };
-        detail::CsvReader csv(dir + "/results.csv", "the results file",
-                              {"date", "home_team", "away_team", "home_score", "away_score",
-                               "tournament", "neutral"});
-        std::set<std::tuple<int, std::string, std::string>> seen;
-        csv.for_each_row([&](int line, auto field) {
-            const auto day = fit::parse_iso_date(field(date));
-            const auto hs = count(field(home_score)), as = count(field(away_score));
-            if (!day || !hs || !as || field(home).empty() || field(away).empty()) {
-                ++out.skipped;
-                return;
-            }
-            CompetitionResult r;
-            r.result = {*day,
-                        std::string(field(home)),
-                        std::string(field(away)),
-                        *hs,
-                        *as,
-                        field(neutral) == "TRUE" || field(neutral) == "True" ||
-                            field(neutral) == "true" || field(neutral) == "1"};
-            r.competition = field(tournament);
-            r.line = line;
-            if (!seen.emplace(r.result.day, r.result.home, r.result.away).second) {
-                ++out.duplicates;
-                return;
-            }
-            out.results.push_back(std::move(r));
-        });
-    }
+    InternationalRows read = read_international_rows(dir + "/results.csv", bad_rows);
+    out.results = std::move(read.rows);
+    out.skipped = read.unplayed + read.bad_skipped;
+    out.duplicates = read.duplicates;
     enum { date, minute };
     detail::CsvReader csv(dir + "/goalscorers.csv", "the goal scorers file", {"date", "minute"});
     csv.for_each_row([&](int, auto field) {

@@ -108,36 +108,26 @@ TimelinesRead read_international_timelines(const std::string& dir,
 
     TimelinesRead out;
     std::vector<ResultRow> rows;
-    std::set<MatchKey> seen;
     {
-        enum { date, home, away, home_score, away_score, tournament, neutral };
-        CsvReader csv(results_path, "the results file",
-                      {"date", "home_team", "away_team", "home_score", "away_score", "tournament",
-                       "neutral"});
-        csv.for_each_row([&](int line, auto field) {
-            const auto day = fit::parse_iso_date(field(date));
-            const auto hs = whole_number(field(home_score)), as = whole_number(field(away_score));
-            if (!day || !hs || !as || field(home).empty() || field(away).empty()) {
-                ++out.skipped.no_result;
-                return;
-            }
+        InternationalRows read = read_international_rows(results_path, selection.bad_rows);
+        for (int i = 0; i < read.bad_skipped; ++i)
+            out.leave_out(std::nullopt, SkipReason::unreadable);
+        for (const int day : read.duplicate_days) out.leave_out(day, SkipReason::duplicate);
+        for (const int day : read.unplayed_days) out.leave_out(day, SkipReason::no_result);
+        for (auto& r : read.rows) {
             ResultRow row;
             MatchTimeline& t = row.timeline;
-            t.day = *day;
-            t.home = field(home);
-            t.away = field(away);
-            t.neutral = true_flag(field(neutral));
-            t.competition = field(tournament);
-            t.origin = fmt::format("{}:{}", results_path, line);
-            t.origin_number = static_cast<std::uint32_t>(line);
-            if (!seen.emplace(t.day, t.home, t.away).second) {
-                ++out.skipped.duplicates;
-                return;
-            }
-            row.score = {*hs, *as};
+            t.day = r.result.day;
+            t.home = std::move(r.result.home);
+            t.away = std::move(r.result.away);
+            t.neutral = r.result.neutral;
+            t.competition = std::move(r.competition);
+            t.origin = fmt::format("{}:{}", results_path, r.line);
+            t.origin_number = static_cast<std::uint32_t>(r.line);
+            row.score = {r.result.home_goals, r.result.away_goals};
             row.group = fmt::format("{}|{}", t.competition, fit::iso_date(t.day).substr(0, 4));
             rows.push_back(std::move(row));
-        });
+        }
     }
 
     // Goal-record coverage of each competition and year, over its matches with goals.
@@ -160,13 +150,13 @@ TimelinesRead read_international_timelines(const std::string& dir,
     for (auto& r : rows) {
         const auto c = coverage.find(r.group);
         if (c == coverage.end() || c->second[1] < selection.min_coverage * c->second[0]) {
-            ++out.skipped.not_covered;
+            out.leave_out(r.timeline.day, SkipReason::not_covered);
             continue;
         }
         MatchTimeline& t = r.timeline;
         if (const GoalRecords* g = records_of(r)) {
             if (g->unusable) {
-                ++out.skipped.goals_incomplete;
+                out.leave_out(t.day, SkipReason::goals_incomplete);
                 continue;
             }
             t.goals = g->goals;
@@ -179,7 +169,7 @@ TimelinesRead read_international_timelines(const std::string& dir,
         }
         const auto verdict = detail::finish_timeline(t, r.score, false);
         if (verdict != detail::TimelineVerdict::usable) {
-            detail::count_skip(out.skipped, verdict);
+            detail::count_skip(out, t.day, verdict);
             continue;
         }
         if (t.shootout) ++out.shootouts_without_tally;

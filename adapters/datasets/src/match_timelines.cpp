@@ -29,12 +29,53 @@ TimelineVerdict finish_timeline(MatchTimeline& match, std::array<int, 2> final_g
     return TimelineVerdict::usable;
 }
 
-void count_skip(TimelineSkips& skips, TimelineVerdict verdict) noexcept {
+void count_skip(TimelinesRead& read, int day, TimelineVerdict verdict) {
     switch (verdict) {
-        case TimelineVerdict::goals_incomplete: ++skips.goals_incomplete; break;
-        case TimelineVerdict::aggregate_tie: ++skips.aggregate_tie; break;
+        case TimelineVerdict::goals_incomplete:
+            read.leave_out(day, SkipReason::goals_incomplete);
+            break;
+        case TimelineVerdict::aggregate_tie: read.leave_out(day, SkipReason::aggregate_tie); break;
         case TimelineVerdict::usable: break;
     }
 }
 
 }  // namespace liveprob::datasets::detail
+
+namespace liveprob::datasets {
+namespace {
+
+void count(TimelineSkips& skips, SkipReason reason) noexcept {
+    switch (reason) {
+        case SkipReason::no_result: ++skips.no_result; break;
+        case SkipReason::unreadable: ++skips.unreadable; break;
+        case SkipReason::duplicate: ++skips.duplicates; break;
+        case SkipReason::goals_incomplete: ++skips.goals_incomplete; break;
+        case SkipReason::not_covered: ++skips.not_covered; break;
+        case SkipReason::aggregate_tie: ++skips.aggregate_tie; break;
+    }
+}
+
+bool within(int day, std::optional<int> from, std::optional<int> to) noexcept {
+    return (!from || day >= *from) && (!to || day < *to);
+}
+
+}  // namespace
+
+void TimelinesRead::leave_out(std::optional<int> day, SkipReason reason) {
+    count(skipped, reason);
+    left_out.push_back({day, reason});
+}
+
+TimelineSkips TimelinesRead::skips_between(std::optional<int> from, std::optional<int> to) const {
+    TimelineSkips out;
+    for (const auto& m : left_out)
+        if (!m.day || within(*m.day, from, to)) count(out, m.reason);
+    return out;
+}
+
+std::size_t TimelinesRead::taken_between(std::optional<int> from, std::optional<int> to) const {
+    return static_cast<std::size_t>(std::count_if(
+        matches.begin(), matches.end(), [&](const auto& m) { return within(m.day, from, to); }));
+}
+
+}  // namespace liveprob::datasets

@@ -18,6 +18,7 @@ enum class TimelineVerdict { usable, goals_incomplete, aggregate_tie };
 TimelineVerdict finish_timeline(MatchTimeline& match, std::array<int, 2> final_goals,
                                 bool extra_time_reported);
 
-void count_skip(TimelineSkips& skips, TimelineVerdict verdict) noexcept;
+// Counts a match left out for `verdict` (nothing when usable).
+void count_skip(TimelinesRead& read, int day, TimelineVerdict verdict);
 
 }  // namespace liveprob::datasets::detail

@@ -12,6 +12,7 @@
 #include "liveprob/files/ratings_file.hpp"
 #include "liveprob/fit/calendar.hpp"
 #include "liveprob/fit/dixon_coles.hpp"
+#include "rating_settings.hpp"
 
 namespace {
 
@@ -27,6 +28,7 @@ struct FitOptions {
     bool low_score_correction = false;
     double min_matches = 6.0;
     double shrink_precision = 2.0;
+    liveprob::datasets::BadRows bad_rows = liveprob::datasets::BadRows::fail;
 };
 
 int run_fit(const FitOptions& o) {
@@ -41,6 +43,7 @@ int run_fit(const FitOptions& o) {
     options.fit_rho = o.low_score_correction;
     options.min_matches = o.min_matches;
     options.shrink_precision = o.shrink_precision;
+    options.min_weight = liveprob::cli::kMinMatchWeight;
 
     const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{}
                                            : liveprob::files::load_alias_file(o.aliases);
@@ -49,15 +52,17 @@ int run_fit(const FitOptions& o) {
     };
     std::vector<fit::MatchResult> matches;
     for (const auto& path : o.results) {
-        auto read = liveprob::datasets::read_results_any(path);
-        std::cerr << fmt::format(
-            "{}: {} matches, {} rows without a result skipped, {} duplicates dropped\n", path,
-            read.matches.size(), read.skipped, read.duplicates);
+        auto read = liveprob::datasets::read_results_any(path, o.bad_rows);
         for (auto& m : read.matches) {
             rename(m.home);
             rename(m.away);
-            matches.push_back(std::move(m));
         }
+        // A result another file already gave (the same day and sides) counts once.
+        const int repeated = liveprob::datasets::append_new_results(matches, read.matches);
+        std::cerr << fmt::format(
+            "{}: {} matches, {} not played skipped, {} unreadable rows skipped, {} duplicates "
+            "dropped, {} already in an earlier file\n",
+            path, read.matches.size(), read.skipped, read.bad_skipped, read.duplicates, repeated);
     }
     const fit::Ratings ratings = fit::fit_ratings(matches, options);
     for (const auto& w : ratings.diagnostics.warnings) std::cerr << "warning: " << w << "\n";
@@ -94,6 +99,7 @@ const liveprob::cli::Registration registration{
                         "prior precision for shrunk teams");
          app.add_option("--aliases", o->aliases,
                         "CSV feed_name,rating_name applied to the results' names");
+         liveprob::cli::add_bad_rows_flag(app, o->bad_rows);
          return [o] { return run_fit(*o); };
      }}};
 

@@ -28,6 +28,7 @@
 #include "liveprob/fit/goal_timing.hpp"
 #include "liveprob/fit/score_state_fit.hpp"
 #include "liveprob/fit/shootout_fit.hpp"
+#include "rating_settings.hpp"
 
 namespace {
 
@@ -46,6 +47,7 @@ struct FitInplayOptions {
     bool fit_dispersion = true;  // false: κ = ∞, the state multipliers fitted under plain Poisson
     double min_matches = 6.0;
     int extra_time_from_year = 1970;
+    datasets::BadRows bad_rows = datasets::BadRows::fail;
 };
 
 // Competitions whose knock-out matches play extra time before any shoot-out (from memory; the
@@ -92,21 +94,22 @@ int run_fit_inplay(const FitInplayOptions& o) {
     const fs::path dir(o.international_dir);
     // Every international match with complete goal records (no coverage filter: a goalless
     // match is left out below, and those with goals are conditioned on having one).
-    const auto international = datasets::read_international_timelines(dir.string(), {0.0});
+    const auto international =
+        datasets::read_international_timelines(dir.string(), {0.0, o.bad_rows});
     std::vector<datasets::TimelinesRead> championships;
     for (const auto& path : o.championships)
         championships.push_back(datasets::read_championship_timelines(path));
     auto history =
-        liveprob::datasets::read_international_results((dir / "results.csv").string()).matches;
+        datasets::read_international_results((dir / "results.csv").string(), o.bad_rows).matches;
+    // Each championship result joins the history once (not again when the international
+    // results hold it).
+    for (const auto& path : o.championships)
+        datasets::append_new_results(history, datasets::read_championship_results(path).matches);
 
     std::vector<Candidate> candidates;
     for (const auto& t : international.matches) candidates.push_back({&t, false});
     for (const auto& read : championships)
-        for (const auto& t : read.matches) {
-            candidates.push_back({&t, true});
-            history.push_back({t.day, t.home, t.away, t.regulation_goals[0] + t.extra_time_goals[0],
-                               t.regulation_goals[1] + t.extra_time_goals[1], t.neutral});
-        }
+        for (const auto& t : read.matches) candidates.push_back({&t, true});
 
     liveprob::core::ModelParams params = o.base_params.empty()
                                              ? liveprob::core::ModelParams{}
@@ -148,7 +151,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
     liveprob::backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
-    wf.fit.min_weight = 0.01;
+    wf.fit.min_weight = liveprob::cli::kMinMatchWeight;
     wf.fit.standard_errors = false;
     wf.schedule = liveprob::backtest::RefitSchedule::month;
     const auto priors = liveprob::backtest::walk_forward_priors(history, fixtures, wf);
@@ -317,9 +320,13 @@ int run_fit_inplay(const FitInplayOptions& o) {
         international.matches.size(), candidates.size() - international.matches.size(),
         samples.left_out_unrated, o.min_matches, samples.left_out_goalless, priors.refits,
         priors.not_converged);
+    // A value not fitted here has no standard error: its row says "kept" (the base value) or
+    // "held" instead, as the file's notes do.
     std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "parameter", "value", "se");
-    auto row = [](const char* name, double value, double se) {
-        std::cout << fmt::format("{:<28} {:>9.4f} {:>9.4f}\n", name, value, se);
+    auto row = [](const char* name, double value, std::optional<double> se,
+                  const char* otherwise = "kept") {
+        std::cout << fmt::format("{:<28} {:>9.4f} {:>9}\n", name, value,
+                                 se ? fmt::format("{:.4f}", *se) : otherwise);
     };
     row("timing.first_half_start", params.timing.first_half_start, timing.first_half_start_se);
     row("timing.second_half_start", params.timing.second_half_start, timing.second_half_start_se);
@@ -329,11 +336,15 @@ int run_fit_inplay(const FitInplayOptions& o) {
     row("score_state.leading", states.effects.leading, states.leading_se);
     row("score_state.level", states.effects.level, states.level_se);
     row("score_state.trailing", states.effects.trailing, states.trailing_se);
-    if (o.fit_dispersion) row("kappa", states.kappa, states.kappa_se);
-    else std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "kappa", "infinity", "held");
+    if (std::isfinite(states.kappa)) row("kappa", states.kappa, states.kappa_se);
+    else
+        std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "kappa", "infinity",
+                                 o.fit_dispersion ? "at bound" : "held");
     row("timing.extra_time_factor", extra.factor, extra.factor_se);
-    row("shootout.conversion", kicks.params.conversion, kicks.conversion_se);
-    row("shootout.first_kicker_edge", kicks.params.first_kicker_edge, kicks.edge_se);
+    row("shootout.conversion", kicks.params.conversion,
+        kicks.conversion_fitted ? std::optional<double>(kicks.conversion_se) : std::nullopt);
+    row("shootout.first_kicker_edge", kicks.params.first_kicker_edge,
+        kicks.edge_fitted ? std::optional<double>(kicks.edge_se) : std::nullopt);
     std::cout << fmt::format(
         "second-half share: data {:.4f}, fitted {:.4f} (se {:.4f})\n"
         "score states: {} matches, {} goals{}\n"
@@ -376,6 +387,7 @@ const liveprob::cli::Registration registration{
          app.add_option("--timing-half-life", o->timing_half_life_days,
                         "time-decay half-life in days of the goal-minute weights of the timing "
                         "profile (0: every goal alike)");
+         liveprob::cli::add_bad_rows_flag(app, o->bad_rows);
          app.add_option(
              "--min-matches", o->min_matches,
              "a match is used only when both sides have this many weighted earlier matches");

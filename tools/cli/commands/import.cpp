@@ -21,8 +21,11 @@
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/results_readers.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
+#include "liveprob/files/ratings_file.hpp"
 #include "liveprob/fit/calendar.hpp"
+#include "liveprob/fit/team_names.hpp"
 #include "progress_bar.hpp"
+#include "rating_settings.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -43,6 +46,8 @@ struct ImportOptions {
     double min_matches = 6.0;
     double shrink_precision = 2.0;
     std::string from, to;
+    std::string aliases;
+    datasets::BadRows bad_rows = datasets::BadRows::fail;
     bool quiet = false;
 };
 
@@ -59,16 +64,46 @@ std::optional<int> date_option(const std::string& text, const char* name) {
     return day;
 }
 
-void print_skips(const std::string& what, const datasets::TimelinesRead& read) {
-    const auto& s = read.skipped;
+// What was read and left out, counting only the matches inside the --from/--to window.
+void print_skips(const std::string& what, const datasets::TimelinesRead& read,
+                 std::optional<int> from, std::optional<int> to) {
+    const auto s = read.skips_between(from, to);
     std::cout << fmt::format(
-        "{}: {} matches with complete goal records; left out: {} without a result, {} repeated, {} "
-        "with goal "
-        "records incomplete, {} in competitions and years without goal records, {} second legs of "
-        "two-legged ties\n",
-        what, read.matches.size(), s.no_result, s.duplicates, s.goals_incomplete, s.not_covered,
-        s.aggregate_tie);
+        "{}: {} matches with complete goal records{}; left out: {} without a result, {} "
+        "unreadable rows skipped, {} repeated, {} with goal records incomplete, {} in competitions "
+        "and years without goal records, {} second legs of two-legged ties\n",
+        what, read.taken_between(from, to), from || to ? " in the chosen dates" : "", s.no_result,
+        s.unreadable, s.duplicates, s.goals_incomplete, s.not_covered, s.aggregate_tie);
 }
+
+// Championship spellings mapped to the results file's (`--aliases`); with the international
+// results as the history, every championship side must be one of their sides.
+class SideNames {
+public:
+    explicit SideNames(const std::string& alias_file)
+        : aliases_(alias_file.empty() ? std::map<std::string, std::string>{}
+                                      : files::load_alias_file(alias_file)) {}
+
+    void rename(std::string& name) const {
+        if (const auto it = aliases_.find(name); it != aliases_.end()) name = it->second;
+    }
+    // Throws when `name` (already renamed) is not a side of `known`, naming the closest ones.
+    static void check_known(const std::string& name, const std::set<std::string>& known,
+                            const std::string& where) {
+        if (known.contains(name)) return;
+        const std::vector<std::string> list(known.begin(), known.end());
+        std::string closest;
+        for (const auto& c : fit::closest_names(name, list))
+            closest += (closest.empty() ? "" : ", ") + fmt::format("'{}'", c);
+        throw std::runtime_error(fmt::format(
+            "{}: side '{}' is not in the international results (closest: {}); map it with "
+            "--aliases FILE (feed_name,rating_name)",
+            where, name, closest));
+    }
+
+private:
+    std::map<std::string, std::string> aliases_;
+};
 
 int run_import(const ImportOptions& o) {
     if (o.international.empty() && o.championships.empty()) {
@@ -96,24 +131,49 @@ int run_import(const ImportOptions& o) {
 
     std::vector<ImportedMatch> matches;
     std::vector<fit::MatchResult> history;
+    const SideNames names(o.aliases);
+    std::set<std::string> international_sides;
     auto wanted = [&](int day) { return (!from || day >= *from) && (!to || day < *to); };
     if (!o.international.empty()) {
-        auto read = datasets::read_international_timelines(o.international, {o.coverage});
-        print_skips("international", read);
+        auto read =
+            datasets::read_international_timelines(o.international, {o.coverage, o.bad_rows});
+        print_skips("international", read, from, to);
         auto results = datasets::read_international_results(
-            (fs::path(o.international) / "results.csv").string());
+            (fs::path(o.international) / "results.csv").string(), o.bad_rows);
         history = std::move(results.matches);
+        for (auto& r : history) {
+            names.rename(r.home);
+            names.rename(r.away);
+            international_sides.insert(r.home);
+            international_sides.insert(r.away);
+        }
         for (auto& t : read.matches) {
             if (!wanted(t.day)) continue;
+            names.rename(t.home);
+            names.rename(t.away);
             const std::uint64_t id = kInternationalIdBase + t.origin_number;
             fs::path file = fs::path("international") /
                             fmt::format("{}.{}", fit::iso_date(t.day).substr(0, 4), ext);
             matches.push_back({std::move(t), id, std::move(file)});
         }
     }
+    int repeated_results = 0;
     for (const auto& path : o.championships) {
         auto read = datasets::read_championship_timelines(path);
-        print_skips(path, read);
+        print_skips(path, read, from, to);
+        // Every result of the file joins the history the later fits learn from (also those
+        // whose goal records are incomplete), once: a result the international file already
+        // holds is not counted twice.
+        auto results = datasets::read_championship_results(path).matches;
+        for (auto& r : results) {
+            names.rename(r.home);
+            names.rename(r.away);
+            if (!international_sides.empty()) {
+                SideNames::check_known(r.home, international_sides, path);
+                SideNames::check_known(r.away, international_sides, path);
+            }
+        }
+        repeated_results += datasets::append_new_results(history, results);
         if (read.matches.empty()) continue;
         const std::string year = fit::iso_date(read.matches.front().day).substr(0, 4);
         const fs::path file =
@@ -121,11 +181,9 @@ int run_import(const ImportOptions& o) {
                                                    fs::path(path).parent_path().filename().string(),
                                                    fs::path(path).stem().string(), year, ext);
         for (auto& t : read.matches) {
-            // Its results join the history the later fits learn from.
-            const int total_home = t.regulation_goals[0] + t.extra_time_goals[0];
-            const int total_away = t.regulation_goals[1] + t.extra_time_goals[1];
-            history.push_back({t.day, t.home, t.away, total_home, total_away, t.neutral});
             if (!wanted(t.day)) continue;
+            names.rename(t.home);
+            names.rename(t.away);
             if (t.origin_number >= 1000)
                 throw std::runtime_error(t.origin + ": match number too large for an id");
             const std::uint64_t id = kChampionshipIdBase +
@@ -134,6 +192,10 @@ int run_import(const ImportOptions& o) {
             matches.push_back({std::move(t), id, file});
         }
     }
+    if (repeated_results > 0)
+        std::cout << fmt::format(
+            "{} championship results already in the international results counted once\n",
+            repeated_results);
     std::set<std::uint64_t> ids;
     for (const auto& m : matches) {
         if (!ids.insert(m.match_id).second)
@@ -150,7 +212,7 @@ int run_import(const ImportOptions& o) {
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
     wf.fit.shrink_precision = o.shrink_precision;
-    wf.fit.min_weight = 0.01;
+    wf.fit.min_weight = kMinMatchWeight;
     wf.fit.standard_errors = false;
     wf.schedule =
         o.refit == "month" ? backtest::RefitSchedule::month : backtest::RefitSchedule::match_day;
@@ -229,6 +291,10 @@ const Registration registration{{
         sub.add_option("--from", o->from,
                        "import matches on or after this date (the fits still use all before)");
         sub.add_option("--to", o->to, "import matches before this date");
+        sub.add_option("--aliases", o->aliases,
+                       "CSV feed_name,rating_name: championship spellings mapped to the "
+                       "international results' names (an unknown side is an error)");
+        add_bad_rows_flag(sub, o->bad_rows);
         sub.add_flag("--quiet", o->quiet, "no progress bar");
         return [o] { return run_import(*o); };
     },

@@ -1,11 +1,13 @@
 // `liveprob prior`: ratings + fixture → expected regulation goals and the match-setup message.
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <iostream>
 #include <memory>
 #include <string>
 
 #include "command_registry.hpp"
+#include "liveprob/core/validate.hpp"
 #include "liveprob/files/ratings_file.hpp"
 #include "liveprob/fit/dixon_coles.hpp"
 #include "liveprob/fit/team_names.hpp"
@@ -33,11 +35,20 @@ int run_prior(const PriorOptions& o) {
                                                  : liveprob::files::load_alias_file(o.aliases));
     const fit::TeamRating& home = *ratings.find(names.resolve(o.home));
     const fit::TeamRating& away = *ratings.find(names.resolve(o.away));
-    const fit::ExpectedGoals e = fit::expected_goals(ratings, home, away, o.neutral);
+    fit::ExpectedGoals e = fit::expected_goals(ratings, home, away, o.neutral);
+    // The engine takes at most kMaxPriorGoals per side (calc, serve and the feed refuse more):
+    // a larger value is held at it, as `import` holds it, and said.
+    const double most = liveprob::core::kMaxPriorGoals;
+    const bool held = e.home > most || e.away > most;
+    e.home = std::min(e.home, most);
+    e.away = std::min(e.away, most);
+    if (held)
+        std::cerr << fmt::format(
+            "note: expected goals above {} held at {} (the engine's largest)\n", most, most);
     if (!o.setup_line) {
-        std::cout << fmt::format("{} v {}{}: expected regulation goals {:.4f} - {:.4f}\n",
+        std::cout << fmt::format("{} v {}{}: expected regulation goals {:.4f} - {:.4f}{}\n",
                                  home.name, away.name, o.neutral ? " (neutral venue)" : "", e.home,
-                                 e.away);
+                                 e.away, held ? " (held at the largest the engine takes)" : "");
         return liveprob::cli::kExitOk;
     }
     liveprob::core::MatchSetup setup;

@@ -16,6 +16,7 @@
 #include <vector>
 
 #include "liveprob/core/messages.hpp"
+#include "liveprob/datasets/results_readers.hpp"
 
 namespace liveprob::datasets {
 
@@ -51,21 +52,46 @@ struct MatchTimeline {
 };
 
 struct TimelineSkips {
-    int no_result = 0;         // no final score in the source
+    int no_result = 0;         // no final score in the source (not played)
+    int unreadable = 0;        // a row that cannot be read, skipped under BadRows::skip
     int duplicates = 0;        // the same (date, home, away) again
     int goals_incomplete = 0;  // goal records missing, without a minute, or not adding up
     int not_covered = 0;       // competition and year without complete goal records (below)
     int aggregate_tie = 0;     // extra time or a shoot-out after an unlevel match: the second
                                // leg of a two-legged tie, whose first leg the source lacks
     int total() const noexcept {
-        return no_result + duplicates + goals_incomplete + not_covered + aggregate_tie;
+        return no_result + unreadable + duplicates + goals_incomplete + not_covered + aggregate_tie;
     }
+};
+
+enum class SkipReason : std::uint8_t {
+    no_result,
+    unreadable,
+    duplicate,
+    goals_incomplete,
+    not_covered,
+    aggregate_tie,
+};
+
+// One match left out, with its day when the source gives a readable one.
+struct LeftOutMatch {
+    std::optional<int> day;
+    SkipReason reason = SkipReason::no_result;
 };
 
 struct TimelinesRead {
     std::vector<MatchTimeline> matches;  // by date, then source order
-    TimelineSkips skipped;
-    int shootouts_without_tally = 0;  // shoot-outs whose kicks the source does not give
+    TimelineSkips skipped;               // every match left out, by reason
+    std::vector<LeftOutMatch> left_out;  // the same matches, one by one
+    int shootouts_without_tally = 0;     // shoot-outs whose kicks the source does not give
+
+    // Counts a match left out (in `skipped` and `left_out`).
+    void leave_out(std::optional<int> day, SkipReason reason);
+    // The matches left out whose day lies in [from, to) (an open end: no limit); a match
+    // without a readable day is counted in every window.
+    TimelineSkips skips_between(std::optional<int> from, std::optional<int> to) const;
+    // The matches taken whose day lies in [from, to).
+    std::size_t taken_between(std::optional<int> from, std::optional<int> to) const;
 };
 
 struct InternationalSelection {
@@ -75,6 +101,7 @@ struct InternationalSelection {
     // only when at least this share of its matches with goals have complete goal records; its
     // goalless matches are taken with them.
     double min_coverage = 0.9;
+    BadRows bad_rows = BadRows::fail;  // an unreadable row of results.csv
 };
 
 // `dir` holds results.csv, goalscorers.csv and shootouts.csv. Throws std::runtime_error naming
@@ -91,8 +118,10 @@ struct ShootoutRow {
 };
 std::vector<ShootoutRow> read_shootout_rows(const std::string& path);
 
-// One championship file. Its matches are taken as played at neutral venues (the file names no
-// venue) and its kick-off times as given.
+// One championship file, in either layout (rounds of matches, or one list of matches; sides as
+// names or as objects with a name; goal minutes as numbers with an "offset" or as text such as
+// "90+4", the stoppage offset kept). Its matches are taken as played at neutral venues (the
+// file names no venue) and its kick-off times as given.
 TimelinesRead read_championship_timelines(const std::string& path);
 
 }  // namespace liveprob::datasets

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "liveprob/core/messages.hpp"
+#include "liveprob/core/validate.hpp"
 #include "liveprob/fit/dixon_coles.hpp"
 #include "liveprob/fit/match_result.hpp"
 
@@ -30,8 +31,9 @@ enum class RefitSchedule : std::uint8_t {
 struct WalkForwardOptions {
     fit::RatingsFitOptions fit;  // decay, shrinkage, ...; as_of_day and start are set per refit
     RefitSchedule schedule = RefitSchedule::match_day;
-    // Expected goals beyond this are held at it (the engine takes priors up to 10 goals).
-    double max_expected_goals = 10.0;
+    // Expected goals beyond this are held at it (the largest prior the engine takes, as
+    // `liveprob prior` holds it too).
+    double max_expected_goals = core::kMaxPriorGoals;
     // The refits are split into this many stretches of consecutive days, each a chain of fits
     // warm-started from the one before (the first cold), run side by side on up to `threads`
     // threads. The priors depend on the number of chains only within the fit's convergence
