@@ -1,0 +1,250 @@
+#include "liveprob/service/service_core.hpp"
+
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <algorithm>
+
+#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/sharding.hpp"
+
+namespace liveprob::service {
+
+namespace {
+// Rare events are logged the first ten times and then every thousandth, so a flood of them
+// cannot flood the log.
+bool worth_logging(std::uint64_t seen) { return seen <= 10 || seen % 1000 == 0; }
+}  // namespace
+
+CoreSettings core_settings(const ServiceConfig& config) {
+    CoreSettings settings;
+    settings.limits.retention = std::chrono::seconds(config.retention_s);
+    settings.limits.waiting_ttl = std::chrono::seconds(config.waiting_ttl_s);
+    settings.limits.max_messages_per_match = config.match_message_cap;
+    const protocol::ShardSpec shard = protocol::parse_shard_spec(config.shard);
+    if (shard.count > 1) {
+        settings.owns = [shard](std::uint64_t id) { return protocol::owns(shard, id); };
+    }
+    return settings;
+}
+
+ServiceCore::ServiceCore(core::ModelParams params, CoreSettings settings, ServiceClock& clock,
+                         ServiceActions& actions, RecordLog* log)
+    : clock_(clock), actions_(actions), log_(log), owns_(std::move(settings.owns)),
+      registry_(std::move(params), settings.limits) {}
+
+void ServiceCore::restore(std::span<const std::uint8_t> record) {
+    restoring_ = true;
+    handle(record, true);
+}
+
+void ServiceCore::finish_restore() {
+    restoring_ = false;
+    // A rebuilt match continues its output sequence from the restart time in microseconds since
+    // the Unix epoch, not from 1. The run before published fewer updates per match than
+    // microseconds have passed since its own start, so the sequence only rises across restarts
+    // and a subscriber that skips updates "not newer" than the last (protocol/README.md) takes
+    // the restarted service's updates at once; it sees one forward jump, like a gap.
+    const ServiceTime now = clock_.now();
+    const auto restart_seq = static_cast<std::uint64_t>(now.wall_us);
+    for (const std::uint64_t id : restored_) {
+        if (LiveMatch* m = registry_.find(id)) {
+            m->output_seq = std::max(m->output_seq, restart_seq);
+            publish(*m, false, now);
+        }
+    }
+    restored_.clear();
+}
+
+Intake ServiceCore::ingest(std::span<const std::uint8_t> bytes, std::optional<Delivery> delivery) {
+    const Intake intake = handle(bytes, false);
+    // Nothing is promised for a message that was not journaled: the feed resends it.
+    if (delivery && intake != Intake::not_journaled)
+        acks_.owe(delivery->peer, delivery->ticket, intake == Intake::durable);
+    return intake;
+}
+
+Intake ServiceCore::handle(std::span<const std::uint8_t> bytes, bool from_log) {
+    const ServiceTime received = clock_.now();
+    protocol::FeedDecodeResult decoded = protocol::decode_feed_message(bytes);
+    if (!decoded.message) {
+        const auto kind = static_cast<std::size_t>(decoded.error);
+        const std::uint64_t seen = ++counters_.decode_rejected[kind < kDecodeErrorKinds ? kind : 0];
+        if (worth_logging(seen)) {
+            spdlog::warn("dropped an inbound buffer of {} bytes{}: {} ({} so far)", bytes.size(),
+                         from_log ? " from the journal" : "", decoded.detail, seen);
+        }
+        return Intake::refused;
+    }
+    const std::uint64_t match_id = decoded.message->header.match_id;
+    if (owns_ && !owns_(match_id)) {
+        ++counters_.not_our_shard;
+        return Intake::refused;
+    }
+    // Written before it is applied: what the engine has seen, the log has. A message that
+    // cannot be written (disk full) is not applied either, so the state stays one a restart can
+    // rebuild; the feed's resend, or the next message once space returns, goes on from there.
+    if (!from_log && log_ != nullptr) {
+        try {
+            log_->append(bytes);
+        } catch (const RecordLogError& e) {
+            journal_failing_ = true;
+            const std::uint64_t failed = ++counters_.journal_write_failed;
+            if (worth_logging(failed))
+                spdlog::error("{}; message not applied ({} so far)", e.what(), failed);
+            return Intake::not_journaled;
+        }
+        ++counters_.journal_frames;
+        journal_failing_ = false;
+    }
+    touched_.clear();
+    const MessageOutcome outcome =
+        registry_.handle(*decoded.message, received.wall_us, received.steady, touched_);
+    switch (outcome) {
+        case MessageOutcome::bad_setup:
+            ++counters_.bad_setup;
+            spdlog::warn("match {}: setup refused: {}", match_id, registry_.last_setup_error());
+            break;
+        case MessageOutcome::waiting: ++counters_.waiting; break;
+        case MessageOutcome::waiting_overflow: ++counters_.waiting_overflow; break;
+        case MessageOutcome::over_cap: ++counters_.over_cap; break;
+        case MessageOutcome::created: spdlog::info("match {}: created", match_id); break;
+        case MessageOutcome::applied:
+        case MessageOutcome::duplicate:
+        case MessageOutcome::rejected: break;
+    }
+    for (const std::uint64_t id : touched_) {
+        if (restoring_) {
+            restored_.insert(id);  // published once, by finish_restore()
+        } else if (LiveMatch* m = registry_.find(id)) {
+            publish(*m, false, received);
+        }
+    }
+    return Intake::durable;
+}
+
+void ServiceCore::settle_acks() {
+    if (acks_.empty()) return;
+    if (log_ != nullptr && log_->awaiting_sync()) {
+        sync_due();
+        return;  // sync_due() sent them if the sync was due; otherwise its timer will
+    }
+    acks_.send(actions_, counters_);
+}
+
+void ServiceCore::sync_due() {
+    if (log_ != nullptr) {
+        try {
+            log_->sync(clock_.now().steady, false);
+        } catch (const RecordLogError& e) {
+            sync_failed(e);
+            return;
+        }
+        if (log_->awaiting_sync()) return;
+    }
+    if (!acks_.empty()) acks_.send(actions_, counters_);
+}
+
+void ServiceCore::sync_failed(const RecordLogError& e) {
+    // The records are written; whether they reached the disk is unknown: promise nothing for
+    // them, and the feeds resend (duplicates are harmless).
+    spdlog::error("{}; acknowledgements withheld", e.what());
+    acks_.withhold(counters_);
+}
+
+void ServiceCore::tick() {
+    for (auto& [id, m] : registry_.matches()) {
+        if (!m.live()) continue;
+        const ServiceTime started = clock_.now();
+        registry_.advance(m, started.steady);
+        publish(m, true, started);
+    }
+    // Every update handed to the publisher by now: finished matches past the retention go.
+    const RetireReport retired = registry_.retire(clock_.now().steady);
+    counters_.retired += retired.matches;
+    counters_.waiting_expired += retired.waiting_expired;
+}
+
+protocol::UpdateMeta ServiceCore::meta_of(const LiveMatch& m) const {
+    protocol::UpdateMeta meta;
+    meta.match_id = m.match.match_id();
+    meta.output_seq = m.output_seq;
+    meta.input_seq = m.input_seq;
+    meta.receive_time_us = m.receive_time_us;
+    return meta;
+}
+
+void ServiceCore::publish(LiveMatch& m, bool tick, const ServiceTime& started) {
+    m.match.price_into(outputs_);
+    ++m.output_seq;
+    protocol::UpdateMeta meta = meta_of(m);
+    if (tick) meta.receive_time_us = 0;
+    const ServiceTime priced = clock_.now();
+    meta.compute_ns = static_cast<std::uint32_t>(std::clamp<std::int64_t>(
+        std::chrono::duration_cast<std::chrono::nanoseconds>(priced.steady - started.steady)
+            .count(),
+        0, 0xFFFF'FFFF));
+    meta.publish_time_us = priced.wall_us;
+    actions_.publish_update(meta, encoder_.encode(meta, outputs_));
+    ++(tick ? counters_.ticks_published : counters_.updates_published);
+}
+
+std::vector<std::uint8_t> ServiceCore::answer_snapshot(std::span<const std::uint8_t> request) {
+    ++counters_.snapshot_requests;
+    const auto wanted = protocol::decode_snapshot_request(request);
+    snapshot_reply_.updates.clear();
+    snapshot_reply_.error.clear();
+    const auto add = [this](const LiveMatch& m) {
+        m.match.price_into(outputs_);
+        snapshot_reply_.updates.push_back({meta_of(m), outputs_});
+    };
+    if (!wanted.ok()) {
+        ++counters_.snapshot_bad_requests;
+        snapshot_reply_.error = "bad request: " + wanted.detail;
+    } else if (*wanted.value == 0) {
+        for (const auto& [id, m] : registry_.matches()) {
+            if (m.live()) add(m);
+        }
+    } else if (const LiveMatch* m = registry_.find(*wanted.value)) {
+        add(*m);
+    } else {
+        snapshot_reply_.error = fmt::format("unknown match {}", *wanted.value);
+    }
+    const std::int64_t now_us = clock_.now().wall_us;
+    for (auto& u : snapshot_reply_.updates) u.meta.publish_time_us = now_us;
+    return protocol::encode_snapshot_reply(snapshot_reply_);
+}
+
+const CounterList& ServiceCore::counter_values() {
+    counters_.matches = registry_.matches().size();
+    counters_.live_matches = 0;
+    for (const auto& [id, m] : registry_.matches()) counters_.live_matches += m.live() ? 1u : 0u;
+    list_counters(counters_, registry_.totals(), counter_set_.values);
+    return counter_set_.values;
+}
+
+void ServiceCore::publish_counters() {
+    counter_values();
+    counter_set_.publish_time_us = clock_.now().wall_us;
+    const std::vector<std::uint8_t> bytes = protocol::encode_counters(counter_set_);
+    actions_.publish_counters(bytes);
+    std::string line;
+    for (const auto& [name, value] : counter_set_.values) {
+        if (value != 0) line += fmt::format(" {}={}", name, value);
+    }
+    spdlog::info("counters:{}", line);
+}
+
+void ServiceCore::finish() {
+    if (log_ != nullptr) {
+        try {
+            log_->sync(clock_.now().steady, true);
+        } catch (const RecordLogError& e) {
+            sync_failed(e);
+        }
+    }
+    acks_.send(actions_, counters_);
+    publish_counters();  // the final figures, on the topic and in the log
+}
+
+}  // namespace liveprob::service
