@@ -1,6 +1,7 @@
-// `liveprob serve`: one Boost.Asio event loop on one thread owning the ingest (PULL), publish
+// `liveprob serve`: one Boost.Asio event loop on one thread owning the ingest (ROUTER), publish
 // (PUB), snapshot (ROUTER) and, with CURVE, ZAP sockets, the tick, counters and journal-sync
-// timers, and the signal handler. Operation, drop policy and topics: adapters/service/README.md.
+// timers, and the signal handler. It is the shell around the service core (service_core.hpp),
+// which holds the rules. Operation, drop policy and topics: adapters/service/README.md.
 #pragma once
 
 #include <functional>

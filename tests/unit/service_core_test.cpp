@@ -1,0 +1,393 @@
+// The service core (adapters/service/service_core.hpp) driven without sockets, on a simulated
+// clock: bytes in, actions out. The record log is a real journal folder (or /dev/full, which
+// fails every write with ENOSPC as a full disk does).
+#include <catch2/catch.hpp>
+
+#include <chrono>
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "feed_builder.hpp"
+#include "liveprob/files/journal.hpp"
+#include "liveprob/protocol/feed_codec.hpp"
+#include "liveprob/protocol/ingest_ack_codec.hpp"
+#include "liveprob/protocol/sharding.hpp"
+#include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/service/journal_record_log.hpp"
+#include "liveprob/service/service_core.hpp"
+#include "test_env.hpp"
+
+using namespace liveprob;
+using namespace liveprob::service;
+using core::InboundMessage;
+using core::Period;
+using core::Side;
+using std::chrono::milliseconds;
+using std::chrono::seconds;
+
+namespace {
+
+// Time moves only when the test says so.
+class SimulatedClock final : public ServiceClock {
+public:
+    ServiceTime now() override {
+        return {
+            std::chrono::steady_clock::time_point{} + elapsed_,
+            kWallStartUs + std::chrono::duration_cast<std::chrono::microseconds>(elapsed_).count()};
+    }
+    void advance(std::chrono::steady_clock::duration d) { elapsed_ += d; }
+    static constexpr std::int64_t kWallStartUs = 1'900'000'000'000'000;
+
+private:
+    std::chrono::steady_clock::duration elapsed_{seconds(1000)};
+};
+
+// Everything the core asked for, in order: "journal <match>", "publish <match>", "ack <peer>",
+// "counters".
+struct Recorder final : ServiceActions {
+    void publish_update(std::uint64_t match_id, std::span<const std::uint8_t> bytes) override {
+        auto decoded = protocol::decode_update(bytes);
+        REQUIRE(decoded.ok());
+        events.push_back("publish " + std::to_string(match_id));
+        updates.push_back(*decoded.value);
+    }
+    void publish_counters(std::span<const std::uint8_t> bytes) override {
+        auto decoded = protocol::decode_counters(bytes);
+        REQUIRE(decoded.ok());
+        events.push_back("counters");
+        counters.clear();
+        for (const auto& [name, value] : decoded.value->values) counters[name] = value;
+    }
+    void acknowledge(std::string_view peer, std::span<const std::uint8_t> bytes) override {
+        auto decoded = protocol::decode_ingest_ack(bytes);
+        REQUIRE(decoded.ok());
+        events.push_back("ack " + std::string(peer));
+        acks.push_back(*decoded.value);
+    }
+    std::vector<std::string> events;
+    std::vector<protocol::DecodedUpdate> updates;
+    std::vector<protocol::IngestAckContents> acks;
+    std::map<std::string, std::uint64_t> counters;
+};
+
+// serve's record log on a real journal, noting each write among the recorder's events and
+// letting the test look at the service at the moment of the write.
+class WatchedJournal final : public RecordLog {
+public:
+    WatchedJournal(const std::filesystem::path& path, files::JournalSync sync, Recorder& recorder)
+        : journal_(path, sync, milliseconds(200)), log_(journal_), recorder_(recorder) {
+        journal_.replay([](std::span<const std::uint8_t>) {});
+    }
+    void append(std::span<const std::uint8_t> record) override {
+        const auto decoded = protocol::decode_feed_message(record);
+        REQUIRE(decoded.message);
+        if (on_append) on_append(*decoded.message);
+        log_.append(record);  // throws on a failed write, before it is noted
+        recorder_.events.push_back("journal " + std::to_string(decoded.message->header.match_id));
+    }
+    bool awaiting_sync() const override { return log_.awaiting_sync(); }
+    void sync(std::chrono::steady_clock::time_point now, bool force) override {
+        log_.sync(now, force);
+    }
+    std::function<void(const InboundMessage&)> on_append;
+
+private:
+    files::Journal journal_;
+    JournalRecordLog log_;
+    Recorder& recorder_;
+};
+
+// A journal whose disk fills up and empties on the test's word: while `full`, records go to
+// /dev/full, which fails every write with ENOSPC.
+struct FillingDisk final : RecordLog {
+    FillingDisk(const std::filesystem::path& folder, Recorder& recorder)
+        : working(folder, files::JournalSync::every_message, recorder),
+          device("/dev/full", files::JournalSync::every_message, recorder) {}
+    RecordLog& current() { return full ? static_cast<RecordLog&>(device) : working; }
+    void append(std::span<const std::uint8_t> r) override { current().append(r); }
+    bool awaiting_sync() const override { return false; }  // every_message: synced on append
+    void sync(std::chrono::steady_clock::time_point now, bool force) override {
+        current().sync(now, force);
+    }
+    WatchedJournal working;
+    WatchedJournal device;
+    bool full = false;
+};
+
+std::vector<std::uint8_t> bytes(const InboundMessage& m) {
+    return protocol::encode_feed_message(m);
+}
+
+InboundMessage setup_of(test::FeedBuilder& feed) {
+    core::MatchSetup setup;
+    setup.home_name = "Harbour Town";
+    setup.away_name = "Millbrook Rovers";
+    setup.prior = core::PriorMeans{1.4, 1.1};
+    return feed.next(setup, core::MatchClock{Period::pre_match, 0});
+}
+
+CoreSettings settings_with(std::uint32_t retention_s = 600, std::uint32_t waiting_ttl_s = 60,
+                           std::uint32_t cap = 50000) {
+    ServiceConfig config;
+    config.retention_s = retention_s;
+    config.waiting_ttl_s = waiting_ttl_s;
+    config.match_message_cap = cap;
+    return core_settings(config);
+}
+
+struct Harness {
+    explicit Harness(CoreSettings settings = settings_with(), RecordLog* log = nullptr)
+        : core(core::ModelParams{}, std::move(settings), clock, recorder, log) {}
+    Intake send(const InboundMessage& m, std::optional<Delivery> delivery = {}) {
+        return core.ingest(bytes(m), delivery);
+    }
+    std::map<std::string, std::uint64_t>& counters() {
+        core.publish_counters();
+        return recorder.counters;
+    }
+    SimulatedClock clock;
+    Recorder recorder;
+    ServiceCore core;
+};
+
+}  // namespace
+
+TEST_CASE("service core: each message is journaled before it is applied, then published",
+          "[unit][service_core]") {
+    const auto dir = test::scratch_dir("core-journal-order");
+    SimulatedClock clock;
+    Recorder actions;
+    std::optional<WatchedJournal> journal;
+    journal.emplace(dir / "journal", files::JournalSync::every_message, actions);
+    ServiceCore core(core::ModelParams{}, settings_with(), clock, actions, &*journal);
+
+    test::FeedBuilder feed(31);
+    core.ingest(bytes(setup_of(feed)));
+    core.ingest(bytes(feed.start(Period::first_half, 0)));
+    // At the goal's write, the match does not have the goal yet.
+    std::optional<std::uint16_t> home_goals_at_write;
+    journal->on_append = [&](const InboundMessage&) {
+        home_goals_at_write = core.registry().find(31)->match.state().goals(Side::home);
+    };
+    actions.events.clear();
+    actions.updates.clear();
+    CHECK(core.ingest(bytes(feed.goal(Side::home, Period::first_half, 12))) == Intake::durable);
+    CHECK(home_goals_at_write == 0);
+    CHECK(actions.events == std::vector<std::string>{"journal 31", "publish 31"});
+    REQUIRE(actions.updates.size() == 1);
+    CHECK(actions.updates[0].outputs.home_goals == 1);
+    CHECK(actions.updates[0].meta.input_seq == feed.last_seq());
+
+    // What was journaled rebuilds the same state: a second core restored from the folder.
+    journal.reset();
+    files::Journal reread(dir / "journal", files::JournalSync::none, milliseconds(200));
+    Recorder restored_actions;
+    ServiceCore restored(core::ModelParams{}, settings_with(), clock, restored_actions, nullptr);
+    reread.replay([&](std::span<const std::uint8_t> r) { restored.restore(r); });
+    CHECK(restored_actions.events.empty());  // nothing published while restoring
+    restored.finish_restore();
+    REQUIRE(restored_actions.updates.size() == 1);  // then each match once
+    CHECK(restored_actions.updates[0].outputs.home_goals == 1);
+    CHECK(restored_actions.updates[0].meta.output_seq ==
+          static_cast<std::uint64_t>(clock.now().wall_us) + 1);
+}
+
+TEST_CASE(
+    "service core: a message that cannot be journaled is neither applied, published nor "
+    "acknowledged, and is counted",
+    "[unit][service_core]") {
+    Recorder actions;
+    SimulatedClock clock;
+    FillingDisk log(test::scratch_dir("core-journal-full") / "journal", actions);
+    ServiceCore core(core::ModelParams{}, settings_with(), clock, actions, &log);
+    test::FeedBuilder feed(32);
+    REQUIRE(core.ingest(bytes(setup_of(feed)), Delivery{"feed-a", 1}) == Intake::durable);
+    REQUIRE(core.ingest(bytes(feed.start(Period::first_half, 0)), Delivery{"feed-a", 2}) ==
+            Intake::durable);
+    core.settle_acks();
+    REQUIRE(actions.acks.size() == 1);
+    CHECK(actions.acks[0].durable == std::vector<protocol::TicketRange>{{1, 2}});
+
+    log.full = true;
+    actions.events.clear();
+    actions.acks.clear();
+    CHECK(core.ingest(bytes(feed.goal(Side::away, Period::first_half, 20)),
+                      Delivery{"feed-a", 3}) == Intake::not_journaled);
+    core.settle_acks();
+    CHECK(actions.events.empty());  // not journaled, not published, nothing acknowledged
+    CHECK(core.registry().find(32)->match.state().goals(Side::away) == 0);
+    core.publish_counters();
+    CHECK(actions.counters["journal.write_failed"] == 1);
+    CHECK(actions.counters["journal.frames"] == 2);
+    CHECK(actions.counters["engine.accepted"] == 1);  // the kick-off alone
+
+    // Space returns: the feed's resend goes through.
+    log.full = false;
+    CHECK(core.ingest(bytes(feed.with_seq(3, core::Goal{Side::away, false, false},
+                                          test::at_minute(Period::first_half, 20))),
+                      Delivery{"feed-a", 3}) == Intake::durable);
+    CHECK(core.registry().find(32)->match.state().goals(Side::away) == 1);
+}
+
+TEST_CASE("service core: acknowledgements name durable and refused tickets per feed",
+          "[unit][service_core]") {
+    ServiceConfig config;
+    config.shard = "0/2";
+    Harness h(core_settings(config));
+    // One match id of each shard.
+    std::uint64_t ours = 1, theirs = 1;
+    while (protocol::shard_of(ours, 2) != 0) ++ours;
+    while (protocol::shard_of(theirs, 2) != 1) ++theirs;
+    test::FeedBuilder mine(ours), other(theirs);
+    CHECK(h.send(setup_of(mine), Delivery{"a", 10}) == Intake::durable);
+    CHECK(h.send(setup_of(other), Delivery{"a", 11}) == Intake::refused);
+    const std::vector<std::uint8_t> garbage(40, 0x5A);
+    CHECK(h.core.ingest(garbage, Delivery{"b", 7}) == Intake::refused);
+    CHECK(h.send(mine.start(Period::first_half, 0), Delivery{"a", 12}) == Intake::durable);
+    CHECK(h.recorder.acks.empty());  // owed until the batch is settled
+    h.core.settle_acks();
+    REQUIRE(h.recorder.acks.size() == 2);
+    CHECK(h.recorder.events[h.recorder.events.size() - 2] == "ack a");
+    CHECK(h.recorder.events.back() == "ack b");
+    CHECK(h.recorder.acks[0].durable == std::vector<protocol::TicketRange>{{10, 10}, {12, 12}});
+    CHECK(h.recorder.acks[0].refused == std::vector<protocol::TicketRange>{{11, 11}});
+    CHECK(h.recorder.acks[1].refused == std::vector<protocol::TicketRange>{{7, 7}});
+    const auto& c = h.counters();
+    CHECK(c.at("ingest.not_our_shard") == 1);
+    CHECK(c.at("ingest.rejected") == 1);
+    CHECK(c.at("ack.durable") == 2);
+    CHECK(c.at("ack.refused") == 2);
+    CHECK(c.at("ack.messages") == 2);
+}
+
+TEST_CASE(
+    "service core: waiting messages expire on the simulated clock, and a setup after that "
+    "finds none of them",
+    "[unit][service_core]") {
+    Harness h(settings_with(600, 60));
+    test::FeedBuilder early(40), late(41);
+    const InboundMessage early_setup = setup_of(early), late_setup = setup_of(late);
+    // Both matches' kick-off and a goal arrive before their setups.
+    for (test::FeedBuilder* feed : {&early, &late}) {
+        h.send(feed->start(Period::first_half, 0));
+        h.send(feed->goal(Side::home, Period::first_half, 4));
+    }
+    CHECK(h.counters().at("ingest.waiting_for_setup") == 4);
+    CHECK(h.recorder.updates.empty());
+
+    h.clock.advance(seconds(59));
+    h.core.tick();
+    h.send(early_setup);  // within the time to live: both held messages applied
+    REQUIRE(h.core.registry().find(40) != nullptr);
+    CHECK(h.core.registry().find(40)->match.state().goals(Side::home) == 1);
+    CHECK(h.counters().at("ingest.waiting_expired") == 0);
+
+    h.clock.advance(seconds(1));  // 60 s after the first held message
+    h.core.tick();
+    CHECK(h.counters().at("ingest.waiting_expired") == 2);
+    h.send(late_setup);
+    REQUIRE(h.core.registry().find(41) != nullptr);
+    CHECK(h.core.registry().find(41)->match.state().goals(Side::home) == 0);
+    CHECK(h.core.registry().find(41)->match.state().status == core::MatchStatus::not_started);
+}
+
+TEST_CASE("service core: past the per-match cap messages are refused, counted and change nothing",
+          "[unit][service_core]") {
+    Harness h(settings_with(600, 60, 3));
+    test::FeedBuilder feed(50);
+    h.send(setup_of(feed));
+    h.send(feed.start(Period::first_half, 0));
+    h.send(feed.goal(Side::home, Period::first_half, 5));
+    const std::size_t published = h.recorder.updates.size();
+    // Refused, yet durable: journaled and acknowledged as taken, so the feed does not resend.
+    CHECK(h.send(feed.goal(Side::away, Period::first_half, 6)) == Intake::durable);
+    CHECK(h.send(feed.goal(Side::away, Period::first_half, 7)) == Intake::durable);
+    CHECK(h.recorder.updates.size() == published);
+    CHECK(h.core.registry().find(50)->match.state().goals(Side::away) == 0);
+    CHECK(h.counters().at("ingest.over_match_cap") == 2);
+    // Another match is not held back by it.
+    test::FeedBuilder other(51);
+    h.send(setup_of(other));
+    CHECK(h.recorder.updates.back().meta.match_id == 51);
+}
+
+TEST_CASE("service core: duplicates and late messages are counted; a late goal is folded in",
+          "[unit][service_core]") {
+    Harness h;
+    test::FeedBuilder feed(60);
+    h.send(setup_of(feed));
+    h.send(feed.start(Period::first_half, 0));
+    const InboundMessage first_goal = feed.goal(Side::home, Period::first_half, 10);
+    const InboundMessage second_goal = feed.goal(Side::away, Period::first_half, 20);
+    h.send(second_goal);  // out of order: the earlier goal comes after it
+    h.send(first_goal);
+    const std::size_t published = h.recorder.updates.size();
+    h.send(first_goal);                             // the same message again
+    CHECK(h.recorder.updates.size() == published);  // a duplicate publishes nothing
+    const auto& c = h.counters();
+    CHECK(c.at("engine.duplicate") == 1);
+    CHECK(c.at("engine.late") == 1);
+    CHECK(c.at("engine.accepted") ==
+          2);  // the kick-off and the later goal (the setup is not an event)
+    const auto& last = h.recorder.updates.back();
+    CHECK(last.outputs.home_goals == 1);
+    CHECK(last.outputs.away_goals == 1);
+}
+
+TEST_CASE(
+    "service core: a finished match is retired after the retention and then unknown to "
+    "snapshots",
+    "[unit][service_core]") {
+    Harness h(settings_with(300));
+    test::FeedBuilder done(70), playing(71);
+    for (test::FeedBuilder* feed : {&done, &playing}) {
+        h.send(setup_of(*feed));
+        h.send(feed->start(Period::first_half, 0));
+    }
+    h.send(done.end(Period::first_half, 46));
+    h.send(done.start(Period::second_half, 45));
+    h.send(done.whistle(Period::second_half, 94));
+    const auto snapshot_of = [&](std::uint64_t id) {
+        auto reply = protocol::decode_snapshot_reply(
+            h.core.answer_snapshot(protocol::encode_snapshot_request(id)));
+        REQUIRE(reply.ok());
+        return *reply.value;
+    };
+    CHECK(snapshot_of(70).updates.size() == 1);
+
+    h.clock.advance(seconds(299));
+    h.recorder.updates.clear();
+    h.core.tick();
+    // The tick republishes the live match only; the finished one is still answerable.
+    REQUIRE(h.recorder.updates.size() == 1);
+    CHECK(h.recorder.updates[0].meta.match_id == 71);
+    CHECK(snapshot_of(70).updates.size() == 1);
+    CHECK(h.counters().at("matches.retired") == 0);
+
+    h.clock.advance(seconds(1));
+    h.core.tick();
+    CHECK(h.counters().at("matches.retired") == 1);
+    CHECK(h.core.registry().find(70) == nullptr);
+    CHECK(snapshot_of(70).error == "unknown match 70");
+    CHECK(h.core.registry().find(71) != nullptr);    // live matches stay, however old
+    CHECK(h.counters().at("engine.accepted") == 5);  // its verdicts stay in the totals
+}
+
+TEST_CASE("service core: the tick moves a running match's clock by the simulated time",
+          "[unit][service_core]") {
+    Harness h;
+    test::FeedBuilder feed(80);
+    h.send(setup_of(feed));
+    h.send(feed.start(Period::first_half, 10));
+    h.clock.advance(seconds(90));
+    h.recorder.updates.clear();
+    h.core.tick();
+    REQUIRE(h.recorder.updates.size() == 1);
+    const auto& tick = h.recorder.updates[0];
+    CHECK(tick.outputs.clock.clock_ms == 10 * 60'000 + 90'000);
+    CHECK(tick.meta.receive_time_us == 0);  // a tick reflects no new message
+    CHECK(tick.meta.publish_time_us == h.clock.now().wall_us);
+    CHECK(h.counters().at("publish.ticks") == 1);
+}
