@@ -47,10 +47,12 @@ private:
 // Everything the core asked for, in order: "journal <match>", "publish <match>", "ack <peer>",
 // "counters".
 struct Recorder final : ServiceActions {
-    void publish_update(std::uint64_t match_id, std::span<const std::uint8_t> bytes) override {
+    void publish_update(const protocol::UpdateMeta& meta,
+                        std::span<const std::uint8_t> bytes) override {
         auto decoded = protocol::decode_update(bytes);
         REQUIRE(decoded.ok());
-        events.push_back("publish " + std::to_string(match_id));
+        CHECK(decoded.value->meta == meta);
+        events.push_back("publish " + std::to_string(meta.match_id));
         updates.push_back(*decoded.value);
     }
     void publish_counters(std::span<const std::uint8_t> bytes) override {
@@ -217,6 +219,7 @@ TEST_CASE(
                       Delivery{"feed-a", 3}) == Intake::not_journaled);
     core.settle_acks();
     CHECK(actions.events.empty());  // not journaled, not published, nothing acknowledged
+    CHECK(core.journal_failing());
     CHECK(core.registry().find(32)->match.state().goals(Side::away) == 0);
     core.publish_counters();
     CHECK(actions.counters["journal.write_failed"] == 1);
@@ -229,6 +232,7 @@ TEST_CASE(
                                           test::at_minute(Period::first_half, 20))),
                       Delivery{"feed-a", 3}) == Intake::durable);
     CHECK(core.registry().find(32)->match.state().goals(Side::away) == 1);
+    CHECK_FALSE(core.journal_failing());
 }
 
 TEST_CASE("service core: acknowledgements name durable and refused tickets per feed",
@@ -313,7 +317,7 @@ TEST_CASE("service core: past the per-match cap messages are refused, counted an
     CHECK(h.recorder.updates.back().meta.match_id == 51);
 }
 
-TEST_CASE("service core: duplicates and late messages are counted; a late goal is folded in",
+TEST_CASE("service core: duplicates and late messages are counted, and a late goal is folded in",
           "[unit][service_core]") {
     Harness h;
     test::FeedBuilder feed(60);
