@@ -26,27 +26,19 @@
 
 #include <fmt/format.h>
 
+#include "report_comparison.hpp"
 #include "test_env.hpp"
 
 namespace {
+
+using liveprob::test::read_comparison;
+const auto cell = liveprob::test::percent_cell;
 
 constexpr const char* kCut = "2010-01-01";
 // The in-play fitting choices the walk-forward backtests picked (replay-demo/README.md, "Choices
 // made out of sample": cuts 2006, 2010, 2013): goal minutes weighted by a 4-year half-life, and
 // no strength dispersion (κ = ∞, the state multipliers fitted under plain Poisson).
 constexpr const char* kFitChoices = "--timing-half-life 1461 --dispersion none";
-
-struct Difference {
-    double relative = 0, low = 0, high = 0;
-};
-
-struct Bucket {
-    std::string label;
-    std::uint64_t n = 0;
-    double rps_model = 0, rps_ip = 0, rps_elo = 0;
-    double ece = 0, ece_calibrated_mean = 0, ece_calibrated_p95 = 0;
-    Difference vs_elo, vs_ip;
-};
 
 double run_step(const std::string& what, const std::string& command) {
     const auto start = std::chrono::steady_clock::now();
@@ -69,46 +61,6 @@ void copy_before_cut(const std::filesystem::path& from, const std::filesystem::p
         if (header || line.substr(0, 10) < kCut) out << line << "\n";
         header = false;
     }
-}
-
-double get(simdjson::dom::element e, const char* a, const char* b, const char* c) {
-    double v = 0;
-    REQUIRE(e[a][b][c].get_double().get(v) == simdjson::SUCCESS);
-    return v;
-}
-
-std::vector<Bucket> read_comparison(const std::filesystem::path& path) {
-    simdjson::dom::parser parser;
-    simdjson::dom::element root;
-    REQUIRE(parser.load(path.string()).get(root) == simdjson::SUCCESS);
-    simdjson::dom::array buckets;
-    REQUIRE(root["comparison"]["buckets"].get_array().get(buckets) == simdjson::SUCCESS);
-    std::vector<Bucket> out;
-    for (simdjson::dom::element b : buckets) {
-        Bucket x;
-        std::string_view label;
-        REQUIRE(b["label"].get_string().get(label) == simdjson::SUCCESS);
-        x.label = label;
-        REQUIRE(b["scores"]["model"]["n"].get_uint64().get(x.n) == simdjson::SUCCESS);
-        x.rps_model = get(b, "scores", "model", "rps");
-        x.rps_ip = get(b, "scores", "independent_poisson", "rps");
-        x.rps_elo = get(b, "scores", "elo_reference", "rps");
-        x.ece = get(b, "scores", "model", "ece");
-        x.ece_calibrated_mean = get(b, "scores", "model", "ece_calibrated_mean");
-        x.ece_calibrated_p95 = get(b, "scores", "model", "ece_calibrated_p95");
-        x.vs_elo = {get(b, "model_against", "elo_reference", "relative"),
-                    get(b, "model_against", "elo_reference", "relative_low"),
-                    get(b, "model_against", "elo_reference", "relative_high")};
-        x.vs_ip = {get(b, "model_against", "independent_poisson", "relative"),
-                   get(b, "model_against", "independent_poisson", "relative_low"),
-                   get(b, "model_against", "independent_poisson", "relative_high")};
-        out.push_back(x);
-    }
-    return out;
-}
-
-std::string cell(const Difference& d) {
-    return fmt::format("{:+6.2f} [{:+6.2f},{:+6.2f}]", 100 * d.relative, 100 * d.low, 100 * d.high);
 }
 
 }  // namespace

@@ -32,7 +32,7 @@ Season demo_results() {
         const int day = static_cast<int>(setup.scheduled_kickoff_us / kDayUs);
         out.results.push_back({day, setup.home_name, setup.away_name, m.regulation_goals[0],
                                m.regulation_goals[1], false});
-        out.fixtures.push_back({day, setup.home_name, setup.away_name, false});
+        out.fixtures.push_back({day, setup.home_name, setup.away_name, false, {}, {}});
     }
     return out;
 }

@@ -67,6 +67,16 @@ std::optional<int> whole(std::string_view s) {
 
 }  // namespace
 
+std::optional<int> clock_time(std::string_view text) {
+    if (text.size() != 5 || text[2] != ':') return std::nullopt;
+    auto digit = [&](std::size_t i) {
+        return text[i] >= '0' && text[i] <= '9' ? text[i] - '0' : -100;
+    };
+    const int h = digit(0) * 10 + digit(1), m = digit(3) * 10 + digit(4);
+    if (h < 0 || h > 23 || m < 0 || m > 59) return std::nullopt;
+    return h * 60 + m;
+}
+
 std::optional<GoalMinute> goal_minute(element goal) {
     GoalMinute g;
     std::int64_t number = 0;

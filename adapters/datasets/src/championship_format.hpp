@@ -29,6 +29,9 @@ std::optional<std::string_view> side_name(simdjson::dom::element side);
 // malformed.
 std::optional<std::array<int, 2>> score_pair(simdjson::dom::element score, const char* key);
 
+// "21:00" -> minutes after midnight; nullopt when not a time of day.
+std::optional<int> clock_time(std::string_view text);
+
 struct GoalMinute {
     int minute = 0;
     int stoppage = 0;  // minutes into the half's stoppage (the "4" of "90+4", or "offset")

@@ -17,17 +17,6 @@ namespace {
 
 using simdjson::dom::element;
 
-// "21:00" -> minutes after midnight.
-std::optional<int> clock_time(std::string_view text) {
-    if (text.size() != 5 || text[2] != ':') return std::nullopt;
-    auto digit = [&](std::size_t i) {
-        return text[i] >= '0' && text[i] <= '9' ? text[i] - '0' : -100;
-    };
-    const int h = digit(0) * 10 + digit(1), m = digit(3) * 10 + digit(4);
-    if (h < 0 || h > 23 || m < 0 || m > 59) return std::nullopt;
-    return h * 60 + m;
-}
-
 // Goals of one side's list; false when a goal has no usable minute.
 bool read_goals(element match, const char* key, core::Side side, std::vector<TimelineGoal>& goals) {
     simdjson::dom::array list;
@@ -77,7 +66,7 @@ TimelinesRead read_championship_timelines(const std::string& path) {
         MatchTimeline t;
         t.day = *day;
         if (m["time"].get_string().get(time) == simdjson::SUCCESS)
-            t.kickoff_minute = clock_time(time);
+            t.kickoff_minute = detail::clock_time(time);
         t.home = *home;
         t.away = *away;
         t.neutral = true;

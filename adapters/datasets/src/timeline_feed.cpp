@@ -79,6 +79,28 @@ private:
     std::vector<core::InboundMessage> messages_;
 };
 
+// One half of a match whose goal minutes are unknown (only the half-time and full-time scores):
+// its start, the first half's goals at 44:30 and a clock reading at 45:00 (the score is known
+// at the interval), the second half's goals at 92:30 (in stoppage: after every bucket minute),
+// its end. Nothing else: no clock reading tells the model about a minute it knows nothing of,
+// so only the kick-off and 45' buckets are read from such a feed (match_replay.hpp).
+void write_half_scores_only(FeedWriter& out, const core::CompetitionFormat& format,
+                            core::Period period, const std::vector<TimelineGoal>& goals) {
+    const std::uint32_t start = period_start_ms(format, period);
+    const std::uint32_t nominal_end = period_nominal_end_ms(format, period);
+    const std::uint32_t goal_ms = period == core::Period::first_half
+                                      ? nominal_end - kMinuteMs / 2
+                                      : nominal_end + 2 * kMinuteMs + kMinuteMs / 2;
+    out.start_period(period, start);
+    out.emit(core::PeriodStart{period}, {period, start});
+    for (const TimelineGoal& g : goals)
+        if (period_of(g) == period) out.emit(core::Goal{g.side, false, false}, {period, goal_ms});
+    if (period == core::Period::first_half) out.emit(core::ClockSync{true}, {period, nominal_end});
+    out.emit(core::PeriodEnd{period},
+             {period, std::max(nominal_end + usual_stoppage_minutes(period) * kMinuteMs,
+                               goal_ms + kMinuteMs / 2)});
+}
+
 // One period: its start, clock readings every five minutes and goals in time order, its end.
 void write_period(FeedWriter& out, const core::CompetitionFormat& format, core::Period period,
                   const std::vector<TimelineGoal>& goals) {
@@ -171,8 +193,10 @@ std::vector<core::InboundMessage> feed_from_timeline(const MatchTimeline& match,
 
     FeedWriter out(match_id, kickoff_us - 30 * kMinuteUs);
     out.emit(setup, {core::Period::pre_match, 0});
-    for (const core::Period p : {core::Period::first_half, core::Period::second_half})
-        write_period(out, setup.format, p, match.goals);
+    for (const core::Period p : {core::Period::first_half, core::Period::second_half}) {
+        if (match.goal_minutes_known) write_period(out, setup.format, p, match.goals);
+        else write_half_scores_only(out, setup.format, p, match.goals);
+    }
     if (match.extra_time) {
         for (const core::Period p : {core::Period::extra_first, core::Period::extra_second})
             write_period(out, setup.format, p, match.goals);

@@ -102,6 +102,11 @@ void mark(Timeline& timeline, const core::InboundMessage& m) {
 
 }  // namespace
 
+bool heard_recently(const core::MatchClock& last_message, const core::MatchClock& bucket) {
+    return last_message.period == bucket.period && last_message.clock_ms <= bucket.clock_ms &&
+           bucket.clock_ms - last_message.clock_ms <= kMaxSilenceMinutes * 60'000U;
+}
+
 core::MatchClock bucket_clock(const core::CompetitionFormat& format, int bucket) {
     const int minute = scoring::kBucketMinutes[static_cast<std::size_t>(bucket)];
     const auto ms = static_cast<std::uint32_t>(minute) * 60'000U;
@@ -166,6 +171,7 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
     if (out.timeline) out.timeline->points.push_back({0.0, prior});
 
     int next_bucket = 1;
+    core::MatchClock last_heard{core::Period::pre_match, 0};  // the last message's clock
     for (std::size_t i = 1; i < messages.size(); ++i) {
         const auto& m = messages[i];
         while (next_bucket < scoring::kBuckets) {
@@ -186,11 +192,16 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
             if (!(model->priced_clock() == at)) (void)model->advance_to(at);
             if (!(baseline->priced_clock() == at)) (void)baseline->advance_to(at);
             if (!(independent->priced_clock() == at)) (void)independent->advance_to(at);
+            if (!heard_recently(last_heard, at)) {  // the feed said nothing of this minute
+                ++next_bucket;
+                continue;
+            }
             record_bucket(next_bucket++);
             if (out.timeline)
                 out.timeline->points.push_back(
                     {minutes_of(model->priced_clock()), forecast_of(model->outputs())});
         }
+        last_heard = m.header.clock;
         const auto verdict = model->apply(m).verdict;
         (void)baseline->apply(m);  // the same stream: its verdict is the model's
         (void)independent->apply(m);

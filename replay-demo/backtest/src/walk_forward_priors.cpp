@@ -57,14 +57,31 @@ void run_chain(std::span<const fit::MatchResult> history, std::span<const Fixtur
         ++counts.refits;
         if (!previous->diagnostics.converged) ++counts.not_converged;
         const fit::TeamRating average{};
+        // An unrated side: the mean of its stand-ins the fit rates, else the average side.
+        auto stand_in = [&](const std::vector<std::string>& names) {
+            fit::TeamRating mean;
+            int found = 0;
+            for (const auto& name : names)
+                if (const fit::TeamRating* r = previous->find(name)) {
+                    mean.attack += r->attack;
+                    mean.defence += r->defence;
+                    ++found;
+                }
+            if (found == 0) return average;
+            mean.attack /= found;
+            mean.defence /= found;
+            ++counts.stood_in_sides;
+            return mean;
+        };
         for (const std::size_t i : members) {
             const FixtureToPrice& f = fixtures[i];
             const fit::TeamRating* home = previous->find(f.home);
             const fit::TeamRating* away = previous->find(f.away);
             counts.unrated_sides += (home ? 0 : 1) + (away ? 0 : 1);
             rated[i] = home && away && !home->shrunk && !away->shrunk;
-            const auto goals = fit::expected_goals(*previous, home ? *home : average,
-                                                   away ? *away : average, f.neutral);
+            const auto goals =
+                fit::expected_goals(*previous, home ? *home : stand_in(f.home_stand_ins),
+                                    away ? *away : stand_in(f.away_stand_ins), f.neutral);
             auto hold = [&](double g) {
                 if (g <= options.max_expected_goals) return g;
                 ++counts.held_at_maximum;
@@ -123,6 +140,7 @@ WalkForwardPriors walk_forward_priors(std::span<const fit::MatchResult> history,
         out.refits += c.refits;
         out.not_converged += c.not_converged;
         out.unrated_sides += c.unrated_sides;
+        out.stood_in_sides += c.stood_in_sides;
         out.held_at_maximum += c.held_at_maximum;
         out.no_history += c.no_history;
     }

@@ -147,7 +147,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
     std::vector<liveprob::backtest::FixtureToPrice> fixtures;
     for (const auto& c : candidates)
         fixtures.push_back(
-            {c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral});
+            {c.timeline->day, c.timeline->home, c.timeline->away, c.timeline->neutral, {}, {}});
     liveprob::backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;

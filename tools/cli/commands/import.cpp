@@ -18,6 +18,7 @@
 #include "command_registry.hpp"
 #include "liveprob/backtest/recorded_stream.hpp"
 #include "liveprob/backtest/walk_forward_priors.hpp"
+#include "liveprob/datasets/league_record.hpp"
 #include "liveprob/datasets/match_timelines.hpp"
 #include "liveprob/datasets/results_readers.hpp"
 #include "liveprob/datasets/timeline_feed.hpp"
@@ -34,10 +35,16 @@ namespace fs = std::filesystem;
 
 inline constexpr std::uint64_t kInternationalIdBase = 10'000'000;  // + line of results.csv
 inline constexpr std::uint64_t kChampionshipIdBase = 20'000'000;   // + year * 1,000 + match number
+// + season's first year * 10,000 + league (its place among the folder's leagues) * 1,000 + the
+// match's place in its file
+inline constexpr std::uint64_t kLeagueIdBase = 100'000'000;
 
 struct ImportOptions {
     std::string international;
     std::vector<std::string> championships;
+    std::string leagues;
+    double league_half_life_days = 365.0;
+    bool promoted_as_relegated = false;
     std::string out;
     std::string form = "frames";
     double half_life_days = 730.0;
@@ -54,8 +61,40 @@ struct ImportOptions {
 struct ImportedMatch {
     datasets::MatchTimeline timeline;
     std::uint64_t match_id = 0;
-    fs::path file;  // the stream it goes to, relative to --out
+    fs::path file;            // the stream it goes to, relative to --out
+    std::size_t history = 0;  // the rating history its prior is fitted on (below)
+    std::vector<std::string> home_stand_ins, away_stand_ins;
 };
+
+// One rating history and the half-life of its fits: the international results with the
+// championships', or one league's results (ratings fitted per league).
+struct History {
+    std::string name;
+    std::vector<fit::MatchResult> results;
+    double half_life_days = 0.0;
+};
+
+// What the league files held and how import treats it (league_record.hpp).
+void print_league_checks(const datasets::LeagueRecord& r, bool promoted_as_relegated) {
+    const auto& c = r.checks;
+    std::cout << fmt::format(
+        "leagues: {} played matches in {} leagues; left out: {} not played, {} awarded (not "
+        "played: out of the ratings too), {} repeated; {} without a half-time score that ended "
+        "0-0 kept with half-time 0-0, {} others without one kept in the ratings only; dates: {} "
+        "outside their season, {} where a side plays twice within a day\n",
+        c.played, r.leagues.size(), c.not_played, c.awarded, c.duplicates, c.half_time_inferred,
+        c.half_time_missing, c.outside_season, c.side_twice_in_a_day);
+    for (const auto& p : c.date_problems) std::cout << "  date to check: " << p << "\n";
+    for (const auto& n : r.renames)
+        std::cout << fmt::format("  renamed ({} {}): '{}' -> '{}'\n", n.league, n.season,
+                                 n.old_name, n.new_name);
+    std::cout << fmt::format(
+        "leagues: {} renames kept as one team; {} sides promoted into their league (not in it "
+        "the season before): one without a result in the fit is rated as {}\n",
+        r.renames.size(), r.newcomers.size(),
+        promoted_as_relegated ? "the mean of the sides relegated the season before"
+                              : "the average side");
+}
 
 std::optional<int> date_option(const std::string& text, const char* name) {
     if (text.empty()) return std::nullopt;
@@ -84,6 +123,7 @@ public:
         : aliases_(alias_file.empty() ? std::map<std::string, std::string>{}
                                       : files::load_alias_file(alias_file)) {}
 
+    const std::map<std::string, std::string>& aliases() const { return aliases_; }
     void rename(std::string& name) const {
         if (const auto it = aliases_.find(name); it != aliases_.end()) name = it->second;
     }
@@ -106,9 +146,13 @@ private:
 };
 
 int run_import(const ImportOptions& o) {
-    if (o.international.empty() && o.championships.empty()) {
-        throw UsageError("nothing to import: give --international DIR and/or --championship FILE");
+    if (o.international.empty() && o.championships.empty() && o.leagues.empty()) {
+        throw UsageError(
+            "nothing to import: give --international DIR, --championship FILE and/or --leagues "
+            "DIR");
     }
+    if (o.league_half_life_days < 0.0)
+        throw UsageError("--league-half-life must be 0 (no decay) or positive");
     if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
     if (o.coverage < 0.0 || o.coverage > 1.0) throw UsageError("--coverage must lie in [0, 1]");
     if (o.refit != "match-day" && o.refit != "month")
@@ -130,7 +174,8 @@ int run_import(const ImportOptions& o) {
     const auto start = Clock::now();
 
     std::vector<ImportedMatch> matches;
-    std::vector<fit::MatchResult> history;
+    std::vector<History> histories{{"international", {}, o.half_life_days}};
+    std::vector<fit::MatchResult>& history = histories[0].results;
     const SideNames names(o.aliases);
     std::set<std::string> international_sides;
     auto wanted = [&](int day) { return (!from || day >= *from) && (!to || day < *to); };
@@ -154,7 +199,7 @@ int run_import(const ImportOptions& o) {
             const std::uint64_t id = kInternationalIdBase + t.origin_number;
             fs::path file = fs::path("international") /
                             fmt::format("{}.{}", fit::iso_date(t.day).substr(0, 4), ext);
-            matches.push_back({std::move(t), id, std::move(file)});
+            matches.push_back({std::move(t), id, std::move(file), 0, {}, {}});
         }
     }
     int repeated_results = 0;
@@ -189,13 +234,49 @@ int run_import(const ImportOptions& o) {
             const std::uint64_t id = kChampionshipIdBase +
                                      static_cast<std::uint64_t>(std::stoi(year)) * 1000 +
                                      t.origin_number;
-            matches.push_back({std::move(t), id, file});
+            matches.push_back({std::move(t), id, file, 0, {}, {}});
         }
     }
     if (repeated_results > 0)
         std::cout << fmt::format(
             "{} championship results already in the international results counted once\n",
             repeated_results);
+    if (!o.leagues.empty()) {
+        const auto record = datasets::read_league_folder(o.leagues, names.aliases());
+        print_league_checks(record, o.promoted_as_relegated);
+        std::map<std::string, std::size_t> history_of;
+        for (std::size_t l = 0; l < record.leagues.size(); ++l) {
+            history_of[record.leagues[l]] = histories.size();
+            histories.push_back(
+                {record.leagues[l], record.results.at(record.leagues[l]), o.league_half_life_days});
+        }
+        for (std::size_t i = 0; i < record.matches.size(); ++i) {
+            const auto& t = record.matches[i];
+            if (!wanted(t.day)) continue;
+            const std::string& season = record.match_season[i];
+            const auto league = static_cast<std::uint64_t>(
+                std::find(record.leagues.begin(), record.leagues.end(), t.competition) -
+                record.leagues.begin());
+            if (league >= 10 || t.origin_number >= 1000)
+                throw std::runtime_error(t.origin + ": too many leagues or matches for an id");
+            ImportedMatch m{
+                t,
+                kLeagueIdBase +
+                    static_cast<std::uint64_t>(std::stoi(season.substr(0, 4))) * 10'000 +
+                    league * 1000 + t.origin_number,
+                fs::path("leagues") / fmt::format("{}-{}.{}", t.competition, season, ext),
+                history_of.at(t.competition),
+                {},
+                {}};
+            if (const auto* s = record.stand_ins(t.competition, season, t.home);
+                s && o.promoted_as_relegated)
+                m.home_stand_ins = *s;
+            if (const auto* s = record.stand_ins(t.competition, season, t.away);
+                s && o.promoted_as_relegated)
+                m.away_stand_ins = *s;
+            matches.push_back(std::move(m));
+        }
+    }
     std::set<std::uint64_t> ids;
     for (const auto& m : matches) {
         if (!ids.insert(m.match_id).second)
@@ -205,11 +286,7 @@ int run_import(const ImportOptions& o) {
 
     const double read_seconds = since(start);
     const auto fit_start = Clock::now();
-    std::vector<backtest::FixtureToPrice> fixtures;
-    for (const auto& m : matches)
-        fixtures.push_back({m.timeline.day, m.timeline.home, m.timeline.away, m.timeline.neutral});
     backtest::WalkForwardOptions wf;
-    wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
     wf.fit.shrink_precision = o.shrink_precision;
     wf.fit.min_weight = kMinMatchWeight;
@@ -218,8 +295,36 @@ int run_import(const ImportOptions& o) {
         o.refit == "month" ? backtest::RefitSchedule::month : backtest::RefitSchedule::match_day;
     wf.threads = std::max(1U, std::thread::hardware_concurrency());
     ProgressBar bar("import: walk-forward fits", "fits", o.quiet);
-    wf.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
-    const auto priors = backtest::walk_forward_priors(history, fixtures, wf);
+    std::size_t fits_before = 0, fits_in_all = 0;
+    wf.progress = [&](std::size_t done, std::size_t total) {
+        bar.update(fits_before + done, std::max(fits_in_all, fits_before + total));
+    };
+    // Each history's matches priced by fits on that history alone.
+    backtest::WalkForwardPriors priors;
+    priors.priors.resize(matches.size());
+    for (std::size_t h = 0; h < histories.size(); ++h) {
+        std::vector<backtest::FixtureToPrice> fixtures;
+        std::vector<std::size_t> members;
+        for (std::size_t i = 0; i < matches.size(); ++i) {
+            if (matches[i].history != h) continue;
+            const auto& t = matches[i].timeline;
+            fixtures.push_back({t.day, t.home, t.away, t.neutral, matches[i].home_stand_ins,
+                                matches[i].away_stand_ins});
+            members.push_back(i);
+        }
+        if (fixtures.empty()) continue;
+        wf.fit.xi =
+            histories[h].half_life_days > 0.0 ? std::log(2.0) / histories[h].half_life_days : 0.0;
+        const auto part = backtest::walk_forward_priors(histories[h].results, fixtures, wf);
+        fits_before += part.refits + part.no_history;
+        for (std::size_t k = 0; k < members.size(); ++k) priors.priors[members[k]] = part.priors[k];
+        priors.refits += part.refits;
+        priors.not_converged += part.not_converged;
+        priors.unrated_sides += part.unrated_sides;
+        priors.stood_in_sides += part.stood_in_sides;
+        priors.held_at_maximum += part.held_at_maximum;
+        priors.no_history += part.no_history;
+    }
     const double fit_seconds = since(fit_start);
     const auto write_start = Clock::now();
 
@@ -242,11 +347,11 @@ int run_import(const ImportOptions& o) {
         backtest::write_stream(fs::path(o.out) / file, messages, form);
     }
     std::cout << fmt::format(
-        "walk-forward priors: {} fits ({} not converged), {} sides without an earlier result rated "
-        "as average, "
-        "{} expected-goal values held at {}, {} matches before any result left out\n",
-        priors.refits, priors.not_converged, priors.unrated_sides, priors.held_at_maximum,
-        wf.max_expected_goals, priors.no_history);
+        "walk-forward priors: {} fits ({} not converged), {} sides without an earlier result "
+        "({} rated as their stand-ins, the rest as average), {} expected-goal values held at {}, "
+        "{} matches before any result left out\n",
+        priors.refits, priors.not_converged, priors.unrated_sides, priors.stood_in_sides,
+        priors.held_at_maximum, wf.max_expected_goals, priors.no_history);
     std::cout << fmt::format(
         "wrote {} matches ({} with extra time, {} shoot-outs with reconstructed kicks) in {} "
         "stream files under {}\n",
@@ -267,6 +372,18 @@ const Registration registration{{
                        "folder with results.csv, goalscorers.csv and shootouts.csv");
         sub.add_option("--championship", o->championships,
                        "championship JSON file (rounds of matches with goals)");
+        sub.add_option("--leagues", o->leagues,
+                       "folder of league seasons (SEASON/LEAGUE.json: half-time and full-time "
+                       "scores), ratings fitted per league");
+        sub.add_option("--league-half-life", o->league_half_life_days,
+                       "league rating fits: time-decay half-life in days (0: no decay)")
+            ->capture_default_str();
+        sub.add_option_function<std::string>(
+               "--promoted-rating",
+               [o](const std::string& v) { o->promoted_as_relegated = v == "relegated"; },
+               "a promoted side without results in the fit: rated as the sides relegated the "
+               "season before (relegated) or as the average side (average, the default)")
+            ->check(CLI::IsMember({"relegated", "average"}));
         sub.add_option("--out", o->out, "directory for the streams")->required();
         sub.add_option("--form", o->form,
                        "frames (size-prefixed, the journal's format) or json (JSON lines)")

@@ -3,6 +3,7 @@
 // process on all cores; --live sends the streams over real sockets to a running `serve` at a
 // chosen speed and scores what a subscriber received
 // (replay-demo/live/include/liveprob/live/live_replay.hpp).
+#include <algorithm>
 #include <chrono>
 #include <filesystem>
 #include <iostream>
@@ -21,6 +22,7 @@
 #include "liveprob/backtest/comparison.hpp"
 #include "liveprob/backtest/elo_reference.hpp"
 #include "liveprob/datasets/international_history.hpp"
+#include "liveprob/datasets/league_record.hpp"
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/files/file_fingerprint.hpp"
 #include "liveprob/files/params_file.hpp"
@@ -243,6 +245,58 @@ std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo_reference_for(
     return out;
 }
 
+// Whether --elo-data names the league folder (seasons of league files) rather than the
+// international one (results.csv beside goalscorers.csv).
+bool is_league_folder(const std::string& dir) {
+    return !std::filesystem::exists(std::filesystem::path(dir) / "results.csv");
+}
+
+// The Elo reference for league matches, from the league folder: each league on its own (its
+// results, its goals map), K = 20 for every league match (common practice for club ratings, from
+// memory), the remaining share of goals at 45' from the leagues' own half-time and full-time
+// scores before each year (first-half goals count as seen by 45', second-half ones not). Fills
+// each match's competition with its league.
+std::unordered_map<std::uint64_t, backtest::ReferenceMeans> league_elo_reference_for(
+    const std::vector<backtest::MatchMessages>& matches, const std::string& dir,
+    std::unordered_map<std::uint64_t, backtest::MatchFacts>& facts) {
+    const auto record = datasets::read_league_folder(dir);
+    std::map<std::tuple<int, std::string, std::string>, std::string> league_of;
+    for (const auto& [league, results] : record.results)
+        for (const auto& r : results) league_of.emplace(std::tuple{r.day, r.home, r.away}, league);
+    // Goals by half, dated: seen by 45' (minute 44 of the histogram) or after it (minute 90).
+    std::map<std::string, std::vector<backtest::GoalMinute>> minutes;
+    for (const auto& t : record.matches)
+        for (const auto& g : t.goals)
+            minutes[t.competition].push_back({t.day, g.minute <= 45 ? 44 : 90});
+    std::unordered_map<std::uint64_t, backtest::ReferenceMeans> out;
+    backtest::EloSettings settings;
+    settings.k = {20.0, 20.0, 20.0, 20.0};
+    for (const auto& league : record.leagues) {
+        std::vector<backtest::EloResult> results;
+        for (const auto& r : record.results.at(league))
+            results.push_back({r, backtest::EloMatchClass::friendly});
+        std::vector<backtest::EloFixture> fixtures;
+        std::vector<std::uint64_t> ids;
+        for (const auto& m : matches) {
+            if (m.empty()) continue;
+            const auto* setup = std::get_if<core::MatchSetup>(&m.front().body);
+            if (!setup) continue;
+            const int day = day_of(setup->scheduled_kickoff_us);
+            const auto it = league_of.find({day, setup->home_name, setup->away_name});
+            if (it == league_of.end() || it->second != league) continue;
+            fixtures.push_back({day, setup->home_name, setup->away_name, setup->neutral_venue});
+            ids.push_back(m.front().header.match_id);
+            facts[ids.back()].competition = league;
+        }
+        if (fixtures.empty()) continue;
+        const auto reference =
+            backtest::elo_reference(results, minutes[league], fixtures, settings);
+        for (std::size_t i = 0; i < fixtures.size(); ++i)
+            if (reference.means[i]) out.emplace(ids[i], *reference.means[i]);
+    }
+    return out;
+}
+
 // What the run read, fingerprinted.
 report::RunInputs run_inputs(const ReplayOptions& o, const LoadedStreams& loaded) {
     report::RunInputs inputs;
@@ -264,7 +318,14 @@ report::RunInputs run_inputs(const ReplayOptions& o, const LoadedStreams& loaded
         if (!spec.streams.empty())
             for (const auto& f : stream_files({spec.streams})) add("variant stream", f.string());
     }
-    if (!o.elo_data.empty()) {
+    if (!o.elo_data.empty() && is_league_folder(o.elo_data)) {
+        std::vector<std::string> files;
+        for (const auto& e : std::filesystem::recursive_directory_iterator(o.elo_data))
+            if (e.is_regular_file() && e.path().extension() == ".json")
+                files.push_back(e.path().string());
+        std::sort(files.begin(), files.end());
+        for (const auto& f : files) add("reference data", f);
+    } else if (!o.elo_data.empty()) {
         for (const char* name : {"results.csv", "goalscorers.csv"})
             add("reference data", (std::filesystem::path(o.elo_data) / name).string());
     }
@@ -338,7 +399,9 @@ int run_replay(const ReplayOptions& o) {
         // The Elo reference and the matches' competitions, from the international record.
         std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo;
         if (!o.elo_data.empty()) {
-            const auto reference = elo_reference_for(loaded.matches, o.elo_data, facts);
+            const auto reference = is_league_folder(o.elo_data)
+                                       ? league_elo_reference_for(loaded.matches, o.elo_data, facts)
+                                       : elo_reference_for(loaded.matches, o.elo_data, facts);
             elo = reference;
             options.elo = &elo;
         }
@@ -422,8 +485,9 @@ const Registration registration{{
                      "also price the model after every event, as serve publishes");
         sub.add_flag("--quiet", o->quiet, "no progress bar");
         sub.add_option("--elo-data", o->elo_data,
-                       "folder with the international results.csv and goalscorers.csv: adds the "
-                       "naive Elo reference and each match's competition");
+                       "folder with the international results.csv and goalscorers.csv, or the "
+                       "folder of league seasons: adds the naive Elo reference and each match's "
+                       "competition");
         sub.add_option("--variant", o->variants,
                        "NAME=PARAMETER_FILE[@STREAMS]: a further configuration scored on the "
                        "same matches (paired by match id), with its own parameter file and/or "

@@ -49,6 +49,10 @@ struct MatchTimeline {
     bool extra_time = false;  // extra time was played
     std::optional<TimelineShootout> shootout;
     std::vector<TimelineGoal> goals;  // in the order they were scored
+    // False when the source gives only the half-time and full-time scores (the league files):
+    // the goals are then listed at minute 45 (first half) and 90 (second half), and the feed
+    // tells the score at the interval only (timeline_feed.hpp).
+    bool goal_minutes_known = true;
 };
 
 struct TimelineSkips {

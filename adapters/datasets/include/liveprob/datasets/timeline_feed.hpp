@@ -16,6 +16,10 @@
 //    sequence (ABAB order, home first unless the source names the first kicker or only the
 //    away side kicking first can reach the score) that reaches it. Either way the order of
 //    kicks is a reconstruction; the backtest scores the regulation result only;
+//  - a match whose goal minutes the source does not give (goal_minutes_known false: the league
+//    files' half-time and full-time scores): the first half's goals at 44:30 with one clock
+//    reading at 45:00, the second half's goals at 92:30, and no other clock reading, so that
+//    only the kick-off and 45' forecasts are read from it (match_replay.hpp);
 //  - a tie that went to extra time is set up as a knock-out (extra time, then a shoot-out if
 //    level; without one when it ended level and no shoot-out is recorded: before shoot-outs
 //    such ties were replayed another day). The source does not say which other matches were

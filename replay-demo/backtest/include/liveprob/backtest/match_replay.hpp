@@ -89,7 +89,8 @@ struct MatchReplay {
     std::string home_name, away_name;
     // The score each bucket was read at (as the engine had it), where the match reached it.
     std::array<std::array<int, 2>, scoring::kBuckets> score_at_bucket{};
-    // Forecast per bucket and forecaster; empty where the match never reached the minute.
+    // Forecast per bucket and forecaster; empty where the match never reached the minute, or
+    // where its feed said nothing of the minutes before it (kMaxSilenceMinutes).
     std::array<std::array<std::optional<scoring::Forecast>, kForecasters>, scoring::kBuckets>
         forecasts{};
     std::uint64_t messages = 0, rejected = 0, duplicates = 0, late = 0;
@@ -110,6 +111,14 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
 // The clock at which a bucket's forecast is read: its minute of the running clock, in the half
 // that minute belongs to (45:00 is the end of the first half's nominal time).
 core::MatchClock bucket_clock(const core::CompetitionFormat& format, int bucket);
+
+// A bucket is read only when the feed's last message before it is at most this many minutes
+// older, in the same period: a feed that said nothing of a stretch of play (the league streams,
+// which know the score at the interval only) cannot have told the model what happened in it,
+// so the forecast is not scored there. The imported and demo streams carry a clock reading
+// every five minutes, so every bucket of theirs is read.
+inline constexpr std::uint32_t kMaxSilenceMinutes = 10;
+bool heard_recently(const core::MatchClock& last_message, const core::MatchClock& bucket);
 
 // Whether the clock has passed a bucket once a message at `message_clock` arrives: it is later,
 // or it ends play (`ends_play`: the end of a period or the final whistle) exactly at the bucket.

@@ -20,6 +20,10 @@ struct FixtureToPrice {
     int day = 0;  // day number
     std::string home, away;
     bool neutral = false;
+    // A side without a result before the day is rated as the mean of those of its stand-ins the
+    // fit rates (a side promoted into a league: the sides relegated the season before), else
+    // as the average side.
+    std::vector<std::string> home_stand_ins, away_stand_ins;
 };
 
 enum class RefitSchedule : std::uint8_t {
@@ -53,6 +57,7 @@ struct WalkForwardPriors {
     std::size_t refits = 0;
     std::size_t not_converged = 0;    // refits whose Newton iterations did not converge
     std::size_t unrated_sides = 0;    // sides with no result before the day: rated as average
+    std::size_t stood_in_sides = 0;   // of those, rated as the mean of their stand-ins
     std::size_t held_at_maximum = 0;  // expected goals held at max_expected_goals
     std::size_t no_history = 0;       // fixtures before any usable result: no prior (0, 0)
 };
