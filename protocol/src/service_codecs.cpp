@@ -1,6 +1,9 @@
 // Snapshot request/reply and service counters: encode, and decode after verification.
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <stdexcept>
+
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/wire/counters_generated.h"
 #include "liveprob/wire/snapshot_reply_generated.h"
@@ -56,17 +59,58 @@ Decoded<std::uint64_t> decode_snapshot_request(std::span<const std::uint8_t> byt
     return out;
 }
 
-std::vector<std::uint8_t> encode_snapshot_reply(const SnapshotReplyContents& reply) {
-    flatbuffers::FlatBufferBuilder fbb(1024 + reply.updates.size() * 2600);
-    std::vector<flatbuffers::Offset<w::Update>> updates;
-    updates.reserve(reply.updates.size());
-    for (const auto& u : reply.updates)
-        updates.push_back(detail::write_update(fbb, u.meta, u.outputs));
-    const auto error = fbb.CreateString(reply.error);
-    const auto list = fbb.CreateVector(updates);
+namespace {
+
+std::vector<std::uint8_t> encode_reply(const std::string& error_text,
+                                       std::span<const DecodedUpdate> updates) {
+    flatbuffers::FlatBufferBuilder fbb(1024 + updates.size() * 2600);
+    std::vector<flatbuffers::Offset<w::Update>> written;
+    written.reserve(updates.size());
+    for (const auto& u : updates) written.push_back(detail::write_update(fbb, u.meta, u.outputs));
+    const auto error = fbb.CreateString(error_text);
+    const auto list = fbb.CreateVector(written);
     fbb.Finish(w::CreateSnapshotReply(fbb, kSchemaMajor, kSchemaMinor, error, list),
                w::SnapshotReplyIdentifier());
     return bytes_of(fbb);
+}
+
+}  // namespace
+
+std::vector<std::uint8_t> encode_snapshot_reply(const SnapshotReplyContents& reply) {
+    return encode_reply(reply.error, reply.updates);
+}
+
+std::vector<std::vector<std::uint8_t>> encode_snapshot_reply_parts(
+    const SnapshotReplyContents& reply, std::size_t per_part) {
+    if (per_part == 0) throw std::invalid_argument("a snapshot part holds at least one update");
+    const std::span<const DecodedUpdate> all(reply.updates);
+    std::vector<std::vector<std::uint8_t>> parts;
+    std::size_t at = 0;
+    do {
+        const std::size_t n = std::min(per_part, all.size() - at);
+        parts.push_back(encode_reply(at == 0 ? reply.error : std::string(), all.subspan(at, n)));
+        at += n;
+    } while (at < all.size());
+    return parts;
+}
+
+Decoded<SnapshotReplyContents> decode_snapshot_reply_parts(
+    const std::vector<std::span<const std::uint8_t>>& parts) {
+    Decoded<SnapshotReplyContents> out;
+    SnapshotReplyContents whole;
+    for (std::size_t i = 0; i < parts.size(); ++i) {
+        auto part = decode_snapshot_reply(parts[i]);
+        if (!part.ok()) {
+            out.error = part.error;
+            out.detail = fmt::format("part {} of {}: {}", i + 1, parts.size(), part.detail);
+            return out;
+        }
+        if (!part.value->error.empty())
+            whole.error += (whole.error.empty() ? "" : "; ") + part.value->error;
+        for (auto& u : part.value->updates) whole.updates.push_back(std::move(u));
+    }
+    out.value = std::move(whole);
+    return out;
 }
 
 Decoded<SnapshotReplyContents> decode_snapshot_reply(std::span<const std::uint8_t> bytes) {

@@ -21,6 +21,7 @@
 #include <thread>
 #include <vector>
 
+#include "fake_serve.hpp"
 #include "liveprob/gateway/gateway.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/transport/topics.hpp"
@@ -36,75 +37,9 @@ namespace websocket = beast::websocket;
 using asio::ip::tcp;
 using namespace std::chrono_literals;
 
-// Plays the engine's publish socket.
-class FakeServe {
-public:
-    FakeServe() : socket_(context_, zmq::socket_type::pub) {
-        socket_.set(zmq::sockopt::linger, 0);
-        socket_.set(zmq::sockopt::sndhwm, 0);  // never drop in the test itself
-        socket_.bind("tcp://127.0.0.1:*");
-        endpoint_ = socket_.get(zmq::sockopt::last_endpoint);
-    }
-    const std::string& endpoint() const { return endpoint_; }
-
-    void publish(std::uint64_t match_id, std::uint64_t seq, double p_home,
-                 std::uint16_t home_goals = 0) {
-        liveprob::protocol::UpdateMeta meta;
-        meta.match_id = match_id;
-        meta.output_seq = seq;
-        meta.input_seq = seq;
-        meta.publish_time_us = 1'700'000'000'000'000;
-        liveprob::core::Outputs o;
-        o.status = liveprob::core::MatchStatus::in_play;
-        o.clock = {liveprob::core::Period::second_half,
-                   static_cast<std::uint32_t>(2'700'000 + seq * 1000)};
-        o.home_goals = home_goals;
-        o.p_home = p_home;
-        o.p_draw = (1.0 - p_home) * 0.5;
-        o.p_away = 1.0 - p_home - o.p_draw;
-        o.next_goal_home = 0.4;
-        o.next_goal_away = 0.3;
-        o.next_goal_none = 0.3;
-        o.goals_added[0][0] = 1.0;
-        publish_raw(match_id, encoder_.encode(meta, o));
-    }
-    void publish_raw(std::uint64_t match_id, std::span<const std::uint8_t> bytes) {
-        const std::string topic = liveprob::transport::match_topic_string(match_id);
-        socket_.send(zmq::buffer(topic), zmq::send_flags::sndmore);
-        socket_.send(zmq::buffer(bytes.data(), bytes.size()), zmq::send_flags::none);
-    }
-
-private:
-    zmq::context_t context_{1};
-    zmq::socket_t socket_;
-    std::string endpoint_;
-    liveprob::protocol::UpdateEncoder encoder_;
-};
-
-// A gateway on its own thread, stopped and joined on scope exit.
-class RunningGateway {
-public:
-    explicit RunningGateway(liveprob::gateway::GatewayConfig config)
-        : gateway_(std::move(config)), thread_([this] { gateway_.run(); }) {}
-    ~RunningGateway() {
-        gateway_.stop();
-        thread_.join();
-    }
-    std::uint16_t port() const { return gateway_.port(); }
-
-private:
-    liveprob::gateway::Gateway gateway_;
-    std::thread thread_;
-};
-
-liveprob::gateway::GatewayConfig test_config(const FakeServe& serve) {
-    liveprob::gateway::GatewayConfig c;
-    c.feed_endpoint = serve.endpoint();
-    c.web_dir = liveprob::test::source_dir() / "adapters" / "gateway" / "web";
-    c.idle_timeout = 5s;
-    c.handshake_timeout = 2s;
-    return c;
-}
+using liveprob::test::FakeServe;
+using liveprob::test::RunningGateway;
+using liveprob::test::test_config;
 
 using liveprob::test::HttpAnswer;
 
@@ -113,31 +48,11 @@ HttpAnswer http_get(std::uint16_t port, const std::string& target,
     return liveprob::test::http_request("127.0.0.1", port, target, verb);
 }
 
-// The counter `name` from GET /api/gateway (its JSON is flat: "name":number).
+using liveprob::test::eventually;
+using liveprob::test::wait_for_feed;
+
 std::uint64_t counter(std::uint16_t port, const std::string& name) {
-    const std::string body = http_get(port, "/api/gateway").body;
-    const auto at = body.find("\"" + name + "\":");
-    if (at == std::string::npos) throw std::runtime_error("no counter " + name + " in " + body);
-    return std::stoull(body.substr(at + name.size() + 3));
-}
-
-bool eventually(const std::function<bool()>& condition, std::chrono::milliseconds limit = 5000ms) {
-    const auto deadline = std::chrono::steady_clock::now() + limit;
-    while (std::chrono::steady_clock::now() < deadline) {
-        if (condition()) return true;
-        std::this_thread::sleep_for(20ms);
-    }
-    return condition();
-}
-
-// ZeroMQ subscriptions take a moment to reach the publisher: publish a first update of match
-// `match_id` until the gateway has it.
-void wait_for_feed(FakeServe& serve, std::uint16_t port, std::uint64_t match_id) {
-    REQUIRE(eventually([&] {
-        serve.publish(match_id, 1, 0.5);
-        return http_get(port, "/api/matches")
-                   .body.find(fmt::format("\"match_id\":{},", match_id)) != std::string::npos;
-    }));
+    return liveprob::test::gateway_counter(port, name);
 }
 
 using TestClient = liveprob::test::WebSocketClient;
@@ -243,12 +158,12 @@ TEST_CASE("a slow reader gets the latest value of each match, not every value",
     CHECK(counter(gateway.port(), "frames_conflated") > 0);
 }
 
-TEST_CASE("a client past the send-queue cap is closed with code 4001 while others carry on",
+TEST_CASE("a client too far behind is closed with code 4001 while others carry on",
           "[gateway][sockets]") {
     FakeServe serve;
     auto config = test_config(serve);
     config.client_send_buffer_bytes = 4096;
-    config.send_queue_cap = 3;
+    config.send_stall_limit = 500ms;
     RunningGateway gateway(config);
     wait_for_feed(serve, gateway.port(), 1);
 
@@ -259,8 +174,8 @@ TEST_CASE("a client past the send-queue cap is closed with code 4001 while other
     REQUIRE(healthy.receive());
     REQUIRE(healthy.receive_update());
 
-    // Twenty matches, many updates each: the stalled client's buffers fill, then more than three
-    // matches wait for it.
+    // Twenty matches, many updates each: the stalled client's buffers fill, and its oldest
+    // waiting frame waits past the stall limit.
     for (std::uint64_t seq = 2; seq <= 200; ++seq) {
         for (std::uint64_t match = 1; match <= 20; ++match) serve.publish(match, seq, 0.5);
     }

@@ -354,8 +354,9 @@ TEST_CASE(
     h.send(done.start(Period::second_half, 45));
     h.send(done.whistle(Period::second_half, 94));
     const auto snapshot_of = [&](std::uint64_t id) {
-        auto reply = protocol::decode_snapshot_reply(
-            h.core.answer_snapshot(protocol::encode_snapshot_request(id)));
+        const auto parts = h.core.answer_snapshot(protocol::encode_snapshot_request(id));
+        REQUIRE(parts.size() == 1);
+        auto reply = protocol::decode_snapshot_reply(parts[0]);
         REQUIRE(reply.ok());
         return *reply.value;
     };
@@ -394,4 +395,25 @@ TEST_CASE("service core: the tick moves a running match's clock by the simulated
     CHECK(tick.meta.receive_time_us == 0);  // a tick reflects no new message
     CHECK(tick.meta.publish_time_us == h.clock.now().wall_us);
     CHECK(h.counters().at("publish.ticks") == 1);
+}
+
+TEST_CASE("service core: a snapshot of every live match comes in parts, each under the limit",
+          "[unit][service_core]") {
+    Harness h;
+    const std::uint64_t matches = protocol::kSnapshotUpdatesPerPart + 5;
+    for (std::uint64_t id = 1; id <= matches; ++id) {
+        test::FeedBuilder feed(id);
+        h.send(setup_of(feed));
+    }
+    const auto parts = h.core.answer_snapshot(protocol::encode_snapshot_request(0));
+    REQUIRE(parts.size() == 2);
+    std::vector<std::span<const std::uint8_t>> frames;
+    for (const auto& part : parts) {
+        CHECK(part.size() <= protocol::kMaxSnapshotReplyBytes);
+        frames.emplace_back(part);
+    }
+    const auto whole = protocol::decode_snapshot_reply_parts(frames);
+    REQUIRE(whole.ok());
+    CHECK(whole.value->updates.size() == matches);
+    CHECK(h.counters().at("snapshot.requests") == 1);
 }

@@ -2,7 +2,9 @@
 
 #include <fmt/format.h>
 
+#include <span>
 #include <stdexcept>
+#include <vector>
 
 namespace liveprob::clients {
 
@@ -18,12 +20,20 @@ protocol::SnapshotReplyContents request_snapshot(zmq::context_t& context,
     socket.connect(endpoint);
     const std::vector<std::uint8_t> request = protocol::encode_snapshot_request(match_id);
     socket.send(zmq::buffer(request), zmq::send_flags::none);
-    zmq::message_t reply;
-    if (!socket.recv(reply, zmq::recv_flags::none)) {
+    // A reply for every match may come in parts: the frames of one message.
+    std::vector<zmq::message_t> frames(1);
+    if (!socket.recv(frames.back(), zmq::recv_flags::none)) {
         throw std::runtime_error(
             fmt::format("snapshot {}: no reply within {} ms", endpoint, timeout.count()));
     }
-    auto decoded = protocol::decode_snapshot_reply({reply.data<std::uint8_t>(), reply.size()});
+    while (frames.back().more()) {
+        frames.emplace_back();
+        if (!socket.recv(frames.back(), zmq::recv_flags::none))
+            throw std::runtime_error(fmt::format("snapshot {}: reply cut short", endpoint));
+    }
+    std::vector<std::span<const std::uint8_t>> parts;
+    for (const auto& f : frames) parts.emplace_back(f.data<std::uint8_t>(), f.size());
+    auto decoded = protocol::decode_snapshot_reply_parts(parts);
     if (!decoded.ok())
         throw std::runtime_error(
             fmt::format("snapshot {}: bad reply: {}", endpoint, decoded.detail));

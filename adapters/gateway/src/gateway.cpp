@@ -74,6 +74,7 @@ struct Gateway::Impl {
     void drain_snapshot(zmq::socket_t& socket);
     void heard_upstream();
     void watch_upstream();
+    void keep_house();
     void shut_down();
 
     GatewayHub hub;  // first: sessions still queued in the io_context refer to it
@@ -85,6 +86,7 @@ struct Gateway::Impl {
     asio::signal_set signals{io};
     asio::steady_timer stop_timer{io};
     asio::steady_timer upstream_timer{io};
+    asio::steady_timer housekeeping_timer{io};
 };
 
 Gateway::Impl::Impl(GatewayConfig config) : hub(make_hub(std::move(config))) {
@@ -171,7 +173,7 @@ void Gateway::Impl::take(std::span<const std::uint8_t> payload) {
 }
 
 void Gateway::Impl::apply(const GatewayUpdate& update) {
-    const auto accepted = hub.latest.accept(update);
+    const auto accepted = hub.latest.accept(update, std::chrono::steady_clock::now());
     if (accepted.arrival == Arrival::stale) {
         ++hub.counters.updates_stale;
         return;
@@ -182,9 +184,11 @@ void Gateway::Impl::apply(const GatewayUpdate& update) {
 }
 
 void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
+    // A reply for every match comes as the frames of one message, each a whole reply holding
+    // some of the matches: each is applied as it is read.
     zmq::message_t reply;
     while (socket.recv(reply, zmq::recv_flags::dontwait)) {
-        if (reply.more()) continue;  // not the one-frame reply a DEALER gets; skip to its end
+        ++hub.counters.snapshot_parts;
         auto decoded = protocol::decode_snapshot_reply(
             {static_cast<const std::uint8_t*>(reply.data()), reply.size()});
         if (!decoded.ok() || !decoded.value->error.empty()) {
@@ -232,6 +236,28 @@ void Gateway::Impl::watch_upstream() {
     });
 }
 
+// Every few moments: clients too far behind are closed, and finished matches past their
+// retention are forgotten (the frames already queued for a client still go out).
+void Gateway::Impl::keep_house() {
+    const auto& c = hub.config;
+    auto period =
+        std::min(c.send_stall_limit,
+                 c.finished_retention.count() > 0 ? c.finished_retention : c.send_stall_limit) /
+        4;
+    period = std::clamp(period, std::chrono::milliseconds(10), std::chrono::milliseconds(1000));
+    housekeeping_timer.expires_after(period);
+    housekeeping_timer.async_wait([this](boost::system::error_code ec) {
+        if (ec) return;
+        const auto now = std::chrono::steady_clock::now();
+        const std::vector<WebSocketSession*> open(hub.clients.begin(), hub.clients.end());
+        for (WebSocketSession* client : open) client->check_behind(now);
+        if (hub.config.finished_retention.count() > 0)
+            hub.counters.matches_retired +=
+                hub.latest.forget_finished(now, hub.config.finished_retention);
+        keep_house();
+    });
+}
+
 void Gateway::Impl::shut_down() {
     if (hub.shutting_down) return;
     hub.shutting_down = true;
@@ -239,6 +265,7 @@ void Gateway::Impl::shut_down() {
     acceptor.close(ignored);
     signals.cancel(ignored);
     upstream_timer.cancel();
+    housekeeping_timer.cancel();
     feed->stop();
     if (snapshot) snapshot->stop();
     const std::vector<WebSocketSession*> open(hub.clients.begin(), hub.clients.end());
@@ -266,6 +293,7 @@ void Gateway::run(bool handle_signals) {
     }
     g.accept_next();
     g.watch_upstream();
+    g.keep_house();
     if (handle_signals) {
         g.signals.add(SIGINT);
         g.signals.add(SIGTERM);

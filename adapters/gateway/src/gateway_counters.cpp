@@ -28,6 +28,8 @@ std::string GatewayCounters::render_json(std::size_t clients_open, std::size_t m
         .member("http_not_found", http_not_found)
         .member("upstream_messages", upstream_messages)
         .member("upstream_losses", upstream_losses)
+        .member("snapshot_parts", snapshot_parts)
+        .member("matches_retired", matches_retired)
         .end_object();
     return out;
 }

@@ -71,10 +71,16 @@ std::string GatewayHub::render_metrics() const {
                  c.snapshot_requests)
         .counter("liveprob_gateway_snapshot_failures_total", "snapshots that failed",
                  c.snapshot_failures)
+        .counter("liveprob_gateway_snapshot_parts_total",
+                 "snapshot reply frames read (a reply for every match may be several)",
+                 c.snapshot_parts)
+        .counter("liveprob_gateway_matches_retired_total",
+                 "finished matches forgotten after their retention", c.matches_retired)
         .counter("liveprob_gateway_clients_opened_total", "WebSocket clients accepted",
                  c.clients_opened)
         .counter("liveprob_gateway_clients_dropped_slow_total",
-                 "clients closed for a full send queue", c.clients_dropped_slow)
+                 "clients closed too far behind or with too many replies waiting",
+                 c.clients_dropped_slow)
         .counter("liveprob_gateway_clients_closed_oversize_total",
                  "clients closed for an oversize message", c.clients_closed_oversize)
         .counter("liveprob_gateway_clients_idle_timeout_total", "clients cut off as idle",

@@ -36,6 +36,8 @@ struct GatewayCounters {
     std::uint64_t http_not_found = 0;
     std::uint64_t upstream_messages = 0;  // anything from serve: updates and counters
     std::uint64_t upstream_losses = 0;    // times serve fell silent past the limit
+    std::uint64_t snapshot_parts = 0;     // snapshot reply frames read (a reply may be several)
+    std::uint64_t matches_retired = 0;    // finished matches forgotten after their retention
 
     std::string render_json(std::size_t clients_open, std::size_t matches) const;
 };

@@ -16,9 +16,12 @@ bool same_score_and_cards(const TimelinePoint& a, const TimelinePoint& b) {
     return a.home_goals == b.home_goals && a.away_goals == b.away_goals &&
            a.home_reds == b.home_reds && a.away_reds == b.away_reds;
 }
+bool is_final(core::MatchStatus status) {
+    return status == core::MatchStatus::finished || status == core::MatchStatus::abandoned;
+}
 }  // namespace
 
-LatestUpdates::Accepted LatestUpdates::accept(const GatewayUpdate& update) {
+LatestUpdates::Accepted LatestUpdates::accept(const GatewayUpdate& update, Clock::time_point now) {
     auto [it, inserted] = matches_.try_emplace(update.match_id);
     Entry& entry = it->second;
     Arrival arrival = Arrival::first;
@@ -29,7 +32,19 @@ LatestUpdates::Accepted LatestUpdates::accept(const GatewayUpdate& update) {
     entry.output_seq = update.output_seq;
     entry.frame = std::make_shared<const std::string>(render_update_json(update));
     append_point(entry, point_of(update.outputs));
+    if (!is_final(update.outputs.status)) {
+        entry.final_since.reset();  // live again (a correction reopened it)
+    } else if (!entry.final_since) {
+        entry.final_since = now;
+    }
     return {arrival, entry.frame};
+}
+
+std::size_t LatestUpdates::forget_finished(Clock::time_point now, Clock::duration retention) {
+    return std::erase_if(matches_, [&](const auto& kv) {
+        const auto& since = kv.second.final_since;
+        return since && now - *since >= retention;
+    });
 }
 
 void LatestUpdates::append_point(Entry& entry, const TimelinePoint& point) const {

@@ -5,6 +5,7 @@
 #include <boost/asio/buffer.hpp>
 
 #include <algorithm>
+#include <optional>
 #include <variant>
 #include <vector>
 
@@ -154,22 +155,36 @@ void WebSocketSession::notify(std::string text) {
 void WebSocketSession::offer(std::uint64_t match_id, const Frame& frame, std::int64_t arrived_us) {
     if (!open_ || closing_ || !watches(match_id)) return;
     if (auto waiting = pending_.find(match_id); waiting != pending_.end()) {
-        // Latest value wins; its place in the queue is kept.
-        waiting->second = Pending{frame, arrived_us};
+        // Latest value wins; its place in the queue (and the time it took it) is kept.
+        waiting->second.frame = frame;
+        waiting->second.arrived_us = arrived_us;
         ++hub_.counters.frames_conflated;
         return;
     }
-    pending_.emplace(match_id, Pending{frame, arrived_us});
+    pending_.emplace(match_id, Pending{frame, arrived_us, std::chrono::steady_clock::now()});
     pending_order_.push_back(match_id);
     if (over_cap()) return;
     write_next();
 }
 
 bool WebSocketSession::over_cap() {
-    if (replies_.size() + pending_.size() <= hub_.config.send_queue_cap) return false;
+    if (replies_.size() <= hub_.config.send_queue_cap) return false;
     ++hub_.counters.clients_dropped_slow;
     begin_close(kCloseSendQueueFull, "send queue full");
     return true;
+}
+
+void WebSocketSession::check_behind(std::chrono::steady_clock::time_point now) {
+    if (!open_ || closing_) return;
+    std::optional<std::chrono::steady_clock::time_point> oldest;
+    if (writing_) oldest = write_started_;
+    if (!pending_order_.empty()) {
+        const auto queued = pending_.at(pending_order_.front()).queued_at;
+        if (!oldest || queued < *oldest) oldest = queued;
+    }
+    if (!oldest || now - *oldest <= hub_.config.send_stall_limit) return;
+    ++hub_.counters.clients_dropped_slow;
+    begin_close(kCloseSendQueueFull, "too far behind");
 }
 
 void WebSocketSession::write_next() {
@@ -189,6 +204,7 @@ void WebSocketSession::write_next() {
         return;
     }
     writing_ = true;
+    write_started_ = std::chrono::steady_clock::now();
     ws_.text(true);
     ws_.async_write(
         boost::asio::buffer(*in_flight_),

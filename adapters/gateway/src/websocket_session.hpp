@@ -1,13 +1,16 @@
 // Private to the gateway: one WebSocket client. It chooses matches with watch requests and
 // receives their frames. A slow reader gets latest-value-wins conflation per match: while a
-// frame for a match waits to be sent, a newer one replaces it. Past the send-queue cap the
-// client is closed with kCloseSendQueueFull so it cannot hold the gateway's memory hostage.
+// frame for a match waits to be sent, a newer one replaces it, so its frames are bounded by
+// the matches held. A client too far behind (its oldest frame waiting past the stall limit) or
+// with too many replies waiting is closed with kCloseSendQueueFull: it cannot hold the gateway's
+// memory hostage.
 #pragma once
 
 #include <boost/asio/steady_timer.hpp>
 #include <boost/beast/core.hpp>
 #include <boost/beast/websocket.hpp>
 
+#include <chrono>
 #include <cstdint>
 #include <deque>
 #include <memory>
@@ -34,6 +37,8 @@ public:
     void notify(std::string text);
     // Closes with "going away" (gateway shutdown).
     void close_going_away();
+    // Closes the client when something has waited for it longer than the stall limit.
+    void check_behind(std::chrono::steady_clock::time_point now);
 
 private:
     void on_accept(boost::beast::error_code ec);
@@ -61,11 +66,13 @@ private:
     struct Pending {
         Frame frame;
         std::int64_t arrived_us = 0;  // when the gateway read it off the feed (0: not timed)
+        std::chrono::steady_clock::time_point queued_at;  // kept when a newer frame replaces it
     };
     std::deque<std::uint64_t> pending_order_;  // matches with a frame waiting, oldest first
     std::unordered_map<std::uint64_t, Pending> pending_;  // latest waiting frame per match
     Frame in_flight_;                                     // kept alive while Beast writes it
     std::int64_t in_flight_arrived_us_ = 0;
+    std::chrono::steady_clock::time_point write_started_;
     std::string peer_;        // "address:port", for the log
     std::string end_reason_;  // why the connection ended, for the log
 

@@ -16,6 +16,7 @@
 #include "liveprob/service/service_core.hpp"
 #include "liveprob/system/wall_clock.hpp"
 #include "liveprob/transport/curve_keys.hpp"
+#include "liveprob/transport/message_parts.hpp"
 #include "liveprob/transport/reactor_socket.hpp"
 #include "liveprob/transport/topics.hpp"
 #include "liveprob/transport/zap_authenticator.hpp"
@@ -380,13 +381,14 @@ void LiveService::Impl::answer_snapshots(zmq::socket_t& socket) {
             continue;
         }
         const bool delimited = request_frames.size() == 3;
-        const std::vector<std::uint8_t> reply =
-            core->answer_snapshot(bytes_of(request_frames.back()));
+        // Every live match may be more than one frame holds: the reply's parts are the frames
+        // of one message, each under the decoder's limit.
+        const auto parts = core->answer_snapshot(bytes_of(request_frames.back()));
         socket.send(request_frames.front(), zmq::send_flags::sndmore | zmq::send_flags::dontwait);
         if (delimited)
             socket.send(zmq::const_buffer(nullptr, 0),
                         zmq::send_flags::sndmore | zmq::send_flags::dontwait);
-        socket.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
+        transport::send_parts(socket, parts);
     }
 }
 

@@ -7,6 +7,7 @@
 #include <span>
 #include <stdexcept>
 #include <thread>
+#include <vector>
 
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
@@ -15,6 +16,7 @@
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/transport/message_parts.hpp"
 
 namespace liveprob::service {
 
@@ -34,13 +36,20 @@ public:
         connect();
     }
 
-    // The shard's reply, or nothing when it did not answer in time.
-    std::optional<zmq::message_t> ask(std::span<const std::uint8_t> request) {
+    // The shard's reply (its parts: the frames of one message), or nothing when it did not
+    // answer in time.
+    std::optional<std::vector<zmq::message_t>> ask(std::span<const std::uint8_t> request) {
         socket_->send(zmq::const_buffer(request.data(), request.size()), zmq::send_flags::none);
         zmq::pollitem_t item{socket_->handle(), 0, ZMQ_POLLIN, 0};
         if (zmq::poll(&item, 1, timeout_) > 0) {
-            zmq::message_t reply;
-            if (socket_->recv(reply, zmq::recv_flags::dontwait)) return reply;
+            // The parts of a message arrive together, so once the first is here so are the rest.
+            std::vector<zmq::message_t> parts(1);
+            bool whole = static_cast<bool>(socket_->recv(parts.back(), zmq::recv_flags::dontwait));
+            while (whole && parts.back().more()) {
+                parts.emplace_back();
+                whole = static_cast<bool>(socket_->recv(parts.back(), zmq::recv_flags::dontwait));
+            }
+            if (whole) return parts;
         }
         connect();
         return std::nullopt;
@@ -66,26 +75,33 @@ public:
             shards_.emplace_back(ctx, ep, config.shard_timeout);
     }
 
-    // Answers one request payload with a complete reply payload.
-    std::vector<std::uint8_t> answer(std::span<const std::uint8_t> payload) {
+    // Answers one request payload with the parts of a complete reply.
+    std::vector<std::vector<std::uint8_t>> answer(std::span<const std::uint8_t> payload) {
         const auto request = proto::decode_snapshot_request(payload);
         if (!request.ok())
-            return proto::encode_snapshot_reply({"bad request: " + request.detail, {}});
+            return proto::encode_snapshot_reply_parts({"bad request: " + request.detail, {}});
         const std::uint64_t id = *request.value;
         const auto count = static_cast<std::uint32_t>(shards_.size());
         if (id != 0) {
             auto& shard = shards_[proto::shard_of(id, count)];
-            auto reply = shard.ask(payload);
-            if (reply)
-                return {reply->data<std::uint8_t>(), reply->data<std::uint8_t>() + reply->size()};
-            return proto::encode_snapshot_reply(
+            if (auto reply = shard.ask(payload)) {
+                std::vector<std::vector<std::uint8_t>> parts;
+                for (const auto& p : *reply)
+                    parts.emplace_back(p.data<std::uint8_t>(), p.data<std::uint8_t>() + p.size());
+                return parts;
+            }
+            return proto::encode_snapshot_reply_parts(
                 {fmt::format("shard {} did not answer", proto::shard_of(id, count)), {}});
         }
         proto::SnapshotReplyContents merged;
         for (std::uint32_t k = 0; k < count; ++k) {
             auto reply = shards_[k].ask(payload);
-            const auto decoded = reply ? proto::decode_snapshot_reply(bytes_of(*reply))
-                                       : proto::Decoded<proto::SnapshotReplyContents>{};
+            std::vector<std::span<const std::uint8_t>> parts;
+            if (reply) {
+                for (const auto& p : *reply) parts.push_back(bytes_of(p));
+            }
+            auto decoded = reply ? proto::decode_snapshot_reply_parts(parts)
+                                 : proto::Decoded<proto::SnapshotReplyContents>{};
             if (!reply || !decoded.ok()) {
                 if (!merged.error.empty()) merged.error += "; ";
                 merged.error +=
@@ -95,7 +111,7 @@ public:
             }
             for (auto& u : decoded.value->updates) merged.updates.push_back(std::move(u));
         }
-        return proto::encode_snapshot_reply(merged);
+        return proto::encode_snapshot_reply_parts(merged);
     }
 
 private:
@@ -120,10 +136,10 @@ void serve_snapshots(zmq::socket_t& front, SnapshotRouter& router) {
         } while (frames.back().more());
         // Envelope: [peer id] [empty delimiter from REQ peers] payload.
         if (frames.size() < 2 || frames.size() > 3) continue;
-        const auto reply = router.answer(bytes_of(frames.back()));
+        const auto parts = router.answer(bytes_of(frames.back()));
         for (std::size_t i = 0; i + 1 < frames.size(); ++i)
             front.send(frames[i], zmq::send_flags::sndmore | zmq::send_flags::dontwait);
-        front.send(zmq::const_buffer(reply.data(), reply.size()), zmq::send_flags::dontwait);
+        transport::send_parts(front, parts);
     }
 }
 

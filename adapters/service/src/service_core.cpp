@@ -189,7 +189,8 @@ void ServiceCore::publish(LiveMatch& m, bool tick, const ServiceTime& started) {
     ++(tick ? counters_.ticks_published : counters_.updates_published);
 }
 
-std::vector<std::uint8_t> ServiceCore::answer_snapshot(std::span<const std::uint8_t> request) {
+std::vector<std::vector<std::uint8_t>> ServiceCore::answer_snapshot(
+    std::span<const std::uint8_t> request) {
     ++counters_.snapshot_requests;
     const auto wanted = protocol::decode_snapshot_request(request);
     snapshot_reply_.updates.clear();
@@ -212,7 +213,7 @@ std::vector<std::uint8_t> ServiceCore::answer_snapshot(std::span<const std::uint
     }
     const std::int64_t now_us = clock_.now().wall_us;
     for (auto& u : snapshot_reply_.updates) u.meta.publish_time_us = now_us;
-    return protocol::encode_snapshot_reply(snapshot_reply_);
+    return protocol::encode_snapshot_reply_parts(snapshot_reply_);
 }
 
 const CounterList& ServiceCore::counter_values() {

@@ -24,6 +24,8 @@ struct GatewayOptions {
     std::uint64_t idle_timeout_ms = 60'000;
     std::uint64_t handshake_timeout_ms = 10'000;
     std::uint64_t upstream_silence_ms = 12'000;
+    std::uint64_t send_stall_ms = 15'000;
+    std::uint64_t retention_s = 600;
     std::string log_format = "text";
 };
 
@@ -52,6 +54,8 @@ int run_gateway(GatewayOptions& options) {
     config.idle_timeout = std::chrono::milliseconds(options.idle_timeout_ms);
     config.handshake_timeout = std::chrono::milliseconds(options.handshake_timeout_ms);
     config.upstream_silence_limit = std::chrono::milliseconds(options.upstream_silence_ms);
+    config.send_stall_limit = std::chrono::milliseconds(options.send_stall_ms);
+    config.finished_retention = std::chrono::seconds(options.retention_s);
     liveprob::monitoring::use_log_format(options.log_format);
 
     liveprob::gateway::Gateway gateway(config);
@@ -89,7 +93,16 @@ const liveprob::cli::Registration registration{
                         "largest message a client may send")
              ->capture_default_str();
          app.add_option("--queue-cap", c.send_queue_cap,
-                        "frames waiting for one client before it is dropped")
+                        "replies waiting for one client before it is dropped")
+             ->capture_default_str();
+         app.add_option("--send-stall-ms", options->send_stall_ms,
+                        "drop a client whose oldest waiting frame has waited this long")
+             ->check(CLI::Range(10, 3'600'000))
+             ->capture_default_str();
+         app.add_option("--retention-s", options->retention_s,
+                        "forget a finished or abandoned match this long after its final update "
+                        "(0: never; serve's retention_s)")
+             ->check(CLI::Range(0, 365 * 24 * 3600))
              ->capture_default_str();
          app.add_option("--idle-timeout-ms", options->idle_timeout_ms,
                         "cut off a client silent (no pong) for this long")

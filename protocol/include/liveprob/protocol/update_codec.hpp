@@ -62,6 +62,18 @@ struct SnapshotReplyContents {
     std::vector<DecodedUpdate> updates;  // latest update of each match asked for
 };
 std::vector<std::uint8_t> encode_snapshot_reply(const SnapshotReplyContents& reply);
+// Updates per part of a reply: one update is at most kMaxUpdateBytes, so a part of this many
+// stays under kMaxSnapshotReplyBytes (64 KiB kept for the envelope and the error text) and
+// under the verifier's table count, whatever the matches' outputs.
+inline constexpr std::size_t kSnapshotUpdatesPerPart =
+    (kMaxSnapshotReplyBytes - 64 * 1024) / kMaxUpdateBytes;
+// A reply for any number of matches as the frames of one ZeroMQ message: parts of at most
+// `per_part` updates, each a whole SnapshotReply (the error, if any, in the first); at least one.
+std::vector<std::vector<std::uint8_t>> encode_snapshot_reply_parts(
+    const SnapshotReplyContents& reply, std::size_t per_part = kSnapshotUpdatesPerPart);
+// The parts of one reply read back as one: updates in order, errors joined with "; ".
+Decoded<SnapshotReplyContents> decode_snapshot_reply_parts(
+    const std::vector<std::span<const std::uint8_t>>& parts);
 Decoded<SnapshotReplyContents> decode_snapshot_reply(std::span<const std::uint8_t> bytes);
 
 struct CounterSet {

@@ -31,9 +31,20 @@ struct GatewayConfig {
 
     // Largest message a client may send us; a bigger one closes it with code 1009.
     std::size_t max_client_message_bytes = 4096;
-    // Frames waiting for one client (after conflation: at most one per match, plus replies);
-    // one more closes it with code kCloseSendQueueFull.
+    // Replies waiting for one client (answers to its requests, notices); one more closes it
+    // with code kCloseSendQueueFull. Update frames do not count: conflation keeps at most one
+    // per match waiting, so however many matches a client watches (live or finished), their
+    // frames are bounded by the matches held; what tells a slow client is send_stall_limit.
     std::size_t send_queue_cap = 256;
+    // A client whose oldest waiting frame (or the frame being written) has waited this long is
+    // too far behind: closed with kCloseSendQueueFull. Time, not a count of frames, so a burst
+    // (every live match ticking at once, the catch-up of a new watch-all client) never drops a
+    // client that reads.
+    std::chrono::milliseconds send_stall_limit{15'000};
+    // A finished or abandoned match is forgotten (its frame, its timeline, its place in
+    // /api/matches and in a new watch-all client's catch-up) this long after its final update;
+    // 0: never. The default matches serve's retention_s.
+    std::chrono::milliseconds finished_retention{600'000};
     // A WebSocket client that neither sends nor answers our pings for this long is cut off.
     std::chrono::milliseconds idle_timeout{60'000};
     // HTTP requests and WebSocket handshakes must complete within this.

@@ -2,6 +2,7 @@
 // HTTP state endpoint) and a bounded timeline of probabilities (for the page's chart).
 #pragma once
 
+#include <chrono>
 #include <cstddef>
 #include <cstdint>
 #include <map>
@@ -38,21 +39,29 @@ enum class Arrival : std::uint8_t {
 
 class LatestUpdates {
 public:
+    using Clock = std::chrono::steady_clock;
+
     explicit LatestUpdates(std::size_t timeline_points) : timeline_points_(timeline_points) {}
 
     struct Accepted {
         Arrival arrival = Arrival::first;
         Frame frame;  // null when stale
     };
-    Accepted accept(const GatewayUpdate& update);
+    // `now`: when it arrived; a finished or abandoned match's retention counts from its first
+    // final update.
+    Accepted accept(const GatewayUpdate& update, Clock::time_point now);
+
+    // Forgets every match whose final update (finished or abandoned) came `retention` or more
+    // before `now`; returns how many. Live matches are never forgotten.
+    std::size_t forget_finished(Clock::time_point now, Clock::duration retention);
 
     // Latest frame of one match, or null.
     Frame latest(std::uint64_t match_id) const;
     // Every match's latest frame, in match-id order.
     std::vector<std::pair<std::uint64_t, Frame>> all_latest() const;
 
-    // {"kind":"state","matches":[<frame>,...]}: every match seen since the gateway started,
-    // finished ones included (a page keeps showing a final result).
+    // {"kind":"state","matches":[<frame>,...]}: every match held, finished ones included until
+    // their retention ends (a page keeps showing a final result for a while).
     std::string render_state_json() const;
     // {"match_id":7,"points":[[period,clock_ms,p_home,p_draw,p_away,home_goals,away_goals,
     //  home_reds,away_reds],...]} or nothing for an unknown match.
@@ -65,6 +74,7 @@ private:
         std::uint64_t output_seq = 0;
         Frame frame;
         std::vector<TimelinePoint> timeline;
+        std::optional<Clock::time_point> final_since;  // set while finished or abandoned
     };
     void append_point(Entry& entry, const TimelinePoint& point) const;
 

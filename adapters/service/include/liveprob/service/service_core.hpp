@@ -86,9 +86,10 @@ public:
     void sync_due();
     void publish_counters();
 
-    // A snapshot request (protocol::decode_snapshot_request) answered with a reply
-    // (protocol::encode_snapshot_reply): one match, or every live one. Counted.
-    std::vector<std::uint8_t> answer_snapshot(std::span<const std::uint8_t> request);
+    // A snapshot request (protocol::decode_snapshot_request) answered with a reply: one match,
+    // or every live one, in parts (protocol::encode_snapshot_reply_parts) that are the frames of
+    // one message, each under the frame limit however many matches are live. Counted.
+    std::vector<std::vector<std::uint8_t>> answer_snapshot(std::span<const std::uint8_t> request);
 
     // Shutdown, after the last ingest(): syncs the log (on failure every acknowledgement owed is
     // withheld), sends what is owed, publishes the final counters.
