@@ -152,6 +152,8 @@ flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
     b.add_goals_added(grid);
     b.add_tail_mass(o.tail_mass);
     b.add_events_applied(o.events_applied);
+    b.add_feed_stale(meta.feed_stale);
+    b.add_journal_failing(meta.journal_failing);
     return b.Finish();
 }
 
@@ -171,8 +173,9 @@ std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& ou
     if (!is_known_period(period)) return bad("clock", fmt::format("{} is not a period", period));
 
     out = DecodedUpdate{};
-    out.meta = UpdateMeta{in.match_id(),        in.output_seq(),      in.input_seq(),
-                          in.receive_time_us(), in.publish_time_us(), in.compute_ns()};
+    out.meta =
+        UpdateMeta{in.match_id(),        in.output_seq(), in.input_seq(),  in.receive_time_us(),
+                   in.publish_time_us(), in.compute_ns(), in.feed_stale(), in.journal_failing()};
     core::Outputs& o = out.outputs;
     o.status = static_cast<core::MatchStatus>(status);
     o.clock = core::MatchClock{static_cast<core::Period>(period), clock->clock_ms()};

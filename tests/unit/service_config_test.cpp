@@ -67,6 +67,14 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     ServiceConfig same;
     same.publish_endpoint = same.ingest_endpoint;
     CHECK_THROWS_AS(validate_service_config(same), ConfigError);
+    // A silent match is marked stale before its ticks stop; either bound may be off.
+    ServiceConfig silence;
+    silence.feed_stale_s = 600;
+    silence.feed_dormant_s = 600;
+    CHECK_THROWS_WITH(validate_service_config(silence),
+                      Catch::StartsWith("feed_dormant_s: must be more than feed_stale_s (600)"));
+    silence.feed_dormant_s = 0;
+    CHECK_NOTHROW(validate_service_config(silence));
 }
 
 TEST_CASE("configuration: flags and file values are checked alike, by the one key table",
@@ -101,7 +109,7 @@ TEST_CASE("configuration: flags and file values are checked alike, by the one ke
         CHECK(names.insert(k.name).second);
         CHECK(flags.insert(k.flag).second);
     }
-    CHECK(names.size() == 23);
+    CHECK(names.size() == 25);
 }
 
 TEST_CASE("configuration: the README's table of keys is the key table", "[unit][serve]") {

@@ -417,3 +417,107 @@ TEST_CASE("service core: a snapshot of every live match comes in parts, each und
     CHECK(whole.value->updates.size() == matches);
     CHECK(h.counters().at("snapshot.requests") == 1);
 }
+
+TEST_CASE(
+    "service core: a match whose feed falls silent in play is marked stale, then no longer "
+    "ticked, and its next message wakes it",
+    "[unit][service_core]") {
+    CoreSettings settings = settings_with();
+    settings.feed_stale_after = seconds(300);
+    settings.feed_dormant_after = seconds(1800);
+    Harness h(std::move(settings));
+    test::FeedBuilder silent(90), waiting(91);
+    h.send(setup_of(silent));
+    h.send(silent.start(Period::first_half, 0));
+    h.send(setup_of(waiting));  // not started: silence before kick-off is normal
+    const auto tick_of = [&](std::uint64_t id) -> std::optional<protocol::DecodedUpdate> {
+        h.recorder.updates.clear();
+        h.core.tick();
+        for (const auto& u : h.recorder.updates) {
+            if (u.meta.match_id == id) return u;
+        }
+        return std::nullopt;
+    };
+
+    h.clock.advance(seconds(299));
+    const auto quiet = tick_of(90);
+    REQUIRE(quiet.has_value());
+    CHECK_FALSE(quiet->meta.feed_stale);
+    CHECK(h.counters().at("matches.stale") == 0);
+
+    h.clock.advance(seconds(1));  // 300 s of silence in play
+    auto tick = tick_of(90);
+    REQUIRE(tick.has_value());
+    CHECK(tick->meta.feed_stale);
+    CHECK(tick->outputs.clock.clock_ms == 300'000);  // still drifting on the clock alone
+    auto other = tick_of(91);
+    REQUIRE(other.has_value());
+    CHECK_FALSE(other->meta.feed_stale);
+    CHECK(h.counters().at("matches.stale") == 1);
+    // A late joiner's snapshot says so too.
+    const auto reply = protocol::decode_snapshot_reply(
+        h.core.answer_snapshot(protocol::encode_snapshot_request(90)).at(0));  // one part
+    REQUIRE(reply.ok());
+    REQUIRE(reply.value->updates.size() == 1);
+    CHECK(reply.value->updates[0].meta.feed_stale);
+
+    h.clock.advance(seconds(1500));  // 1800 s: both matches go dormant
+    CHECK_FALSE(tick_of(90).has_value());
+    CHECK(h.recorder.updates.empty());
+    CHECK(h.counters().at("ticks.stopped_silent") == 2);
+    CHECK(h.counters().at("matches.dormant") == 2);
+    h.clock.advance(seconds(3600));
+    CHECK_FALSE(tick_of(90).has_value());
+    CHECK(h.counters().at("ticks.stopped_silent") == 2);  // counted once per silence
+
+    // The feed speaks again: an update without the mark at once, and ticks again.
+    h.recorder.updates.clear();
+    h.send(silent.goal(Side::home, Period::first_half, 20));
+    REQUIRE(h.recorder.updates.size() == 1);
+    CHECK_FALSE(h.recorder.updates[0].meta.feed_stale);
+    CHECK(h.recorder.updates[0].outputs.home_goals == 1);
+    tick = tick_of(90);
+    REQUIRE(tick.has_value());
+    CHECK_FALSE(tick->meta.feed_stale);
+    CHECK(h.counters().at("matches.dormant") == 1);  // the one still waiting for kick-off
+}
+
+TEST_CASE(
+    "service core: while the journal cannot be written every update says so, until a "
+    "message is journaled again",
+    "[unit][service_core]") {
+    Recorder actions;
+    SimulatedClock clock;
+    FillingDisk log(test::scratch_dir("core-journal-failing") / "journal", actions);
+    ServiceCore core(core::ModelParams{}, settings_with(), clock, actions, &log);
+    test::FeedBuilder a(100), b(101);
+    core.ingest(bytes(setup_of(a)));
+    core.ingest(bytes(a.start(Period::first_half, 0)));
+    core.ingest(bytes(setup_of(b)));
+    REQUIRE_FALSE(actions.updates.empty());
+    for (const auto& u : actions.updates) CHECK_FALSE(u.meta.journal_failing);
+
+    log.full = true;
+    CHECK(core.ingest(bytes(a.goal(Side::away, Period::first_half, 3))) == Intake::not_journaled);
+    clock.advance(seconds(1));
+    actions.updates.clear();
+    core.tick();
+    REQUIRE(actions.updates.size() == 2);  // both live matches, the one that lost a goal too
+    for (const auto& u : actions.updates) CHECK(u.meta.journal_failing);
+    const auto reply = protocol::decode_snapshot_reply(
+        core.answer_snapshot(protocol::encode_snapshot_request(0)).at(0));
+    REQUIRE(reply.ok());
+    REQUIRE(reply.value->updates.size() == 2);
+    for (const auto& u : reply.value->updates) CHECK(u.meta.journal_failing);
+
+    log.full = false;
+    actions.updates.clear();
+    CHECK(core.ingest(bytes(b.start(Period::first_half, 0))) == Intake::durable);
+    REQUIRE(actions.updates.size() == 1);
+    CHECK_FALSE(actions.updates[0].meta.journal_failing);
+    clock.advance(seconds(1));
+    actions.updates.clear();
+    core.tick();
+    REQUIRE(actions.updates.size() == 2);
+    for (const auto& u : actions.updates) CHECK_FALSE(u.meta.journal_failing);
+}

@@ -57,6 +57,22 @@ TEST_CASE("an update round-trips with its meta and every output", "[update_codec
     check_same(decoded.value->outputs, outputs);
 }
 
+TEST_CASE("an update's stale and journal-failing marks round-trip, each on its own",
+          "[update_codec]") {
+    UpdateEncoder encoder;
+    const Outputs outputs = test::sample_outputs();
+    for (const auto& [stale, failing] : {std::pair{true, false}, std::pair{false, true},
+                                         std::pair{true, true}, std::pair{false, false}}) {
+        UpdateMeta meta = kMeta;
+        meta.feed_stale = stale;
+        meta.journal_failing = failing;
+        const auto decoded = decode_update(copy(encoder.encode(meta, outputs)));
+        REQUIRE(decoded.ok());
+        CHECK(decoded.value->meta.feed_stale == stale);
+        CHECK(decoded.value->meta.journal_failing == failing);
+    }
+}
+
 TEST_CASE("the grid is cut to its non-zero square, and a full grid still fits", "[update_codec]") {
     UpdateEncoder encoder;
     Outputs sparse = test::sample_outputs();  // non-zero cells within 5 x 4

@@ -200,7 +200,8 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
         const std::int64_t now = system::wall_clock_us();
         for (const auto& u : decoded.value->updates) {
             apply(GatewayUpdate{u.meta.match_id, u.meta.output_seq, u.meta.input_seq,
-                                u.meta.receive_time_us, u.meta.publish_time_us, now, u.outputs});
+                                u.meta.receive_time_us, u.meta.publish_time_us, now, u.outputs,
+                                u.meta.feed_stale, u.meta.journal_failing});
         }
     }
 }

@@ -54,6 +54,7 @@ std::string render_update_json(const GatewayUpdate& update) {
         .member("engine_publish", update.engine_publish_us)
         .member("gateway_receive", update.gateway_receive_us)
         .end_object();
+    json.member("feed_stale", update.feed_stale).member("journal_failing", update.journal_failing);
     json.end_object();
     return out;
 }

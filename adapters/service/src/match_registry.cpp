@@ -18,6 +18,8 @@ LiveMatch* MatchRegistry::find(std::uint64_t match_id) {
 MessageOutcome MatchRegistry::apply_to(LiveMatch& m, const core::InboundMessage& message,
                                        std::int64_t receive_time_us,
                                        std::chrono::steady_clock::time_point now) {
+    m.last_heard = now;
+    m.dormant = false;
     if (limits_.max_messages_per_match != 0 && m.messages >= limits_.max_messages_per_match)
         return MessageOutcome::over_cap;
     ++m.messages;
@@ -67,6 +69,7 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
         created.receive_time_us = receive_time_us;
         created.anchor_clock = created.match.priced_clock();
         created.anchor_time = now;
+        created.last_heard = now;
         created.messages = 1;
     } catch (const std::invalid_argument& e) {
         last_setup_error_ = e.what();

@@ -23,7 +23,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 23> kKeys = {{
+const std::array<ConfigKey, 25> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -52,6 +52,14 @@ const std::array<ConfigKey, 23> kKeys = {{
      24u * 3600},
     {"match_message_cap", "--match-message-cap", ConfigValue::whole, &S::match_message_cap,
      "messages one match accepts; later ones are refused and counted; 0: no cap", 0, 100'000'000},
+    {"feed_stale_s", "--feed-stale-s", ConfigValue::whole, &S::feed_stale_s,
+     "a match in play whose feed has sent nothing for this long is marked stale in its updates "
+     "(`feed_stale`) until its next message (s); 0: never",
+     0, 24u * 3600},
+    {"feed_dormant_s", "--feed-dormant-s", ConfigValue::whole, &S::feed_dormant_s,
+     "a live match whose feed has sent nothing for this long is no longer ticked until its next "
+     "message (`ticks.stopped_silent`) (s); 0: never",
+     0, 7u * 24 * 3600},
     {"journal_path",
      "--journal",
      ConfigValue::text,
@@ -320,6 +328,12 @@ void validate_service_config(const ServiceConfig& c) {
     }
     if (c.curve_publish && !c.curve_enabled()) {
         throw ConfigError("curve_publish: needs curve_secret_key_file (the server key) too");
+    }
+    if (c.feed_stale_s != 0 && c.feed_dormant_s != 0 && c.feed_dormant_s <= c.feed_stale_s) {
+        throw ConfigError(fmt::format(
+            "feed_dormant_s: must be more than feed_stale_s ({}), got {} (a match is marked stale "
+            "before its ticks stop)",
+            c.feed_stale_s, c.feed_dormant_s));
     }
     // Two sockets cannot bind one fixed endpoint ("*" ports are distinct by construction).
     const auto clash = [](const std::string& a, const std::string& b) {

@@ -21,6 +21,8 @@ CoreSettings core_settings(const ServiceConfig& config) {
     settings.limits.retention = std::chrono::seconds(config.retention_s);
     settings.limits.waiting_ttl = std::chrono::seconds(config.waiting_ttl_s);
     settings.limits.max_messages_per_match = config.match_message_cap;
+    settings.feed_stale_after = std::chrono::seconds(config.feed_stale_s);
+    settings.feed_dormant_after = std::chrono::seconds(config.feed_dormant_s);
     const protocol::ShardSpec shard = protocol::parse_shard_spec(config.shard);
     if (shard.count > 1) {
         settings.owns = [shard](std::uint64_t id) { return protocol::owns(shard, id); };
@@ -31,6 +33,8 @@ CoreSettings core_settings(const ServiceConfig& config) {
 ServiceCore::ServiceCore(core::ModelParams params, CoreSettings settings, ServiceClock& clock,
                          ServiceActions& actions, RecordLog* log)
     : clock_(clock), actions_(actions), log_(log), owns_(std::move(settings.owns)),
+      feed_stale_after_(settings.feed_stale_after),
+      feed_dormant_after_(settings.feed_dormant_after),
       registry_(std::move(params), settings.limits) {}
 
 void ServiceCore::restore(std::span<const std::uint8_t> record) {
@@ -154,8 +158,16 @@ void ServiceCore::sync_failed(const RecordLogError& e) {
 
 void ServiceCore::tick() {
     for (auto& [id, m] : registry_.matches()) {
-        if (!m.live()) continue;
+        if (!m.live() || m.dormant) continue;
         const ServiceTime started = clock_.now();
+        if (feed_dormant_after_.count() > 0 &&
+            started.steady - m.last_heard >= feed_dormant_after_) {
+            // Silent for so long that re-pricing it every tick is work for nobody (its last
+            // updates said stale); its next message wakes it.
+            m.dormant = true;
+            ++counters_.ticks_stopped_silent;
+            continue;
+        }
         registry_.advance(m, started.steady);
         publish(m, true, started);
     }
@@ -165,19 +177,31 @@ void ServiceCore::tick() {
     counters_.waiting_expired += retired.waiting_expired;
 }
 
-protocol::UpdateMeta ServiceCore::meta_of(const LiveMatch& m) const {
+bool ServiceCore::feed_stale(const LiveMatch& m, std::chrono::steady_clock::time_point now) const {
+    if (feed_stale_after_.count() == 0) return false;
+    // Silence is news only while play should be running: before kick-off and between periods
+    // a feed may rightly say nothing for a long time.
+    const core::MatchStatus status = m.match.state().status;
+    if (status != core::MatchStatus::in_play && status != core::MatchStatus::shootout) return false;
+    return now - m.last_heard >= feed_stale_after_;
+}
+
+protocol::UpdateMeta ServiceCore::meta_of(const LiveMatch& m,
+                                          std::chrono::steady_clock::time_point now) const {
     protocol::UpdateMeta meta;
     meta.match_id = m.match.match_id();
     meta.output_seq = m.output_seq;
     meta.input_seq = m.input_seq;
     meta.receive_time_us = m.receive_time_us;
+    meta.feed_stale = feed_stale(m, now);
+    meta.journal_failing = journal_failing_;
     return meta;
 }
 
 void ServiceCore::publish(LiveMatch& m, bool tick, const ServiceTime& started) {
     m.match.price_into(outputs_);
     ++m.output_seq;
-    protocol::UpdateMeta meta = meta_of(m);
+    protocol::UpdateMeta meta = meta_of(m, started.steady);
     if (tick) meta.receive_time_us = 0;
     const ServiceTime priced = clock_.now();
     meta.compute_ns = static_cast<std::uint32_t>(std::clamp<std::int64_t>(
@@ -195,9 +219,10 @@ std::vector<std::vector<std::uint8_t>> ServiceCore::answer_snapshot(
     const auto wanted = protocol::decode_snapshot_request(request);
     snapshot_reply_.updates.clear();
     snapshot_reply_.error.clear();
-    const auto add = [this](const LiveMatch& m) {
+    const ServiceTime now = clock_.now();
+    const auto add = [&](const LiveMatch& m) {
         m.match.price_into(outputs_);
-        snapshot_reply_.updates.push_back({meta_of(m), outputs_});
+        snapshot_reply_.updates.push_back({meta_of(m, now.steady), outputs_});
     };
     if (!wanted.ok()) {
         ++counters_.snapshot_bad_requests;
@@ -211,15 +236,22 @@ std::vector<std::vector<std::uint8_t>> ServiceCore::answer_snapshot(
     } else {
         snapshot_reply_.error = fmt::format("unknown match {}", *wanted.value);
     }
-    const std::int64_t now_us = clock_.now().wall_us;
-    for (auto& u : snapshot_reply_.updates) u.meta.publish_time_us = now_us;
+    for (auto& u : snapshot_reply_.updates) u.meta.publish_time_us = now.wall_us;
     return protocol::encode_snapshot_reply_parts(snapshot_reply_);
 }
 
 const CounterList& ServiceCore::counter_values() {
     counters_.matches = registry_.matches().size();
     counters_.live_matches = 0;
-    for (const auto& [id, m] : registry_.matches()) counters_.live_matches += m.live() ? 1u : 0u;
+    counters_.stale_matches = 0;
+    counters_.dormant_matches = 0;
+    const auto now = clock_.now().steady;
+    for (const auto& [id, m] : registry_.matches()) {
+        if (!m.live()) continue;
+        ++counters_.live_matches;
+        counters_.stale_matches += feed_stale(m, now) ? 1u : 0u;
+        counters_.dormant_matches += m.dormant ? 1u : 0u;
+    }
     list_counters(counters_, registry_.totals(), counter_set_.values);
     return counter_set_.values;
 }

@@ -62,6 +62,9 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("matches", s.matches);
     add("matches.live", s.live_matches);
     add("matches.retired", s.retired);
+    add("matches.stale", s.stale_matches);
+    add("matches.dormant", s.dormant_matches);
+    add("ticks.stopped_silent", s.ticks_stopped_silent);
 }
 
 }  // namespace liveprob::service

@@ -76,8 +76,18 @@ std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
         .member("receive_time_us", u.meta.receive_time_us)
         .member("publish_time_us", u.meta.publish_time_us)
         .member("compute_ns", u.meta.compute_ns)
+        .member("feed_stale", u.meta.feed_stale)
+        .member("journal_failing", u.meta.journal_failing)
         .end_object();
     return out;
+}
+
+// What caused the update, and what the service could not vouch for.
+std::string cause_of(const protocol::DecodedUpdate& u) {
+    std::string cause = u.meta.receive_time_us == 0 ? "tick" : "event";
+    if (u.meta.feed_stale) cause += ", feed stale";
+    if (u.meta.journal_failing) cause += ", journal failing";
+    return cause;
 }
 
 std::string table_row(const protocol::DecodedUpdate& u) {
@@ -86,7 +96,7 @@ std::string table_row(const protocol::DecodedUpdate& u) {
     return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}",
                        u.meta.match_id, u.meta.output_seq, status_name(o.status), seconds / 60,
                        seconds % 60, o.home_goals, o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw,
-                       100.0 * o.p_away, u.meta.receive_time_us == 0 ? "tick" : "event");
+                       100.0 * o.p_away, cause_of(u));
 }
 
 void print_update(const TapFlags& f, const protocol::DecodedUpdate& u, const char* source) {

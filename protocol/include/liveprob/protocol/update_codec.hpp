@@ -29,6 +29,9 @@ struct UpdateMeta {
     std::int64_t receive_time_us = 0;  // 0 for updates driven by the clock alone
     std::int64_t publish_time_us = 0;
     std::uint32_t compute_ns = 0;
+    // How far the service vouches for the update (update.fbs, schema 1.1; false from 1.0).
+    bool feed_stale = false;       // the match's feed silent past the threshold during play
+    bool journal_failing = false;  // the service's journal writes failing: may be behind the feed
     friend bool operator==(const UpdateMeta&, const UpdateMeta&) = default;
 };
 

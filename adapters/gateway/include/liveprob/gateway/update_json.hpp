@@ -18,6 +18,8 @@ struct GatewayUpdate {
     std::int64_t engine_publish_us = 0;   // when the engine published the update
     std::int64_t gateway_receive_us = 0;  // when the gateway read it off the feed
     core::Outputs outputs;
+    bool feed_stale = false;       // the match's feed silent past serve's threshold during play
+    bool journal_failing = false;  // serve's journal writes failing: may be behind the feed
 };
 
 // {"kind":"update","match_id":7,...}: numbers are printed in their shortest form that reads

@@ -65,6 +65,10 @@ struct LiveMatch {
     // When the match was first seen finished or abandoned (its final update); unset while live.
     std::optional<std::chrono::steady_clock::time_point> ended_at;
     std::uint32_t messages = 0;  // every message handed to the match, setup included
+    // When the feed last sent anything for the match (any verdict: a duplicate shows the feed
+    // is alive too); the service marks a long silence stale and then stops ticking.
+    std::chrono::steady_clock::time_point last_heard{};
+    bool dormant = false;  // silent so long it is no longer ticked; its next message wakes it
     bool live() const noexcept;
 };
 

@@ -40,6 +40,10 @@ struct ServiceConfig {
     std::uint32_t retention_s = 600;   // finished matches leave memory this long after the end
     std::uint32_t waiting_ttl_s = 60;  // held messages of a match without setup expire
     std::uint32_t match_message_cap = 50000;  // messages one match accepts
+    // A feed gone silent (service_core.hpp): marked stale while play should run, then no longer
+    // ticked. A feed that confirms its clock every few minutes of play stays well inside both.
+    std::uint32_t feed_stale_s = 600;
+    std::uint32_t feed_dormant_s = 3600;
 
     std::string journal_path;  // a folder of segments; empty: no journal (and no recovery)
     files::JournalSync journal_sync = files::JournalSync::interval;

@@ -13,8 +13,9 @@
 //  4. applied through the registry (match_registry.hpp): waiting room, per-match cap, the
 //     engine's fold; every match whose state changed gets one update;
 //  5. acknowledged, when the feed asked, once the log's sync policy is met.
-// Timers: tick() republishes every live match with its clock moved on, then forgets finished
-// matches past the retention and waiting messages past their time to live; sync_due() syncs the
+// Timers: tick() republishes every live match with its clock moved on (except those whose feed
+// has been silent past `feed_dormant_after`), then forgets finished matches past the retention
+// and waiting messages past their time to live; sync_due() syncs the
 // log on its interval and sends what that made durable; publish_counters().
 //
 // One thread at a time: the core holds no lock.
@@ -40,6 +41,11 @@ namespace liveprob::service {
 
 struct CoreSettings {
     RegistryLimits limits;
+    // A match in play (or in a shoot-out) whose feed has sent nothing for `feed_stale_after`
+    // is marked stale in its updates; a live match silent for `feed_dormant_after` is no longer
+    // ticked. Its next message clears both. Zero turns either off.
+    std::chrono::seconds feed_stale_after{600};
+    std::chrono::seconds feed_dormant_after{3600};
     // The match ids this process owns; messages of others are refused and counted
     // (`ingest.not_our_shard`). Empty: every id.
     std::function<bool(std::uint64_t match_id)> owns;
@@ -110,7 +116,10 @@ private:
     // Prices the match and publishes it; compute_ns runs from `started` (the message's arrival
     // or the tick's start) to the priced figures.
     void publish(LiveMatch& m, bool tick, const ServiceTime& started);
-    protocol::UpdateMeta meta_of(const LiveMatch& m) const;
+    // The update's meta as of `now`: sequence, timestamps, and how far the service vouches.
+    protocol::UpdateMeta meta_of(const LiveMatch& m,
+                                 std::chrono::steady_clock::time_point now) const;
+    bool feed_stale(const LiveMatch& m, std::chrono::steady_clock::time_point now) const;
     // A failed sync: whether the written records are on disk is unknown, so promise nothing.
     void sync_failed(const RecordLogError& e);
 
@@ -118,6 +127,8 @@ private:
     ServiceActions& actions_;
     RecordLog* log_;
     std::function<bool(std::uint64_t)> owns_;
+    std::chrono::seconds feed_stale_after_;
+    std::chrono::seconds feed_dormant_after_;
     MatchRegistry registry_;
     ServiceCounters counters_;
     AckLedger acks_;

@@ -45,6 +45,9 @@ struct ServiceCounters {
     std::uint64_t curve_accepted = 0;
     std::uint64_t live_matches = 0;
     std::uint64_t matches = 0;
+    std::uint64_t stale_matches = 0;         // now: in play, feed silent past feed_stale_s
+    std::uint64_t dormant_matches = 0;       // now: live, feed silent past feed_dormant_s
+    std::uint64_t ticks_stopped_silent = 0;  // times a match went dormant (no longer ticked)
 
     std::uint64_t decode_rejected_total() const noexcept;
 };
