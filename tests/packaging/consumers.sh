@@ -28,6 +28,20 @@ compare() {  # compare NAME OUTPUT
   echo "consumers: $1 built against the prefix, output identical ($(wc -l <"$2") lines)"
 }
 
+# 0. The installed C++ API is include/ alone: the pricing kernels' headers (engine/core/internal)
+#    stay out of the prefix, and every header that is installed compiles on its own (so none of
+#    them reaches for an internal one).
+for internal in "$source_dir"/engine/core/internal/liveprob/core/*.hpp; do
+  [ ! -e "$prefix/include/liveprob/core/$(basename "$internal")" ] ||
+    fail "internal header $(basename "$internal") was installed"
+done
+for header in "$prefix"/include/liveprob/core/*.hpp "$prefix"/include/liveprob/fit/*.hpp; do
+  echo "#include \"${header#"$prefix/include/"}\"" |
+    c++ -std=c++20 -fsyntax-only -x c++ -I"$prefix/include" - 2>"$scratch/header.log" ||
+    { cat "$scratch/header.log" >&2; fail "installed header ${header#"$prefix/"} does not compile alone"; }
+done
+echo "consumers: installed C++ headers compile alone; no internal header installed"
+
 # 1. C, CMake find_package(liveprob COMPONENTS c).
 cmake -S "$here/consumers/c_find_package" -B "$scratch/c_find_package" -G Ninja \
   -DCMAKE_BUILD_TYPE=Release -DCMAKE_PREFIX_PATH="$prefix" \

@@ -47,7 +47,7 @@ enum class Verdict : std::uint8_t {
     duplicate = 2,  // its source_seq is already in the log; nothing changed
     rejected = 3,   // impossible (see `reason`); not applied
 };
-const char* verdict_name(Verdict verdict) noexcept;
+[[nodiscard]] const char* verdict_name(Verdict verdict) noexcept;
 
 struct ApplyResult {
     Verdict verdict = Verdict::accepted;
@@ -98,7 +98,7 @@ public:
     std::size_t log_size() const noexcept { return log_.size(); }
 
     // The model's input for the current state at the priced clock (for checks and tools).
-    PricingState pricing_state() const;
+    [[nodiscard]] PricingState pricing_state() const;
 
 private:
     struct LoggedMessage {

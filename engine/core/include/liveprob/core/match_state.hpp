@@ -70,7 +70,7 @@ struct MatchState {
 
     friend bool operator==(const MatchState&, const MatchState&) = default;
 
-    int goals(Side s) const noexcept {
+    [[nodiscard]] int goals(Side s) const noexcept {
         return regulation_goals[static_cast<std::size_t>(index(s))] +
                extra_time_goals[static_cast<std::size_t>(index(s))];
     }
@@ -87,24 +87,25 @@ std::uint32_t period_latest_ms(const CompetitionFormat& format, Period period) n
 inline constexpr std::uint32_t kStoppageAllowanceMs = 30U * 60U * 1000U;
 
 // Orders clocks as the match runs: by period, then by clock reading.
-bool clock_before(const MatchClock& a, const MatchClock& b) noexcept;
+[[nodiscard]] bool clock_before(const MatchClock& a, const MatchClock& b) noexcept;
 
 bool is_playing_period(Period p) noexcept;  // first_half .. extra_second
-bool is_extra_time(Period p) noexcept;
+[[nodiscard]] bool is_extra_time(Period p) noexcept;
 
 // Shoot-out arithmetic (best of five, then sudden death in pairs).
-bool shootout_decided(const ShootoutTally& tally) noexcept;
-Side shootout_next_kicker(const ShootoutTally& tally) noexcept;
+[[nodiscard]] bool shootout_decided(const ShootoutTally& tally) noexcept;
+[[nodiscard]] Side shootout_next_kicker(const ShootoutTally& tally) noexcept;
 
 // The period a format plays after `last`, or `finished` when nothing follows.
-Period next_period(const CompetitionFormat& format, Period last) noexcept;
+[[nodiscard]] Period next_period(const CompetitionFormat& format, Period last) noexcept;
 
 // After a period has ended (or during the shoot-out): whether the match may end here, i.e.
 // regulation is played and a tie that needs a winner has one, or no way left to find one.
-bool may_end_after(const MatchState& state, const CompetitionFormat& format) noexcept;
+[[nodiscard]] bool may_end_after(const MatchState& state, const CompetitionFormat& format) noexcept;
 
 // Aggregate goal difference for the home side of this match: this match's goals plus the
 // first leg, if any.
-int aggregate_difference(const MatchState& state, const CompetitionFormat& format) noexcept;
+[[nodiscard]] int aggregate_difference(const MatchState& state,
+                                       const CompetitionFormat& format) noexcept;
 
 }  // namespace liveprob::core

@@ -183,12 +183,12 @@ using EventBody = std::variant<PeriodStart, PeriodEnd, Goal, GoalCancelled, RedC
                                MatchAbandoned, FinalWhistle, ClockSync>;
 
 // The event a body carries; nullopt for a setup.
-std::optional<EventBody> event_of(const MessageBody& body);
-MessageBody message_body_of(const EventBody& event);
+[[nodiscard]] std::optional<EventBody> event_of(const MessageBody& body);
+[[nodiscard]] MessageBody message_body_of(const EventBody& event);
 
 // Stable short names of message kinds (used by logs, counters and the JSON form).
-const char* kind_name(const MessageBody& body) noexcept;
-const char* period_name(Period p) noexcept;
-const char* side_name(Side s) noexcept;
+[[nodiscard]] const char* kind_name(const MessageBody& body) noexcept;
+[[nodiscard]] const char* period_name(Period p) noexcept;
+[[nodiscard]] const char* side_name(Side s) noexcept;
 
 }  // namespace liveprob::core

@@ -70,6 +70,6 @@ struct Outputs {
 inline double totals_line(int i) noexcept { return 0.5 + i; }
 
 // Stable snake_case name of a status ("in_play"), used by tap, the gateway and logs.
-const char* status_name(MatchStatus status) noexcept;
+[[nodiscard]] const char* status_name(MatchStatus status) noexcept;
 
 }  // namespace liveprob::core

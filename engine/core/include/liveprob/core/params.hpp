@@ -79,7 +79,7 @@ struct ModelParams {
     // at κ = 25; raise it for a smaller κ).
     int quadrature_nodes = 5;
 
-    static ModelParams plain_poisson() {
+    [[nodiscard]] static ModelParams plain_poisson() {
         ModelParams p;
         p.score_state = {1.0, 1.0, 1.0};
         p.red_cards = {1.0, 1.0, 0};

@@ -48,7 +48,7 @@ public:
     // status finished or abandoned: the current score is the result (probabilities 0/1).
     void price(const PricingState& state, Outputs& out);
 
-    const ModelParams& params() const;
+    [[nodiscard]] const ModelParams& params() const;
 
 private:
     void price_unsettled(const PricingState& state, Outputs& out);  // before settle_rounding

@@ -41,6 +41,6 @@ enum class RejectReason : std::uint8_t {
 inline constexpr int kRejectReasonCount = 26;
 
 // Stable snake_case name ("before_kickoff"); "unknown" for a value outside the enum.
-const char* reject_reason_name(RejectReason reason) noexcept;
+[[nodiscard]] const char* reject_reason_name(RejectReason reason) noexcept;
 
 }  // namespace liveprob::core

@@ -14,14 +14,14 @@ enum class ShootoutOutcome { undecided, first_wins, second_wins };
 
 // Whether the kicks so far already decide it (by the kicking side's count, `first` and
 // `second` being the sides in kicking order).
-ShootoutOutcome shootout_outcome(int first_taken, int first_scored, int second_taken,
-                                 int second_scored);
+[[nodiscard]] ShootoutOutcome shootout_outcome(int first_taken, int first_scored, int second_taken,
+                                               int second_scored);
 
 // P(home wins the shoot-out) from any reachable partial state, kick by kick. Throws
 // std::invalid_argument for a state the ABAB order cannot produce or conversions outside (0,1).
-double shootout_home_win(const ShootoutParams& params, const ShootoutState& state);
+[[nodiscard]] double shootout_home_win(const ShootoutParams& params, const ShootoutState& state);
 
 // Before the shoot-out starts: the side kicking first is decided by a coin toss (1/2 each).
-double shootout_home_win_before_toss(const ShootoutParams& params);
+[[nodiscard]] double shootout_home_win_before_toss(const ShootoutParams& params);
 
 }  // namespace liveprob::core

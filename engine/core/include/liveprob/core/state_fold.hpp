@@ -20,15 +20,15 @@ public:
               const ModelParams& params);
 
     // The state before any event, with room reserved for a match's goals and cards.
-    MatchState initial_state() const;
+    [[nodiscard]] MatchState initial_state() const;
 
     // Checks that need nothing but the message (a message failing them never enters the log).
-    RejectReason screen(const InboundMessage& message) const noexcept;
+    [[nodiscard]] RejectReason screen(const InboundMessage& message) const noexcept;
 
     // Folds `message` onto `state`. Returns none and applies it, or returns why it is
     // impossible there and leaves `state` exactly as it was. Allocation-free unless a goal or
     // card record outgrows the reserved room.
-    RejectReason apply(MatchState& state, const InboundMessage& message) const;
+    [[nodiscard]] RejectReason apply(MatchState& state, const InboundMessage& message) const;
 
     // Expected goals of each side between the state's clock and `to_ms` (same period) under
     // the state as it stands: the exposure the clock adds while nothing happens.

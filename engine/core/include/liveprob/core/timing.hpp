@@ -19,36 +19,37 @@ public:
     // Relative rate at a clock point (per minute of play), scaled so that a whole regulation
     // match with the expected stoppage carries exposure exactly 1. A clock past the period's
     // nominal end is stoppage time. Outside play (pre-match, shoot-out, finished) the rate is 0.
-    double rate(MatchClock c) const;
+    [[nodiscard]] double rate(MatchClock c) const;
 
     // ∫ r dt within one period between two clock readings (ms on the running clock; either
     // may lie in that period's stoppage). Order-insensitive in the sense that to <= from gives 0.
-    double period_exposure(Period period, std::uint32_t from_ms, std::uint32_t to_ms) const;
+    [[nodiscard]] double period_exposure(Period period, std::uint32_t from_ms,
+                                         std::uint32_t to_ms) const;
 
     // ∫ r dt between two clock points. Within one period this is period_exposure. Across
     // periods, the rest of `from`'s period is counted up to its nominal end plus expected
     // stoppage (or up to `from` if it is already later), whole periods in between with their
     // expected stoppage, and the start of `to`'s period up to `to`. For exact accounting split
     // at the clock reading each period actually ended on.
-    double exposure(MatchClock from, MatchClock to) const;
+    [[nodiscard]] double exposure(MatchClock from, MatchClock to) const;
 
     // Exposure still to come in regulation from `now`. `announced_stoppage_minutes` is the
     // stoppage shown for the CURRENT period (expected stoppage when absent). When the clock is
     // already past the end of the current period's stoppage, the rest of that period counts as
     // `TimingProfile::overrun_minutes` at the stoppage rate.
-    double remaining_regulation(MatchClock now,
-                                std::optional<double> announced_stoppage_minutes) const;
+    [[nodiscard]] double remaining_regulation(
+        MatchClock now, std::optional<double> announced_stoppage_minutes) const;
 
     // Exposure still to come in extra time from `now` (the whole of extra time while in
     // regulation; 0 when the format plays none or it is over). Same stoppage rules as above.
-    double remaining_extra_time(MatchClock now,
-                                std::optional<double> announced_stoppage_minutes) const;
+    [[nodiscard]] double remaining_extra_time(
+        MatchClock now, std::optional<double> announced_stoppage_minutes) const;
 
     // Nominal start and end of a period on the running clock, in minutes (e.g. 45 and 90 for
     // the second half); both 0 for periods without play.
-    double period_start_minutes(Period p) const;
-    double period_end_minutes(Period p) const;
-    double expected_stoppage_minutes(Period p) const;
+    [[nodiscard]] double period_start_minutes(Period p) const;
+    [[nodiscard]] double period_end_minutes(Period p) const;
+    [[nodiscard]] double expected_stoppage_minutes(Period p) const;
 
 private:
     struct Segment {

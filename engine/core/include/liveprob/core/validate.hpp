@@ -37,10 +37,10 @@ struct InputProblem {
     std::string describe() const;  // "prior.home: must be in (0, 10], got 15"
 };
 
-std::optional<InputProblem> validate_prior(const PriorMeans& prior);
-std::optional<InputProblem> validate_format(const CompetitionFormat& format);
+[[nodiscard]] std::optional<InputProblem> validate_prior(const PriorMeans& prior);
+[[nodiscard]] std::optional<InputProblem> validate_format(const CompetitionFormat& format);
 // The prior (when present) and the format; names and the prior/ratings choice are the wire's.
-std::optional<InputProblem> validate_setup(const MatchSetup& setup);
-std::optional<InputProblem> validate_params(const ModelParams& params);
+[[nodiscard]] std::optional<InputProblem> validate_setup(const MatchSetup& setup);
+[[nodiscard]] std::optional<InputProblem> validate_params(const ModelParams& params);
 
 }  // namespace liveprob::core

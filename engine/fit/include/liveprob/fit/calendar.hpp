@@ -9,9 +9,9 @@
 namespace liveprob::fit {
 
 // Howard Hinnant's days_from_civil algorithm (published, public domain).
-int day_number(int year, int month, int day) noexcept;
+[[nodiscard]] int day_number(int year, int month, int day) noexcept;
 // "YYYY-MM-DD" -> day number; nullopt if the text is not a valid calendar date.
-std::optional<int> parse_iso_date(std::string_view text) noexcept;
-std::string iso_date(int day_number);
+[[nodiscard]] std::optional<int> parse_iso_date(std::string_view text) noexcept;
+[[nodiscard]] std::string iso_date(int day_number);
 
 }  // namespace liveprob::fit

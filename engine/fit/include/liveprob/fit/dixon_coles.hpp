@@ -27,8 +27,8 @@
 namespace liveprob::fit {
 
 // Dixon & Coles (1997), eq. (4.2): the dependence correction of the four low scores.
-double dixon_coles_tau(int home_goals, int away_goals, double lambda_home, double lambda_away,
-                       double rho) noexcept;
+[[nodiscard]] double dixon_coles_tau(int home_goals, int away_goals, double lambda_home,
+                                     double lambda_away, double rho) noexcept;
 
 struct TeamRating {
     std::string name;
@@ -61,7 +61,7 @@ struct Ratings {
     std::vector<TeamRating> teams;  // sorted by name
     FitDiagnostics diagnostics;
 
-    const TeamRating* find(std::string_view name) const noexcept;
+    [[nodiscard]] const TeamRating* find(std::string_view name) const noexcept;
 };
 
 struct RatingsFitOptions {
@@ -84,17 +84,19 @@ struct ExpectedGoals {
     double away = 0.0;
 };
 
-ExpectedGoals expected_goals(const Ratings& ratings, const TeamRating& home, const TeamRating& away,
-                             bool neutral) noexcept;
+[[nodiscard]] ExpectedGoals expected_goals(const Ratings& ratings, const TeamRating& home,
+                                           const TeamRating& away, bool neutral) noexcept;
 
 // Home win, draw, away win of independent Poisson scores with the Dixon–Coles τ applied to the
 // four low scores (τ leaves both margins unchanged, so the grid still sums to 1).
 struct OutcomeProbabilities {
     double home = 0.0, draw = 0.0, away = 0.0;
 };
-OutcomeProbabilities outcome_probabilities(double lambda_home, double lambda_away, double rho);
+[[nodiscard]] OutcomeProbabilities outcome_probabilities(double lambda_home, double lambda_away,
+                                                         double rho);
 
 // Throws std::invalid_argument when no match is usable.
-Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOptions& options);
+[[nodiscard]] Ratings fit_ratings(std::span<const MatchResult> matches,
+                                  const RatingsFitOptions& options);
 
 }  // namespace liveprob::fit

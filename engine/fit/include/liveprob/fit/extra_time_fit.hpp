@@ -37,7 +37,8 @@ struct ExtraTimeFit {
 
 // `effects` and `kappa` are the regulation model's (the fitted score-state effects and κ).
 // Throws std::invalid_argument when there is no record.
-ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records,
-                                   const core::ScoreStateEffects& effects, double kappa);
+[[nodiscard]] ExtraTimeFit fit_extra_time_factor(std::span<const ExtraTimeRecord> records,
+                                                 const core::ScoreStateEffects& effects,
+                                                 double kappa);
 
 }  // namespace liveprob::fit

@@ -30,10 +30,11 @@ struct TimingFit {
 };
 
 // Expected share of regulation goals in each minute bucket under `profile`.
-MinuteCounts minute_shares(const core::TimingProfile& profile);
+[[nodiscard]] MinuteCounts minute_shares(const core::TimingProfile& profile);
 
 // Throws std::invalid_argument when there are no goals.
-TimingFit fit_goal_timing(const MinuteCounts& counts, const core::TimingProfile& start);
+[[nodiscard]] TimingFit fit_goal_timing(const MinuteCounts& counts,
+                                        const core::TimingProfile& start);
 
 // The stoppage factor from a source that tells stoppage-time goals apart (45+k, 90+k, k ≥ 1).
 // With the profile's shape and its expected stoppage held, the regulation goals are multinomial
@@ -49,7 +50,7 @@ struct StoppageFit {
     int stoppage_goals = 0;
 };
 // Throws std::invalid_argument unless 0 < stoppage_goals < regulation_goals.
-StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals,
-                                const core::TimingProfile& shape);
+[[nodiscard]] StoppageFit fit_stoppage_factor(int regulation_goals, int stoppage_goals,
+                                              const core::TimingProfile& shape);
 
 }  // namespace liveprob::fit

@@ -62,13 +62,15 @@ struct ExtraTimeRecord {
 // extra-time goals beyond 1 at `timing.extra_time_factor`. A match's exposure is its expected
 // one (the stoppage actually played is unknown), so a late stoppage goal sits inside the
 // expected stoppage.
-std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals,
-                                   const core::TimingProfile& timing);
+[[nodiscard]] std::vector<double> goal_exposures(const std::vector<InplayGoal>& goals,
+                                                 const core::TimingProfile& timing);
 
 // Regulation goals only (minutes 1..90), in the goals' order.
-RegulationRecord regulation_record(const InplayMatch& match, const core::TimingProfile& timing);
+[[nodiscard]] RegulationRecord regulation_record(const InplayMatch& match,
+                                                 const core::TimingProfile& timing);
 
 // For a match with extra time: the first extra-time goal and the exposure before it.
-ExtraTimeRecord extra_time_record(const InplayMatch& match, const core::TimingProfile& timing);
+[[nodiscard]] ExtraTimeRecord extra_time_record(const InplayMatch& match,
+                                                const core::TimingProfile& timing);
 
 }  // namespace liveprob::fit

@@ -21,11 +21,12 @@ struct FairProbabilities {
 // (the closed form as commonly stated after Jullien & Salanié 1994; from memory).
 // Throws std::invalid_argument for fewer than two prices, a price <= 1 or not finite, or a
 // book without margin (Σ 1/o_i < 1) for Shin.
-FairProbabilities remove_margin(std::span<const double> decimal_prices, MarginMethod method);
+[[nodiscard]] FairProbabilities remove_margin(std::span<const double> decimal_prices,
+                                              MarginMethod method);
 
 // The forward Shin model: the quoted probabilities (summing to more than 1) that fair p and
 // insider share z produce: π_i = sqrt(z p_i + (1 − z) p_i²) · Σ_j sqrt(z p_j + (1 − z) p_j²)
 // (from memory, same sources). Used to build priced books in tests and the demo.
-std::vector<double> shin_quoted_probabilities(std::span<const double> fair, double z);
+[[nodiscard]] std::vector<double> shin_quoted_probabilities(std::span<const double> fair, double z);
 
 }  // namespace liveprob::fit

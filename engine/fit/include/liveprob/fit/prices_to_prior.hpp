@@ -21,9 +21,9 @@ using PreMatchModel = std::function<PreMatchProbabilities(double, double, std::o
 
 // Independent Poisson: exact sums over the score grid, truncated where the remaining mass of
 // each side is below 1e-17.
-PreMatchProbabilities independent_poisson(double lambda_home, double lambda_away,
-                                          std::optional<double> total_line);
-PreMatchModel independent_poisson_model();
+[[nodiscard]] PreMatchProbabilities independent_poisson(double lambda_home, double lambda_away,
+                                                        std::optional<double> total_line);
+[[nodiscard]] PreMatchModel independent_poisson_model();
 
 struct PriceBook {
     double home = 0.0, draw = 0.0, away = 0.0;  // decimal prices
@@ -48,11 +48,13 @@ struct PriorFromPrices {
 // Newton's method in log λ. With a line: least squares over home, away and over (Gauss–Newton
 // with step halving). Throws std::invalid_argument for unusable prices and
 // std::runtime_error when the model cannot reach the fair probabilities.
-PriorFromPrices prior_from_prices(const PriceBook& book, MarginMethod method,
-                                  const PreMatchModel& model = independent_poisson_model());
+[[nodiscard]] PriorFromPrices prior_from_prices(
+    const PriceBook& book, MarginMethod method,
+    const PreMatchModel& model = independent_poisson_model());
 
 // Inverse of the above for fair books: decimal prices 1/p (no margin).
-PriceBook fair_prices(double lambda_home, double lambda_away, std::optional<double> total_line,
-                      const PreMatchModel& model = independent_poisson_model());
+[[nodiscard]] PriceBook fair_prices(double lambda_home, double lambda_away,
+                                    std::optional<double> total_line,
+                                    const PreMatchModel& model = independent_poisson_model());
 
 }  // namespace liveprob::fit

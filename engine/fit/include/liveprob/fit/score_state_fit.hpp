@@ -50,13 +50,13 @@ struct ScoreStateFit {
 };
 
 // Throws std::invalid_argument when no record carries exposure.
-ScoreStateFit fit_score_state(std::span<const RegulationRecord> records,
-                              const ScoreStateFitOptions& options = {});
+[[nodiscard]] ScoreStateFit fit_score_state(std::span<const RegulationRecord> records,
+                                            const ScoreStateFitOptions& options = {});
 
 // The log-likelihood above (with the listing condition when asked) at given values: for
 // checks and profile plots.
-double score_state_log_likelihood(std::span<const RegulationRecord> records,
-                                  const core::ScoreStateEffects& effects, double kappa,
-                                  bool condition_on_listing = true);
+[[nodiscard]] double score_state_log_likelihood(std::span<const RegulationRecord> records,
+                                                const core::ScoreStateEffects& effects,
+                                                double kappa, bool condition_on_listing = true);
 
 }  // namespace liveprob::fit

@@ -47,12 +47,12 @@ struct ShootoutFit {
 
 // Throws std::invalid_argument when a tally is impossible under the rules (a level tally, or
 // one no kick sequence ends on) or the starting values lie outside (0, 1).
-ShootoutFit fit_shootout(std::span<const ShootoutRecord> records,
-                         const core::ShootoutParams& start);
+[[nodiscard]] ShootoutFit fit_shootout(std::span<const ShootoutRecord> records,
+                                       const core::ShootoutParams& start);
 
 // P(a shoot-out ends with the first-kicking side on `first_scored` and the other on
 // `second_scored`), the kicks converting with the given probabilities, by the engine's rules.
-double shootout_tally_probability(double first_conversion, double second_conversion,
-                                  int first_scored, int second_scored);
+[[nodiscard]] double shootout_tally_probability(double first_conversion, double second_conversion,
+                                                int first_scored, int second_scored);
 
 }  // namespace liveprob::fit

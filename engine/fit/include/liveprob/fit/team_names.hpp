@@ -16,11 +16,12 @@ struct UnknownTeamError : std::runtime_error {
 };
 
 // Case-insensitive Levenshtein distance (insert, delete, substitute: cost 1 each).
-std::size_t edit_distance(std::string_view a, std::string_view b);
+[[nodiscard]] std::size_t edit_distance(std::string_view a, std::string_view b);
 
 // Up to `count` known names nearest to `name`, nearest first (ties in alphabetical order).
-std::vector<std::string> closest_names(std::string_view name, const std::vector<std::string>& known,
-                                       std::size_t count = 3);
+[[nodiscard]] std::vector<std::string> closest_names(std::string_view name,
+                                                     const std::vector<std::string>& known,
+                                                     std::size_t count = 3);
 
 class TeamNameResolver {
 public:
@@ -29,7 +30,7 @@ public:
     TeamNameResolver(std::vector<std::string> known, std::map<std::string, std::string> aliases);
 
     // The rating name for `feed_name`; throws UnknownTeamError with the closest names.
-    const std::string& resolve(std::string_view feed_name) const;
+    [[nodiscard]] const std::string& resolve(std::string_view feed_name) const;
 
 private:
     std::vector<std::string> known_;  // sorted
