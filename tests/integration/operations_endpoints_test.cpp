@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include <cmath>
+#include <limits>
 #include <map>
 #include <regex>
 #include <set>
@@ -48,9 +49,9 @@ struct Exposition {
 };
 
 double parse_value(const std::string& text) {
-    if (text == "+Inf") return INFINITY;
-    if (text == "-Inf") return -INFINITY;
-    if (text == "NaN") return NAN;
+    if (text == "+Inf") return std::numeric_limits<double>::infinity();
+    if (text == "-Inf") return -std::numeric_limits<double>::infinity();
+    if (text == "NaN") return std::numeric_limits<double>::quiet_NaN();
     static const std::regex number(R"([-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?)");
     if (!std::regex_match(text, number)) throw std::runtime_error("not a value: '" + text + "'");
     return std::stod(text);
