@@ -208,6 +208,29 @@ int day_of(std::int64_t us) {
     return static_cast<int>(us >= 0 ? us / kDayUs : (us - kDayUs + 1) / kDayUs);
 }
 
+// Each match that opens with a setup, as an Elo fixture, with its id: read once per run.
+struct SetupFixture {
+    std::uint64_t id = 0;
+    backtest::EloFixture fixture;
+};
+std::vector<SetupFixture> setup_fixtures(const std::vector<backtest::MatchMessages>& matches) {
+    std::vector<SetupFixture> out;
+    for (const auto& m : matches) {
+        if (m.empty()) continue;
+        const auto* setup = std::get_if<core::MatchSetup>(&m.front().body);
+        if (!setup) continue;
+        out.push_back({m.front().header.match_id,
+                       {day_of(setup->scheduled_kickoff_us), setup->home_name, setup->away_name,
+                        setup->neutral_venue}});
+    }
+    return out;
+}
+
+// The key a result and a fixture share: (day, home, away).
+std::tuple<int, std::string, std::string> fixture_key(const backtest::EloFixture& f) {
+    return {f.day, f.home, f.away};
+}
+
 // The Elo reference's means for every match with a setup, from the international record in
 // `dir`; fills each match's competition where the record has its (day, home, away).
 std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo_reference_for(
@@ -227,16 +250,11 @@ std::unordered_map<std::uint64_t, backtest::ReferenceMeans> elo_reference_for(
     for (const auto& g : history.goal_minutes) minutes.push_back({g.day, g.minute});
     std::vector<backtest::EloFixture> fixtures;
     std::vector<std::uint64_t> ids;
-    for (const auto& m : matches) {
-        if (m.empty()) continue;
-        const auto* setup = std::get_if<core::MatchSetup>(&m.front().body);
-        if (!setup) continue;
-        const int day = day_of(setup->scheduled_kickoff_us);
-        fixtures.push_back({day, setup->home_name, setup->away_name, setup->neutral_venue});
-        ids.push_back(m.front().header.match_id);
-        if (const auto it = competition.find({day, setup->home_name, setup->away_name});
-            it != competition.end())
-            facts[ids.back()].competition = it->second;
+    for (auto& [id, fixture] : setup_fixtures(matches)) {
+        if (const auto it = competition.find(fixture_key(fixture)); it != competition.end())
+            facts[id].competition = it->second;
+        fixtures.push_back(std::move(fixture));
+        ids.push_back(id);
     }
     const auto reference = backtest::elo_reference(results, minutes, fixtures);
     std::unordered_map<std::uint64_t, backtest::ReferenceMeans> out;
@@ -269,26 +287,26 @@ std::unordered_map<std::uint64_t, backtest::ReferenceMeans> league_elo_reference
         for (const auto& g : t.goals)
             minutes[t.competition].push_back({t.day, g.minute <= 45 ? 44 : 90});
     std::unordered_map<std::uint64_t, backtest::ReferenceMeans> out;
+    // Each match with a setup goes to its league's fixtures (one pass over the matches).
+    std::map<std::string, std::pair<std::vector<backtest::EloFixture>, std::vector<std::uint64_t>>>
+        by_league;
+    for (auto& [id, fixture] : setup_fixtures(matches)) {
+        const auto it = league_of.find(fixture_key(fixture));
+        if (it == league_of.end()) continue;
+        facts[id].competition = it->second;
+        auto& [fixtures, ids] = by_league[it->second];
+        fixtures.push_back(std::move(fixture));
+        ids.push_back(id);
+    }
     backtest::EloSettings settings;
     settings.k = {20.0, 20.0, 20.0, 20.0};
     for (const auto& league : record.leagues) {
+        const auto found = by_league.find(league);
+        if (found == by_league.end()) continue;
+        const auto& [fixtures, ids] = found->second;
         std::vector<backtest::EloResult> results;
         for (const auto& r : record.results.at(league))
             results.push_back({r, backtest::EloMatchClass::friendly});
-        std::vector<backtest::EloFixture> fixtures;
-        std::vector<std::uint64_t> ids;
-        for (const auto& m : matches) {
-            if (m.empty()) continue;
-            const auto* setup = std::get_if<core::MatchSetup>(&m.front().body);
-            if (!setup) continue;
-            const int day = day_of(setup->scheduled_kickoff_us);
-            const auto it = league_of.find({day, setup->home_name, setup->away_name});
-            if (it == league_of.end() || it->second != league) continue;
-            fixtures.push_back({day, setup->home_name, setup->away_name, setup->neutral_venue});
-            ids.push_back(m.front().header.match_id);
-            facts[ids.back()].competition = league;
-        }
-        if (fixtures.empty()) continue;
         const auto reference =
             backtest::elo_reference(results, minutes[league], fixtures, settings);
         for (std::size_t i = 0; i < fixtures.size(); ++i)
