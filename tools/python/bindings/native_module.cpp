@@ -1,8 +1,8 @@
 // liveprob._native: the engine for Python (pybind11). Thin on purpose: plain values in, dicts of
-// plain values and NumPy arrays out; the Python package (tools/python/liveprob/) gives them
-// names, docstrings and types. Every call runs the same engine code as the program and the
-// service: a position priced here equals `liveprob calc`, a replay equals `liveprob backtest`.
-#include <pybind11/numpy.h>
+// plain values and tables out; the Python package (tools/python/liveprob/) gives them names,
+// docstrings and types, and turns each table into a NumPy array when NumPy is installed. Every call
+// runs the same engine code as the program and the service: a position priced here equals `liveprob
+// calc`, a replay equals `liveprob backtest`.
 #include <pybind11/pybind11.h>
 #include <pybind11/stl.h>
 
@@ -24,6 +24,57 @@ namespace py = pybind11;
 using namespace liveprob;
 
 namespace {
+
+// A dense row-major table of numbers that Python reads through the buffer protocol: NumPy wraps
+// it without a copy (numpy.asarray), and without NumPy a memoryview gives its shape, t[i, j] and
+// tolist(). NumPy's own array type would make NumPy a hard requirement at run time, and a plain
+// virtual environment has no way to get it offline.
+template <class T>
+class Table {
+public:
+    explicit Table(std::vector<py::ssize_t> shape) : shape_(std::move(shape)) {
+        std::size_t n = 1;
+        for (const py::ssize_t extent : shape_) n *= static_cast<std::size_t>(extent);
+        values_.assign(n, T{});
+    }
+
+    template <class... Index>
+    T& at(Index... index) {
+        static_assert(sizeof...(Index) > 0);
+        const py::ssize_t indices[] = {static_cast<py::ssize_t>(index)...};
+        std::size_t flat = 0;
+        for (std::size_t k = 0; k < sizeof...(Index); ++k)
+            flat =
+                flat * static_cast<std::size_t>(shape_[k]) + static_cast<std::size_t>(indices[k]);
+        return values_[flat];
+    }
+
+    py::buffer_info buffer() {
+        std::vector<py::ssize_t> strides(shape_.size());
+        py::ssize_t stride = sizeof(T);
+        for (std::size_t k = shape_.size(); k-- > 0;) {
+            strides[k] = stride;
+            stride *= shape_[k];
+        }
+        return py::buffer_info(values_.data(), sizeof(T), py::format_descriptor<T>::format(),
+                               static_cast<py::ssize_t>(shape_.size()), shape_, strides,
+                               /*readonly=*/true);
+    }
+
+private:
+    std::vector<py::ssize_t> shape_;
+    std::vector<T> values_;
+};
+
+using Reals = Table<double>;
+using Counts = Table<std::uint64_t>;
+using Goals = Table<std::int32_t>;
+
+template <class T>
+void register_table(py::module_& m, const char* name) {
+    py::class_<Table<T>>(m, name, py::buffer_protocol(), "a read-only table of numbers")
+        .def_buffer(&Table<T>::buffer);
+}
 
 // The model's parameters: a parameter file's, or the built-in defaults, or with `plain_poisson`
 // every state effect off and no strength updating (independent Poisson goals to come); then an
@@ -75,17 +126,15 @@ py::dict outputs_dict(const core::Outputs& o) {
     d["next_goal_home"] = o.next_goal_home;
     d["next_goal_away"] = o.next_goal_away;
     d["next_goal_none"] = o.next_goal_none;
-    py::array_t<double> over(static_cast<py::ssize_t>(o.p_over.size()));
-    for (std::size_t i = 0; i < o.p_over.size(); ++i)
-        over.mutable_at(static_cast<py::ssize_t>(i)) = o.p_over[i];
-    d["over"] = over;
+    Reals over({static_cast<py::ssize_t>(o.p_over.size())});
+    for (std::size_t i = 0; i < o.p_over.size(); ++i) over.at(i) = o.p_over[i];
+    d["over"] = std::move(over);
     d["both_score"] = o.p_both_score;
-    py::array_t<double> grid({core::kGrid, core::kGrid});
+    Reals grid({core::kGrid, core::kGrid});
     for (int i = 0; i < core::kGrid; ++i)
         for (int j = 0; j < core::kGrid; ++j)
-            grid.mutable_at(i, j) =
-                o.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)];
-    d["grid"] = grid;
+            grid.at(i, j) = o.goals_added[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)];
+    d["grid"] = std::move(grid);
     d["tail_mass"] = o.tail_mass;
     d["events_applied"] = o.events_applied;
     return d;
@@ -227,19 +276,17 @@ py::dict replay(const std::vector<std::string>& paths, unsigned threads,
     const auto n = static_cast<py::ssize_t>(replays.size());
     constexpr int kF = backtest::kForecasters;
     constexpr int kB = scoring::kBuckets;
-    py::array_t<std::uint64_t> match_id(n);
-    py::array_t<std::int32_t> home_goals(n), away_goals(n);
-    py::array_t<std::uint64_t> n_messages(n), rejected(n);
+    Counts match_id({n}), n_messages({n}), rejected({n});
+    Goals home_goals({n}), away_goals({n});
     std::vector<std::string> fate, result;
-    py::array_t<double> forecasts({n, static_cast<py::ssize_t>(kB), static_cast<py::ssize_t>(kF),
-                                   static_cast<py::ssize_t>(3)});
+    Reals forecasts({n, kB, kF, 3});
     for (py::ssize_t m = 0; m < n; ++m) {
         const auto& r = replays[static_cast<std::size_t>(m)];
-        match_id.mutable_at(m) = r.match_id;
-        home_goals.mutable_at(m) = r.regulation_goals[0];
-        away_goals.mutable_at(m) = r.regulation_goals[1];
-        n_messages.mutable_at(m) = r.messages;
-        rejected.mutable_at(m) = r.rejected;
+        match_id.at(m) = r.match_id;
+        home_goals.at(m) = r.regulation_goals[0];
+        away_goals.at(m) = r.regulation_goals[1];
+        n_messages.at(m) = r.messages;
+        rejected.at(m) = r.rejected;
         static const char* const fates[] = {"scored", "abandoned", "unfinished", "unusable"};
         fate.emplace_back(fates[static_cast<int>(r.fate)]);
         result.emplace_back(r.fate == backtest::ReplayFate::scored ? scoring::outcome_name(r.result)
@@ -249,45 +296,45 @@ py::dict replay(const std::vector<std::string>& paths, unsigned threads,
                 const auto& fc =
                     r.forecasts[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
                 for (int o = 0; o < 3; ++o)
-                    forecasts.mutable_at(m, b, f, o) =
+                    forecasts.at(m, b, f, o) =
                         fc ? (*fc)[static_cast<std::size_t>(o)] : std::nan("");
             }
     }
-    py::array_t<std::int32_t> bucket_minute(kB);
+    Goals bucket_minute({kB});
     std::vector<std::string> bucket_label, forecaster;
-    py::array_t<std::uint64_t> count({kB, kF});
-    py::array_t<double> brier({kB, kF}), log_loss({kB, kF}), rps({kB, kF});
+    Counts count({kB, kF});
+    Reals brier({kB, kF}), log_loss({kB, kF}), rps({kB, kF});
     for (int b = 0; b < kB; ++b) {
-        bucket_minute.mutable_at(b) = scoring::kBucketMinutes[static_cast<std::size_t>(b)];
+        bucket_minute.at(b) = scoring::kBucketMinutes[static_cast<std::size_t>(b)];
         bucket_label.emplace_back(scoring::bucket_label(b));
         for (int f = 0; f < kF; ++f) {
             const auto& acc =
                 summed.scores[static_cast<std::size_t>(b)][static_cast<std::size_t>(f)];
-            count.mutable_at(b, f) = acc.count();
-            brier.mutable_at(b, f) = acc.mean_brier();
-            log_loss.mutable_at(b, f) = acc.mean_log_loss();
-            rps.mutable_at(b, f) = acc.mean_rps();
+            count.at(b, f) = acc.count();
+            brier.at(b, f) = acc.mean_brier();
+            log_loss.at(b, f) = acc.mean_log_loss();
+            rps.at(b, f) = acc.mean_rps();
         }
     }
     for (int f = 0; f < kF; ++f)
         forecaster.emplace_back(backtest::forecaster_name(static_cast<backtest::Forecaster>(f)));
 
     py::dict d;
-    d["match_id"] = match_id;
-    d["fate"] = fate;
-    d["result"] = result;
-    d["home_goals"] = home_goals;
-    d["away_goals"] = away_goals;
-    d["messages"] = n_messages;
-    d["rejected"] = rejected;
-    d["forecasts"] = forecasts;
-    d["bucket_minute"] = bucket_minute;
-    d["bucket_label"] = bucket_label;
-    d["forecaster"] = forecaster;
-    d["count"] = count;
-    d["brier"] = brier;
-    d["log_loss"] = log_loss;
-    d["rps"] = rps;
+    d["match_id"] = std::move(match_id);
+    d["fate"] = std::move(fate);
+    d["result"] = std::move(result);
+    d["home_goals"] = std::move(home_goals);
+    d["away_goals"] = std::move(away_goals);
+    d["messages"] = std::move(n_messages);
+    d["rejected"] = std::move(rejected);
+    d["forecasts"] = std::move(forecasts);
+    d["bucket_minute"] = std::move(bucket_minute);
+    d["bucket_label"] = std::move(bucket_label);
+    d["forecaster"] = std::move(forecaster);
+    d["count"] = std::move(count);
+    d["brier"] = std::move(brier);
+    d["log_loss"] = std::move(log_loss);
+    d["rps"] = std::move(rps);
     d["bad_records"] = bad_records;
     return d;
 }
@@ -296,6 +343,9 @@ py::dict replay(const std::vector<std::string>& paths, unsigned threads,
 
 PYBIND11_MODULE(_native, m) {
     m.doc() = "liveprob's engine, compiled (use the liveprob package, not this module)";
+    register_table<double>(m, "Reals");
+    register_table<std::uint64_t>(m, "Counts");
+    register_table<std::int32_t>(m, "Goals");
     m.def("price", &price, py::arg("home_goals"), py::arg("away_goals"), py::arg("period"),
           py::arg("clock_ms"), py::arg("score"), py::arg("reds"), py::arg("stoppage"),
           py::arg("extra_time"), py::arg("shootout"), py::arg("params_file"), py::arg("kappa"),

@@ -6,7 +6,8 @@ follow a live service::
     import liveprob
     p = liveprob.price(prior=(1.45, 1.05), minute=0, score=(0, 0))
     p.home, p.draw, p.away          # full-time result probabilities
-    p.grid                          # NumPy array: P(home adds i, away adds j goals)
+    p.grid                          # P(home adds i, away adds j goals): a NumPy array
+                                    # (a memoryview where NumPy is not installed)
 
     m = liveprob.Match(prior=(1.45, 1.05))
     m.event("period_start", minute=0)
@@ -24,7 +25,7 @@ from typing import Any
 from ._version import __version__
 
 # Names load their module on first use (PEP 562), so `python3 -m liveprob.subscribe` needs
-# neither NumPy nor the compiled engine.
+# no compiled engine. NumPy is optional everywhere (liveprob/_tables.py).
 _WHERE = {
     "PERIODS": "pricing", "Match": "pricing", "Prices": "pricing", "Verdict": "pricing",
     "clock_of": "pricing", "price": "pricing", "ReplayResult": "replay", "replay": "replay",

@@ -4,6 +4,11 @@ from typing import Any, Dict, List, Optional, Tuple
 
 GRID: int
 
+# Read-only tables of numbers exported through the buffer protocol (numpy.asarray or memoryview).
+class Reals: ...
+class Counts: ...
+class Goals: ...
+
 def price(home_goals: float, away_goals: float, period: int, clock_ms: int,
           score: Tuple[int, int], reds: Tuple[int, int], stoppage: Optional[int],
           extra_time: bool, shootout: bool, params_file: Optional[str],

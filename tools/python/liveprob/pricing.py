@@ -6,6 +6,7 @@ from dataclasses import dataclass
 from typing import Any, Dict, NamedTuple, Optional, Tuple, Union
 
 from . import _native
+from ._tables import as_array
 
 #: Period names by the engine's number (0 = pre_match ... 6 = finished).
 PERIODS = ("pre_match", "first_half", "second_half", "extra_first", "extra_second", "shootout",
@@ -20,8 +21,10 @@ class Prices:
 
     ``home``, ``draw``, ``away``: probabilities of the full-time (regulation) result; they sum
     to 1. ``grid[i, j]``: probability that the home side adds ``i`` and the away side ``j`` goals
-    from now to full time (a 16 x 16 NumPy array; ``tail_mass`` is what lies beyond it), so the
-    final score is ``(score[0] + i, score[1] + j)``. ``over[k]``: P(total goals > k + 0.5).
+    from now to full time (a 16 x 16 table: a NumPy array, or without NumPy a read-only
+    memoryview with ``shape``, ``grid[i, j]`` and ``tolist()``; ``tail_mass`` is what lies beyond
+    it), so the final score is ``(score[0] + i, score[1] + j)``. ``over[k]``: P(total goals >
+    k + 0.5), a table of 6 likewise.
     ``advance_home`` / ``advance_away``: to go through, where the format needs a winner
     (``has_advance``), else 0.
     """
@@ -42,9 +45,9 @@ class Prices:
     next_goal_home: float
     next_goal_away: float
     next_goal_none: float
-    over: Any  # numpy.ndarray, shape (6,)
+    over: Any  # numpy.ndarray (or memoryview without NumPy), shape (6,)
     both_score: float
-    grid: Any  # numpy.ndarray, shape (16, 16)
+    grid: Any  # numpy.ndarray (or memoryview without NumPy), shape (16, 16)
     tail_mass: float
     events_applied: int
 
@@ -55,6 +58,8 @@ class Prices:
         fields["minute"] = fields.pop("clock_ms") / 60000.0
         fields["score"] = tuple(fields["score"])
         fields["reds"] = tuple(fields["reds"])
+        fields["over"] = as_array(fields["over"])
+        fields["grid"] = as_array(fields["grid"])
         return cls(**fields)
 
     def final_score(self, home: int, away: int) -> float:

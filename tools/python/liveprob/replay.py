@@ -5,6 +5,7 @@ import os
 from typing import Any, Dict, Iterable, Optional, Union
 
 from . import _native
+from ._tables import as_array, column, flat
 
 PathLike = Union[str, "os.PathLike[str]"]
 
@@ -25,51 +26,53 @@ def _frame(columns: Dict[str, Any], frame: Optional[bool]) -> Any:
 class ReplayResult:
     """What a replay found.
 
-    ``forecasts``: NumPy array (matches, buckets, forecasters, 3) of home/draw/away forecasts at
-    each bucket minute (NaN where the match never reached it). ``bucket_minute``,
-    ``bucket_label``, ``forecaster``: the axes. ``per_match()`` and ``per_bucket()``: tables
-    (a pandas DataFrame when pandas is installed, else a dict of arrays).
+    ``forecasts``: table (matches, buckets, forecasters, 3) of home/draw/away forecasts at
+    each bucket minute (NaN where the match never reached it): a NumPy array, or a read-only
+    memoryview where NumPy is not installed. ``bucket_minute``, ``bucket_label``,
+    ``forecaster``: the axes. ``per_match()`` and ``per_bucket()``: tables (a pandas DataFrame
+    when pandas is installed, else a dict of NumPy arrays, or of lists without NumPy).
     """
 
     def __init__(self, native: Dict[str, Any]) -> None:
         self._d = native
-        self.forecasts = native["forecasts"]
-        self.bucket_minute = native["bucket_minute"]
+        self.forecasts = as_array(native["forecasts"])
+        self.bucket_minute = column(native["bucket_minute"])
         self.bucket_label = list(native["bucket_label"])
         self.forecaster = list(native["forecaster"])
         #: frames or lines of the streams that were refused (counted, skipped)
         self.bad_records = int(native["bad_records"])
 
     def __len__(self) -> int:
-        return len(self._d["match_id"])
+        return len(memoryview(self._d["match_id"]))
 
     def per_match(self, frame: Optional[bool] = None) -> Any:
         """One row per match: id, fate (scored/abandoned/unfinished/unusable), regulation
         result and goals, messages, rejected; plus the model's kick-off forecast."""
-        import numpy
         d = self._d
+        kickoff = [row[0][0] for row in self.forecasts.tolist()]  # bucket 0, forecaster 0
         columns = {
-            "match_id": d["match_id"], "fate": numpy.array(d["fate"]),
-            "result": numpy.array(d["result"]), "home_goals": d["home_goals"],
-            "away_goals": d["away_goals"], "messages": d["messages"],
-            "rejected": d["rejected"],
-            "kickoff_home": self.forecasts[:, 0, 0, 0], "kickoff_draw": self.forecasts[:, 0, 0, 1],
-            "kickoff_away": self.forecasts[:, 0, 0, 2],
+            "match_id": column(d["match_id"]), "fate": column(d["fate"]),
+            "result": column(d["result"]), "home_goals": column(d["home_goals"]),
+            "away_goals": column(d["away_goals"]), "messages": column(d["messages"]),
+            "rejected": column(d["rejected"]),
+            "kickoff_home": column([f[0] for f in kickoff]),
+            "kickoff_draw": column([f[1] for f in kickoff]),
+            "kickoff_away": column([f[2] for f in kickoff]),
         }
         return _frame(columns, frame)
 
     def per_bucket(self, frame: Optional[bool] = None) -> Any:
         """One row per bucket and forecaster: minute, label, forecaster, n and the mean Brier
         score, log loss and ranked probability score of the scored matches."""
-        import numpy
         d = self._d
-        buckets, forecasters = d["brier"].shape
+        buckets, forecasters = memoryview(d["brier"]).shape
         columns = {
-            "minute": numpy.repeat(self.bucket_minute, forecasters),
-            "label": numpy.repeat(numpy.array(self.bucket_label), forecasters),
-            "forecaster": numpy.tile(numpy.array(self.forecaster), buckets),
-            "n": d["count"].reshape(-1), "brier": d["brier"].reshape(-1),
-            "log_loss": d["log_loss"].reshape(-1), "rps": d["rps"].reshape(-1),
+            "minute": column([m for m in self.bucket_minute for _ in range(forecasters)]),
+            "label": column([b for b in self.bucket_label for _ in range(forecasters)]),
+            "forecaster": column(self.forecaster * buckets),
+            "n": column(flat(memoryview(d["count"]))), "brier": column(flat(memoryview(d["brier"]))),
+            "log_loss": column(flat(memoryview(d["log_loss"]))),
+            "rps": column(flat(memoryview(d["rps"]))),
         }
         return _frame(columns, frame)
 
