@@ -554,3 +554,79 @@ TEST_CASE(
     CHECK(refused_start(dir, "log", {"--log-level", "loud"})
               .find("must be one of trace, debug, info, warn, error, off") != std::string::npos);
 }
+
+namespace {
+// The match ids of every record in a journal folder's segments.
+std::map<std::uint64_t, int> records_per_match(const std::filesystem::path& folder) {
+    std::map<std::uint64_t, int> ids;
+    for (const auto& segment : protocol::list_journal_segments(folder)) {
+        const auto bytes = protocol::read_whole_file_bytes(segment);
+        if (bytes.empty()) continue;
+        protocol::JournalRecordReader reader(bytes);
+        while (const auto record = reader.next()) {
+            const auto decoded = protocol::decode_feed_message(record->payload);
+            REQUIRE(decoded.message);
+            ++ids[decoded.message->header.match_id];
+        }
+    }
+    return ids;
+}
+}  // namespace
+
+TEST_CASE(
+    "a retired match is answered from the journal folder, compacted out of the segments, and "
+    "answered the same after a restart",
+    "[integration][serve][sockets]") {
+    const auto dir = scratch_dir("serve-retired-answer");
+    const auto done = invented_match(303);
+    auto playing = invented_match(304);
+    playing.resize(7);  // kick-off, four clock syncs and the first goal: still in play
+    std::vector<InboundMessage> both = done;
+    both.insert(both.end(), playing.begin(), playing.end());
+    write_frames(dir / "feed.lpf", both);
+    const auto done_final = engine_outputs(done).back();
+    const auto playing_now = engine_outputs(playing).back();
+    const std::vector<std::string> flags = {"--journal",
+                                            (dir / "journal").string(),
+                                            "--retention-s",
+                                            "1",
+                                            "--journal-compact-s",
+                                            "1",
+                                            "--tick-ms",
+                                            "100",
+                                            "--journal-segment-kib",
+                                            "4"};
+    const auto check_answers = [&](const ServeProcess& serve) {
+        const auto retired = snapshot(serve, 303);
+        REQUIRE(retired.updates.size() == 1);
+        CHECK(retired.error.empty());
+        CHECK(retired.updates[0].outputs.status == core::MatchStatus::finished);
+        CHECK(same_outputs(retired.updates[0].outputs, done_final.outputs));
+        CHECK(retired.updates[0].meta.input_seq == done_final.input_seq);
+        const auto live = snapshot(serve, 304);
+        REQUIRE(live.updates.size() == 1);
+        CHECK(live.updates[0].meta.input_seq == playing_now.input_seq);
+        CHECK(live.updates[0].outputs.home_goals == playing_now.outputs.home_goals);
+    };
+    {
+        ServeProcess serve(dir, "first", flags);
+        send_file(dir, serve.ingest(), dir / "feed.lpf");
+        const auto deadline = std::chrono::steady_clock::now() + 30s;
+        while (serve.log().find("journal compacted") == std::string::npos) {
+            REQUIRE(std::chrono::steady_clock::now() < deadline);
+            std::this_thread::sleep_for(50ms);
+        }
+        check_answers(serve);
+        serve.process().signal(SIGTERM);
+        REQUIRE(serve.process().wait(20s) == std::optional<int>(0));
+    }
+    // The finished match's records are gone from the segments; the live one's all stay.
+    const auto held = records_per_match(dir / "journal");
+    CHECK(held.count(303) == 0);
+    CHECK(held.at(304) == static_cast<int>(playing.size()));
+    CHECK(std::filesystem::exists(dir / "journal" / "final-states.lpj"));
+
+    ServeProcess restarted(dir, "second", flags);
+    check_answers(restarted);
+    CHECK(snapshot(restarted, 305).error.find("unknown match 305") != std::string::npos);
+}

@@ -13,6 +13,7 @@
 #include "liveprob/files/journal.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/ingest_ack_codec.hpp"
+#include "liveprob/protocol/journal_format.hpp"
 #include "liveprob/protocol/sharding.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/service/journal_record_log.hpp"
@@ -140,8 +141,9 @@ CoreSettings settings_with(std::uint32_t retention_s = 600, std::uint32_t waitin
 }
 
 struct Harness {
-    explicit Harness(CoreSettings settings = settings_with(), RecordLog* log = nullptr)
-        : core(core::ModelParams{}, std::move(settings), clock, recorder, log) {}
+    explicit Harness(CoreSettings settings = settings_with(), RecordLog* log = nullptr,
+                     FinalStateStore* final_states = nullptr)
+        : core(core::ModelParams{}, std::move(settings), clock, recorder, log, final_states) {}
     Intake send(const InboundMessage& m, std::optional<Delivery> delivery = {}) {
         return core.ingest(bytes(m), delivery);
     }
@@ -520,4 +522,213 @@ TEST_CASE(
     core.tick();
     REQUIRE(actions.updates.size() == 2);
     for (const auto& u : actions.updates) CHECK_FALSE(u.meta.journal_failing);
+}
+
+namespace {
+
+// serve's journal folder as the core sees it: the record log and the final-state store.
+struct JournalFolder {
+    explicit JournalFolder(const std::filesystem::path& path,
+                           std::uint64_t segment_bytes = files::kDefaultJournalSegmentBytes)
+        : journal(path, files::JournalSync::none, milliseconds(200), segment_bytes), log(journal),
+          file(path, files::JournalSync::none), final_states(file) {}
+    // A core on this folder, restored from it as serve restores at start.
+    void restore_into(ServiceCore& core) {
+        journal.replay([&](std::span<const std::uint8_t> r) { core.restore(r); });
+        core.finish_restore();
+    }
+    files::Journal journal;
+    JournalRecordLog log;
+    files::FinalStateFile file;
+    JournalFinalStates final_states;
+};
+
+protocol::SnapshotReplyContents snapshot_of(ServiceCore& core, std::uint64_t id) {
+    const auto parts = core.answer_snapshot(protocol::encode_snapshot_request(id));
+    REQUIRE(parts.size() == 1);
+    auto reply = protocol::decode_snapshot_reply(parts[0]);
+    REQUIRE(reply.ok());
+    return *reply.value;
+}
+
+// The figures a client reads from an update, compared between two answers for one match.
+void check_same_state(const protocol::DecodedUpdate& a, const protocol::DecodedUpdate& b) {
+    CHECK(a.meta.match_id == b.meta.match_id);
+    CHECK(a.meta.input_seq == b.meta.input_seq);
+    CHECK(a.outputs.status == b.outputs.status);
+    CHECK(a.outputs.clock.period == b.outputs.clock.period);
+    CHECK(a.outputs.clock.clock_ms == b.outputs.clock.clock_ms);
+    CHECK(a.outputs.home_goals == b.outputs.home_goals);
+    CHECK(a.outputs.away_goals == b.outputs.away_goals);
+    CHECK(a.outputs.events_applied == b.outputs.events_applied);
+    CHECK(a.outputs.p_home == b.outputs.p_home);
+    CHECK(a.outputs.p_draw == b.outputs.p_draw);
+    CHECK(a.outputs.p_away == b.outputs.p_away);
+    CHECK(a.outputs.expected_home_goals == b.outputs.expected_home_goals);
+}
+
+// A whole short match: setup, kick-off, a home goal, half-time, the second half, the whistle.
+std::vector<InboundMessage> finished_match(test::FeedBuilder& feed) {
+    return {setup_of(feed),
+            feed.start(Period::first_half, 0),
+            feed.goal(Side::home, Period::first_half, 20),
+            feed.end(Period::first_half, 46),
+            feed.start(Period::second_half, 45),
+            feed.whistle(Period::second_half, 94)};
+}
+
+std::uint64_t segment_bytes_in(const std::filesystem::path& folder) {
+    std::uint64_t total = 0;
+    for (const auto& segment : protocol::list_journal_segments(folder))
+        total += std::filesystem::file_size(segment);
+    return total;
+}
+
+}  // namespace
+
+TEST_CASE(
+    "service core: a retired match is answered with its final update from the final-state "
+    "store, refuses a resent setup, and stays answered after a restart",
+    "[unit][service_core]") {
+    const auto dir = test::scratch_dir("core-final-states") / "journal";
+    protocol::DecodedUpdate final_update;
+    {
+        JournalFolder folder(dir);
+        Harness h(settings_with(300), &folder.log, &folder.final_states);
+        folder.restore_into(h.core);
+        test::FeedBuilder done(70), playing(71);
+        for (const auto& m : finished_match(done)) h.core.ingest(bytes(m));
+        h.core.ingest(bytes(setup_of(playing)));
+        h.core.ingest(bytes(playing.start(Period::first_half, 0)));
+        final_update = h.recorder.updates[h.recorder.updates.size() - 3];
+        REQUIRE(final_update.meta.match_id == 70);
+        REQUIRE(final_update.outputs.status == core::MatchStatus::finished);
+
+        h.clock.advance(seconds(300));
+        h.core.tick();
+        CHECK(h.core.registry().find(70) == nullptr);  // out of memory...
+        const auto answer = snapshot_of(h.core, 70);   // ...and still answered
+        CHECK(answer.error.empty());
+        REQUIRE(answer.updates.size() == 1);
+        check_same_state(answer.updates[0], final_update);
+        CHECK(answer.updates[0].meta.output_seq == final_update.meta.output_seq);
+        CHECK(answer.updates[0].meta.publish_time_us == h.clock.now().wall_us);
+        CHECK(snapshot_of(h.core, 0).updates.size() == 1);  // "every live match": 71 alone
+        CHECK(snapshot_of(h.core, 72).error == "unknown match 72");
+
+        // A feed resending the finished match's setup does not bring it back as a new match.
+        test::FeedBuilder resent(70);
+        CHECK(h.core.ingest(bytes(setup_of(resent))) == Intake::refused);
+        CHECK(h.core.registry().find(70) == nullptr);
+        const auto& c = h.counters();
+        CHECK(c.at("matches.retired") == 1);
+        CHECK(c.at("final_states.kept") == 1);
+        CHECK(c.at("snapshot.final_states") == 1);
+        CHECK(c.at("ingest.after_retirement") == 1);
+        CHECK(c.at("journal.frames") == 8);  // the refused setup never reached the journal
+    }
+    // Restarted on the same folder: the retired match is not rebuilt from its records (they
+    // are refused as after its retirement), and its final update is answered as before.
+    JournalFolder folder(dir);
+    Harness h(settings_with(300), &folder.log, &folder.final_states);
+    folder.restore_into(h.core);
+    CHECK(h.core.registry().find(70) == nullptr);
+    CHECK(h.core.registry().find(71) != nullptr);
+    CHECK(h.counters().at("ingest.after_retirement") == 6);
+    const auto answer = snapshot_of(h.core, 70);
+    REQUIRE(answer.updates.size() == 1);
+    check_same_state(answer.updates[0], final_update);
+}
+
+TEST_CASE(
+    "service core: compaction drops retired matches' records, the journal shrinks, and a "
+    "restart from it equals a restart from the uncompacted journal",
+    "[unit][service_core]") {
+    const auto scratch = test::scratch_dir("core-compaction");
+    const auto dir = scratch / "journal";
+    const auto uncompacted = scratch / "uncompacted";
+    constexpr std::uint64_t kSegmentBytes = 1024;  // a few records each: many closed segments
+    CoreSettings settings = settings_with(300);
+    settings.compact_every = seconds(600);
+    const std::vector<std::uint64_t> finished_ids = {80, 81, 82};
+    const std::vector<std::uint64_t> live_ids = {83, 84, 85};
+    std::uint64_t bytes_before = 0;
+    {
+        JournalFolder folder(dir, kSegmentBytes);
+        Harness h(settings, &folder.log, &folder.final_states);
+        folder.restore_into(h.core);
+        // Finished and live matches interleaved, so most segments hold both.
+        std::vector<test::FeedBuilder> live, done;
+        for (const auto id : live_ids) live.emplace_back(id);
+        for (const auto id : finished_ids) done.emplace_back(id);
+        for (auto& feed : live) {
+            h.core.ingest(bytes(setup_of(feed)));
+            h.core.ingest(bytes(feed.start(Period::first_half, 0)));
+        }
+        for (std::size_t i = 0; i < done.size(); ++i) {
+            for (const auto& m : finished_match(done[i])) h.core.ingest(bytes(m));
+            h.core.ingest(bytes(live[i].goal(i % 2 == 0 ? Side::home : Side::away,
+                                             Period::first_half, 10.0 + double(i))));
+        }
+        h.clock.advance(seconds(300));
+        h.core.tick();  // retires the finished three; compaction is not due yet
+        CHECK(h.counters().at("matches.retired") == 3);
+        CHECK(h.counters().at("journal.compactions") == 0);
+        // After their retirement the live matches go on.
+        h.core.ingest(bytes(live[0].goal(Side::away, Period::first_half, 30)));
+        std::filesystem::copy(dir, uncompacted, std::filesystem::copy_options::recursive);
+        bytes_before = segment_bytes_in(dir);
+
+        h.clock.advance(seconds(300));
+        h.core.tick();
+        const auto& c = h.counters();
+        CHECK(c.at("journal.compactions") == 1);
+        CHECK(c.at("journal.compacted_records") == 3 * 6);  // every record of the three
+        CHECK(c.at("journal.compaction_failed") == 0);
+        h.core.ingest(bytes(live[1].goal(Side::home, Period::first_half, 31)));  // appends on
+        h.core.ingest(bytes(live[1].goal(Side::home, Period::first_half, 32)));
+        h.clock.advance(seconds(600));
+        h.core.tick();  // nothing retired since: no compaction for nothing
+        CHECK(h.counters().at("journal.compactions") == 1);
+    }
+    const std::uint64_t bytes_after = segment_bytes_in(dir);
+    CHECK(bytes_after < bytes_before);
+    // The second run's goals, added to the uncompacted copy too, so both hold the same input.
+    {
+        JournalFolder copy(uncompacted, kSegmentBytes);
+        copy.journal.replay([](std::span<const std::uint8_t>) {});
+        test::FeedBuilder again(84, 4);  // setup, kick-off and one goal came before
+        copy.journal.append(bytes(again.goal(Side::home, Period::first_half, 31)));
+        copy.journal.append(bytes(again.goal(Side::home, Period::first_half, 32)));
+    }
+
+    JournalFolder compacted_folder(dir, kSegmentBytes), full_folder(uncompacted, kSegmentBytes);
+    Harness compacted(settings, &compacted_folder.log, &compacted_folder.final_states);
+    Harness full(settings, &full_folder.log, &full_folder.final_states);
+    compacted_folder.restore_into(compacted.core);
+    full_folder.restore_into(full.core);
+    CHECK(compacted.core.registry().matches().size() == live_ids.size());
+    CHECK(full.core.registry().matches().size() == live_ids.size());
+    for (const auto id : live_ids) {
+        INFO("live match " << id);
+        const auto a = snapshot_of(compacted.core, id);
+        const auto b = snapshot_of(full.core, id);
+        REQUIRE(a.updates.size() == 1);
+        REQUIRE(b.updates.size() == 1);
+        check_same_state(a.updates[0], b.updates[0]);
+    }
+    CHECK(snapshot_of(compacted.core, 84).updates[0].outputs.home_goals == 2);
+    for (const auto id : finished_ids) {
+        INFO("retired match " << id);
+        CHECK(compacted.core.registry().find(id) == nullptr);
+        const auto a = snapshot_of(compacted.core, id);
+        const auto b = snapshot_of(full.core, id);
+        REQUIRE(a.updates.size() == 1);
+        REQUIRE(b.updates.size() == 1);
+        check_same_state(a.updates[0], b.updates[0]);
+        CHECK(a.updates[0].outputs.status == core::MatchStatus::finished);
+    }
+    // The uncompacted journal still held the retired matches' records: refused at replay.
+    CHECK(full.counters().at("ingest.after_retirement") == 3 * 6);
+    CHECK(compacted.counters().at("ingest.after_retirement") == 0);
 }

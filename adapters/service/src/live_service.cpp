@@ -7,9 +7,11 @@
 
 #include <chrono>
 #include <csignal>
+#include <filesystem>
 #include <optional>
 
 #include "liveprob/files/endpoints_file.hpp"
+#include "liveprob/files/final_state_file.hpp"
 #include "liveprob/files/journal.hpp"
 #include "liveprob/protocol/ingest_ack_codec.hpp"
 #include "liveprob/service/journal_record_log.hpp"
@@ -97,6 +99,8 @@ struct LiveService::Impl final : ServiceActions {
     std::optional<transport::ReactorSocket> snapshot;
     std::unique_ptr<files::Journal> journal;
     std::unique_ptr<JournalRecordLog> record_log;
+    std::unique_ptr<files::FinalStateFile> final_state_file;
+    std::unique_ptr<JournalFinalStates> final_states;
     HostClock clock;
     std::unique_ptr<ServiceCore> core;
     std::vector<zmq::message_t> request_frames;
@@ -134,9 +138,23 @@ LiveService::Impl::Impl(const ServiceConfig& cfg, const core::ModelParams& param
             std::chrono::milliseconds(config.journal_sync_interval_ms),
             std::uint64_t{config.journal_segment_kib} * 1024);
         record_log = std::make_unique<JournalRecordLog>(*journal);
+        // Retired matches' final updates, beside the segments (a device gets none: nothing
+        // to read back, so nothing retires into it).
+        if (std::filesystem::is_directory(config.journal_path)) {
+            final_state_file =
+                std::make_unique<files::FinalStateFile>(config.journal_path, config.journal_sync);
+            final_states = std::make_unique<JournalFinalStates>(*final_state_file);
+            if (final_state_file->damaged_records() > 0 || final_state_file->torn_bytes() > 0) {
+                spdlog::warn("{}: {} damaged record(s) skipped, a torn tail of {} bytes cut",
+                             final_state_file->path().string(), final_state_file->damaged_records(),
+                             final_state_file->torn_bytes());
+            }
+            spdlog::info("{}: final updates of {} retired matches",
+                         final_state_file->path().string(), final_state_file->matches());
+        }
     }
     core = std::make_unique<ServiceCore>(params, core_settings(config), clock, *this,
-                                         record_log.get());
+                                         record_log.get(), final_states.get());
     if (journal) {
         const files::JournalReplayReport report = journal->replay(
             [this](std::span<const std::uint8_t> record) { core->restore(record); });

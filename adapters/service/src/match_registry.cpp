@@ -110,11 +110,13 @@ void add_counters(core::MatchCounters& sum, const core::MatchCounters& c) {
 }
 }  // namespace
 
-RetireReport MatchRegistry::retire(std::chrono::steady_clock::time_point now) {
+RetireReport MatchRegistry::retire(std::chrono::steady_clock::time_point now,
+                                   const std::function<bool(LiveMatch&)>& before_forgetting) {
     RetireReport report;
     if (limits_.retention.count() > 0) {
         for (auto it = matches_.begin(); it != matches_.end();) {
-            if (it->second.ended_at && now - *it->second.ended_at >= limits_.retention) {
+            if (it->second.ended_at && now - *it->second.ended_at >= limits_.retention &&
+                (!before_forgetting || before_forgetting(it->second))) {
                 add_counters(retired_totals_, it->second.match.counters());
                 it = matches_.erase(it);
                 ++report.matches;

@@ -23,7 +23,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 25> kKeys = {{
+const std::array<ConfigKey, 26> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -77,6 +77,10 @@ const std::array<ConfigKey, 25> kKeys = {{
      &S::journal_sync_interval_ms, "fsync interval for `interval` (ms)", 1, kMaxMilliseconds},
     {"journal_segment_kib", "--journal-segment-kib", ConfigValue::whole, &S::journal_segment_kib,
      "a journal segment is closed and the next begun at this size (KiB)", 4, 4u << 20},
+    {"journal_compact_s", "--journal-compact-s", ConfigValue::whole, &S::journal_compact_s,
+     "this often, the journal's records of matches retired since are dropped (their final "
+     "updates stay in the folder's `final-states.lpj`) (s); 0: never",
+     0, 7u * 24 * 3600},
     {"publish_high_water_mark", "--publish-hwm", ConfigValue::whole, &S::publish_high_water_mark,
      "messages queued per subscriber before dropping", 1, kMaxHighWaterMark},
     {"ingest_high_water_mark", "--ingest-hwm", ConfigValue::whole, &S::ingest_high_water_mark,

@@ -23,6 +23,7 @@ CoreSettings core_settings(const ServiceConfig& config) {
     settings.limits.max_messages_per_match = config.match_message_cap;
     settings.feed_stale_after = std::chrono::seconds(config.feed_stale_s);
     settings.feed_dormant_after = std::chrono::seconds(config.feed_dormant_s);
+    settings.compact_every = std::chrono::seconds(config.journal_compact_s);
     const protocol::ShardSpec shard = protocol::parse_shard_spec(config.shard);
     if (shard.count > 1) {
         settings.owns = [shard](std::uint64_t id) { return protocol::owns(shard, id); };
@@ -31,9 +32,10 @@ CoreSettings core_settings(const ServiceConfig& config) {
 }
 
 ServiceCore::ServiceCore(core::ModelParams params, CoreSettings settings, ServiceClock& clock,
-                         ServiceActions& actions, RecordLog* log)
-    : clock_(clock), actions_(actions), log_(log), owns_(std::move(settings.owns)),
-      feed_stale_after_(settings.feed_stale_after),
+                         ServiceActions& actions, RecordLog* log, FinalStateStore* final_states)
+    : clock_(clock), actions_(actions), log_(log), final_states_(final_states),
+      owns_(std::move(settings.owns)), compact_every_(settings.compact_every),
+      last_compaction_(clock.now().steady), feed_stale_after_(settings.feed_stale_after),
       feed_dormant_after_(settings.feed_dormant_after),
       registry_(std::move(params), settings.limits) {}
 
@@ -83,6 +85,14 @@ Intake ServiceCore::handle(std::span<const std::uint8_t> bytes, bool from_log) {
     const std::uint64_t match_id = decoded.message->header.match_id;
     if (owns_ && !owns_(match_id)) {
         ++counters_.not_our_shard;
+        return Intake::refused;
+    }
+    // A match that has retired into the final-state store is over: a late resend of its setup
+    // must not bring it back as a new match. Refused before the log, so the log never holds a
+    // record of it written after its retirement.
+    if (final_states_ != nullptr && final_states_->holds(match_id)) {
+        ++counters_.after_retirement;
+        if (from_log) ++retired_uncompacted_;  // written before it retired: compaction drops it
         return Intake::refused;
     }
     // Written before it is applied: what the engine has seen, the log has. A message that
@@ -171,10 +181,89 @@ void ServiceCore::tick() {
         registry_.advance(m, started.steady);
         publish(m, true, started);
     }
-    // Every update handed to the publisher by now: finished matches past the retention go.
-    const RetireReport retired = registry_.retire(clock_.now().steady);
+    // Every update handed to the publisher by now: finished matches past the retention go,
+    // each one's final update kept first when there is a store for it.
+    const ServiceTime now = clock_.now();
+    const RetireReport retired = registry_.retire(
+        now.steady, [this, &now](LiveMatch& m) { return keep_final_state(m, now); });
     counters_.retired += retired.matches;
     counters_.waiting_expired += retired.waiting_expired;
+    if (final_states_ != nullptr) {
+        retired_uncompacted_ += retired.matches;
+        settle_final_states(now.steady);
+    }
+}
+
+bool ServiceCore::keep_final_state(LiveMatch& m, const ServiceTime& now) {
+    if (final_states_ == nullptr) return true;
+    m.match.price_into(outputs_);
+    protocol::UpdateMeta meta = meta_of(m, now.steady);
+    meta.publish_time_us = now.wall_us;
+    try {
+        final_states_->keep(m.match.match_id(), encoder_.encode(meta, outputs_));
+    } catch (const RecordLogError& e) {
+        // Kept in memory (and in the log) until a write succeeds: still answerable either way.
+        const std::uint64_t failed = ++counters_.final_state_write_failed;
+        if (worth_logging(failed))
+            spdlog::error("{}; match {} stays in memory ({} so far)", e.what(), m.match.match_id(),
+                          failed);
+        return false;
+    }
+    ++counters_.final_states_kept;
+    final_states_unsynced_ = true;
+    return true;
+}
+
+void ServiceCore::settle_final_states(std::chrono::steady_clock::time_point now) {
+    if (final_states_unsynced_) {
+        try {
+            final_states_->sync();
+            final_states_unsynced_ = false;
+        } catch (const RecordLogError& e) {
+            // Retried on the next tick; until then the log keeps every record (no compaction),
+            // so a restart rebuilds these matches from it.
+            const std::uint64_t failed = ++counters_.final_state_write_failed;
+            if (worth_logging(failed)) spdlog::error("{}; compaction waits", e.what());
+            return;
+        }
+    }
+    if (log_ == nullptr || compact_every_.count() == 0 || retired_uncompacted_ == 0 ||
+        now - last_compaction_ < compact_every_)
+        return;
+    last_compaction_ = now;
+    const auto started = clock_.now().steady;
+    LogCompaction done;
+    try {
+        // Only matches whose final update is durable in the store: what a restart needs of
+        // them is there, and the live and not yet retired matches keep every record.
+        done = log_->compact(
+            [this](std::uint64_t match_id) { return !final_states_->holds(match_id); });
+    } catch (const RecordLogError& e) {
+        ++counters_.journal_compaction_failed;
+        spdlog::error("journal compaction failed (tried again in {} s): {}", compact_every_.count(),
+                      e.what());
+        return;
+    }
+    retired_uncompacted_ = 0;
+    ++counters_.journal_compactions;
+    counters_.journal_compacted_records += done.records_dropped;
+    spdlog::info(
+        "journal compacted in {} ms: {} records of retired matches dropped, {} kept; "
+        "{} -> {} bytes",
+        std::chrono::duration_cast<std::chrono::milliseconds>(clock_.now().steady - started)
+            .count(),
+        done.records_dropped, done.records_kept, done.bytes_before, done.bytes_after);
+}
+
+bool ServiceCore::add_final_state(std::uint64_t match_id) {
+    if (final_states_ == nullptr) return false;
+    const auto bytes = final_states_->find(match_id);
+    if (!bytes) return false;
+    auto decoded = protocol::decode_update(*bytes);
+    if (!decoded.ok()) return false;
+    snapshot_reply_.updates.push_back(std::move(*decoded.value));
+    ++counters_.snapshot_final_states;
+    return true;
 }
 
 bool ServiceCore::feed_stale(const LiveMatch& m, std::chrono::steady_clock::time_point now) const {
@@ -233,7 +322,7 @@ std::vector<std::vector<std::uint8_t>> ServiceCore::answer_snapshot(
         }
     } else if (const LiveMatch* m = registry_.find(*wanted.value)) {
         add(*m);
-    } else {
+    } else if (!add_final_state(*wanted.value)) {
         snapshot_reply_.error = fmt::format("unknown match {}", *wanted.value);
     }
     for (auto& u : snapshot_reply_.updates) u.meta.publish_time_us = now.wall_us;
@@ -274,6 +363,14 @@ void ServiceCore::finish() {
             log_->sync(clock_.now().steady, true);
         } catch (const RecordLogError& e) {
             sync_failed(e);
+        }
+    }
+    if (final_states_ != nullptr && final_states_unsynced_) {
+        try {
+            final_states_->sync();
+            final_states_unsynced_ = false;
+        } catch (const RecordLogError& e) {
+            spdlog::error("{}", e.what());  // the log still holds those matches' records
         }
     }
     acks_.send(actions_, counters_);

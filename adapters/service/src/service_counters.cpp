@@ -32,6 +32,7 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("ingest.waiting_overflow", s.waiting_overflow);
     add("ingest.waiting_expired", s.waiting_expired);
     add("ingest.over_match_cap", s.over_cap);
+    add("ingest.after_retirement", s.after_retirement);
     add("engine.accepted", e.accepted);
     add("engine.late", e.late);
     add("engine.duplicate", e.duplicates);
@@ -47,12 +48,18 @@ void list_counters(const ServiceCounters& s, const core::MatchCounters& e, Count
     add("publish.ticks", s.ticks_published);
     add("snapshot.requests", s.snapshot_requests);
     add("snapshot.bad_requests", s.snapshot_bad_requests);
+    add("snapshot.final_states", s.snapshot_final_states);
     add("journal.frames", s.journal_frames);
     add("journal.replayed", s.journal_replayed);
     add("journal.torn_bytes", s.journal_torn_bytes);
     add("journal.damaged_records", s.journal_damaged_records);
     add("journal.damaged_bytes", s.journal_damaged_bytes);
     add("journal.write_failed", s.journal_write_failed);
+    add("journal.compactions", s.journal_compactions);
+    add("journal.compacted_records", s.journal_compacted_records);
+    add("journal.compaction_failed", s.journal_compaction_failed);
+    add("final_states.kept", s.final_states_kept);
+    add("final_states.write_failed", s.final_state_write_failed);
     add("ack.messages", s.acks_sent);
     add("ack.durable", s.acked_durable);
     add("ack.refused", s.acked_refused);

@@ -8,6 +8,7 @@
 #include <chrono>
 #include <cstdint>
 #include <deque>
+#include <functional>
 #include <memory>
 #include <optional>
 #include <string>
@@ -94,8 +95,10 @@ public:
 
     // Forgets finished matches past the retention and waiting messages past their TTL. The
     // service calls it after publishing, so every retired match's final update is out (and
-    // journaled: messages are written before they are applied).
-    RetireReport retire(std::chrono::steady_clock::time_point now);
+    // journaled: messages are written before they are applied). `before_forgetting`, when
+    // given, sees each match about to go; returning false keeps it (for the next call).
+    RetireReport retire(std::chrono::steady_clock::time_point now,
+                        const std::function<bool(LiveMatch&)>& before_forgetting = {});
 
     // Engine verdict totals over all matches (the counters topic), retired ones included.
     core::MatchCounters totals() const;

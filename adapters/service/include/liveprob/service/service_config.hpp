@@ -49,6 +49,9 @@ struct ServiceConfig {
     files::JournalSync journal_sync = files::JournalSync::interval;
     std::uint32_t journal_sync_interval_ms = 200;
     std::uint32_t journal_segment_kib = 64 * 1024;  // segments rotate at this size
+    // Retired matches' records are compacted out of the journal this often (their final
+    // updates are kept in the folder's final-states file); 0: never.
+    std::uint32_t journal_compact_s = 600;
 
     // Back-pressure: messages queued per subscriber before ZeroMQ drops for that subscriber,
     // and inbound messages queued before feeds block on the ingest socket.

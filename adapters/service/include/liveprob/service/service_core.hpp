@@ -15,8 +15,12 @@
 //  5. acknowledged, when the feed asked, once the log's sync policy is met.
 // Timers: tick() republishes every live match with its clock moved on (except those whose feed
 // has been silent past `feed_dormant_after`), then forgets finished matches past the retention
-// and waiting messages past their time to live; sync_due() syncs the
+// (each one's final update first written to the final-state store, when there is one) and
+// waiting messages past their time to live, then, every `compact_every`, compacts the log: the
+// records of matches the store holds are dropped; sync_due() syncs the
 // log on its interval and sends what that made durable; publish_counters().
+// A match the final-state store holds is over: a snapshot request for it is answered with its
+// final update, and a message for it is refused (`ingest.after_retirement`).
 //
 // One thread at a time: the core holds no lock.
 #pragma once
@@ -49,6 +53,9 @@ struct CoreSettings {
     // The match ids this process owns; messages of others are refused and counted
     // (`ingest.not_our_shard`). Empty: every id.
     std::function<bool(std::uint64_t match_id)> owns;
+    // How often the log is compacted once matches have retired into the final-state store
+    // (needs both a log and a store); zero: never.
+    std::chrono::seconds compact_every{600};
 };
 // The core's settings from serve's configuration (limits, `shard`).
 CoreSettings core_settings(const ServiceConfig& config);
@@ -69,9 +76,11 @@ struct Delivery {
 class ServiceCore {
 public:
     // `log` may be null: nothing is written before applying, and messages are durable once
-    // applied. The clock, the actions and the log must outlive the core.
+    // applied. `final_states` may be null: a retired match is then unknown to snapshots and
+    // the log is never compacted. The clock, the actions, the log and the store must outlive
+    // the core; the store must be open (its matches known) before the first restore().
     ServiceCore(core::ModelParams params, CoreSettings settings, ServiceClock& clock,
-                ServiceActions& actions, RecordLog* log);
+                ServiceActions& actions, RecordLog* log, FinalStateStore* final_states = nullptr);
 
     // Restart: a record read back from the log goes through the rules above, except that it
     // is not written again and nothing is published. Damaged records are the reader's business.
@@ -122,11 +131,22 @@ private:
     bool feed_stale(const LiveMatch& m, std::chrono::steady_clock::time_point now) const;
     // A failed sync: whether the written records are on disk is unknown, so promise nothing.
     void sync_failed(const RecordLogError& e);
+    // The final update of a match about to be retired, into the store; false: keep it.
+    bool keep_final_state(LiveMatch& m, const ServiceTime& now);
+    // After retiring: the store synced, then the log compacted when due.
+    void settle_final_states(std::chrono::steady_clock::time_point now);
+    // A retired match's final update added to the snapshot reply; false when none is kept.
+    bool add_final_state(std::uint64_t match_id);
 
     ServiceClock& clock_;
     ServiceActions& actions_;
     RecordLog* log_;
+    FinalStateStore* final_states_;
     std::function<bool(std::uint64_t)> owns_;
+    std::chrono::seconds compact_every_;
+    std::chrono::steady_clock::time_point last_compaction_;
+    std::uint64_t retired_uncompacted_ = 0;  // matches whose records the log may still hold
+    bool final_states_unsynced_ = false;     // kept since the store's last successful sync
     std::chrono::seconds feed_stale_after_;
     std::chrono::seconds feed_dormant_after_;
     MatchRegistry registry_;

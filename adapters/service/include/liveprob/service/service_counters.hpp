@@ -30,6 +30,13 @@ struct ServiceCounters {
     std::uint64_t waiting_expired = 0;    // held past the waiting TTL, setup never came
     std::uint64_t over_cap = 0;           // refused: the match had its share of messages
     std::uint64_t retired = 0;            // finished matches that left memory after retention
+    std::uint64_t final_states_kept = 0;  // retired matches' final updates written to the store
+    std::uint64_t final_state_write_failed = 0;  // writes or syncs of the store that failed
+    std::uint64_t after_retirement = 0;          // messages refused: their match had retired
+    std::uint64_t snapshot_final_states = 0;     // snapshot answers read from the store
+    std::uint64_t journal_compactions = 0;
+    std::uint64_t journal_compacted_records = 0;  // records of retired matches dropped
+    std::uint64_t journal_compaction_failed = 0;
     std::uint64_t updates_published = 0;  // event-driven updates
     std::uint64_t ticks_published = 0;    // timer republications
     std::uint64_t snapshot_requests = 0;

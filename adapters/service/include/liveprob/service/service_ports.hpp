@@ -6,9 +6,12 @@
 
 #include <chrono>
 #include <cstdint>
+#include <functional>
+#include <optional>
 #include <span>
 #include <stdexcept>
 #include <string_view>
+#include <vector>
 
 #include "liveprob/protocol/update_codec.hpp"
 
@@ -34,6 +37,14 @@ struct RecordLogError : std::runtime_error {
     using std::runtime_error::runtime_error;
 };
 
+// What one compaction of the record log did (RecordLog::compact).
+struct LogCompaction {
+    std::uint64_t records_kept = 0;
+    std::uint64_t records_dropped = 0;
+    std::uint64_t bytes_before = 0;
+    std::uint64_t bytes_after = 0;
+};
+
 // The durable log every inbound message is written to before it is applied (serve's journal).
 // A shell whose inbound messages are already durable before they reach it passes no log.
 class RecordLog {
@@ -48,6 +59,32 @@ public:
     // Syncs what was written when the policy says it is time (`force`: now, whatever the
     // policy). Throws RecordLogError when the sync fails.
     virtual void sync(std::chrono::steady_clock::time_point now, bool force) = 0;
+    // Drops from the log every record of a match `keep` says no to (journal compaction); what
+    // a restart replays afterwards is the rest. A log that cannot compact keeps everything.
+    // Throws RecordLogError when a segment cannot be rewritten (the log is then as it was, or
+    // partly compacted: each segment is replaced atomically).
+    virtual LogCompaction compact(const std::function<bool(std::uint64_t match_id)>& keep) {
+        (void)keep;
+        return {};
+    }
+};
+
+// Where a match's final update goes when it leaves memory after the retention, so that a
+// snapshot request for it is still answered and its records may be compacted out of the log
+// (serve: files::FinalStateFile in the journal folder). Optional: without one, a retired match
+// is unknown to snapshots and the log keeps its records.
+class FinalStateStore {
+public:
+    virtual ~FinalStateStore() = default;
+    // Writes the final update (protocol::UpdateEncoder bytes) of a match about to be forgotten;
+    // throws RecordLogError when it cannot (the match then stays in memory for the next try).
+    virtual void keep(std::uint64_t match_id, std::span<const std::uint8_t> update) = 0;
+    // Makes what keep() wrote durable; throws RecordLogError when it cannot. Until it has
+    // succeeded, nothing kept since may be compacted out of the log.
+    virtual void sync() = 0;
+    virtual bool holds(std::uint64_t match_id) const = 0;
+    // The kept update, or nothing.
+    virtual std::optional<std::vector<std::uint8_t>> find(std::uint64_t match_id) const = 0;
 };
 
 // Where the core's outward actions go. Byte spans are valid during the call only.
