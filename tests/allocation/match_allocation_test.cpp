@@ -51,3 +51,36 @@ TEST_CASE("applying messages in feed order and reading the outputs allocates not
     CHECK(sum > 0.0);
     CHECK(during == 0);
 }
+
+TEST_CASE("ticking with clock interpolation allocates nothing once the match is set up",
+          "[match][allocation][interpolation]") {
+    MatchSetup setup;
+    setup.prior = PriorMeans{1.5, 1.2};
+    setup.format.extra_time = true;
+    setup.format.shootout = true;
+    Match match(4, setup, ModelParams{});
+    match.set_clock_interpolation(true);  // its one allocation: the interpolant
+    test::FeedBuilder feed(4);
+    REQUIRE(match.apply(feed.start(Period::first_half, 0)).verdict == Verdict::accepted);
+    REQUIRE(match.apply(feed.goal(Side::home, Period::first_half, 10)).verdict ==
+            Verdict::accepted);
+    Outputs out;
+    match.price_into(out);  // warm-up: per-thread pricing buffers
+
+    const long before = test::heap_allocations();
+    double sum = 0.0;
+    // 25 minutes of ticks, a second apart: window solves, interpolated ticks, a message, a
+    // second window.
+    for (std::uint32_t s = 1; s <= 25 * 60; ++s) {
+        if (s == 12 * 60) {
+            REQUIRE(match.apply(feed.red(Side::away, Period::first_half, 10 + 12)).verdict ==
+                    Verdict::accepted);
+        }
+        (void)match.advance_to(MatchClock{Period::first_half, 10 * 60'000 + s * 1000});
+        match.price_into(out);
+        sum += out.p_home;
+    }
+    const long during = test::heap_allocations() - before;
+    CHECK(sum > 0.0);
+    CHECK(during == 0);
+}

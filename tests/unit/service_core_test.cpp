@@ -4,9 +4,11 @@
 #include <catch2/catch.hpp>
 
 #include <chrono>
+#include <cmath>
 #include <map>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "feed_builder.hpp"
@@ -397,6 +399,48 @@ TEST_CASE("service core: the tick moves a running match's clock by the simulated
     CHECK(tick.meta.receive_time_us == 0);  // a tick reflects no new message
     CHECK(tick.meta.publish_time_us == h.clock.now().wall_us);
     CHECK(h.counters().at("publish.ticks") == 1);
+}
+
+TEST_CASE("service core: with clock interpolation the ticks stay within 1e-12 of exact ones",
+          "[unit][service_core][interpolation]") {
+    CoreSettings interpolating = settings_with();
+    interpolating.clock_interpolation = true;
+    Harness exact;
+    Harness drifting(std::move(interpolating));
+    test::FeedBuilder feed(81);
+    for (const auto& m : {setup_of(feed), feed.start(Period::first_half, 0),
+                          feed.goal(Side::away, Period::first_half, 3)}) {
+        exact.send(m);
+        drifting.send(m);
+    }
+    exact.recorder.updates.clear();
+    drifting.recorder.updates.clear();
+    for (int s = 0; s < 20 * 60; ++s) {  // 20 minutes of a 1 Hz timer
+        exact.clock.advance(seconds(1));
+        drifting.clock.advance(seconds(1));
+        exact.core.tick();
+        drifting.core.tick();
+    }
+    REQUIRE(exact.recorder.updates.size() == 20 * 60);
+    REQUIRE(drifting.recorder.updates.size() == exact.recorder.updates.size());
+    double worst = 0.0;
+    int differing = 0;
+    for (std::size_t k = 0; k < exact.recorder.updates.size(); ++k) {
+        const auto& a = exact.recorder.updates[k].outputs;
+        const auto& b = drifting.recorder.updates[k].outputs;
+        REQUIRE(a.clock == b.clock);
+        for (const auto& [x, y] : {std::pair{a.p_home, b.p_home},
+                                   {a.p_draw, b.p_draw},
+                                   {a.p_away, b.p_away},
+                                   {a.next_goal_home, b.next_goal_home},
+                                   {a.expected_home_goals, b.expected_home_goals},
+                                   {a.goals_added[1][2], b.goals_added[1][2]}}) {
+            worst = std::max(worst, std::abs(x - y));
+        }
+        differing += a.p_home != b.p_home ? 1 : 0;
+    }
+    CHECK(worst <= 1e-12);
+    CHECK(differing > 20 * 60 / 2);  // the interpolant priced most ticks
 }
 
 TEST_CASE("service core: a snapshot of every live match comes in parts, each under the limit",

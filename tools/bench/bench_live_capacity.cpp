@@ -8,6 +8,7 @@
 #include <chrono>
 #include <vector>
 
+#include "bench_messages.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "liveprob/service/match_registry.hpp"
 
@@ -18,25 +19,21 @@ using namespace liveprob;
 using namespace liveprob::core;
 using SteadyClock = std::chrono::steady_clock;
 
-InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
-                       std::uint32_t clock_ms, MessageBody body) {
-    InboundMessage m;
-    m.header = {match_id, seq, 1'800'000'000'000'000, {period, clock_ms}};
-    m.body = std::move(body);
-    return m;
-}
+using bench::message;
 
 // N matches in the first half, as a service holds them mid-afternoon: set up, kicked off, a
 // clock sync at 10:00; with `history`, also a goal, a card, and a clock sync every minute up
-// to 30:00 (24 logged messages in all).
+// to 30:00 (24 logged messages in all). `knockout`: extra time and a shoot-out to price.
 void fill_registry(service::MatchRegistry& registry, std::uint64_t matches,
-                   SteadyClock::time_point now, bool history = false) {
+                   SteadyClock::time_point now, bool history = false, bool knockout = false) {
     std::vector<std::uint64_t> touched;
     for (std::uint64_t id = 1; id <= matches; ++id) {
         MatchSetup setup;
         setup.home_name = "Home side";
         setup.away_name = "Away side";
         setup.prior = PriorMeans{1.2 + 0.001 * static_cast<double>(id % 500), 1.1};
+        setup.format.extra_time = knockout;
+        setup.format.shootout = knockout;
         registry.handle(message(id, 1, Period::pre_match, 0, setup), 0, now, touched);
         registry.handle(message(id, 2, Period::first_half, 0, PeriodStart{Period::first_half}), 0,
                         now, touched);
@@ -56,11 +53,15 @@ void fill_registry(service::MatchRegistry& registry, std::uint64_t matches,
     }
 }
 
+// Arguments: matches; 1 for knock-out matches with a goal and a red card (the full model's
+// dearest position); 1 for the timer's clock interpolation.
 void BM_TickPass(benchmark::State& state) {
     const auto matches = static_cast<std::uint64_t>(state.range(0));
+    const bool knockout = state.range(1) != 0;
     service::MatchRegistry registry{ModelParams{}};
+    registry.set_clock_interpolation(state.range(2) != 0);
     auto now = SteadyClock::now();
-    fill_registry(registry, matches, now);
+    fill_registry(registry, matches, now, knockout, knockout);
     protocol::UpdateEncoder encoder;
     Outputs outputs;  // one buffer for all matches, as the service keeps it
     std::size_t bytes = 0;
@@ -85,23 +86,36 @@ void BM_TickPass(benchmark::State& state) {
                            benchmark::Counter::OneK::kIs1000);
 }
 BENCHMARK(BM_TickPass)
-    ->Arg(1000)
-    ->Arg(5000)
-    ->Arg(20000)
+    ->ArgNames({"matches", "knockout", "interpolation"})
+    ->Args({1000, 0, 0})
+    ->Args({5000, 0, 0})
+    ->Args({20000, 0, 0})
+    ->Args({20000, 1, 0})
     ->Unit(benchmark::kMillisecond)
     ->MinTime(2.0);
+// With interpolation a pass's cost depends on where the windows stand (a window's first 14
+// ticks solve two positions each, the rest evaluate a polynomial), so the mean is taken over
+// 900 passes: 15 minutes at 1 Hz, a whole window from the last message at 30:00 to 45:00.
+BENCHMARK(BM_TickPass)
+    ->ArgNames({"matches", "knockout", "interpolation"})
+    ->Args({20000, 1, 1})
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(900);
 
 // Heap per live match: the allocator's in-use bytes before and after creating N matches
-// (argument 2: 0 = just kicked off, 1 = with 24 logged messages) and ticking them once, so
-// that anything a first pricing allocates is counted too.
+// (argument 2: 0 = just kicked off, 1 = with 24 logged messages; argument 3: 1 = the timer's
+// clock interpolation on) and ticking them once, so that anything a first pricing allocates is
+// counted too.
 void BM_MemoryPerMatch(benchmark::State& state) {
     const auto matches = static_cast<std::uint64_t>(state.range(0));
     const bool history = state.range(1) != 0;
+    const bool interpolation = state.range(2) != 0;
     double per_match = 0;
     for (auto _ : state) {
         const std::size_t before = mallinfo2().uordblks;
         {
             service::MatchRegistry registry{ModelParams{}};
+            registry.set_clock_interpolation(interpolation);
             const auto now = SteadyClock::now();
             fill_registry(registry, matches, now, history);
             Outputs outputs;
@@ -116,9 +130,10 @@ void BM_MemoryPerMatch(benchmark::State& state) {
     state.counters["bytes_per_match"] = per_match;
 }
 BENCHMARK(BM_MemoryPerMatch)
-    ->Args({1000, 0})
-    ->Args({20000, 0})
-    ->Args({20000, 1})
+    ->Args({1000, 0, 0})
+    ->Args({20000, 0, 0})
+    ->Args({20000, 1, 0})
+    ->Args({20000, 0, 1})
     ->Iterations(1)
     ->Unit(benchmark::kMillisecond);
 

@@ -19,6 +19,7 @@
 #include <vector>
 #include <zmq.hpp>
 
+#include "bench_messages.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 
@@ -39,13 +40,7 @@ std::int64_t now_ns() {
         .count();
 }
 
-InboundMessage message(std::uint64_t match_id, std::uint64_t seq, Period period,
-                       std::uint32_t clock_ms, MessageBody body) {
-    InboundMessage m;
-    m.header = {match_id, seq, 1'800'000'000'000'000, {period, clock_ms}};
-    m.body = std::move(body);
-    return m;
-}
+using bench::message;
 
 // Setups and kick-offs, then clock syncs round-robin over the matches (each one reprices).
 std::vector<std::vector<std::uint8_t>> feed(std::size_t events) {

@@ -65,6 +65,7 @@ MessageOutcome MatchRegistry::handle(const core::InboundMessage& message,
     try {
         auto [it, inserted] = matches_.try_emplace(id, core::Match(id, *setup, params_));
         LiveMatch& created = it->second;
+        if (clock_interpolation_) created.match.set_clock_interpolation(true);
         created.input_seq = message.header.source_seq;
         created.receive_time_us = receive_time_us;
         created.anchor_clock = created.match.priced_clock();

@@ -24,6 +24,7 @@ CoreSettings core_settings(const ServiceConfig& config) {
     settings.feed_stale_after = std::chrono::seconds(config.feed_stale_s);
     settings.feed_dormant_after = std::chrono::seconds(config.feed_dormant_s);
     settings.compact_every = std::chrono::seconds(config.journal_compact_s);
+    settings.clock_interpolation = config.clock_interpolation;
     const protocol::ShardSpec shard = protocol::parse_shard_spec(config.shard);
     if (shard.count > 1) {
         settings.owns = [shard](std::uint64_t id) { return protocol::owns(shard, id); };
@@ -37,7 +38,9 @@ ServiceCore::ServiceCore(core::ModelParams params, CoreSettings settings, Servic
       owns_(std::move(settings.owns)), compact_every_(settings.compact_every),
       last_compaction_(clock.now().steady), feed_stale_after_(settings.feed_stale_after),
       feed_dormant_after_(settings.feed_dormant_after),
-      registry_(std::move(params), settings.limits) {}
+      registry_(std::move(params), settings.limits) {
+    registry_.set_clock_interpolation(settings.clock_interpolation);
+}
 
 void ServiceCore::restore(std::span<const std::uint8_t> record) {
     restoring_ = true;

@@ -6,7 +6,9 @@
 #include <stdexcept>
 #include <string>
 
+#include "liveprob/core/clock_interpolant.hpp"
 #include "liveprob/core/intensity.hpp"
+#include "liveprob/core/timing.hpp"
 #include "liveprob/core/validate.hpp"
 
 namespace liveprob::core {
@@ -48,6 +50,18 @@ Match::Match(std::uint64_t match_id, const MatchSetup& setup, const ModelParams&
       model_(params), state_(fold_.initial_state()) {
     log_.reserve(kReservedLog);
     anchor_clock();
+}
+
+Match::Match(Match&&) noexcept = default;
+Match& Match::operator=(Match&&) noexcept = default;
+Match::~Match() = default;
+
+void Match::set_clock_interpolation(bool on) {
+    if (!on) {
+        interpolant_.reset();
+    } else if (!interpolant_) {
+        interpolant_ = std::make_unique<ClockInterpolant>();
+    }
 }
 
 void Match::count_rejection(RejectReason reason) noexcept {
@@ -126,7 +140,7 @@ bool Match::advance_to(MatchClock now) {
     return true;
 }
 
-PricingState Match::pricing_state() const {
+PricingState Match::pricing_state_at(MatchClock clock) const {
     PricingState ps;
     ps.format = fold_.format();
     ps.prior = fold_.prior();
@@ -146,7 +160,7 @@ PricingState Match::pricing_state() const {
         case MatchStatus::in_play:
         case MatchStatus::shootout:
         case MatchStatus::finished:
-        case MatchStatus::abandoned: ps.clock = priced_clock_; break;
+        case MatchStatus::abandoned: ps.clock = clock; break;
     }
     if (in_play) {
         const auto& announced =
@@ -157,7 +171,7 @@ PricingState Match::pricing_state() const {
     // Exposure so far: the fold's, plus the stretch the clock has run since the last message.
     std::array<double, 2> exposure = state_.exposure;
     if (in_play && !abandoned) {
-        const auto added = fold_.exposure_until(state_, priced_clock_.clock_ms);
+        const auto added = fold_.exposure_until(state_, clock.clock_ms);
         exposure[0] += added[0];
         exposure[1] += added[1];
     }
@@ -182,18 +196,48 @@ PricingState Match::pricing_state() const {
 void Match::anchor_clock() noexcept {
     priced_clock_ = state_.clock;  // every change of the fold re-anchors to the feed's clock
     outputs_stale_ = true;
+    fold_epoch_ += 1;
 }
 
 void Match::price_into(Outputs& out) const {
-    const PricingState ps = pricing_state();
-    model_.price(ps, out);
+    if (interpolant_ && state_.status == MatchStatus::in_play) {
+        price_drifting(out);
+    } else {
+        price_exact_at(priced_clock_, out);
+    }
     out.status = state_.status;
     out.clock = priced_clock_;
-    out.home_goals = static_cast<std::uint16_t>(ps.goals[0]);
-    out.away_goals = static_cast<std::uint16_t>(ps.goals[1]);
-    out.home_reds = static_cast<std::uint8_t>(std::min(ps.reds[0], 255));
-    out.away_reds = static_cast<std::uint8_t>(std::min(ps.reds[1], 255));
+    out.home_goals = static_cast<std::uint16_t>(state_.goals(Side::home));
+    out.away_goals = static_cast<std::uint16_t>(state_.goals(Side::away));
+    out.home_reds = static_cast<std::uint8_t>(std::min(state_.reds[0], 255));
+    out.away_reds = static_cast<std::uint8_t>(std::min(state_.reds[1], 255));
     out.events_applied = state_.applied;
+}
+
+void Match::price_exact_at(MatchClock clock, Outputs& out) const {
+    model_.price(pricing_state_at(clock), out);
+}
+
+void Match::price_drifting(Outputs& out) const {
+    ClockInterpolant& drift = *interpolant_;
+    if (!drift.covers(fold_epoch_, priced_clock_)) {
+        // A new window: from now to the next kink of the timing profile (or the period's end).
+        const TimingCurve curve(fold_.params().timing, fold_.format());
+        const PricingState ps = pricing_state_at(priced_clock_);
+        const std::uint32_t end =
+            std::min(curve.smooth_until_ms(priced_clock_, ps.announced_stoppage_minutes),
+                     period_latest_ms(fold_.format(), priced_clock_.period));
+        drift.begin(fold_epoch_, priced_clock_.period, priced_clock_.clock_ms, end);
+    } else if (drift.ready()) {
+        drift.evaluate(priced_clock_.clock_ms, out);
+        return;
+    }
+    price_exact_at(priced_clock_, out);
+    if (drift.wants_solve()) {  // one of the window's solves rides along with this call
+        Outputs node;
+        price_exact_at(drift.next_solve(), node);
+        drift.record(node);
+    }
 }
 
 const Outputs& Match::outputs() const {

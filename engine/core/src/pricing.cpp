@@ -24,6 +24,7 @@
 #include "liveprob/core/jump_counts.hpp"
 #include "liveprob/core/quadrature.hpp"
 #include "liveprob/core/score_chain.hpp"
+#include "liveprob/core/settle_rounding.hpp"
 #include "liveprob/core/shootout.hpp"
 #include "liveprob/core/timing.hpp"
 #include "liveprob/core/validate.hpp"
@@ -353,10 +354,15 @@ struct PricingScratch {
     }
 };
 
-// Complements (1 - the rest) and differences can land a rounding error below zero, like
-// -2.2e-16; a published probability is never negative, so those become 0. Anything further
-// below would be a fault, and stays visible to the tests.
-void settle_rounding(Outputs& out) {
+PricingScratch& thread_scratch() {
+    thread_local std::unique_ptr<PricingScratch> scratch;
+    if (!scratch) scratch = std::make_unique<PricingScratch>();
+    return *scratch;
+}
+
+}  // namespace
+
+void settle_rounding(Outputs& out) noexcept {
     auto settle = [](double& p) {
         if (p < 0.0 && p > -1e-12) p = 0.0;
     };
@@ -370,14 +376,6 @@ void settle_rounding(Outputs& out) {
         for (double& p : row) settle(p);
     }
 }
-
-PricingScratch& thread_scratch() {
-    thread_local std::unique_ptr<PricingScratch> scratch;
-    if (!scratch) scratch = std::make_unique<PricingScratch>();
-    return *scratch;
-}
-
-}  // namespace
 
 // What one model keeps between calls: its parameters and the strength-ratio rule, which
 // depends on the two shapes only (they change with goals and xG, not with the clock).

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include "liveprob/core/fast_clones.hpp"
+
 namespace liveprob::core {
 namespace {
 
@@ -77,17 +79,9 @@ constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (
 // is computed (a shorter, ragged range would cost more in loop overhead than it saves).
 // Rounding is the same on every machine, so a replay reproduces live figures to the last bit:
 // the fused multiply-adds are written out (std::fma is exactly rounded wherever it runs), and
-// on x86-64 the loop is compiled twice, for x86-64-v3 (AVX2 with FMA) and for the baseline,
-// where std::fma is a library call: correct, identical, several times slower. The clone is
-// picked at load time by processor features; not "arch=haswell", which picks by processor
-// model, so that every other processor (any AMD one, later Intel ones) got the slow baseline.
-// Clang 14 (Debian's; only the fuzz preset uses it) knows no "arch=x86-64-v3" for versioned
-// functions: it builds the baseline alone, with the same figures.
-#if defined(__x86_64__) && !defined(__clang__)
-#define LIVEPROB_CHAIN_CLONES 1
-#define LIVEPROB_FAST_CLONE "arch=x86-64-v3"
-__attribute__((target_clones(LIVEPROB_FAST_CLONE, "default")))
-#endif
+// the loop has a fast clone (fast_clones.hpp) beside the baseline, where std::fma is a library
+// call: correct, identical, several times slower.
+LIVEPROB_FAST_CLONES
 void uniformized_step(const double* __restrict stay, const double* __restrict from_home,
                       const double* __restrict from_away, const double* __restrict v,
                       double* __restrict nv, double* __restrict acc, double w, std::size_t n) {
@@ -103,7 +97,7 @@ void uniformized_step(const double* __restrict stay, const double* __restrict fr
 
 // Dispatched by the same rule as the step's clones, so it names the one that runs. (Versions of
 // a function dispatch only where they are all visible: callers elsewhere use the wrapper.)
-#if defined(LIVEPROB_CHAIN_CLONES)
+#if defined(LIVEPROB_HAS_FAST_CLONES)
 __attribute__((target(LIVEPROB_FAST_CLONE))) const char* kernel_name() { return "x86-64-v3"; }
 __attribute__((target("default"))) const char* kernel_name() { return "baseline"; }
 #else

@@ -1,6 +1,8 @@
 #include "liveprob/core/timing.hpp"
 
 #include <algorithm>
+#include <cmath>
+#include <limits>
 #include <stdexcept>
 
 namespace liveprob::core {
@@ -173,6 +175,21 @@ double TimingCurve::remaining_extra_time(MatchClock now, std::optional<double> a
             return rest_of_period(segments_[3], minutes(now.clock_ms), announced);
         default: return 0.0;
     }
+}
+
+std::uint32_t TimingCurve::smooth_until_ms(MatchClock now, std::optional<double> announced) const {
+    const Segment* s = segment(now.period);
+    if (s == nullptr) return now.clock_ms;
+    const double t = minutes(now.clock_ms);
+    double kink = s->end_min;  // the rate turns flat: the stoppage rate
+    if (t >= kink) {
+        // rest_of_period's finish, max(end + stoppage, now + overrun), changes form here.
+        const double stoppage =
+            announced.has_value() ? std::max(0.0, *announced) : s->expected_stoppage;
+        kink = s->end_min + stoppage - profile_.overrun_minutes;
+        if (t >= kink) return std::numeric_limits<std::uint32_t>::max();
+    }
+    return static_cast<std::uint32_t>(std::floor(kink * kMsPerMinute));
 }
 
 double TimingCurve::period_start_minutes(Period p) const {

@@ -88,6 +88,10 @@ public:
     // Moves a live match's clock to its anchor plus elapsed time; true when the clock moved.
     bool advance(LiveMatch& m, std::chrono::steady_clock::time_point now);
 
+    // Matches created from now on re-price their clock's drift from an interpolant
+    // (core::Match::set_clock_interpolation); off by default.
+    void set_clock_interpolation(bool on) noexcept { clock_interpolation_ = on; }
+
     LiveMatch* find(std::uint64_t match_id);
     std::unordered_map<std::uint64_t, LiveMatch>& matches() noexcept { return matches_; }
     std::size_t waiting_messages() const noexcept { return waiting_count_; }
@@ -114,6 +118,7 @@ private:
     };
 
     core::ModelParams params_;
+    bool clock_interpolation_ = false;
     RegistryLimits limits_;
     std::unordered_map<std::uint64_t, LiveMatch> matches_;
     std::unordered_map<std::uint64_t, Waiting> waiting_;

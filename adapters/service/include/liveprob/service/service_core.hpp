@@ -56,6 +56,8 @@ struct CoreSettings {
     // How often the log is compacted once matches have retired into the final-state store
     // (needs both a log and a store); zero: never.
     std::chrono::seconds compact_every{600};
+    // The timer's re-pricing from an interpolant in the clock (`clock_interpolation`).
+    bool clock_interpolation = false;
 };
 // The core's settings from serve's configuration (limits, `shard`).
 CoreSettings core_settings(const ServiceConfig& config);

@@ -66,12 +66,17 @@ struct MatchCounters {
     std::array<std::uint64_t, kRejectReasonCount> rejected_by_reason{};
 };
 
+class ClockInterpolant;  // the engine's internal headers: liveprob/core/clock_interpolant.hpp
+
 class Match {
 public:
     // Throws std::invalid_argument when the setup has no usable prior (ratings must be
     // resolved to expected goals first) or the format or parameters are unusable.
     Match(std::uint64_t match_id, const MatchSetup& setup,
           const ModelParams& params = ModelParams{});
+    Match(Match&&) noexcept;
+    Match& operator=(Match&&) noexcept;
+    ~Match();
 
     [[nodiscard]] ApplyResult apply(const InboundMessage& message);
 
@@ -81,10 +86,20 @@ public:
     [[nodiscard]] bool advance_to(MatchClock now);
 
     // Prices the state at the priced clock into `out` (allocation-free once the thread has
-    // priced once). The same state and clock always give the same figures, to the last bit.
+    // priced once). The same state and clock always give the same figures, to the last bit
+    // (unless clock interpolation is on, below).
     // A host pricing many matches (the service) passes one buffer of its own, so a match
     // holds no outputs: its memory is its setup, state and event log.
     void price_into(Outputs& out) const;
+
+    // Opt-in: while the match is in play and nothing but the clock moves, price_into() evaluates
+    // a polynomial in the clock through exact solves at the nodes of a window that stops at
+    // the next kink of the timing profile (every output within 1e-12 of the exact solve; see
+    // clock_interpolant.hpp). While a window fills, each call prices exactly and solves one
+    // node more, so no call does more than two solves. About 29 KB per match while on. Off by
+    // default: the exact path is the reference, the same bits on every processor.
+    void set_clock_interpolation(bool on);
+    [[nodiscard]] bool clock_interpolation() const noexcept { return interpolant_ != nullptr; }
 
     // The same, kept in a buffer the match allocates on first use: priced on demand, so a
     // burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
@@ -98,7 +113,7 @@ public:
     std::size_t log_size() const noexcept { return log_.size(); }
 
     // The model's input for the current state at the priced clock (for checks and tools).
-    [[nodiscard]] PricingState pricing_state() const;
+    [[nodiscard]] PricingState pricing_state() const { return pricing_state_at(priced_clock_); }
 
 private:
     struct LoggedMessage {
@@ -111,6 +126,11 @@ private:
     void refold();
     void anchor_clock() noexcept;
     void count_rejection(RejectReason reason) noexcept;
+    // The model's input for the current state with the clock at `clock` (in play: a reading of
+    // the current period at or after the anchor).
+    PricingState pricing_state_at(MatchClock clock) const;
+    void price_exact_at(MatchClock clock, Outputs& out) const;
+    void price_drifting(Outputs& out) const;  // price_into with clock interpolation on
 
     MatchSetup setup_;
     StateFold fold_;
@@ -121,6 +141,8 @@ private:
     MatchCounters counters_;
     mutable std::unique_ptr<Outputs> outputs_;  // outputs()'s buffer, allocated on first use
     mutable bool outputs_stale_ = true;
+    std::uint64_t fold_epoch_ = 0;  // counts changes of the fold: an interpolant's key
+    mutable std::unique_ptr<ClockInterpolant> interpolant_;  // set_clock_interpolation(true)
 };
 
 }  // namespace liveprob::core

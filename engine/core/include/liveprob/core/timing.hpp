@@ -45,6 +45,15 @@ public:
     [[nodiscard]] double remaining_extra_time(
         MatchClock now, std::optional<double> announced_stoppage_minutes) const;
 
+    // The last clock reading (ms) of the stretch that begins at `now` over which rate(), the
+    // exposure since any earlier point of the period and both remaining exposures are smooth
+    // (polynomial) in the clock: up to the period's nominal end; in stoppage, up to where the
+    // overrun takes over from the stoppage still expected (`announced_stoppage_minutes` as for
+    // remaining_regulation); after that to the end of the period (UINT32_MAX). Interpolating
+    // outputs in the clock is exact to rounding only inside such a stretch.
+    [[nodiscard]] std::uint32_t smooth_until_ms(
+        MatchClock now, std::optional<double> announced_stoppage_minutes) const;
+
     // Nominal start and end of a period on the running clock, in minutes (e.g. 45 and 90 for
     // the second half); both 0 for periods without play.
     [[nodiscard]] double period_start_minutes(Period p) const;
