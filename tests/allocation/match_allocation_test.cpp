@@ -84,3 +84,46 @@ TEST_CASE("ticking with clock interpolation allocates nothing once the match is 
     CHECK(sum > 0.0);
     CHECK(during == 0);
 }
+
+TEST_CASE("a late message into a long match re-folds from a checkpoint without allocating",
+          "[match][allocation][refold]") {
+    MatchSetup setup;
+    setup.prior = PriorMeans{1.5, 1.2};
+    Match match(5, setup, ModelParams{});
+    REQUIRE(match.refold_checkpoint_interval() == Match::kDefaultRefoldCheckpointInterval);
+    auto message = [](std::uint64_t seq, MessageBody body) {
+        InboundMessage m;
+        m.header = {5,
+                    seq,
+                    1'700'000'000'000'000,
+                    {Period::first_half, static_cast<std::uint32_t>(seq) * 500}};
+        m.body = std::move(body);
+        return m;
+    };
+    // 2,820 messages in feed order with even source_seq values (a goal every 100). The log's
+    // room then holds 1,276 more, and the 201 below stay between the checkpoints at 2,816 and
+    // 3,072 (laying a new one copies the goal records once), so only re-folds could allocate.
+    REQUIRE(match.apply(message(2, PeriodStart{Period::first_half})).verdict == Verdict::accepted);
+    for (std::uint64_t i = 2; i <= 2'820; ++i) {
+        const MessageBody body =
+            i % 100 == 0 ? MessageBody{Goal{Side::home}} : MessageBody{ShotXg{Side::away, 0.05}};
+        REQUIRE(match.apply(message(2 * i, body)).verdict == Verdict::accepted);
+    }
+    REQUIRE(match.refold_checkpoint_bytes() > 0);
+    // Warm-up: the first re-fold takes each slot's room as it stands.
+    REQUIRE(match.apply(message(2 * 2'790 + 1, ShotXg{Side::home, 0.1})).verdict == Verdict::late);
+
+    const long before = test::heap_allocations();
+    std::uint64_t late = 0;
+    // Late shots and clock syncs at depths from just behind the head to the middle of the log.
+    for (std::uint64_t k = 0; k < 200; ++k) {
+        const std::uint64_t entry = k % 2 == 0 ? 2'780 - k : 1'400 - k;
+        const MessageBody body =
+            k % 3 == 0 ? MessageBody{ClockSync{true}} : MessageBody{ShotXg{Side::home, 0.02}};
+        late += match.apply(message(2 * entry + 1, body)).verdict == Verdict::late ? 1U : 0U;
+    }
+    const long during = test::heap_allocations() - before;
+    CHECK(late == 200);
+    CHECK(match.state().goals(Side::home) == 28);
+    CHECK(during == 0);
+}

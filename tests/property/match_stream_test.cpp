@@ -11,11 +11,13 @@
 
 #include "liveprob/core/match.hpp"
 #include "liveprob/core/position.hpp"
+#include "outputs_bitwise.hpp"
 #include "random_match_stream.hpp"
 
 using namespace liveprob;
 
 using namespace liveprob::core;
+using liveprob::test::bitwise_same;
 using liveprob::test::kStreamScale;
 using liveprob::test::RandomStream;
 using liveprob::test::StreamGenerator;
@@ -24,20 +26,6 @@ namespace {
 
 constexpr std::uint64_t kMatch = 5150;
 constexpr double kSumTolerance = 1e-12;
-
-bool bitwise_same(const Outputs& a, const Outputs& b) {
-    return a.status == b.status && a.clock == b.clock && a.home_goals == b.home_goals &&
-           a.away_goals == b.away_goals && a.home_reds == b.home_reds &&
-           a.away_reds == b.away_reds && a.p_home == b.p_home && a.p_draw == b.p_draw &&
-           a.p_away == b.p_away && a.has_advance == b.has_advance &&
-           a.p_advance_home == b.p_advance_home && a.p_advance_away == b.p_advance_away &&
-           a.expected_home_goals == b.expected_home_goals &&
-           a.expected_away_goals == b.expected_away_goals && a.next_goal_home == b.next_goal_home &&
-           a.next_goal_away == b.next_goal_away && a.next_goal_none == b.next_goal_none &&
-           a.p_over == b.p_over && a.p_both_score == b.p_both_score &&
-           a.goals_added == b.goals_added && a.tail_mass == b.tail_mass &&
-           a.events_applied == b.events_applied;
-}
 
 // Every distribution among the outputs sums to 1 and every probability lies in [0, 1].
 void check_distributions(const Outputs& o) {

@@ -86,23 +86,22 @@ ApplyResult Match::apply(const InboundMessage& message) {
     EventBody event = *event_of(message.body);  // screen() refused setups
 
     if (pos == log_.end()) {  // the usual case: newest in feed order, folded in place
-        const RejectReason outcome = fold_.apply(state_, message);
-        log_.push_back(LoggedMessage{message.header, std::move(event), outcome});
+        log_.push_back(LoggedMessage{message.header, std::move(event), RejectReason::none});
+        const RejectReason outcome = fold_entry(log_.size() - 1);
         if (outcome != RejectReason::none) {
-            state_.skipped += 1;
             count_rejection(outcome);
             return {Verdict::rejected, outcome};
         }
-        state_.applied += 1;
         counters_.accepted += 1;
         anchor_clock();
         return {Verdict::accepted, RejectReason::none};
     }
 
-    const auto offset = pos - log_.begin();
+    const auto offset = static_cast<std::size_t>(pos - log_.begin());
     log_.insert(pos, LoggedMessage{message.header, std::move(event), RejectReason::none});
-    refold();
-    const RejectReason outcome = log_[static_cast<std::size_t>(offset)].outcome;
+    refold_from(offset);
+    anchor_clock();
+    const RejectReason outcome = log_[offset].outcome;
     if (outcome != RejectReason::none) {
         count_rejection(outcome);
         return {Verdict::rejected, outcome};
@@ -111,17 +110,68 @@ ApplyResult Match::apply(const InboundMessage& message) {
     return {Verdict::late, RejectReason::none};
 }
 
-void Match::refold() {
-    state_ = fold_.initial_state();
-    for (auto& entry : log_) {
-        entry.outcome = fold_.apply(state_, entry.message());
-        if (entry.outcome == RejectReason::none) {
-            state_.applied += 1;
-        } else {
-            state_.skipped += 1;
-        }
+RejectReason Match::fold_entry(std::size_t index) {
+    LoggedMessage& entry = log_[index];
+    entry.outcome = fold_.apply(state_, entry.message());
+    if (entry.outcome == RejectReason::none) {
+        state_.applied += 1;
+    } else {
+        state_.skipped += 1;
     }
-    anchor_clock();
+    if (checkpoint_every_ == 0) return entry.outcome;
+    const std::size_t folded = index + 1;
+    const std::size_t last =
+        valid_checkpoints_ == 0 ? 0 : checkpoints_[valid_checkpoints_ - 1].folded;
+    // A checkpoint copies the goal and card records: spacing them at least four records' worth
+    // of entries apart keeps the copies under 6 bytes a log entry even for a feed of nothing
+    // but goals (a normal match holds a few records: the spacing is checkpoint_every_).
+    const std::size_t records = state_.goals_log.size() + state_.cards_log.size();
+    if (folded - last >= std::max(checkpoint_every_, 4 * records)) {
+        // Slots past the valid ones are kept from earlier folds: copying into one reuses its
+        // vectors' room, so a re-fold that passes it again allocates nothing.
+        if (valid_checkpoints_ < checkpoints_.size()) {
+            checkpoints_[valid_checkpoints_].folded = folded;
+            checkpoints_[valid_checkpoints_].state = state_;
+        } else {
+            checkpoints_.push_back(Checkpoint{folded, state_});
+        }
+        valid_checkpoints_ += 1;
+    }
+    return entry.outcome;
+}
+
+void Match::refold_from(std::size_t changed) {
+    // A checkpoint stays valid while none of the entries it folded changed.
+    while (valid_checkpoints_ > 0 && checkpoints_[valid_checkpoints_ - 1].folded > changed) {
+        valid_checkpoints_ -= 1;
+    }
+    std::size_t from = 0;
+    if (valid_checkpoints_ == 0) {
+        state_ = fold_.initial_state();
+    } else {
+        const Checkpoint& resume = checkpoints_[valid_checkpoints_ - 1];
+        state_ = resume.state;  // a copy: the checkpoint stays
+        from = resume.folded;
+    }
+    for (std::size_t i = from; i < log_.size(); ++i) (void)fold_entry(i);
+}
+
+void Match::set_refold_checkpoint_interval(std::size_t every) {
+    checkpoint_every_ = every;
+    checkpoints_.clear();
+    checkpoints_.shrink_to_fit();
+    valid_checkpoints_ = 0;
+    // Folding the log again gives the very same state; it lays the new checkpoints.
+    if (every != 0 && log_.size() >= every) refold_from(0);
+}
+
+std::size_t Match::refold_checkpoint_bytes() const noexcept {
+    std::size_t bytes = checkpoints_.capacity() * sizeof(Checkpoint);
+    for (const Checkpoint& c : checkpoints_) {
+        bytes += c.state.goals_log.capacity() * sizeof(GoalRecord) +
+                 c.state.cards_log.capacity() * sizeof(CardRecord);
+    }
+    return bytes;
 }
 
 bool Match::advance_to(MatchClock now) {

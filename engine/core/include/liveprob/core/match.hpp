@@ -101,6 +101,21 @@ public:
     void set_clock_interpolation(bool on);
     [[nodiscard]] bool clock_interpolation() const noexcept { return interpolant_ != nullptr; }
 
+    // A late message re-folds the log from the last checkpoint before its place, not from the
+    // start: every `every` log entries the match keeps a copy of the fold state (224 bytes
+    // plus 24 per goal and card record; about 1 byte a message at the default). Checkpoints are
+    // spaced at least four records' worth of entries apart, so their copies of the records stay
+    // under 6 bytes a message even when a feed sends nothing but goals. 0 turns checkpoints
+    // off: every late message re-folds the whole log (the reference; the same state to the bit
+    // either way, see tests/property/refold_checkpoint_test.cpp).
+    static constexpr std::size_t kDefaultRefoldCheckpointInterval = 256;
+    void set_refold_checkpoint_interval(std::size_t every);
+    [[nodiscard]] std::size_t refold_checkpoint_interval() const noexcept {
+        return checkpoint_every_;
+    }
+    // Heap bytes the checkpoints hold (their slots and goal and card records).
+    [[nodiscard]] std::size_t refold_checkpoint_bytes() const noexcept;
+
     // The same, kept in a buffer the match allocates on first use: priced on demand, so a
     // burst of messages (a re-fold, a replay) prices once. Not thread-safe, like the rest.
     [[nodiscard]] const Outputs& outputs() const;
@@ -123,7 +138,10 @@ private:
         InboundMessage message() const { return {header, message_body_of(event)}; }
     };
 
-    void refold();
+    // Folds log_[index] onto state_, records its outcome, lays a checkpoint when one is due.
+    RejectReason fold_entry(std::size_t index);
+    // Re-folds the log after its entries from `changed` on were inserted or changed.
+    void refold_from(std::size_t changed);
     void anchor_clock() noexcept;
     void count_rejection(RejectReason reason) noexcept;
     // The model's input for the current state with the clock at `clock` (in play: a reading of
@@ -137,6 +155,15 @@ private:
     mutable PricingModel model_;
     std::vector<LoggedMessage> log_;  // sorted by source_seq
     MatchState state_;
+    struct Checkpoint {
+        std::size_t folded = 0;  // the state after folding log_[0, folded)
+        MatchState state;
+    };
+    // Ascending in `folded`; the first valid_checkpoints_ are current, later slots are kept
+    // for their room.
+    std::vector<Checkpoint> checkpoints_;
+    std::size_t valid_checkpoints_ = 0;
+    std::size_t checkpoint_every_ = kDefaultRefoldCheckpointInterval;
     MatchClock priced_clock_;
     MatchCounters counters_;
     mutable std::unique_ptr<Outputs> outputs_;  // outputs()'s buffer, allocated on first use
