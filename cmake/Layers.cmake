@@ -29,6 +29,7 @@ liveprob_outside(beast       Boost::boost             "^boost/beast")
 liveprob_outside(crc         Boost::boost             "^boost/crc[.]hpp$")
 liveprob_outside(threads     Threads::Threads         "^(thread|mutex|shared_mutex|condition_variable|future)$")
 liveprob_outside(cli11       CLI11::CLI11             "^CLI/")
+liveprob_outside(nats        PkgConfig::NATS          "^nats/")
 liveprob_outside(tools       ""                       "^(harness/|command_registry[.]hpp|progress_bar[.]hpp)")
 # Header-only outside libraries: nothing of them is linked, so an installed static archive that
 # uses them privately passes nothing on (cmake/LiveprobLibrary.cmake).
@@ -59,6 +60,7 @@ liveprob_layer(files      FOLDER adapters/files       USES protocol fit core    
 liveprob_layer(datasets   FOLDER adapters/datasets    USES files protocol fit core                       PRIVATE_LINKS simdjson fmt)
 liveprob_layer(service    FOLDER adapters/service     USES monitoring transport files system protocol core PRIVATE_LINKS zmq asio simdjson fmt spdlog threads)
 liveprob_layer(clients    FOLDER adapters/clients     USES transport system protocol core                LINKS zmq PRIVATE_LINKS fmt threads)
+liveprob_layer(cluster    FOLDER adapters/cluster     USES service system protocol core                  LINKS nats PRIVATE_LINKS fmt spdlog threads)
 liveprob_layer(gateway    FOLDER adapters/gateway     USES monitoring transport system protocol core    PRIVATE_LINKS zmq asio beast simdjson fmt spdlog)
 liveprob_layer(scoring    FOLDER replay-demo/scoring)
 liveprob_layer(backtest   FOLDER replay-demo/backtest USES scoring protocol fit core                     PRIVATE_LINKS fmt threads)

@@ -109,7 +109,7 @@ TEST_CASE("configuration: flags and file values are checked alike, by the one ke
         CHECK(names.insert(k.name).second);
         CHECK(flags.insert(k.flag).second);
     }
-    CHECK(names.size() == 27);
+    CHECK(names.size() == 32);
 }
 
 TEST_CASE("configuration: the README's table of keys is the key table", "[unit][serve]") {

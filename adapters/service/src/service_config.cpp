@@ -4,6 +4,7 @@
 #include <simdjson.h>
 
 #include <array>
+#include <cctype>
 #include <charconv>
 
 #include "liveprob/monitoring/health_listener.hpp"
@@ -23,7 +24,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 27> kKeys = {{
+const std::array<ConfigKey, 32> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -133,6 +134,32 @@ const std::array<ConfigKey, 27> kKeys = {{
      0,
      {},
      "off"},
+    {"cluster_servers",
+     "--cluster",
+     ConfigValue::servers,
+     &S::cluster_servers,
+     "cluster mode: `nats://host:port` URLs of a NATS JetStream cluster, comma-separated; the "
+     "feed stream replaces the ingest, journal and shard keys (docs/cluster.md)",
+     0,
+     0,
+     {},
+     "none"},
+    {"cluster_partitions", "--cluster-partitions", ConfigValue::whole, &S::cluster_partitions,
+     "cluster mode: partitions of match ids (the same for every engine and feed)", 1, 1024},
+    {"cluster_replicas", "--cluster-replicas", ConfigValue::whole, &S::cluster_replicas,
+     "cluster mode: copies of the feed stream and buckets when this engine makes them", 1, 5},
+    {"cluster_lease_ms", "--cluster-lease-ms", ConfigValue::whole, &S::cluster_lease_ms,
+     "cluster mode: a partition's lease expires this long after its engine last renewed it (ms)",
+     500, 600'000},
+    {"cluster_engine_name",
+     "--cluster-engine-name",
+     ConfigValue::name,
+     &S::cluster_engine_name,
+     "cluster mode: this engine's name among the engines (letters, digits, - and _)",
+     0,
+     0,
+     {},
+     "host-pid"},
 }};
 
 std::string choice_list(const ConfigKey& key) {
@@ -167,10 +194,30 @@ public:
                     fail(e.what());
                 }
                 break;
+            case ConfigValue::servers: servers(value); break;
+            case ConfigValue::name:
+                for (const char ch : value) {
+                    if (!std::isalnum(static_cast<unsigned char>(ch)) && ch != '-' && ch != '_')
+                        fail("letters, digits, - and _ only");
+                }
+                break;
             case ConfigValue::text: break;
             default: fail("must not be a string");
         }
         config_.*std::get<std::string ServiceConfig::*>(key_.member) = std::string(value);
+    }
+
+    void servers(std::string_view list) const {
+        if (list.empty()) return;  // none: not in cluster mode
+        while (true) {
+            const auto comma = list.find(',');
+            const std::string_view url = list.substr(0, comma);
+            if (!url.starts_with("nats://") || url.size() == 7)
+                fail(
+                    fmt::format("must be nats://host:port URLs, comma-separated, got \"{}\"", url));
+            if (comma == std::string_view::npos) break;
+            list.remove_prefix(comma + 1);
+        }
     }
 
     void whole(std::uint64_t value) const {
@@ -246,6 +293,8 @@ std::string allowed_text(const ConfigKey& key) {
         case ConfigValue::choice: return choice_list(key);
         case ConfigValue::shard: return "K/N, K < N";
         case ConfigValue::address: return "host:port";
+        case ConfigValue::servers: return "nats:// URLs";
+        case ConfigValue::name: return "a name";
     }
     return "";
 }
@@ -342,6 +391,8 @@ void validate_service_config(const ServiceConfig& c) {
             "before its ticks stop)",
             c.feed_stale_s, c.feed_dormant_s));
     }
+    if (!c.cluster_servers.empty() && !c.journal_path.empty())
+        throw ConfigError("journal_path: not in cluster mode (the feed stream is the journal)");
     // Two sockets cannot bind one fixed endpoint ("*" ports are distinct by construction).
     const auto clash = [](const std::string& a, const std::string& b) {
         return a == b && a.find('*') == std::string::npos;

@@ -8,7 +8,9 @@
 // field, counted and skipped (exit 1 at the end). Pacing: as fast as possible, at a fixed rate, or
 // by the match clock. Every message waits for the service's acknowledgement that it is journaled
 // (adapters/clients/acked_sender.hpp): send exits 1 saying how many never were (--no-ack: fire
-// and forget).
+// and forget). With nats:// URLs as --to, the messages go to the cluster mode's feed stream
+// instead, each acknowledged once a quorum of the stream's replicas stored it
+// (adapters/cluster/feed_publisher.hpp).
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
@@ -25,6 +27,8 @@
 #include "liveprob/clients/feed_input.hpp"
 #include "liveprob/clients/feed_pacing.hpp"
 #include "liveprob/clients/shard_sender.hpp"
+#include "liveprob/cluster/cluster_setup.hpp"
+#include "liveprob/cluster/feed_publisher.hpp"
 #include "liveprob/protocol/feed_codec.hpp"
 #include "liveprob/protocol/feed_mapping.hpp"
 #include "liveprob/protocol/framing.hpp"
@@ -50,6 +54,8 @@ struct SendFlags {
     std::size_t window = 20'000;
     int resend_ms = 5'000;
     int give_up_ms = 30'000;
+    std::uint32_t cluster_partitions = cluster::ClusterLayout{}.partitions;
+    std::uint32_t cluster_replicas = cluster::ClusterLayout{}.replicas;
 };
 
 // Where `stop` comes from: SIGINT or SIGTERM end a followed feed (or a stalled read) cleanly.
@@ -171,6 +177,50 @@ int send_acknowledged(const SendFlags& f, FeedMessages& source,
     return all && source.refused() == 0 ? kExitOk : kExitFailure;
 }
 
+// The cluster target: the feed stream on a NATS JetStream cluster (made if missing).
+int send_to_cluster(const SendFlags& f, FeedMessages& source) {
+    cluster::ClusterLayout layout;
+    layout.partitions = f.cluster_partitions;
+    layout.replicas = f.cluster_replicas;
+    cluster::NatsClient client(f.to, {.name = "liveprob send"});
+    try {
+        cluster::ensure_feed_stream(client.jetstream(), layout);
+    } catch (const cluster::LayoutMismatch&) {
+        throw;
+    } catch (const cluster::NatsError& e) {
+        // The cluster may be electing a leader or short of a quorum: publish anyway; what it
+        // never acknowledges is counted and reported.
+        std::cerr << "send: warning: " << e.what() << std::endl;
+    }
+    cluster::FeedPublisher publisher(client, layout,
+                                     {.window = f.window,
+                                      .resend_after = std::chrono::milliseconds(f.resend_ms),
+                                      .give_up_after = std::chrono::milliseconds(f.give_up_ms)});
+    clients::FeedPacer pacer = pacer_for(f);
+    while (!publisher.gave_up()) {
+        auto m = source.next();
+        if (!m) break;
+        pacer.wait_for(*m);
+        if (f.stamp) m->header.source_time_us = liveprob::system::wall_clock_us();
+        publisher.send(m->header, protocol::encode_feed_message(*m));
+    }
+    publisher.finish();
+    std::string line =
+        fmt::format("sent {} messages to stream {} ({} partitions) at {}: {} of {} acknowledged",
+                    publisher.handed(), layout.feed_stream, layout.partitions, fmt::join(f.to, ","),
+                    publisher.acknowledged(), publisher.handed());
+    if (publisher.duplicates() > 0)
+        line += fmt::format(" ({} of them already stored)", publisher.duplicates());
+    if (publisher.unanswered() > 0)
+        line += fmt::format(", {} never acknowledged", publisher.unanswered());
+    if (publisher.resent() > 0) line += fmt::format(" ({} sent again)", publisher.resent());
+    if (source.refused() > 0) line += fmt::format("; {} refused (see above)", source.refused());
+    std::cout << line << std::endl;
+    if (publisher.gave_up())
+        std::cerr << "send: gave up: " << publisher.give_up_reason() << std::endl;
+    return publisher.unanswered() == 0 && source.refused() == 0 ? kExitOk : kExitFailure;
+}
+
 int run_send(const SendFlags& f) {
     if (f.speed < 0.0 || f.rate < 0.0) throw UsageError("--speed and --rate must not be negative");
     if (f.speed > 0.0 && f.rate > 0.0) throw UsageError("--speed and --rate are alternatives");
@@ -180,8 +230,19 @@ int run_send(const SendFlags& f) {
     if (!f.mapping.empty() && f.format == "frames")
         throw UsageError("--mapping reads a provider's JSON lines, not frames");
     if (f.to.size() > 1024) throw UsageError("--to: at most 1024 shard endpoints");
+    const bool to_cluster = cluster::is_nats_target(f.to);
+    if (!to_cluster) {
+        for (const auto& endpoint : f.to) {
+            if (endpoint.rfind("nats://", 0) == 0)
+                throw UsageError("--to: nats:// URLs and ZeroMQ endpoints cannot be mixed");
+        }
+    }
+    if (to_cluster && f.no_ack) throw UsageError("--no-ack: not with a nats:// target");
+    if (to_cluster && (!f.server_key.empty() || !f.client_key.empty()))
+        throw UsageError("--server-key/--client-key: CURVE is ZeroMQ's; not with a nats:// target");
     install_stop_handlers();
     FeedMessages source(f);
+    if (to_cluster) return send_to_cluster(f, source);
     const clients::CurveClientKeys keys =
         clients::load_curve_client_keys(f.server_key, f.client_key);
     if (!f.no_ack) return send_acknowledged(f, source, keys);
@@ -227,7 +288,9 @@ const Registration registration{{
         sub.add_option(
                "--to", f->to,
                "ingest endpoint, e.g. tcp://127.0.0.1:7430; for shards, every shard's in order "
-               "(0/N first, comma-separated): each match goes to the shard that owns it")
+               "(0/N first, comma-separated): each match goes to the shard that owns it; or "
+               "nats://host:port URLs (comma-separated) of a NATS JetStream cluster: the "
+               "cluster mode's feed stream")
             ->required()
             ->allow_extra_args(false)  // one argument (split at commas): the feed file is never
                                        // taken for an endpoint
@@ -268,6 +331,13 @@ const Registration registration{{
                        "stop, and exit 1 naming how many were never acknowledged, after this long "
                        "without an acknowledgement (default 30000)")
             ->check(CLI::Range(1, 3'600'000));
+        sub.add_option("--cluster-partitions", f->cluster_partitions,
+                       "nats:// target: match partitions of the feed stream (the same as the "
+                       "engines'; default 16)")
+            ->check(CLI::Range(1, 1024));
+        sub.add_option("--cluster-replicas", f->cluster_replicas,
+                       "nats:// target: copies of the feed stream if send makes it (default 3)")
+            ->check(CLI::Range(1, 5));
         return [f] { return run_send(*f); };
     },
 }};

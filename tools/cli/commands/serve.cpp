@@ -1,12 +1,16 @@
 // `liveprob serve`: the live service. Settings come from --config (JSON) and flags; a flag
 // given on the command line overrides the file. The flags are the configuration's key table
-// (service/service_config.hpp), one flag per key. See adapters/service/README.md.
+// (service/service_config.hpp), one flag per key. See adapters/service/README.md. With
+// --cluster, serve is an engine of a NATS JetStream cluster instead (adapters/cluster/README.md).
+#include <signal.h>
 #include <spdlog/spdlog.h>
 
 #include <map>
 #include <optional>
 
 #include "command_registry.hpp"
+#include "liveprob/cluster/cluster_engine.hpp"
+#include "liveprob/cluster/cluster_layout.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/monitoring/log_format.hpp"
 #include "liveprob/service/live_service.hpp"
@@ -37,6 +41,36 @@ service::ServiceConfig read_config(const ServeFlags& f) {
     return config;
 }
 
+// The cluster engine a stop signal asks to stop (its stop() only sets a flag).
+cluster::ClusterEngine* g_cluster_engine = nullptr;
+void on_cluster_stop_signal(int) {
+    if (g_cluster_engine) g_cluster_engine->stop();
+}
+
+int run_cluster_engine(const service::ServiceConfig& config, const core::ModelParams& params) {
+    cluster::ClusterEngineOptions options;
+    options.servers = cluster::split_servers(config.cluster_servers);
+    options.layout.partitions = config.cluster_partitions;
+    options.layout.replicas = config.cluster_replicas;
+    options.engine_name = config.cluster_engine_name.empty() ? cluster::default_engine_name()
+                                                             : config.cluster_engine_name;
+    options.lease_time = std::chrono::milliseconds(config.cluster_lease_ms);
+    options.tick_interval = std::chrono::milliseconds(config.tick_interval_ms);
+    options.counters_interval = std::chrono::milliseconds(config.counters_interval_ms);
+    options.limits = {std::chrono::seconds(config.retention_s),
+                      std::chrono::seconds(config.waiting_ttl_s), config.match_message_cap};
+    cluster::ClusterEngine engine(options, params);
+    g_cluster_engine = &engine;
+    struct sigaction action {};
+    action.sa_handler = on_cluster_stop_signal;
+    sigemptyset(&action.sa_mask);
+    for (const int sig : {SIGTERM, SIGINT, SIGQUIT}) ::sigaction(sig, &action, nullptr);
+    ::signal(SIGHUP, SIG_IGN);  // no reload in cluster mode: restart the engine instead
+    engine.run();
+    g_cluster_engine = nullptr;
+    return kExitOk;
+}
+
 int run_serve(const ServeFlags& f) {
     service::ServiceConfig config;
     try {
@@ -49,6 +83,7 @@ int run_serve(const ServeFlags& f) {
     const core::ModelParams params = config.params_file.empty()
                                          ? core::ModelParams{}
                                          : files::load_params_file(config.params_file);
+    if (!config.cluster_servers.empty()) return run_cluster_engine(config, params);
     service::LiveService live(config, params, [&f] { return read_config(f); });
     live.run();
     return kExitOk;

@@ -81,6 +81,14 @@ struct ServiceConfig {
     // Health and metrics over HTTP ("127.0.0.1:9464"; port 0: any free port); empty: off.
     std::string health_address;
 
+    // Cluster mode (adapters/cluster): with servers set, serve is an engine of a NATS JetStream
+    // cluster instead of the ZeroMQ service.
+    std::string cluster_servers;
+    std::uint32_t cluster_partitions = 16;
+    std::uint32_t cluster_replicas = 3;
+    std::uint32_t cluster_lease_ms = 5000;
+    std::string cluster_engine_name;  // empty: host name and process id
+
     bool curve_enabled() const noexcept { return !curve_secret_key_file.empty(); }
 };
 
@@ -93,6 +101,8 @@ enum class ConfigValue : std::uint8_t {
     choice,    // one of `choices`
     shard,     // "K/N" (protocol/sharding.hpp)
     address,   // "host:port" for an HTTP listener (monitoring/health_listener.hpp)
+    servers,   // nats://host:port URLs, comma-separated
+    name,      // letters, digits, - and _ (a key in a key-value bucket)
 };
 
 struct ConfigKey {

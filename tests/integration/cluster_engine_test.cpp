@@ -1,0 +1,313 @@
+// `serve --cluster` over real processes: a three-node JetStream cluster, two engines sharing the
+// feed's partitions through leases, `send` publishing a set of invented matches, and a NATS
+// subscriber on every match subject. Without failures every update of every match arrives once,
+// in order, equal to the in-process engine's, and the latest-state bucket holds each match's
+// last one. With one engine killed (SIGKILL) mid-feed the other takes its partitions, rebuilds
+// them from the stream, never sends an output sequence backwards, and ends every match in the
+// state an uninterrupted run ends it in. No timed assertions: deadlines only bound a hung run;
+// the longest gap after the kill is printed (ctest -V), not asserted.
+#include <catch2/catch.hpp>
+
+#include <iostream>
+#include <map>
+#include <set>
+
+#include "live_service_harness.hpp"
+#include "liveprob/cluster/cluster_layout.hpp"
+#include "liveprob/cluster/nats_client.hpp"
+#include "liveprob/protocol/sharding.hpp"
+#include "nats_cluster.hpp"
+
+using namespace liveprob;
+using namespace liveprob::test;
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+constexpr int kLeaseMs = 1500;
+
+std::vector<std::string> servers_of(const NatsCluster& nats) {
+    std::vector<std::string> urls;
+    for (int i = 0; i < nats.size(); ++i) urls.push_back(nats.url(i));
+    return urls;
+}
+
+std::unique_ptr<ChildProcess> start_engine(const std::filesystem::path& dir,
+                                           const NatsCluster& nats, const std::string& name) {
+    return std::make_unique<ChildProcess>(
+        std::vector<std::string>{liveprob_binary().string(), "serve", "--cluster", nats.urls(),
+                                 "--cluster-engine-name", name, "--cluster-lease-ms",
+                                 std::to_string(kLeaseMs), "--tick-ms", "3600000", "--counters-ms",
+                                 "1000"},
+        dir / (name + ".log"));
+}
+
+void run_send(const std::filesystem::path& dir, const std::string& name, const NatsCluster& nats,
+              const std::vector<core::InboundMessage>& feed) {
+    write_frames(dir / (name + ".frames"), feed);
+    ChildProcess send({liveprob_binary().string(), "send", "--to", nats.urls(),
+                       (dir / (name + ".frames")).string()},
+                      dir / (name + ".out"), dir / (name + ".err"));
+    const auto code = send.wait(60s);
+    INFO(send.output());
+    REQUIRE(code == std::optional<int>(0));
+}
+
+// Who holds each partition's lease, read from the lease bucket.
+std::map<std::uint32_t, std::string> lease_owners(kvStore* leases,
+                                                  const cluster::ClusterLayout& layout) {
+    std::map<std::uint32_t, std::string> owners;
+    for (std::uint32_t p = 0; p < layout.partitions; ++p) {
+        kvEntry* entry = nullptr;
+        if (kvStore_Get(&entry, leases, cluster::lease_key(p).c_str()) == NATS_OK) {
+            owners[p] = kvEntry_ValueString(entry);
+            kvEntry_Destroy(entry);
+        }
+    }
+    return owners;
+}
+
+// Waits until every partition is held and each engine named holds some (a stable split, so no
+// partition moves while the feed is sent).
+std::map<std::uint32_t, std::string> wait_for_split(kvStore* leases,
+                                                    const cluster::ClusterLayout& layout,
+                                                    const std::set<std::string>& engines) {
+    const auto deadline = Clock::now() + 30s;
+    while (Clock::now() < deadline) {
+        const auto owners = lease_owners(leases, layout);
+        std::map<std::string, std::size_t> held;
+        for (const auto& [p, owner] : owners) ++held[owner];
+        const std::size_t share = (layout.partitions + engines.size() - 1) / engines.size();
+        bool even = owners.size() == layout.partitions && held.size() == engines.size();
+        for (const auto& [owner, n] : held) even = even && engines.contains(owner) && n <= share;
+        if (even) {
+            // One more renewal round, so every engine has subscribed to what it holds.
+            std::this_thread::sleep_for(std::chrono::milliseconds(kLeaseMs));
+            return owners;
+        }
+        std::this_thread::sleep_for(100ms);
+    }
+    FAIL("the engines did not split the partitions in time");
+    return {};
+}
+
+struct Received {
+    protocol::DecodedUpdate update;
+    Clock::time_point at;
+};
+
+// Every update on every match subject, read in the test's thread.
+class UpdateCollector {
+public:
+    UpdateCollector(cluster::NatsClient& client, const cluster::ClusterLayout& layout) {
+        natsSubscription* sub = nullptr;
+        cluster::check(natsConnection_SubscribeSync(&sub, client.connection(),
+                                                    (layout.update_subject_prefix + ".*").c_str()),
+                       "subscribe");
+        sub_.reset(sub);
+        natsSubscription_SetPendingLimits(sub, -1, -1);
+        cluster::check(natsConnection_FlushTimeout(client.connection(), 5000), "flush");
+    }
+    // Reads until `done` holds for what arrived, or the deadline.
+    template <typename Done>
+    void read_until(Done done, std::chrono::seconds limit) {
+        const auto deadline = Clock::now() + limit;
+        while (!done(by_match_) && Clock::now() < deadline) {
+            natsMsg* raw = nullptr;
+            if (natsSubscription_NextMsg(&raw, sub_.get(), 100) != NATS_OK) continue;
+            cluster::MsgHandle message(raw);
+            const auto* data = reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(raw));
+            auto decoded = protocol::decode_update(
+                {data, static_cast<std::size_t>(natsMsg_GetDataLength(raw))});
+            REQUIRE(decoded.ok());
+            by_match_[decoded.value->meta.match_id].push_back({*decoded.value, Clock::now()});
+        }
+    }
+    std::map<std::uint64_t, std::vector<Received>>& by_match() { return by_match_; }
+
+private:
+    cluster::SubscriptionHandle sub_;
+    std::map<std::uint64_t, std::vector<Received>> by_match_;
+};
+
+kvStore* open_bucket(jsCtx* js, const std::string& name) {
+    kvStore* bucket = nullptr;
+    const auto deadline = Clock::now() + 20s;
+    while (js_KeyValue(&bucket, js, name.c_str()) != NATS_OK && Clock::now() < deadline)
+        std::this_thread::sleep_for(100ms);
+    REQUIRE(bucket != nullptr);
+    return bucket;
+}
+
+// A three-node cluster, a subscriber on every match subject, and engines A and B once they have
+// split the partitions between them.
+struct TwoEngines {
+    explicit TwoEngines(const std::string& name)
+        : dir(scratch_dir(name)), nats(dir), client(servers_of(nats)), collector(client, layout),
+          a(start_engine(dir, nats, "engine-a")), b(start_engine(dir, nats, "engine-b")),
+          lease_bucket(open_bucket(client.jetstream(), layout.lease_bucket)),
+          owners(wait_for_split(lease_bucket.get(), layout, {"engine-a", "engine-b"})) {}
+    std::filesystem::path dir;
+    NatsCluster nats;
+    cluster::ClusterLayout layout;
+    cluster::NatsClient client;
+    UpdateCollector collector;
+    std::unique_ptr<ChildProcess> a, b;
+    cluster::KvStoreHandle lease_bucket;
+    std::map<std::uint32_t, std::string> owners;  // partition -> engine, once split
+};
+
+std::map<std::uint64_t, std::vector<core::InboundMessage>> invented_matches(std::uint64_t first,
+                                                                            int count) {
+    std::map<std::uint64_t, std::vector<core::InboundMessage>> matches;
+    for (std::uint64_t id = first; id < first + static_cast<std::uint64_t>(count); ++id)
+        matches[id] = invented_match(id);
+    return matches;
+}
+
+}  // namespace
+
+TEST_CASE(
+    "two cluster engines publish every update of every match once, in order, as the "
+    "in-process engine computes it",
+    "[sockets]") {
+    TwoEngines run("cluster-engines");
+    auto& [dir, nats, layout, client, collector, a, b, lease_bucket, owners] = run;
+
+    const auto matches = invented_matches(901, 24);
+    std::vector<core::InboundMessage> feed;
+    std::map<std::uint64_t, std::vector<ReferenceOutput>> expected;
+    for (const auto& [id, messages] : matches) {
+        feed.insert(feed.end(), messages.begin(), messages.end());
+        expected[id] = engine_outputs(messages);
+    }
+    run_send(dir, "feed", nats, feed);
+
+    collector.read_until(
+        [&](const auto& got) {
+            for (const auto& [id, want] : expected) {
+                const auto it = got.find(id);
+                if (it == got.end() || it->second.size() < want.size()) return false;
+            }
+            return true;
+        },
+        30s);
+    // A moment more: anything published twice would arrive now.
+    collector.read_until([](const auto&) { return false; }, 1s);
+
+    int wrong = 0;
+    for (const auto& [id, want] : expected) {
+        const auto& got = collector.by_match()[id];
+        INFO("match " << id << ": " << got.size() << " updates, " << want.size() << " expected");
+        CHECK(got.size() == want.size());
+        for (std::size_t i = 0; i < std::min(got.size(), want.size()); ++i) {
+            if (got[i].update.meta.input_seq != want[i].input_seq ||
+                !same_outputs(got[i].update.outputs, want[i].outputs))
+                ++wrong;
+            if (i > 0 && got[i].update.meta.output_seq <= got[i - 1].update.meta.output_seq)
+                ++wrong;
+        }
+    }
+    CHECK(wrong == 0);
+
+    // Late joiners: the latest-state bucket holds each match's last update.
+    kvStore* latest_raw = nullptr;
+    REQUIRE(js_KeyValue(&latest_raw, client.jetstream(), layout.latest_bucket.c_str()) == NATS_OK);
+    cluster::KvStoreHandle latest(latest_raw);
+    int stale = 0;
+    for (const auto& [id, want] : expected) {
+        kvEntry* entry = nullptr;
+        REQUIRE(kvStore_Get(&entry, latest.get(), cluster::latest_key(id).c_str()) == NATS_OK);
+        cluster::KvEntryHandle owned(entry);
+        const auto decoded =
+            protocol::decode_update({static_cast<const std::uint8_t*>(kvEntry_Value(entry)),
+                                     static_cast<std::size_t>(kvEntry_ValueLen(entry))});
+        REQUIRE(decoded.ok());
+        if (!same_outputs(decoded.value->outputs, want.back().outputs)) ++stale;
+    }
+    CHECK(stale == 0);
+
+    // Both engines did some of the work, and both stop cleanly on SIGTERM.
+    CHECK(a->stop() == std::optional<int>(0));
+    CHECK(b->stop() == std::optional<int>(0));
+}
+
+TEST_CASE(
+    "a cluster engine killed with SIGKILL: the other takes its partitions and every match "
+    "ends as in an uninterrupted run",
+    "[sockets]") {
+    TwoEngines run("cluster-failover");
+    auto& [dir, nats, layout, client, collector, a, b, lease_bucket, owners] = run;
+
+    // The first half of every match, then engine A dies, then the rest.
+    const auto matches = invented_matches(1201, 24);
+    std::vector<core::InboundMessage> first_half, second_half;
+    std::map<std::uint64_t, std::vector<ReferenceOutput>> expected;
+    std::set<std::uint64_t> affected;  // matches of A's partitions
+    for (const auto& [id, messages] : matches) {
+        const auto half = messages.begin() + static_cast<std::ptrdiff_t>(messages.size() / 2);
+        first_half.insert(first_half.end(), messages.begin(), half);
+        second_half.insert(second_half.end(), half, messages.end());
+        expected[id] = engine_outputs(messages);
+        if (owners.at(cluster::partition_of(layout, id)) == "engine-a") affected.insert(id);
+    }
+    REQUIRE_FALSE(affected.empty());
+    run_send(dir, "first", nats, first_half);
+    collector.read_until(
+        [&](const auto& got) {
+            for (const auto& [id, want] : expected) {
+                const auto it = got.find(id);
+                if (it == got.end() || it->second.empty() ||
+                    it->second.back().update.meta.input_seq < matches.at(id).size() / 2)
+                    return false;
+            }
+            return true;
+        },
+        30s);
+
+    a->signal(SIGKILL);
+    REQUIRE(a->wait(10s).has_value());
+    const auto killed_at = Clock::now();
+    run_send(dir, "second", nats, second_half);
+
+    const auto finished = [&](const auto& got) {
+        for (const auto& [id, want] : expected) {
+            const auto it = got.find(id);
+            if (it == got.end() || it->second.empty() ||
+                it->second.back().update.meta.input_seq != want.back().input_seq)
+                return false;
+        }
+        return true;
+    };
+    collector.read_until(finished, 30s);
+    REQUIRE(finished(collector.by_match()));
+
+    int wrong_final = 0, backwards = 0;
+    double longest_gap_ms = 0.0;
+    for (const auto& [id, want] : expected) {
+        const auto& got = collector.by_match()[id];
+        if (!same_outputs(got.back().update.outputs, want.back().outputs)) ++wrong_final;
+        for (std::size_t i = 1; i < got.size(); ++i) {
+            if (got[i].update.meta.output_seq <= got[i - 1].update.meta.output_seq) ++backwards;
+        }
+        if (affected.contains(id)) {
+            for (const auto& r : got) {
+                if (r.at > killed_at) {
+                    longest_gap_ms = std::max(
+                        longest_gap_ms,
+                        std::chrono::duration<double, std::milli>(r.at - killed_at).count());
+                    break;
+                }
+            }
+        }
+    }
+    CHECK(wrong_final == 0);
+    CHECK(backwards == 0);
+    // Engine B holds every partition now.
+    for (const auto& [p, owner] : lease_owners(lease_bucket.get(), layout))
+        CHECK(owner == "engine-b");
+    std::cout << "cluster failover: " << affected.size() << " of " << expected.size()
+              << " matches on the killed engine; longest gap from the kill to their next update "
+              << longest_gap_ms << " ms (lease " << kLeaseMs << " ms)" << std::endl;
+    CHECK(b->stop() == std::optional<int>(0));
+}
