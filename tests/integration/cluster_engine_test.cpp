@@ -4,7 +4,9 @@
 // in order, equal to the in-process engine's, and the latest-state bucket holds each match's
 // last one. With one engine killed (SIGKILL) mid-feed the other takes its partitions, rebuilds
 // them from the stream, never sends an output sequence backwards, and ends every match in the
-// state an uninterrupted run ends it in. No timed assertions: deadlines only bound a hung run;
+// state an uninterrupted run ends it in. The same feed through serve (ZeroMQ) and through the
+// engines gives the same update bytes, match by match, apart from the timestamps: both run the
+// one service core. No timed assertions: deadlines only bound a hung run;
 // the longest gap after the kill is printed (ctest -V), not asserted.
 #include <catch2/catch.hpp>
 
@@ -25,12 +27,6 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 constexpr int kLeaseMs = 1500;
-
-std::vector<std::string> servers_of(const NatsCluster& nats) {
-    std::vector<std::string> urls;
-    for (int i = 0; i < nats.size(); ++i) urls.push_back(nats.url(i));
-    return urls;
-}
 
 std::unique_ptr<ChildProcess> start_engine(const std::filesystem::path& dir,
                                            const NatsCluster& nats, const std::string& name) {
@@ -94,6 +90,7 @@ std::map<std::uint32_t, std::string> wait_for_split(kvStore* leases,
 struct Received {
     protocol::DecodedUpdate update;
     Clock::time_point at;
+    std::vector<std::uint8_t> bytes;  // as published
 };
 
 // Every update on every match subject, read in the test's thread.
@@ -120,7 +117,10 @@ public:
             auto decoded = protocol::decode_update(
                 {data, static_cast<std::size_t>(natsMsg_GetDataLength(raw))});
             REQUIRE(decoded.ok());
-            by_match_[decoded.value->meta.match_id].push_back({*decoded.value, Clock::now()});
+            by_match_[decoded.value->meta.match_id].push_back(
+                {*decoded.value, Clock::now(),
+                 std::vector<std::uint8_t>(
+                     data, data + static_cast<std::size_t>(natsMsg_GetDataLength(raw)))});
         }
     }
     std::map<std::uint64_t, std::vector<Received>>& by_match() { return by_match_; }
@@ -129,6 +129,12 @@ private:
     cluster::SubscriptionHandle sub_;
     std::map<std::uint64_t, std::vector<Received>> by_match_;
 };
+
+// The test's subscriber stays off node 0, which a test may kill: core NATS delivers nothing to a
+// subscriber while it reconnects.
+std::vector<std::string> subscriber_servers(const NatsCluster& nats) {
+    return {nats.url(1), nats.url(2)};
+}
 
 kvStore* open_bucket(jsCtx* js, const std::string& name) {
     kvStore* bucket = nullptr;
@@ -143,8 +149,9 @@ kvStore* open_bucket(jsCtx* js, const std::string& name) {
 // split the partitions between them.
 struct TwoEngines {
     explicit TwoEngines(const std::string& name)
-        : dir(scratch_dir(name)), nats(dir), client(servers_of(nats)), collector(client, layout),
-          a(start_engine(dir, nats, "engine-a")), b(start_engine(dir, nats, "engine-b")),
+        : dir(scratch_dir(name)), nats(dir), client(subscriber_servers(nats)),
+          collector(client, layout), a(start_engine(dir, nats, "engine-a")),
+          b(start_engine(dir, nats, "engine-b")),
           lease_bucket(open_bucket(client.jetstream(), layout.lease_bucket)),
           owners(wait_for_split(lease_bucket.get(), layout, {"engine-a", "engine-b"})) {}
     std::filesystem::path dir;
@@ -156,6 +163,48 @@ struct TwoEngines {
     cluster::KvStoreHandle lease_bucket;
     std::map<std::uint32_t, std::string> owners;  // partition -> engine, once split
 };
+
+// Every match update serve publishes on its PUB socket, as published, until `count` arrived or
+// the deadline passed.
+std::map<std::uint64_t, std::vector<std::vector<std::uint8_t>>> read_serve_updates(
+    TestSubscriber& subscriber, std::size_t count, std::chrono::seconds limit) {
+    std::map<std::uint64_t, std::vector<std::vector<std::uint8_t>>> by_match;
+    std::size_t got = 0;
+    const auto deadline = Clock::now() + limit;
+    while (got < count && Clock::now() < deadline) {
+        zmq::pollitem_t item{subscriber.socket().handle(), 0, ZMQ_POLLIN, 0};
+        if (zmq::poll(&item, 1, 50ms) <= 0) continue;
+        zmq::message_t topic, body;
+        REQUIRE(subscriber.socket().recv(topic));
+        REQUIRE(topic.more());
+        REQUIRE(subscriber.socket().recv(body));
+        if (topic.to_string_view() == transport::kCountersTopic) continue;
+        const auto decoded = protocol::decode_update({body.data<std::uint8_t>(), body.size()});
+        REQUIRE(decoded.ok());
+        const auto* p = body.data<std::uint8_t>();
+        by_match[decoded.value->meta.match_id].emplace_back(p, p + body.size());
+        ++got;
+    }
+    return by_match;
+}
+
+// The bytes of an update that hold its three timestamps (receive and publish time, compute
+// time): the update encoded twice with timestamps differing in every byte, compared.
+std::vector<bool> timestamp_bytes(const protocol::DecodedUpdate& update) {
+    protocol::DecodedUpdate a = update, b = update;
+    a.meta.receive_time_us = a.meta.publish_time_us = 0x0101'0101'0101'0101;
+    a.meta.compute_ns = 0x0101'0101;
+    b.meta.receive_time_us = b.meta.publish_time_us = 0x0202'0202'0202'0202;
+    b.meta.compute_ns = 0x0202'0202;
+    protocol::UpdateEncoder encoder;
+    const auto first = encoder.encode(a.meta, a.outputs);
+    const std::vector<std::uint8_t> kept(first.begin(), first.end());
+    const auto second = encoder.encode(b.meta, b.outputs);
+    REQUIRE(second.size() == kept.size());
+    std::vector<bool> mask(kept.size());
+    for (std::size_t i = 0; i < kept.size(); ++i) mask[i] = kept[i] != second[i];
+    return mask;
+}
 
 std::map<std::uint64_t, std::vector<core::InboundMessage>> invented_matches(std::uint64_t first,
                                                                             int count) {
@@ -228,6 +277,78 @@ TEST_CASE(
     CHECK(stale == 0);
 
     // Both engines did some of the work, and both stop cleanly on SIGTERM.
+    CHECK(a->stop() == std::optional<int>(0));
+    CHECK(b->stop() == std::optional<int>(0));
+}
+
+TEST_CASE(
+    "serve and the cluster engines run one service core: the same feed gives the same update "
+    "bytes, apart from the timestamps",
+    "[sockets]") {
+    const auto matches = invented_matches(2101, 12);
+    std::vector<core::InboundMessage> feed;
+    std::size_t updates = 0;
+    for (const auto& [id, messages] : matches) {
+        feed.insert(feed.end(), messages.begin(), messages.end());
+        updates += engine_outputs(messages).size();
+    }
+
+    // The single-machine service over ZeroMQ; no ticks in either run (they depend on when the
+    // timer fires), so every update is one a feed message caused.
+    TwoEngines run("cluster-same-bytes");
+    auto& [dir, nats, layout, client, collector, a, b, lease_bucket, owners] = run;
+    ServeProcess serve(dir, "serve", {"--tick-ms", "3600000", "--counters-ms", "200"});
+    zmq::context_t context;
+    TestSubscriber subscriber(context, serve.publish(), std::string(transport::kMatchTopicPrefix));
+    REQUIRE(subscriber.next_counters(20s).has_value());
+    write_frames(dir / "serve-feed.frames", feed);
+    ChildProcess send({liveprob_binary().string(), "send", "--to", serve.ingest(),
+                       (dir / "serve-feed.frames").string()},
+                      dir / "serve-send.out", dir / "serve-send.err");
+    REQUIRE(send.wait(60s) == std::optional<int>(0));
+    const auto from_serve = read_serve_updates(subscriber, updates, 30s);
+
+    // The same feed through the cluster (two engines, each partition's own core).
+    run_send(dir, "cluster-feed", nats, feed);
+    collector.read_until(
+        [&](const auto& got) {
+            std::size_t n = 0;
+            for (const auto& [id, list] : got) n += list.size();
+            return n >= updates;
+        },
+        30s);
+    collector.read_until([](const auto&) { return false; }, 1s);  // anything more arrives now
+
+    REQUIRE(from_serve.size() == matches.size());
+    int compared = 0, differing = 0;
+    for (const auto& [id, serve_updates] : from_serve) {
+        const auto& cluster_updates = collector.by_match()[id];
+        INFO("match " << id << ": serve " << serve_updates.size() << " updates, cluster "
+                      << cluster_updates.size());
+        REQUIRE(serve_updates.size() == cluster_updates.size());
+        for (std::size_t i = 0; i < serve_updates.size(); ++i) {
+            const auto& ours = serve_updates[i];
+            const auto& theirs = cluster_updates[i].bytes;
+            const auto decoded = protocol::decode_update({ours.data(), ours.size()});
+            REQUIRE(decoded.ok());
+            // The mask applies to the bytes as published: re-encoding them reproduces them.
+            protocol::UpdateEncoder encoder;
+            const auto again = encoder.encode(decoded.value->meta, decoded.value->outputs);
+            REQUIRE(std::vector<std::uint8_t>(again.begin(), again.end()) == ours);
+            const std::vector<bool> timestamps = timestamp_bytes(*decoded.value);
+            // Two 8-byte times and a 4-byte duration: nothing else is left out of the comparison.
+            REQUIRE(std::count(timestamps.begin(), timestamps.end(), true) == 20);
+            REQUIRE(theirs.size() == ours.size());
+            for (std::size_t k = 0; k < ours.size(); ++k) {
+                if (!timestamps[k] && ours[k] != theirs[k]) ++differing;
+            }
+            ++compared;
+        }
+    }
+    std::cout << "serve and cluster: " << compared << " updates of " << from_serve.size()
+              << " matches compared byte for byte, " << differing << " bytes differ" << std::endl;
+    CHECK(compared == static_cast<int>(updates));
+    CHECK(differing == 0);
     CHECK(a->stop() == std::optional<int>(0));
     CHECK(b->stop() == std::optional<int>(0));
 }

@@ -77,6 +77,23 @@ TEST_CASE("configuration: every error names the key and the reason", "[unit][ser
     CHECK_NOTHROW(validate_service_config(silence));
 }
 
+TEST_CASE("configuration: cluster mode refuses what the feed stream and the leases replace",
+          "[unit][serve]") {
+    CHECK(error_of(R"({"cluster_servers": "tcp://127.0.0.1:4222"})")
+              .find("svc.json: cluster_servers: must be nats://host:port URLs") == 0);
+    CHECK(error_of(R"({"cluster_engine_name": "engine a"})") ==
+          "svc.json: cluster_engine_name: letters, digits, - and _ only");
+    ServiceConfig cluster;
+    cluster.cluster_servers = "nats://127.0.0.1:4222,nats://127.0.0.1:4223";
+    CHECK_NOTHROW(validate_service_config(cluster));
+    ServiceConfig journaled = cluster;
+    journaled.journal_path = "journal";
+    CHECK_THROWS_WITH(validate_service_config(journaled), Catch::StartsWith("journal_path:"));
+    ServiceConfig sharded = cluster;
+    sharded.shard = "1/2";
+    CHECK_THROWS_WITH(validate_service_config(sharded), Catch::StartsWith("shard:"));
+}
+
 TEST_CASE("configuration: flags and file values are checked alike, by the one key table",
           "[unit][serve]") {
     ServiceConfig c;

@@ -12,9 +12,8 @@
 #include "liveprob/cluster/cluster_setup.hpp"
 #include "liveprob/cluster/nats_client.hpp"
 #include "liveprob/cluster/partition_leases.hpp"
-#include "liveprob/protocol/feed_codec.hpp"
-#include "liveprob/protocol/update_codec.hpp"
-#include "liveprob/system/wall_clock.hpp"
+#include "liveprob/service/host_clock.hpp"
+#include "liveprob/service/service_core.hpp"
 
 namespace liveprob::cluster {
 namespace {
@@ -23,10 +22,11 @@ using Clock = std::chrono::steady_clock;
 // The loop looks at its stop flag at least this often (a signal handler only sets the flag).
 constexpr auto kLongestWait = std::chrono::milliseconds(100);
 
-struct Counters {
-    std::uint64_t messages = 0, rejected = 0, misrouted = 0, stale = 0;
-    std::uint64_t updates = 0, ticks = 0, fenced = 0, retired = 0;
-    std::uint64_t gained = 0, lost = 0;
+// What only the engine sees; the rest is counted by each partition's service core.
+struct EngineCounters {
+    std::uint64_t stale_deliveries = 0;  // from a subscription dropped since
+    std::uint64_t fenced = 0;            // updates withheld while a lease was in doubt
+    std::uint64_t gained = 0, lost = 0;  // partitions taken and dropped
 };
 
 }  // namespace
@@ -57,12 +57,26 @@ struct ClusterEngine::Impl {
         std::uint32_t partition;
         std::uint64_t generation;
     };
-    struct Partition {
-        Partition(std::uint64_t g, const core::ModelParams& params,
-                  const service::RegistryLimits& limits)
-            : generation(g), registry(params, limits) {}
+    // A held partition: its own service core (the rules serve runs, with the stream in place of
+    // the journal: no record log, since a message is durable on a quorum before it arrives, and
+    // no acknowledgements, which the stream gave the feed) and the consumer that feeds it.
+    struct Partition final : service::ServiceActions {
+        Partition(Impl& e, std::uint32_t p, std::uint64_t g, service::CoreSettings settings)
+            : engine(e), partition(p), generation(g),
+              core(e.params, std::move(settings), e.clock, *this, nullptr) {}
+        void publish_update(const protocol::UpdateMeta& meta,
+                            std::span<const std::uint8_t> update) override {
+            engine.publish_update(partition, meta, update);
+        }
+        // The engine sums every partition's counters (log_counters()).
+        void publish_counters(std::span<const std::uint8_t>) override {}
+        // Never called: the core is given no deliveries to acknowledge.
+        void acknowledge(std::string_view, std::span<const std::uint8_t>) override {}
+
+        Impl& engine;
+        std::uint32_t partition;
         std::uint64_t generation;
-        service::MatchRegistry registry;
+        service::ServiceCore core;
         SubscriptionHandle subscription;
         bool caught_up = false;
         std::uint64_t end_seq = 0;  // the partition's last stream sequence when taken
@@ -97,7 +111,13 @@ struct ClusterEngine::Impl {
     }
 
     void take(std::uint32_t p, Clock::time_point now) {
-        auto state = std::make_unique<Partition>(++generations, params, options.limits);
+        service::CoreSettings settings = options.core;
+        // A message published by hand on another partition's subject is refused and counted
+        // (`ingest.not_our_shard`), as serve refuses another shard's.
+        settings.owns = [layout = options.layout, p](std::uint64_t id) {
+            return partition_of(layout, id) == p;
+        };
+        auto state = std::make_unique<Partition>(*this, p, ++generations, std::move(settings));
         state->taken_at = now;
         const std::string subject = feed_subject(options.layout, p);
         natsMsg* last = nullptr;
@@ -141,14 +161,25 @@ struct ClusterEngine::Impl {
         }
     }
 
+    // A taken partition's history goes through the core as a restart's journal does (folded,
+    // not published); once the stream's end as of the take is reached, each rebuilt match is
+    // published once, its output sequence going on from the wall clock (finish_restore()).
+    // After that, every message is ingested as serve ingests it.
     void handle(const Delivery& d) {
         MsgHandle owned(d.message);
         const auto it = partitions.find(d.partition);
         if (it == partitions.end() || it->second->generation != d.generation) {
-            ++counters.stale;  // from a subscription dropped since
+            ++counters.stale_deliveries;
             return;
         }
         Partition& part = *it->second;
+        const std::span<const std::uint8_t> bytes{
+            reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(d.message)),
+            static_cast<std::size_t>(natsMsg_GetDataLength(d.message))};
+        if (part.caught_up) {
+            (void)part.core.ingest(bytes);
+            return;
+        }
         std::uint64_t stream_seq = 0, pending = 1;
         jsMsgMetaData* meta = nullptr;
         if (natsMsg_GetMetaData(&meta, d.message) == NATS_OK) {
@@ -156,62 +187,27 @@ struct ClusterEngine::Impl {
             pending = meta->NumPending;
             jsMsgMetaData_Destroy(meta);
         }
-        const auto received_at = Clock::now();
-        const std::int64_t receive_us = system::wall_clock_us();
-        const auto* data = reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(d.message));
-        const auto decoded = protocol::decode_feed_message(
-            {data, static_cast<std::size_t>(natsMsg_GetDataLength(d.message))});
-        ++counters.messages;
-        if (!decoded.message) {
-            ++counters.rejected;
-        } else if (partition_of(options.layout, decoded.message->header.match_id) != d.partition) {
-            ++counters.misrouted;  // published by hand on the wrong subject
-        } else {
-            touched.clear();
-            (void)part.registry.handle(*decoded.message, receive_us, received_at, touched);
-            if (part.caught_up) {
-                for (const std::uint64_t id : touched) {
-                    if (auto* m = part.registry.find(id))
-                        publish(d.partition, *m, false, received_at);
-                }
-            }
+        part.core.restore(bytes);
+        if (stream_seq >= part.end_seq || pending == 0) {
+            part.caught_up = true;
+            part.core.finish_restore();
+            spdlog::info(
+                "partition {}: rebuilt {} matches in {} ms", d.partition,
+                part.core.registry().matches().size(),
+                std::chrono::duration_cast<std::chrono::milliseconds>(Clock::now() - part.taken_at)
+                    .count());
         }
-        if (!part.caught_up && (stream_seq >= part.end_seq || pending == 0))
-            caught_up(d.partition, part);
     }
 
-    // The rebuilt partition's matches go on from the wall clock in microseconds and are
-    // published once each.
-    void caught_up(std::uint32_t p, Partition& part) {
-        part.caught_up = true;
-        const auto restart_seq = static_cast<std::uint64_t>(system::wall_clock_us());
-        const auto now = Clock::now();
-        for (auto& [id, m] : part.registry.matches()) {
-            m.output_seq = std::max(m.output_seq, restart_seq);
-            publish(p, m, false, now);
-        }
-        spdlog::info(
-            "partition {}: rebuilt {} matches in {} ms", p, part.registry.matches().size(),
-            std::chrono::duration_cast<std::chrono::milliseconds>(now - part.taken_at).count());
-    }
-
-    void publish(std::uint32_t p, service::LiveMatch& m, bool tick, Clock::time_point started) {
+    // The core's update, on the match's subject and into the latest-state bucket; withheld
+    // while this engine's lease on the partition is in doubt (fencing: another engine may
+    // hold it by now).
+    void publish_update(std::uint32_t p, const protocol::UpdateMeta& meta,
+                        std::span<const std::uint8_t> bytes) {
         if (!leases->fenced_in(p, Clock::now())) {
-            ++counters.fenced;  // the lease is in doubt: another engine may own it by now
+            ++counters.fenced;
             return;
         }
-        m.match.price_into(outputs);
-        ++m.output_seq;
-        protocol::UpdateMeta meta;
-        meta.match_id = m.match.match_id();
-        meta.output_seq = m.output_seq;
-        meta.input_seq = m.input_seq;
-        meta.receive_time_us = tick ? 0 : m.receive_time_us;
-        meta.compute_ns = static_cast<std::uint32_t>(std::min<std::int64_t>(
-            std::chrono::duration_cast<std::chrono::nanoseconds>(Clock::now() - started).count(),
-            0xFFFF'FFFF));
-        meta.publish_time_us = system::wall_clock_us();
-        const auto bytes = encoder.encode(meta, outputs);
         const std::string subject = update_subject(options.layout, meta.match_id);
         natsConnection_Publish(client.connection(), subject.c_str(), bytes.data(),
                                static_cast<int>(bytes.size()));
@@ -220,18 +216,11 @@ struct ClusterEngine::Impl {
         const std::string key = latest_prefix + latest_key(meta.match_id);
         natsConnection_Publish(client.connection(), key.c_str(), bytes.data(),
                                static_cast<int>(bytes.size()));
-        ++(tick ? counters.ticks : counters.updates);
     }
 
-    void tick(Clock::time_point now) {
+    void tick() {
         for (auto& [p, part] : partitions) {
-            if (!part->caught_up) continue;
-            for (auto& [id, m] : part->registry.matches()) {
-                if (!m.live()) continue;
-                part->registry.advance(m, now);
-                publish(p, m, true, now);
-            }
-            counters.retired += part->registry.retire(Clock::now()).matches;
+            if (part->caught_up) part->core.tick();
         }
     }
 
@@ -241,17 +230,23 @@ struct ClusterEngine::Impl {
         for (const std::uint32_t p : changes.gained) take(p, now);
     }
 
+    // The partitions' cores' counters summed (those of partitions held now), beside the
+    // engine's own.
     void log_counters() {
-        std::size_t matches = 0;
-        for (const auto& [p, part] : partitions) matches += part->registry.matches().size();
+        std::map<std::string, std::uint64_t> sums;
+        for (const auto& [p, part] : partitions) {
+            for (const auto& [name, value] : part->core.counter_values()) sums[name] += value;
+        }
+        std::string line;
+        for (const auto& [name, value] : sums) {
+            if (value != 0) line += fmt::format(" {}={}", name, value);
+        }
         spdlog::info(
-            "engine {}: {} partitions of {} ({} engines), {} matches; messages {}, rejected {}, "
-            "misrouted {}, updates {}, ticks {}, withheld while fenced {}, retired {}, taken {}, "
-            "dropped {}",
+            "engine {}: {} partitions of {} ({} engines); taken {}, dropped {}, withheld while "
+            "fenced {}, stale deliveries {}; counters:{}",
             options.engine_name, partitions.size(), options.layout.partitions,
-            leases->live_engines(), matches, counters.messages, counters.rejected,
-            counters.misrouted, counters.updates, counters.ticks, counters.fenced, counters.retired,
-            counters.gained, counters.lost);
+            leases->live_engines(), counters.gained, counters.lost, counters.fenced,
+            counters.stale_deliveries, line);
     }
 
     void run() {
@@ -269,7 +264,7 @@ struct ClusterEngine::Impl {
                 next_renew = now + leases->renew_interval();
             }
             if (now >= next_tick) {
-                tick(now);
+                tick();
                 next_tick = now + options.tick_interval;
             }
             if (now >= next_counters) {
@@ -297,6 +292,7 @@ struct ClusterEngine::Impl {
 
     ClusterEngineOptions options;
     core::ModelParams params;
+    service::HostClock clock;
     // What the client's callbacks touch outlives the client (declared before it, so destroyed
     // after it).
     std::mutex mutex;
@@ -311,10 +307,7 @@ struct ClusterEngine::Impl {
     std::map<std::uint32_t, std::unique_ptr<Partition>> partitions;
     std::uint64_t generations = 0;
     std::atomic<bool> stopping{false};
-    protocol::UpdateEncoder encoder;
-    core::Outputs outputs;
-    std::vector<std::uint64_t> touched;
-    Counters counters;
+    EngineCounters counters;
 };
 
 ClusterEngine::ClusterEngine(ClusterEngineOptions options, core::ModelParams params)

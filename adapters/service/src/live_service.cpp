@@ -14,9 +14,9 @@
 #include "liveprob/files/final_state_file.hpp"
 #include "liveprob/files/journal.hpp"
 #include "liveprob/protocol/ingest_ack_codec.hpp"
+#include "liveprob/service/host_clock.hpp"
 #include "liveprob/service/journal_record_log.hpp"
 #include "liveprob/service/service_core.hpp"
-#include "liveprob/system/wall_clock.hpp"
 #include "liveprob/transport/curve_keys.hpp"
 #include "liveprob/transport/message_parts.hpp"
 #include "liveprob/transport/reactor_socket.hpp"
@@ -51,12 +51,6 @@ void make_curve_server(zmq::socket_t& socket, const std::string& secret_z85, con
 std::span<const std::uint8_t> bytes_of(const zmq::message_t& m) {
     return {m.data<std::uint8_t>(), m.size()};
 }
-
-// The host's clocks, for the core.
-class HostClock final : public ServiceClock {
-public:
-    ServiceTime now() override { return {SteadyClock::now(), system::wall_clock_us()}; }
-};
 
 }  // namespace
 

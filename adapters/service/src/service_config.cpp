@@ -393,6 +393,8 @@ void validate_service_config(const ServiceConfig& c) {
     }
     if (!c.cluster_servers.empty() && !c.journal_path.empty())
         throw ConfigError("journal_path: not in cluster mode (the feed stream is the journal)");
+    if (!c.cluster_servers.empty() && protocol::parse_shard_spec(c.shard).count > 1)
+        throw ConfigError("shard: not in cluster mode (engines share the partitions by lease)");
     // Two sockets cannot bind one fixed endpoint ("*" ports are distinct by construction).
     const auto clash = [](const std::string& a, const std::string& b) {
         return a == b && a.find('*') == std::string::npos;

@@ -15,6 +15,7 @@
 #include "liveprob/monitoring/log_format.hpp"
 #include "liveprob/service/live_service.hpp"
 #include "liveprob/service/service_config.hpp"
+#include "liveprob/service/service_core.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -57,8 +58,7 @@ int run_cluster_engine(const service::ServiceConfig& config, const core::ModelPa
     options.lease_time = std::chrono::milliseconds(config.cluster_lease_ms);
     options.tick_interval = std::chrono::milliseconds(config.tick_interval_ms);
     options.counters_interval = std::chrono::milliseconds(config.counters_interval_ms);
-    options.limits = {std::chrono::seconds(config.retention_s),
-                      std::chrono::seconds(config.waiting_ttl_s), config.match_message_cap};
+    options.core = service::core_settings(config);
     cluster::ClusterEngine engine(options, params);
     g_cluster_engine = &engine;
     struct sigaction action {};

@@ -1,12 +1,14 @@
 // `serve` in cluster mode: the engine process of a NATS JetStream cluster. It holds leases on a
 // share of the feed stream's partitions (partition_leases.hpp), reads each held partition from
-// the start of the stream (an ordered consumer), folds every message through the same
-// MatchRegistry as the single-machine service, and publishes every update on the match's
-// subject (core NATS) and the latest one in the latest-state bucket (history 1). A partition it
-// takes is rebuilt silently until the stream's end, then each of its matches is published once,
-// with an output sequence that goes on from the wall clock in microseconds (as a restarted
-// serve does), so sequences never go back across a takeover. One thread folds and publishes; the
-// client's threads only hand messages over.
+// the start of the stream (an ordered consumer) and runs one service core per partition
+// (service/service_core.hpp: the very rules serve runs, so the same feed gives the same update
+// bytes). The stream stands in for serve's journal: a taken partition's history is restored
+// through the core without publishing until the stream's end, then each of its matches is
+// published once with an output sequence that goes on from the wall clock in microseconds (as a
+// restarted serve does), so sequences never go back across a takeover. Every update goes on the
+// match's subject (core NATS) and into the latest-state bucket (history 1), unless the engine's
+// lease on the partition is in doubt (fencing). One thread folds and publishes; the client's
+// threads only hand messages over.
 #pragma once
 
 #include <atomic>
@@ -17,7 +19,7 @@
 
 #include "liveprob/cluster/cluster_layout.hpp"
 #include "liveprob/core/params.hpp"
-#include "liveprob/service/match_registry.hpp"
+#include "liveprob/service/service_core.hpp"
 
 namespace liveprob::cluster {
 
@@ -28,7 +30,9 @@ struct ClusterEngineOptions {
     std::chrono::milliseconds lease_time{5000};
     std::chrono::milliseconds tick_interval{1000};
     std::chrono::milliseconds counters_interval{5000};
-    service::RegistryLimits limits;
+    // The core's limits and silence thresholds (service::core_settings()); `owns` is set per
+    // partition by the engine.
+    service::CoreSettings core;
 };
 
 class ClusterEngine {
