@@ -21,11 +21,14 @@ namespace {
 using Clock = std::chrono::steady_clock;
 // The loop looks at its stop flag at least this often (a signal handler only sets the flag).
 constexpr auto kLongestWait = std::chrono::milliseconds(100);
+// How long an engine starting tries to find or make the stream and buckets.
+constexpr auto kSetupPatience = std::chrono::seconds(60);
 
 // What only the engine sees; the rest is counted by each partition's service core.
 struct EngineCounters {
     std::uint64_t stale_deliveries = 0;  // from a subscription dropped since
-    std::uint64_t fenced = 0;            // updates withheld while a lease was in doubt
+    std::uint64_t held_back = 0;         // messages held while a lease was in doubt
+    std::uint64_t open_failed = 0;       // tries to start reading a partition that failed
     std::uint64_t gained = 0, lost = 0;  // partitions taken and dropped
 };
 
@@ -66,7 +69,7 @@ struct ClusterEngine::Impl {
               core(e.params, std::move(settings), e.clock, *this, nullptr) {}
         void publish_update(const protocol::UpdateMeta& meta,
                             std::span<const std::uint8_t> update) override {
-            engine.publish_update(partition, meta, update);
+            engine.publish_update(meta, update);
         }
         // The engine sums every partition's counters (log_counters()).
         void publish_counters(std::span<const std::uint8_t>) override {}
@@ -77,7 +80,10 @@ struct ClusterEngine::Impl {
         std::uint32_t partition;
         std::uint64_t generation;
         service::ServiceCore core;
-        SubscriptionHandle subscription;
+        SubscriptionHandle subscription;  // null until the partition could be opened
+        // Messages that arrived while the lease was in doubt, applied in order once it is
+        // renewed (or dropped with the partition): nothing is folded that cannot be published.
+        std::deque<MsgHandle> held_back;
         bool caught_up = false;
         std::uint64_t end_seq = 0;  // the partition's last stream sequence when taken
         Clock::time_point taken_at;
@@ -86,10 +92,39 @@ struct ClusterEngine::Impl {
     Impl(ClusterEngineOptions o, core::ModelParams p)
         : options(std::move(o)), params(std::move(p)),
           client(options.servers, {.name = "liveprob engine " + options.engine_name}) {
-        ensure_feed_stream(client.jetstream(), options.layout);
-        latest = ensure_latest_bucket(client.jetstream(), options.layout);
-        lease_bucket = ensure_lease_bucket(client.jetstream(), options.layout, options.lease_time);
-        leases.emplace(lease_bucket.get(), options.layout, options.engine_name, options.lease_time);
+        // A cluster just started, or one electing a leader, may not answer at once: the set-up
+        // is tried again for a while (a stream of another layout is refused at once).
+        const auto give_up = Clock::now() + kSetupPatience;
+        while (true) {
+            try {
+                ensure_feed_stream(client.jetstream(), options.layout);
+                latest = ensure_latest_bucket(client.jetstream(), options.layout);
+                lease_bucket =
+                    ensure_lease_bucket(client.jetstream(), options.layout, options.lease_time);
+                break;
+            } catch (const LayoutMismatch&) {
+                throw;
+            } catch (const NatsError& e) {
+                if (Clock::now() >= give_up) throw;
+                spdlog::warn("engine {}: {}; trying again", options.engine_name, e.what());
+            }
+        }
+        // The requests the loop makes while running (renewals, opening a partition) wait at most
+        // a renewal interval: a cluster in an election must not hold the loop up for the client's
+        // default timeout per request.
+        jsOptions quick;
+        jsOptions_Init(&quick);
+        quick.Wait = std::max<std::int64_t>(100, options.lease_time.count() / 4);
+        jsCtx* js = nullptr;
+        check(natsConnection_JetStream(&js, client.connection(), &quick), "JetStream context");
+        quick_js.reset(js);
+        kvStore* bucket = nullptr;
+        natsStatus opened = NATS_TIMEOUT;
+        for (int attempt = 0; attempt < 20 && opened != NATS_OK; ++attempt)
+            opened = js_KeyValue(&bucket, quick_js.get(), options.layout.lease_bucket.c_str());
+        check(opened, "lease bucket");
+        quick_leases.reset(bucket);
+        leases.emplace(quick_leases.get(), options.layout, options.engine_name, options.lease_time);
         latest_prefix = fmt::format("$KV.{}.", options.layout.latest_bucket);
     }
 
@@ -119,36 +154,61 @@ struct ClusterEngine::Impl {
         };
         auto state = std::make_unique<Partition>(*this, p, ++generations, std::move(settings));
         state->taken_at = now;
+        spdlog::info("partition {}: taken (lease revision {})", p, leases->revision(p));
+        partitions[p] = std::move(state);
+        ++counters.gained;
+    }
+
+    // Starts reading a held partition from the start of its stream: true once reading. On a
+    // cluster that does not answer (an election) it fails and is tried again at the next
+    // renewal; the lease is kept meanwhile.
+    bool open(std::uint32_t p, Partition& part) {
         const std::string subject = feed_subject(options.layout, p);
         natsMsg* last = nullptr;
+        jsErrCode code = static_cast<jsErrCode>(0);
         const natsStatus found =
-            js_GetLastMsg(&last, client.jetstream(), options.layout.feed_stream.c_str(),
-                          subject.c_str(), nullptr, nullptr);
+            js_GetLastMsg(&last, quick_js.get(), options.layout.feed_stream.c_str(),
+                          subject.c_str(), nullptr, &code);
         if (found == NATS_OK) {
-            state->end_seq = natsMsg_GetSequence(last);
+            part.end_seq = natsMsg_GetSequence(last);
             natsMsg_Destroy(last);
+        } else if (found == NATS_NOT_FOUND || code == JSNoMessageFoundErr) {
+            part.caught_up = true;  // nothing to rebuild
         } else {
-            state->caught_up = true;  // nothing to rebuild
+            ++counters.open_failed;
+            spdlog::warn("partition {}: cannot find the end of {} ({}); trying again", p, subject,
+                         natsStatus_GetText(found));
+            return false;
         }
-        routes.push_back(std::make_unique<Route>(Route{this, p, state->generation}));
+        routes.push_back(std::make_unique<Route>(Route{this, p, part.generation}));
         jsSubOptions sub_options;
         jsSubOptions_Init(&sub_options);
         sub_options.Stream = options.layout.feed_stream.c_str();
         sub_options.Ordered = true;
         sub_options.Config.DeliverPolicy = js_DeliverAll;
         natsSubscription* sub = nullptr;
-        const natsStatus s = js_Subscribe(&sub, client.jetstream(), subject.c_str(), on_message,
+        const natsStatus s = js_Subscribe(&sub, quick_js.get(), subject.c_str(), on_message,
                                           routes.back().get(), nullptr, &sub_options, nullptr);
         if (s != NATS_OK) {
-            spdlog::error("partition {}: cannot read {}: {}", p, subject, natsStatus_GetText(s));
-            return;  // not consumed: the lease is renewed but nothing folds (logged)
+            routes.pop_back();  // no subscription holds it
+            ++counters.open_failed;
+            part.caught_up = false;
+            spdlog::warn("partition {}: cannot read {} ({}); trying again", p, subject,
+                         natsStatus_GetText(s));
+            return false;
         }
         natsSubscription_SetPendingLimits(sub, -1, -1);
-        state->subscription.reset(sub);
-        spdlog::info("partition {}: taken (lease revision {}), rebuilding to stream sequence {}", p,
-                     leases->revision(p), state->end_seq);
-        partitions[p] = std::move(state);
-        ++counters.gained;
+        part.subscription.reset(sub);
+        spdlog::info("partition {}: reading, rebuilding to stream sequence {}", p, part.end_seq);
+        return true;
+    }
+
+    // Every held partition not read yet gets a try; after the first failure the rest wait for
+    // the next renewal (each failure costs a request timeout).
+    void open_pending() {
+        for (auto& [p, part] : partitions) {
+            if (!part->subscription && !open(p, *part)) return;
+        }
     }
 
     void drop(std::uint32_t p) {
@@ -173,16 +233,36 @@ struct ClusterEngine::Impl {
             return;
         }
         Partition& part = *it->second;
+        if (!part.held_back.empty() || !leases->fenced_in(d.partition, Clock::now())) {
+            part.held_back.push_back(std::move(owned));
+            ++counters.held_back;
+            return;
+        }
+        apply(d.partition, part, d.message);
+    }
+
+    // Messages held back while a lease was in doubt, applied in order once it is renewed.
+    void release_held_back() {
+        const auto now = Clock::now();
+        for (auto& [p, part] : partitions) {
+            if (part->held_back.empty() || !leases->fenced_in(p, now)) continue;
+            std::deque<MsgHandle> ready;
+            ready.swap(part->held_back);
+            for (const MsgHandle& m : ready) apply(p, *part, m.get());
+        }
+    }
+
+    void apply(std::uint32_t p, Partition& part, natsMsg* message) {
         const std::span<const std::uint8_t> bytes{
-            reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(d.message)),
-            static_cast<std::size_t>(natsMsg_GetDataLength(d.message))};
+            reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(message)),
+            static_cast<std::size_t>(natsMsg_GetDataLength(message))};
         if (part.caught_up) {
             (void)part.core.ingest(bytes);
             return;
         }
         std::uint64_t stream_seq = 0, pending = 1;
         jsMsgMetaData* meta = nullptr;
-        if (natsMsg_GetMetaData(&meta, d.message) == NATS_OK) {
+        if (natsMsg_GetMetaData(&meta, message) == NATS_OK) {
             stream_seq = meta->Sequence.Stream;
             pending = meta->NumPending;
             jsMsgMetaData_Destroy(meta);
@@ -192,22 +272,19 @@ struct ClusterEngine::Impl {
             part.caught_up = true;
             part.core.finish_restore();
             spdlog::info(
-                "partition {}: rebuilt {} matches in {} ms", d.partition,
+                "partition {}: rebuilt {} matches in {} ms", p,
                 part.core.registry().matches().size(),
                 std::chrono::duration_cast<std::chrono::milliseconds>(Clock::now() - part.taken_at)
                     .count());
         }
     }
 
-    // The core's update, on the match's subject and into the latest-state bucket; withheld
-    // while this engine's lease on the partition is in doubt (fencing: another engine may
-    // hold it by now).
-    void publish_update(std::uint32_t p, const protocol::UpdateMeta& meta,
-                        std::span<const std::uint8_t> bytes) {
-        if (!leases->fenced_in(p, Clock::now())) {
-            ++counters.fenced;
-            return;
-        }
+    // The core's update, on the match's subject and into the latest-state bucket. Fencing is
+    // decided once per message (handle(), release_held_back()) and per tick (tick()): a
+    // message is applied only while the lease was renewed within three quarters of its time,
+    // so what it publishes goes out before anyone else may hold the partition, and an update
+    // computed is never withheld (a subscriber would see a gap in its output sequence).
+    void publish_update(const protocol::UpdateMeta& meta, std::span<const std::uint8_t> bytes) {
         const std::string subject = update_subject(options.layout, meta.match_id);
         natsConnection_Publish(client.connection(), subject.c_str(), bytes.data(),
                                static_cast<int>(bytes.size()));
@@ -219,8 +296,12 @@ struct ClusterEngine::Impl {
     }
 
     void tick() {
+        const auto now = Clock::now();
         for (auto& [p, part] : partitions) {
-            if (part->caught_up) part->core.tick();
+            // A partition whose lease is in doubt is not ticked (nothing it would publish may
+            // go out); its next tick after the renewal moves the clocks on.
+            if (part->caught_up && part->held_back.empty() && leases->fenced_in(p, now))
+                part->core.tick();
         }
     }
 
@@ -228,6 +309,8 @@ struct ClusterEngine::Impl {
         const LeaseChanges changes = leases->renew(now);
         for (const std::uint32_t p : changes.lost) drop(p);
         for (const std::uint32_t p : changes.gained) take(p, now);
+        open_pending();
+        release_held_back();
     }
 
     // The partitions' cores' counters summed (those of partitions held now), beside the
@@ -242,11 +325,11 @@ struct ClusterEngine::Impl {
             if (value != 0) line += fmt::format(" {}={}", name, value);
         }
         spdlog::info(
-            "engine {}: {} partitions of {} ({} engines); taken {}, dropped {}, withheld while "
-            "fenced {}, stale deliveries {}; counters:{}",
+            "engine {}: {} partitions of {} ({} engines); taken {}, dropped {}, failed opens {}, "
+            "held back while fenced {}, stale deliveries {}; counters:{}",
             options.engine_name, partitions.size(), options.layout.partitions,
-            leases->live_engines(), counters.gained, counters.lost, counters.fenced,
-            counters.stale_deliveries, line);
+            leases->live_engines(), counters.gained, counters.lost, counters.open_failed,
+            counters.held_back, counters.stale_deliveries, line);
     }
 
     void run() {
@@ -278,7 +361,15 @@ struct ClusterEngine::Impl {
                                    [this] { return !queue.empty() || stopping.load(); });
                 batch.swap(queue);
             }
-            for (const Delivery& d : batch) handle(d);
+            for (const Delivery& d : batch) {
+                handle(d);
+                // A long batch (a rebuild, a burst) must not starve the leases: renewed when due
+                // between two messages, so the engine does not fence itself out for being busy.
+                if (const auto t = Clock::now(); t >= next_renew) {
+                    renew(t);
+                    next_renew = t + leases->renew_interval();
+                }
+            }
             batch.clear();
         }
         log_counters();
@@ -302,6 +393,8 @@ struct ClusterEngine::Impl {
     NatsClient client;
     KvStoreHandle latest;
     KvStoreHandle lease_bucket;
+    JsCtxHandle quick_js;        // short request timeout: the loop's own requests
+    KvStoreHandle quick_leases;  // the lease bucket through quick_js
     std::optional<PartitionLeases> leases;
     std::string latest_prefix;
     std::map<std::uint32_t, std::unique_ptr<Partition>> partitions;

@@ -37,28 +37,64 @@ std::size_t PartitionLeases::count_live_engines() {
     return count == 0 ? 1 : count;
 }
 
+std::optional<std::uint64_t> PartitionLeases::adopt(const std::string& key, bool& answered) {
+    // A write whose reply was lost (a node died after storing it) leaves the key with our name
+    // at a revision we never heard of; the compare-and-set on the revision read here succeeds
+    // only if nobody wrote since, so adopting it cannot take a lease from another engine.
+    kvEntry* raw = nullptr;
+    const natsStatus got = kvStore_Get(&raw, bucket_, key.c_str());
+    if (got == NATS_NOT_FOUND) return std::nullopt;  // expired or given back
+    if (got != NATS_OK) {
+        answered = false;
+        return std::nullopt;
+    }
+    KvEntryHandle entry(raw);
+    if (std::string_view(kvEntry_ValueString(raw)) != name_) return std::nullopt;
+    std::uint64_t revision = 0;
+    const natsStatus s =
+        kvStore_UpdateString(&revision, bucket_, key.c_str(), name_.c_str(), kvEntry_Revision(raw));
+    if (s == NATS_OK) return revision;
+    // The entry names this engine, so nobody else holds the lease: not lost, only unanswered.
+    answered = false;
+    return std::nullopt;
+}
+
 LeaseChanges PartitionLeases::renew(Clock::time_point now) {
     LeaseChanges changes;
+    // While the cluster does not answer (a node lost, an election), each request costs a whole
+    // timeout: after the first unanswered one, the rest of this round is skipped and every
+    // lease stays as it is (unknown), so one slow round cannot hold the engine up for a timeout
+    // per partition.
+    bool answered = true;
     const std::string presence = "engine." + name_;
-    kvStore_PutString(nullptr, bucket_, presence.c_str(), name_.c_str());
-    live_engines_ = count_live_engines();
+    const natsStatus put = kvStore_PutString(nullptr, bucket_, presence.c_str(), name_.c_str());
+    if (no_answer(put)) answered = false;
+    if (answered) live_engines_ = count_live_engines();
 
     for (auto it = held_.begin(); it != held_.end();) {
         const std::string key = lease_key(it->first);
         std::uint64_t revision = 0;
-        const natsStatus s = kvStore_UpdateString(&revision, bucket_, key.c_str(), name_.c_str(),
-                                                  it->second.revision);
-        if (s == NATS_OK) {
-            it->second = {revision, now};
+        natsStatus s = NATS_TIMEOUT;
+        if (answered) {
+            s = kvStore_UpdateString(&revision, bucket_, key.c_str(), name_.c_str(),
+                                     it->second.revision);
+            if (no_answer(s)) answered = false;
+        }
+        std::optional<std::uint64_t> adopted;
+        if (s != NATS_OK && !no_answer(s)) adopted = adopt(key, answered);
+        if (s == NATS_OK || adopted) {
+            it->second = {s == NATS_OK ? revision : *adopted, now};
             ++it;
-        } else if (no_answer(s) && now - it->second.renewed < lease_time_) {
+        } else if (!answered && now - it->second.renewed < lease_time_) {
             ++it;  // unknown: fenced_in() stops acting on it once it is overdue
         } else {
-            spdlog::warn("partition {}: lease lost ({})", it->first, natsStatus_GetText(s));
+            spdlog::warn("partition {}: lease lost ({})", it->first,
+                         answered ? natsStatus_GetText(s) : "not renewed within the lease time");
             changes.lost.push_back(it->first);
             it = held_.erase(it);
         }
     }
+    if (!answered) return changes;  // no giving back or taking on a cluster that is not answering
 
     const std::size_t share = (layout_.partitions + live_engines_ - 1) / live_engines_;
     while (held_.size() > share) {
@@ -69,13 +105,18 @@ LeaseChanges PartitionLeases::renew(Clock::time_point now) {
         changes.lost.push_back(last->first);
         held_.erase(last);
     }
-    for (std::uint32_t i = 0; i < layout_.partitions && held_.size() < share; ++i) {
+    for (std::uint32_t i = 0; i < layout_.partitions && held_.size() < share && answered; ++i) {
         const std::uint32_t p = (start_offset_ + i) % layout_.partitions;
         if (held_.contains(p)) continue;
+        const std::string key = lease_key(p);
         std::uint64_t revision = 0;
-        if (kvStore_CreateString(&revision, bucket_, lease_key(p).c_str(), name_.c_str()) ==
-            NATS_OK) {
-            held_[p] = {revision, now};
+        const natsStatus s = kvStore_CreateString(&revision, bucket_, key.c_str(), name_.c_str());
+        std::optional<std::uint64_t> adopted;
+        if (no_answer(s)) answered = false;
+        else if (s != NATS_OK)
+            adopted = adopt(key, answered);  // ours already, if an earlier create's reply was lost
+        if (s == NATS_OK || adopted) {
+            held_[p] = {s == NATS_OK ? revision : *adopted, now};
             changes.gained.push_back(p);
         }
     }

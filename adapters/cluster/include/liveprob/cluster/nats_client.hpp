@@ -32,7 +32,11 @@ struct KvStoreDeleter {
 struct KvEntryDeleter {
     void operator()(kvEntry* e) const noexcept { kvEntry_Destroy(e); }
 };
+struct JsCtxDeleter {
+    void operator()(jsCtx* js) const noexcept { jsCtx_Destroy(js); }
+};
 using MsgHandle = std::unique_ptr<natsMsg, MsgDeleter>;
+using JsCtxHandle = std::unique_ptr<jsCtx, JsCtxDeleter>;
 using SubscriptionHandle = std::unique_ptr<natsSubscription, SubscriptionDeleter>;
 using KvStoreHandle = std::unique_ptr<kvStore, KvStoreDeleter>;
 using KvEntryHandle = std::unique_ptr<kvEntry, KvEntryDeleter>;

@@ -6,6 +6,10 @@
 // aims at an equal share: ceil(partitions / live engines). An engine over its share gives the
 // highest-numbered extras back; one under it takes free ones, starting at an offset of its own.
 // A dead engine's entries age out after the lease time and the survivors take its partitions.
+// A write whose reply was lost (a node died after storing it) is adopted by a compare-and-set
+// on the revision read back, when the entry names this engine. While the cluster does not
+// answer, the round stops at the first timeout and the leases stay unknown until they are
+// renewed or their time is up.
 // Fencing: an engine treats a lease as its own only until `fence_after` past its last
 // successful renewal (shorter than the lease time), so it has stopped publishing for a partition
 // before any other engine can take it.
@@ -14,6 +18,7 @@
 #include <chrono>
 #include <cstdint>
 #include <map>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -53,6 +58,9 @@ private:
         Clock::time_point renewed;
     };
     std::size_t count_live_engines();
+    // The lease under `key` when its last write was this engine's, renewed now by a
+    // compare-and-set on the revision read; `answered` turns false when the cluster did not.
+    std::optional<std::uint64_t> adopt(const std::string& key, bool& answered);
 
     kvStore* bucket_;
     ClusterLayout layout_;
