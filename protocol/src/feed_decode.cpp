@@ -54,6 +54,7 @@ Problem read_setup(const w::Setup& in, core::MessageBody& body) {
         }
     }
     out.scheduled_kickoff_us = in.scheduled_kickoff_us();
+    out.competition = str(in.competition());
     body = std::move(out);
     return std::nullopt;
 }

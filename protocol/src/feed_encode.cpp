@@ -37,8 +37,10 @@ BodyRef write_setup(flatbuffers::FlatBufferBuilder& fbb, const core::MatchSetup&
         first_leg = w::CreateFirstLeg(fbb, f.first_leg->home_goals, f.first_leg->away_goals);
     const auto format = w::CreateFormat(fbb, f.half_minutes, f.extra_time, f.extra_half_minutes,
                                         f.shootout, first_leg);
+    flatbuffers::Offset<flatbuffers::String> competition;
+    if (!s.competition.empty()) competition = fbb.CreateString(s.competition);
     return ref(w::Body::Setup, w::CreateSetup(fbb, home, away, s.neutral_venue, prior, ratings,
-                                              format, s.scheduled_kickoff_us));
+                                              format, s.scheduled_kickoff_us, competition));
 }
 
 BodyRef write_body(flatbuffers::FlatBufferBuilder& fbb, const core::MessageBody& body) {

@@ -59,7 +59,7 @@ constexpr std::string_view kHeaderFields[] = {"match", "seq", "time_us", "period
 core::MatchSetup read_setup(const JsonFields& f) {
     f.only(kHeaderFields,
            {"home", "away", "neutral", "prior", "ratings", "kickoff_us", "half_minutes",
-            "extra_time", "extra_half_minutes", "shootout", "first_leg"},
+            "extra_time", "extra_half_minutes", "shootout", "first_leg", "competition"},
            "a 'setup' message");
     core::MatchSetup s;
     s.home_name = f.text("home");
@@ -76,6 +76,7 @@ core::MatchSetup read_setup(const JsonFields& f) {
         s.ratings = core::RatingReference{ratings.text("home"), ratings.text("away")};
     }
     s.scheduled_kickoff_us = f.i64_or("kickoff_us", 0);
+    if (f.has("competition")) s.competition = f.text("competition");
     s.format.half_minutes = f.u16_or("half_minutes", s.format.half_minutes);
     s.format.extra_time = f.boolean_or("extra_time", false);
     s.format.extra_half_minutes = f.u16_or("extra_half_minutes", s.format.extra_half_minutes);

@@ -41,6 +41,7 @@ void write_setup(LineWriter& w, const core::MatchSetup& s) {
     if (s.prior) w.pair("prior", s.prior->home_goals, s.prior->away_goals);
     if (s.ratings) w.pair("ratings", s.ratings->home_key, s.ratings->away_key);
     if (s.scheduled_kickoff_us != 0) w.number("kickoff_us", s.scheduled_kickoff_us);
+    if (!s.competition.empty()) w.text("competition", s.competition);
     if (s.format.half_minutes != defaults.half_minutes)
         w.number("half_minutes", s.format.half_minutes);
     w.flag_if("extra_time", s.format.extra_time);

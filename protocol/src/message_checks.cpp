@@ -52,6 +52,9 @@ Problem engine_problem(const std::optional<core::InputProblem>& problem) {
 Problem check_setup(const core::MatchSetup& setup) {
     if (auto p = check_name(setup.home_name, "home")) return p;
     if (auto p = check_name(setup.away_name, "away")) return p;
+    if (setup.competition.size() > kMaxNameBytes) {
+        return bad("competition", fmt::format("longer than {} bytes", kMaxNameBytes));
+    }
     if (!setup.prior && !setup.ratings) {
         return missing("prior", "a setup needs 'prior' or 'ratings'");
     }

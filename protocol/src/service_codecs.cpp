@@ -66,7 +66,11 @@ std::vector<std::uint8_t> encode_reply(const std::string& error_text,
     flatbuffers::FlatBufferBuilder fbb(1024 + updates.size() * 2600);
     std::vector<flatbuffers::Offset<w::Update>> written;
     written.reserve(updates.size());
-    for (const auto& u : updates) written.push_back(detail::write_update(fbb, u.meta, u.outputs));
+    for (const auto& u : updates) {
+        flatbuffers::Offset<w::MatchDetails> details;
+        if (u.details.known) details = detail::write_details(fbb, u.details);
+        written.push_back(detail::write_update(fbb, u.meta, u.outputs, details));
+    }
     const auto error = fbb.CreateString(error_text);
     const auto list = fbb.CreateVector(written);
     fbb.Finish(w::CreateSnapshotReply(fbb, kSchemaMajor, kSchemaMinor, error, list),

@@ -17,8 +17,28 @@ UpdateEncoder::UpdateEncoder() : builder_(kInitialUpdateBytes) {}
 std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta,
                                                     const core::Outputs& outputs) {
     builder_.Clear();  // keeps the buffer it has grown
-    builder_.Finish(detail::write_update(builder_, meta, outputs), wire::UpdateIdentifier());
+    builder_.Finish(detail::write_update(builder_, meta, outputs, 0), wire::UpdateIdentifier());
     return {builder_.GetBufferPointer(), builder_.GetSize()};
+}
+
+std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta,
+                                                    const core::Outputs& outputs,
+                                                    const core::MatchSetup& setup) {
+    builder_.Clear();
+    const auto details = detail::write_details(builder_, setup);
+    builder_.Finish(detail::write_update(builder_, meta, outputs, details),
+                    wire::UpdateIdentifier());
+    return {builder_.GetBufferPointer(), builder_.GetSize()};
+}
+
+MatchDetails details_of(const core::MatchSetup& setup) {
+    return MatchDetails{true,
+                        setup.home_name,
+                        setup.away_name,
+                        setup.competition,
+                        setup.scheduled_kickoff_us,
+                        setup.neutral_venue,
+                        setup.format};
 }
 
 Decoded<DecodedUpdate> decode_update(std::span<const std::uint8_t> bytes) {

@@ -1,5 +1,6 @@
 #include "update_table.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstring>
 
@@ -108,10 +109,66 @@ Problem read_vectors(const w::Update& in, core::Outputs& o) {
     return std::nullopt;
 }
 
+// Both sources of details have the same member names.
+template <class Source>
+flatbuffers::Offset<w::MatchDetails> write_details_of(flatbuffers::FlatBufferBuilder& fbb,
+                                                      const Source& s) {
+    const auto home = fbb.CreateString(s.home_name);
+    const auto away = fbb.CreateString(s.away_name);
+    const auto competition = fbb.CreateString(s.competition);
+    const core::CompetitionFormat& f = s.format;
+    const core::FirstLegResult leg = f.first_leg.value_or(core::FirstLegResult{});
+    return w::CreateMatchDetails(fbb, home, away, competition, s.scheduled_kickoff_us,
+                                 s.neutral_venue, f.half_minutes, f.extra_time,
+                                 f.extra_half_minutes, f.shootout, f.first_leg.has_value(),
+                                 leg.home_goals, leg.away_goals);
+}
+
+std::uint16_t clamp16(int n) { return static_cast<std::uint16_t>(std::clamp(n, 0, 0xFFFF)); }
+
+void read_details(const w::MatchDetails& in, MatchDetails& out) {
+    const auto text = [](const flatbuffers::String* s) { return s ? s->str() : std::string(); };
+    out.known = true;
+    out.home_name = text(in.home_name());
+    out.away_name = text(in.away_name());
+    out.competition = text(in.competition());
+    out.scheduled_kickoff_us = in.scheduled_kickoff_us();
+    out.neutral_venue = in.neutral_venue();
+    out.format.half_minutes = in.half_minutes();
+    out.format.extra_time = in.extra_time();
+    out.format.extra_half_minutes = in.extra_half_minutes();
+    out.format.shootout = in.shootout();
+    if (in.two_legs())
+        out.format.first_leg =
+            core::FirstLegResult{in.first_leg_home_goals(), in.first_leg_away_goals()};
+}
+
+Problem read_shootout(const w::ShootoutKicks& in, core::ShootoutTally& out) {
+    const auto side = static_cast<std::uint8_t>(in.first());
+    if (!is_known_side(side)) return bad("shootout", fmt::format("{} is not a side", side));
+    if (in.home_scored() > in.home_taken() || in.away_scored() > in.away_taken())
+        return bad("shootout", "more kicks scored than taken");
+    out.first = static_cast<core::Side>(side);
+    out.taken = {in.home_taken(), in.away_taken()};
+    out.scored = {in.home_scored(), in.away_scored()};
+    out.scored_bits = {in.home_scored_bits(), in.away_scored_bits()};
+    return std::nullopt;
+}
+
 }  // namespace
 
+flatbuffers::Offset<w::MatchDetails> write_details(flatbuffers::FlatBufferBuilder& fbb,
+                                                   const core::MatchSetup& setup) {
+    return write_details_of(fbb, setup);
+}
+flatbuffers::Offset<w::MatchDetails> write_details(flatbuffers::FlatBufferBuilder& fbb,
+                                                   const MatchDetails& details) {
+    return write_details_of(fbb, details);
+}
+
 flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
-                                            const UpdateMeta& meta, const core::Outputs& o) {
+                                            const UpdateMeta& meta, const core::Outputs& o,
+                                            flatbuffers::Offset<w::MatchDetails> details) {
     const auto p_over = fbb.CreateVector(o.p_over.data(), o.p_over.size());
     const std::size_t n = used_grid_size(o);
     double* cells = nullptr;
@@ -120,6 +177,10 @@ flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
         std::memcpy(cells + i * n, o.goals_added[i].data(), n * sizeof(double));
 
     const w::MatchClock clock(static_cast<w::Period>(o.clock.period), o.clock.clock_ms);
+    const core::ShootoutTally& so = o.shootout;
+    const w::ShootoutKicks shootout(static_cast<w::Side>(so.first), clamp16(so.taken[0]),
+                                    clamp16(so.taken[1]), clamp16(so.scored[0]),
+                                    clamp16(so.scored[1]), so.scored_bits[0], so.scored_bits[1]);
     w::UpdateBuilder b(fbb);
     b.add_schema_major(kSchemaMajor);
     b.add_schema_minor(kSchemaMinor);
@@ -154,6 +215,8 @@ flatbuffers::Offset<w::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
     b.add_events_applied(o.events_applied);
     b.add_feed_stale(meta.feed_stale);
     b.add_journal_failing(meta.journal_failing);
+    if (!details.IsNull()) b.add_details(details);
+    b.add_shootout(&shootout);
     return b.Finish();
 }
 
@@ -184,6 +247,10 @@ std::optional<MessageProblem> read_update(const w::Update& in, DecodedUpdate& ou
     o.home_reds = in.home_reds();
     o.away_reds = in.away_reds();
     o.events_applied = in.events_applied();
+    if (const auto* details = in.details()) read_details(*details, out.details);
+    if (const auto* shootout = in.shootout()) {
+        if (auto p = read_shootout(*shootout, o.shootout)) return p;
+    }
     if (auto p = read_probabilities(in, o)) return p;
     return read_vectors(in, o);
 }

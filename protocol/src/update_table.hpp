@@ -10,9 +10,16 @@
 
 namespace liveprob::protocol::detail {
 
+// The details table, from a setup (the service) or from decoded details (a snapshot reply).
+flatbuffers::Offset<wire::MatchDetails> write_details(flatbuffers::FlatBufferBuilder& fbb,
+                                                      const core::MatchSetup& setup);
+flatbuffers::Offset<wire::MatchDetails> write_details(flatbuffers::FlatBufferBuilder& fbb,
+                                                      const MatchDetails& details);
+
+// `details` may be null (0): the update then names no match.
 flatbuffers::Offset<wire::Update> write_update(flatbuffers::FlatBufferBuilder& fbb,
-                                               const UpdateMeta& meta,
-                                               const core::Outputs& outputs);
+                                               const UpdateMeta& meta, const core::Outputs& outputs,
+                                               flatbuffers::Offset<wire::MatchDetails> details);
 
 // Range checks every field (enums known, numbers finite, probabilities in [0, 1], vectors of
 // the right length) and fills `out`; the problem names the field by its schema name.

@@ -108,6 +108,7 @@ inline std::vector<core::InboundMessage> invented_match(std::uint64_t match_id) 
     core::MatchSetup setup;
     setup.home_name = "Harrow Fen";
     setup.away_name = "Lumen Quay";
+    setup.competition = "Estuary Shield";
     setup.prior = core::PriorMeans{1.55, 1.10};
     std::vector<core::InboundMessage> m;
     std::uint64_t seq = 1;

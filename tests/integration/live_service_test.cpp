@@ -7,6 +7,7 @@
 #include <memory>
 #include <random>
 
+#include "json_probe.hpp"
 #include "live_service_harness.hpp"
 #include "liveprob/protocol/journal_format.hpp"
 #include "liveprob/protocol/json_feed.hpp"
@@ -19,11 +20,9 @@ using namespace liveprob::test;
 
 namespace {
 
-// The value of "key": in one JSON line printed by tap (17 significant digits: exact).
-double json_number(const std::string& line, const std::string& key) {
-    const auto at = line.find("\"" + key + "\":");
-    if (at == std::string::npos) throw std::runtime_error("no " + key + " in " + line);
-    return std::strtod(line.c_str() + at + key.size() + 3, nullptr);
+// One number of an update line in the JSON form (protocol/README.md), by JSON Pointer.
+double json_number(const std::string& line, const std::string& pointer) {
+    return JsonProbe(line).number(pointer);
 }
 
 std::vector<std::string> update_lines(const std::string& text) {
@@ -130,20 +129,26 @@ TEST_CASE("a whole match sent through send and serve reaches tap exactly as the 
     for (std::size_t i = 0; i < lines.size(); ++i) {
         INFO("update " << i << ": " << lines[i]);
         const Outputs& want = expected[i].outputs;
-        CHECK(json_number(lines[i], "input_seq") == static_cast<double>(expected[i].input_seq));
-        CHECK(json_number(lines[i], "output_seq") == static_cast<double>(i + 1));
-        CHECK(json_number(lines[i], "p_home") == want.p_home);
-        CHECK(json_number(lines[i], "p_draw") == want.p_draw);
-        CHECK(json_number(lines[i], "p_away") == want.p_away);
-        CHECK(json_number(lines[i], "expected_home_goals") == want.expected_home_goals);
-        CHECK(json_number(lines[i], "next_goal_none") == want.next_goal_none);
-        CHECK(json_number(lines[i], "home_goals") == want.home_goals);
-        CHECK(json_number(lines[i], "away_goals") == want.away_goals);
-        CHECK(json_number(lines[i], "clock_ms") == want.clock.clock_ms);
+        CHECK(json_number(lines[i], "/feed_seq") == static_cast<double>(expected[i].input_seq));
+        CHECK(json_number(lines[i], "/update_seq") == static_cast<double>(i + 1));
+        CHECK(json_number(lines[i], "/full_time/home") == want.p_home);
+        CHECK(json_number(lines[i], "/full_time/draw") == want.p_draw);
+        CHECK(json_number(lines[i], "/full_time/away") == want.p_away);
+        CHECK(json_number(lines[i], "/final_goals_expected/home") == want.expected_home_goals);
+        CHECK(json_number(lines[i], "/next_goal/none") == want.next_goal_none);
+        CHECK(json_number(lines[i], "/score/home") == want.home_goals);
+        CHECK(json_number(lines[i], "/score/away") == want.away_goals);
+        CHECK(json_number(lines[i], "/clock_ms") == want.clock.clock_ms);
+        // The match's names travel with every update, from the setup.
+        const JsonProbe line(lines[i]);
+        CHECK(line.text("/match/home") == "Harrow Fen");
+        CHECK(line.text("/match/away") == "Lumen Quay");
+        CHECK(line.text("/match/competition") == "Estuary Shield");
+        CHECK(line.text("/kind") == "update");
     }
     // The last update is the result: the final score with certainty.
-    CHECK(json_number(lines.back(), "home_goals") == 2);
-    CHECK(json_number(lines.back(), "away_goals") == 1);
+    CHECK(json_number(lines.back(), "/score/home") == 2);
+    CHECK(json_number(lines.back(), "/score/away") == 1);
 }
 
 TEST_CASE("tap stopped by SIGINT or SIGTERM exits 0 and prints its latency summary",
@@ -213,10 +218,12 @@ TEST_CASE("a subscriber that joins late gets the current state from the snapshot
     REQUIRE(tap.wait(20s) == std::optional<int>(0));
     const auto lines = update_lines(tap.output());
     REQUIRE(lines.size() == 1);
-    CHECK(json_number(lines[0], "input_seq") == static_cast<double>(expected.back().input_seq));
-    CHECK(json_number(lines[0], "p_home") == expected.back().outputs.p_home);
-    CHECK(json_number(lines[0], "p_away") == expected.back().outputs.p_away);
-    CHECK(json_number(lines[0], "home_goals") == 1);
+    CHECK(json_number(lines[0], "/feed_seq") == static_cast<double>(expected.back().input_seq));
+    CHECK(json_number(lines[0], "/full_time/home") == expected.back().outputs.p_home);
+    CHECK(json_number(lines[0], "/full_time/away") == expected.back().outputs.p_away);
+    CHECK(json_number(lines[0], "/score/home") == 1);
+    CHECK(JsonProbe(lines[0]).text("/match/home") == "Harrow Fen");  // snapshots name it too
+    CHECK(JsonProbe(lines[0]).text("/source") == "snapshot");
 
     // An unknown match gets an error, not a hang.
     const auto none = snapshot(serve, 999);

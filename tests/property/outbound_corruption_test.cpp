@@ -105,8 +105,13 @@ TEST_CASE("corrupted and truncated snapshot requests never crash", "[snapshot_co
 }
 
 TEST_CASE("corrupted and truncated snapshot replies never crash", "[snapshot_codec][corruption]") {
-    SnapshotReplyContents reply{
-        "", {{{4242, 1, 2, 3, 4, 5}, test::sample_outputs()}, {{7, 1, 2, 3, 4, 5}, Outputs{}}}};
+    MatchSetup named;  // the details' strings are corrupted too
+    named.home_name = "Brackwater Albion";
+    named.away_name = "Tidemill Town";
+    named.competition = "Lantern Coast Cup";
+    SnapshotReplyContents reply{"",
+                                {{{4242, 1, 2, 3, 4, 5}, test::sample_outputs(), details_of(named)},
+                                 {{7, 1, 2, 3, 4, 5}, Outputs{}, {}}}};
     corrupt_everywhere(
         encode_snapshot_reply(reply),
         probe<SnapshotReplyContents>(decode_snapshot_reply, [](const SnapshotReplyContents& r) {

@@ -6,6 +6,7 @@
 #include <span>
 #include <vector>
 
+#include "liveprob/protocol/message_checks.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "sample_messages.hpp"
 
@@ -14,16 +15,22 @@ using namespace liveprob::protocol;
 
 namespace {
 
-// `n` updates with the full score grid (the largest update there is), match ids 1..n.
+// `n` updates with the full score grid and names as long as the feed allows (the largest update
+// there is), match ids 1..n.
 SnapshotReplyContents full_reply(std::size_t n) {
     core::Outputs full = test::sample_outputs();
     for (auto& row : full.goals_added) row.fill(1.0 / (core::kGrid * core::kGrid));
+    MatchDetails details;
+    details.known = true;
+    details.home_name = std::string(kMaxNameBytes, 'h');
+    details.away_name = std::string(kMaxNameBytes, 'a');
+    details.competition = std::string(kMaxNameBytes, 'c');
     SnapshotReplyContents reply;
     for (std::size_t i = 1; i <= n; ++i) {
         UpdateMeta meta;
         meta.match_id = i;
         meta.output_seq = i;
-        reply.updates.push_back({meta, full});
+        reply.updates.push_back({meta, full, details});
     }
     return reply;
 }

@@ -6,6 +6,7 @@
 #include <cstring>
 #include <limits>
 
+#include "liveprob/protocol/message_checks.hpp"
 #include "liveprob/protocol/update_codec.hpp"
 #include "sample_messages.hpp"
 
@@ -41,6 +42,21 @@ void check_same(const Outputs& a, const Outputs& b) {
     CHECK(a.goals_added == b.goals_added);
     CHECK(a.tail_mass == b.tail_mass);
     CHECK(a.events_applied == b.events_applied);
+    CHECK(a.shootout == b.shootout);
+}
+
+MatchSetup named_setup() {
+    MatchSetup setup;
+    setup.home_name = "Brackwater Albion";
+    setup.away_name = "Tidemill \"Town\"";
+    setup.competition = "Lantern Coast Cup";
+    setup.scheduled_kickoff_us = 1'943'622'000'000'000;
+    setup.neutral_venue = true;
+    setup.format.extra_time = true;
+    setup.format.shootout = true;
+    setup.format.first_leg = FirstLegResult{2, 1};
+    setup.prior = PriorMeans{1.2, 1.1};
+    return setup;
 }
 
 std::vector<std::uint8_t> copy(std::span<const std::uint8_t> s) { return {s.begin(), s.end()}; }
@@ -73,6 +89,42 @@ TEST_CASE("an update's stale and journal-failing marks round-trip, each on its o
     }
 }
 
+TEST_CASE("an update carries the match's details and the shoot-out's kicks (schema 1.2)",
+          "[update_codec]") {
+    UpdateEncoder encoder;
+    Outputs outputs = test::sample_outputs();
+    outputs.shootout.first = Side::away;
+    outputs.shootout.taken = {3, 4};
+    outputs.shootout.scored = {2, 3};
+    outputs.shootout.scored_bits = {0b101, 0b1011};
+    const MatchSetup setup = named_setup();
+    const auto decoded = decode_update(copy(encoder.encode(kMeta, outputs, setup)));
+    REQUIRE(decoded.ok());
+    check_same(decoded.value->outputs, outputs);
+    const MatchDetails& d = decoded.value->details;
+    CHECK(d == details_of(setup));
+    CHECK(d.known);
+    CHECK(d.home_name == "Brackwater Albion");
+    CHECK(d.competition == "Lantern Coast Cup");
+    CHECK(d.format.first_leg == FirstLegResult{2, 1});
+
+    // Without a setup (as from a writer before 1.2) the details are unknown, never made up.
+    const auto bare = decode_update(copy(encoder.encode(kMeta, outputs)));
+    REQUIRE(bare.ok());
+    CHECK_FALSE(bare.value->details.known);
+
+    // A snapshot reply keeps each update's details.
+    SnapshotReplyContents reply;
+    reply.updates.push_back({kMeta, outputs, details_of(setup)});
+    const auto replied = decode_snapshot_reply(encode_snapshot_reply(reply));
+    REQUIRE(replied.ok());
+    CHECK(replied.value->updates.at(0).details == details_of(setup));
+
+    outputs.shootout.scored = {4, 3};  // more scored than taken
+    const auto refused = decode_update(copy(encoder.encode(kMeta, outputs, setup)));
+    CHECK(refused.detail == "bad_value: field 'shootout': more kicks scored than taken");
+}
+
 TEST_CASE("the grid is cut to its non-zero square, and a full grid still fits", "[update_codec]") {
     UpdateEncoder encoder;
     Outputs sparse = test::sample_outputs();  // non-zero cells within 5 x 4
@@ -85,6 +137,13 @@ TEST_CASE("the grid is cut to its non-zero square, and a full grid still fits", 
     const auto decoded = decode_update(full_bytes);
     REQUIRE(decoded.ok());
     CHECK(decoded.value->outputs.goals_added == full.goals_added);
+
+    // With names as long as the feed allows, the largest update still fits.
+    MatchSetup setup = named_setup();
+    setup.home_name = std::string(kMaxNameBytes, 'h');
+    setup.away_name = std::string(kMaxNameBytes, 'a');
+    setup.competition = std::string(kMaxNameBytes, 'c');
+    CHECK(encoder.encode(kMeta, full, setup).size() <= kMaxUpdateBytes);
 }
 
 TEST_CASE("the update decoder names what it refuses", "[update_codec]") {
@@ -111,12 +170,12 @@ TEST_CASE("snapshot requests and replies round-trip", "[snapshot_codec]") {
     CHECK(*decode_snapshot_request(encode_snapshot_request(0)).value == 0);
 
     SnapshotReplyContents reply;
-    reply.updates.push_back({kMeta, test::sample_outputs()});
+    reply.updates.push_back({kMeta, test::sample_outputs(), {}});
     UpdateMeta second = kMeta;
     second.match_id = 77;
     Outputs finished = test::sample_outputs();
     finished.status = MatchStatus::finished;
-    reply.updates.push_back({second, finished});
+    reply.updates.push_back({second, finished, {}});
     const auto decoded = decode_snapshot_reply(encode_snapshot_reply(reply));
     REQUIRE(decoded.ok());
     REQUIRE(decoded.value->updates.size() == 2);
@@ -133,8 +192,8 @@ TEST_CASE("snapshot requests and replies round-trip", "[snapshot_codec]") {
 TEST_CASE("a snapshot reply with a bad nested update is refused with its index",
           "[snapshot_codec]") {
     SnapshotReplyContents reply;
-    reply.updates.push_back({kMeta, test::sample_outputs()});
-    reply.updates.push_back({kMeta, test::sample_outputs()});
+    reply.updates.push_back({kMeta, test::sample_outputs(), {}});
+    reply.updates.push_back({kMeta, test::sample_outputs(), {}});
     reply.updates[1].outputs.tail_mass = -0.5;
     const auto decoded = decode_snapshot_reply(encode_snapshot_reply(reply));
     CHECK(decoded.error == DecodeError::bad_value);

@@ -201,7 +201,8 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
         for (const auto& u : decoded.value->updates) {
             apply(GatewayUpdate{u.meta.match_id, u.meta.output_seq, u.meta.input_seq,
                                 u.meta.receive_time_us, u.meta.publish_time_us, now, u.outputs,
-                                u.meta.feed_stale, u.meta.journal_failing});
+                                u.meta.feed_stale, u.meta.journal_failing, u.details,
+                                u.meta.compute_ns});
         }
     }
 }

@@ -15,10 +15,12 @@ Intake take_in(std::span<const std::uint8_t> payload, std::int64_t received_us) 
     }
     const protocol::UpdateMeta& meta = decoded.value->meta;
     intake.kind = Intake::Kind::update;
-    intake.update =
-        GatewayUpdate{meta.match_id,          meta.output_seq,      meta.input_seq,
-                      meta.receive_time_us,   meta.publish_time_us, received_us,
-                      decoded.value->outputs, meta.feed_stale,      meta.journal_failing};
+    intake.update = GatewayUpdate{meta.match_id,          meta.output_seq,
+                                  meta.input_seq,         meta.receive_time_us,
+                                  meta.publish_time_us,   received_us,
+                                  decoded.value->outputs, meta.feed_stale,
+                                  meta.journal_failing,   std::move(decoded.value->details),
+                                  meta.compute_ns};
     return intake;
 }
 

@@ -301,7 +301,7 @@ void ServiceCore::publish(LiveMatch& m, bool tick, const ServiceTime& started) {
             .count(),
         0, 0xFFFF'FFFF));
     meta.publish_time_us = priced.wall_us;
-    actions_.publish_update(meta, encoder_.encode(meta, outputs_));
+    actions_.publish_update(meta, encoder_.encode(meta, outputs_, m.match.setup()));
     ++(tick ? counters_.ticks_published : counters_.updates_published);
 }
 
@@ -314,7 +314,8 @@ std::vector<std::vector<std::uint8_t>> ServiceCore::answer_snapshot(
     const ServiceTime now = clock_.now();
     const auto add = [&](const LiveMatch& m) {
         m.match.price_into(outputs_);
-        snapshot_reply_.updates.push_back({meta_of(m, now.steady), outputs_});
+        snapshot_reply_.updates.push_back(
+            {meta_of(m, now.steady), outputs_, protocol::details_of(m.match.setup())});
     };
     if (!wanted.ok()) {
         ++counters_.snapshot_bad_requests;

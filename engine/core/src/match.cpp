@@ -262,6 +262,7 @@ void Match::price_into(Outputs& out) const {
     out.home_reds = static_cast<std::uint8_t>(std::min(state_.reds[0], 255));
     out.away_reds = static_cast<std::uint8_t>(std::min(state_.reds[1], 255));
     out.events_applied = state_.applied;
+    out.shootout = state_.shootout;
 }
 
 void Match::price_exact_at(MatchClock clock, Outputs& out) const {

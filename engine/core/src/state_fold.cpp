@@ -206,8 +206,13 @@ struct StateFold::Step {
         if (!first_kick && m.side != shootout_next_kicker(tally))
             return RejectReason::kick_out_of_turn;
         if (first_kick) tally.first = m.side;
+        const int kick = tally.taken[at(m.side)];
         tally.taken[at(m.side)] += 1;
-        if (m.scored) tally.scored[at(m.side)] += 1;
+        if (m.scored) {
+            tally.scored[at(m.side)] += 1;
+            if (kick < kShootoutKicksRecorded)
+                tally.scored_bits[at(m.side)] |= std::uint64_t{1} << kick;
+        }
         return RejectReason::none;
     }
 

@@ -79,6 +79,7 @@ DemoLeague make_demo_league(std::uint64_t seed, int clubs) {
     PortableRandom rng(seed);
     DemoLeague league;
     league.name = "Lantern Coast League";
+    league.cup_name = "Lantern Coast Cup";
     for (int i = 0; i < clubs; ++i) {
         DemoClub club;
         club.town = std::string(kTowns[static_cast<std::size_t>(i)]);

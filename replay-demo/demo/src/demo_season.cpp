@@ -26,6 +26,7 @@ DemoSeason simulate_demo_season(const DemoLeague& league, std::uint64_t seed) {
         plan.away = &league.clubs[static_cast<std::size_t>(fixture.away)];
         plan.kickoff_us = kSeasonStartUs + (fixture.round - 1) * 7 * kDayUs;
         plan.seed = match_seed(seed, plan.match_id);
+        plan.competition = league.name;
         season.league.push_back(simulate_match(plan));
     }
 
@@ -42,6 +43,7 @@ DemoSeason simulate_demo_season(const DemoLeague& league, std::uint64_t seed) {
             plan.format.extra_time = true;
             plan.format.shootout = true;
             plan.neutral_venue = alive.size() == 2;
+            plan.competition = league.cup_name;
             plan.kickoff_us = kSeasonStartUs + (4 + 8 * round) * 7 * kDayUs + 4 * kDayUs;
             for (;;) {  // an abandoned tie is played again under a new match id
                 plan.match_id = ++id;

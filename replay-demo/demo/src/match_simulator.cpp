@@ -53,6 +53,7 @@ public:
         setup.prior = published_prior(plan_);
         setup.format = plan_.format;
         setup.scheduled_kickoff_us = plan_.kickoff_us;
+        setup.competition = plan_.competition;
         emit(setup, {core::Period::pre_match, 0});
 
         const double half = plan_.format.half_minutes;

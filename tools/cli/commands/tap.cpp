@@ -15,8 +15,8 @@
 #include "command_registry.hpp"
 #include "liveprob/clients/snapshot_client.hpp"
 #include "liveprob/clients/update_subscriber.hpp"
-#include "liveprob/protocol/json_writer.hpp"
 #include "liveprob/protocol/update_codec.hpp"
+#include "liveprob/protocol/update_json.hpp"
 
 namespace liveprob::cli {
 namespace {
@@ -39,49 +39,6 @@ struct TapFlags {
     std::string client_key;
 };
 
-// Doubles in their shortest exact form: the text gives back the exact published value.
-std::string json_line(const protocol::DecodedUpdate& u, const char* source) {
-    const core::Outputs& o = u.outputs;
-    std::string out;
-    protocol::JsonWriter json(out);
-    json.begin_object()
-        .member("source", source)
-        .member("match", u.meta.match_id)
-        .member("output_seq", u.meta.output_seq)
-        .member("input_seq", u.meta.input_seq)
-        .member("tick", u.meta.receive_time_us == 0)
-        .member("status", core::status_name(o.status))
-        .member("period", core::period_name(o.clock.period))
-        .member("clock_ms", o.clock.clock_ms)
-        .member("home_goals", o.home_goals)
-        .member("away_goals", o.away_goals)
-        .member("home_reds", o.home_reds)
-        .member("away_reds", o.away_reds)
-        .member("p_home", o.p_home)
-        .member("p_draw", o.p_draw)
-        .member("p_away", o.p_away)
-        .member("has_advance", o.has_advance)
-        .member("p_advance_home", o.p_advance_home)
-        .member("p_advance_away", o.p_advance_away)
-        .member("expected_home_goals", o.expected_home_goals)
-        .member("expected_away_goals", o.expected_away_goals)
-        .member("next_goal_home", o.next_goal_home)
-        .member("next_goal_away", o.next_goal_away)
-        .member("next_goal_none", o.next_goal_none);
-    json.key("p_over").begin_array();
-    for (const double p : o.p_over) json.value(p);
-    json.end_array()
-        .member("p_both_score", o.p_both_score)
-        .member("events_applied", o.events_applied)
-        .member("receive_time_us", u.meta.receive_time_us)
-        .member("publish_time_us", u.meta.publish_time_us)
-        .member("compute_ns", u.meta.compute_ns)
-        .member("feed_stale", u.meta.feed_stale)
-        .member("journal_failing", u.meta.journal_failing)
-        .end_object();
-    return out;
-}
-
 // What caused the update, and what the service could not vouch for.
 std::string cause_of(const protocol::DecodedUpdate& u) {
     std::string cause = u.meta.receive_time_us == 0 ? "tick" : "event";
@@ -93,15 +50,18 @@ std::string cause_of(const protocol::DecodedUpdate& u) {
 std::string table_row(const protocol::DecodedUpdate& u) {
     const core::Outputs& o = u.outputs;
     const std::uint32_t seconds = o.clock.clock_ms / 1000;
-    return fmt::format("{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {}",
-                       u.meta.match_id, u.meta.output_seq, status_name(o.status), seconds / 60,
-                       seconds % 60, o.home_goals, o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw,
-                       100.0 * o.p_away, cause_of(u));
+    const std::string teams =
+        u.details.known ? fmt::format("{} v {}", u.details.home_name, u.details.away_name) : "";
+    return fmt::format(
+        "{:>8} {:>6} {:>11} {:>3}:{:02} {:>2}-{:<2} {:6.1f}% {:6.1f}% {:6.1f}%  {:<5}  {}",
+        u.meta.match_id, u.meta.output_seq, status_name(o.status), seconds / 60, seconds % 60,
+        o.home_goals, o.away_goals, 100.0 * o.p_home, 100.0 * o.p_draw, 100.0 * o.p_away,
+        cause_of(u), teams);
 }
 
 void print_update(const TapFlags& f, const protocol::DecodedUpdate& u, const char* source) {
     if (f.format == "jsonl") {
-        std::cout << json_line(u, source) << '\n';
+        std::cout << protocol::update_json(u, {.source = source, .gateway_receive_us = 0}) << '\n';
     } else {
         std::cout << table_row(u) << '\n';
     }
@@ -142,9 +102,9 @@ int run_tap(const TapFlags& f) {
     clients::UpdateSubscriber sub(context, f.from, subscription);
 
     if (f.format == "table") {
-        std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {}\n", "match",
-                                 "seq", "status", "clock", "score", "home", "draw", "away",
-                                 "cause");
+        std::cout << fmt::format("{:>8} {:>6} {:>11} {:>6} {:>5} {:>7} {:>7} {:>7}  {:<5}  {}\n",
+                                 "match", "seq", "status", "clock", "score", "home", "draw", "away",
+                                 "cause", "teams");
     }
     // Subscribed first, then the snapshot: nothing published in between is missed (it may
     // arrive twice; the output sequence tells).
@@ -209,7 +169,11 @@ const Registration registration{{
         sub.add_option("--snapshot", f->snapshot,
                        "snapshot endpoint: print the current state first");
         sub.add_flag("--snapshot-only", f->snapshot_only, "print the snapshot and exit");
-        sub.add_option("--format", f->format, "table | jsonl");
+        sub.add_option(
+            "--format", f->format,
+            "table | jsonl (one update per line in the JSON form of protocol/README.md)");
+        sub.add_flag_callback(
+            "--json", [f] { f->format = "jsonl"; }, "the same as --format jsonl");
         sub.add_option("--count", f->count,
                        "exit after this many live updates (0: until interrupted)");
         sub.add_flag("--events-only", f->events_only, "skip the timer's republications");

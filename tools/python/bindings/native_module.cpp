@@ -19,6 +19,7 @@
 #include "liveprob/core/position.hpp"
 #include "liveprob/files/params_file.hpp"
 #include "liveprob/scoring/bucket_scores.hpp"
+#include "update_wire.hpp"
 
 namespace py = pybind11;
 using namespace liveprob;
@@ -363,4 +364,5 @@ PYBIND11_MODULE(_native, m) {
     m.def("replay", &replay, py::arg("paths"), py::arg("threads"), py::arg("params_file"),
           py::arg("kappa"), py::arg("plain_poisson"));
     m.attr("GRID") = core::kGrid;
+    liveprob::python::add_update_wire(m);
 }

@@ -24,8 +24,9 @@ from typing import Any
 
 from ._version import __version__
 
-# Names load their module on first use (PEP 562), so `python3 -m liveprob.subscribe` needs
-# no compiled engine. NumPy is optional everywhere (liveprob/_tables.py).
+# Names load their module on first use (PEP 562), so `python3 -m liveprob.subscribe` needs no
+# NumPy (it uses the compiled module's update reader only). NumPy is optional everywhere
+# (liveprob/_tables.py).
 _WHERE = {
     "PERIODS": "pricing", "Match": "pricing", "Prices": "pricing", "Verdict": "pricing",
     "clock_of": "pricing", "price": "pricing", "ReplayResult": "replay", "replay": "replay",

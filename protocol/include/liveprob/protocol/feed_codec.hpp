@@ -16,7 +16,7 @@ namespace liveprob::protocol {
 
 // Schema version this build speaks (see protocol/schemas/common.fbs).
 inline constexpr std::uint16_t kSchemaMajor = 1;
-inline constexpr std::uint16_t kSchemaMinor = 1;
+inline constexpr std::uint16_t kSchemaMinor = 2;
 
 // Largest inbound buffer accepted; anything bigger is rejected before verification.
 inline constexpr std::size_t kMaxFeedMessageBytes = 64 * 1024;

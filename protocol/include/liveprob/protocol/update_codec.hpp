@@ -35,9 +35,24 @@ struct UpdateMeta {
     friend bool operator==(const UpdateMeta&, const UpdateMeta&) = default;
 };
 
+// What names a match on a screen, as its setup gave it (schema 1.2: an update from an older
+// writer has none, and `known` is false).
+struct MatchDetails {
+    bool known = false;
+    std::string home_name;
+    std::string away_name;
+    std::string competition;  // empty when the setup named none
+    std::int64_t scheduled_kickoff_us = 0;
+    bool neutral_venue = false;
+    core::CompetitionFormat format;
+    friend bool operator==(const MatchDetails&, const MatchDetails&) = default;
+};
+MatchDetails details_of(const core::MatchSetup& setup);
+
 struct DecodedUpdate {
     UpdateMeta meta;
     core::Outputs outputs;
+    MatchDetails details;
 };
 
 // Reusable update encoder. It keeps its builder between calls, so once the builder has grown
@@ -46,8 +61,11 @@ struct DecodedUpdate {
 class UpdateEncoder {
 public:
     UpdateEncoder();
-    // The bytes stay valid until the next call on this encoder.
+    // The bytes stay valid until the next call on this encoder. With the match's setup, the
+    // update names the match (its details); the service always passes it.
     std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs);
+    std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs,
+                                         const core::MatchSetup& setup);
 
 private:
     flatbuffers::FlatBufferBuilder builder_;

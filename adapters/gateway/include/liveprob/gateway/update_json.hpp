@@ -1,11 +1,13 @@
-// One published update as the gateway's JSON frame (field names: protocol/README.md, section
-// "WebSocket and HTTP"). A frame is rendered once per update and shared by every client.
+// One published update as the gateway's JSON frame: the one JSON form of an update
+// (protocol/README.md, "The JSON form of an update") with the gateway's receive time. A frame is
+// rendered once per update and shared by every client.
 #pragma once
 
 #include <cstdint>
 #include <string>
 
 #include "liveprob/core/outputs.hpp"
+#include "liveprob/protocol/update_codec.hpp"
 
 namespace liveprob::gateway {
 
@@ -18,12 +20,13 @@ struct GatewayUpdate {
     std::int64_t engine_publish_us = 0;   // when the engine published the update
     std::int64_t gateway_receive_us = 0;  // when the gateway read it off the feed
     core::Outputs outputs;
-    bool feed_stale = false;       // the match's feed silent past serve's threshold during play
-    bool journal_failing = false;  // serve's journal writes failing: may be behind the feed
+    bool feed_stale = false;         // the match's feed silent past serve's threshold during play
+    bool journal_failing = false;    // serve's journal writes failing: may be behind the feed
+    protocol::MatchDetails details;  // names, competition, format (schema 1.2)
+    std::uint32_t compute_ns = 0;
 };
 
-// {"kind":"update","match_id":7,...}: numbers are printed in their shortest form that reads
-// back to the same double, so a client sees exactly what the engine published.
+// {"kind":"update","match_id":7,...}
 std::string render_update_json(const GatewayUpdate& update);
 
 }  // namespace liveprob::gateway

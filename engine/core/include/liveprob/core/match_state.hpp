@@ -29,13 +29,6 @@ struct CardRecord {
     friend bool operator==(const CardRecord&, const CardRecord&) = default;
 };
 
-struct ShootoutTally {
-    std::array<int, 2> taken{};
-    std::array<int, 2> scored{};
-    Side first = Side::home;  // side of the first kick (meaningful once a kick is taken)
-    friend bool operator==(const ShootoutTally&, const ShootoutTally&) = default;
-};
-
 struct MatchState {
     MatchStatus status = MatchStatus::not_started;
     // The period in play, or the last one played (during an interval or after the end).

@@ -86,6 +86,7 @@ struct MatchSetup {
     std::optional<RatingReference> ratings;
     CompetitionFormat format;
     std::int64_t scheduled_kickoff_us = 0;
+    std::string competition;  // optional: the competition's name as a screen shows it
     friend bool operator==(const MatchSetup&, const MatchSetup&) = default;
 };
 

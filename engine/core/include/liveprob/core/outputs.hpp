@@ -26,6 +26,18 @@ enum class MatchStatus : std::uint8_t {
     abandoned = 5,
 };
 
+// The penalty shoot-out so far. Kicks alternate (a kick out of turn is refused), so the side of
+// the first kick and each side's scored bits give the whole sequence for a screen to draw.
+inline constexpr int kShootoutKicksRecorded = 64;  // per side; more are counted, not recorded
+struct ShootoutTally {
+    std::array<int, 2> taken{};
+    std::array<int, 2> scored{};
+    Side first = Side::home;  // side of the first kick (meaningful once a kick is taken)
+    // Bit k set: the side's kick k + 1 was scored (the first kShootoutKicksRecorded kicks).
+    std::array<std::uint64_t, 2> scored_bits{};
+    friend bool operator==(const ShootoutTally&, const ShootoutTally&) = default;
+};
+
 struct Outputs {
     // Where the match stands.
     MatchStatus status = MatchStatus::not_started;
@@ -65,6 +77,9 @@ struct Outputs {
 
     // Number of accepted inbound messages folded into this state.
     std::uint64_t events_applied = 0;
+
+    // The shoot-out's kicks (all zero before one starts).
+    ShootoutTally shootout;
 };
 
 inline double totals_line(int i) noexcept { return 0.5 + i; }

@@ -29,6 +29,7 @@ std::vector<Fixture> double_round_robin(int clubs);
 
 struct DemoLeague {
     std::string name;
+    std::string cup_name;  // the knock-out cup its clubs play
     std::vector<DemoClub> clubs;
     std::vector<Fixture> season;    // 2(n-1) rounds
     std::vector<int> cup_entrants;  // 16 clubs in bracket order (1 v 2, 3 v 4, ...)

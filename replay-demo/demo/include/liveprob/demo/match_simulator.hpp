@@ -8,6 +8,7 @@
 
 #include <array>
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include "liveprob/core/messages.hpp"
@@ -23,6 +24,7 @@ struct MatchPlan {
     bool neutral_venue = false;
     std::int64_t kickoff_us = 0;
     std::uint64_t seed = 0;
+    std::string competition;  // the invented league's or cup's name, for screens
 };
 
 struct SimulatedMatch {
