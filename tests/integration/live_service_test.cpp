@@ -610,6 +610,9 @@ TEST_CASE(
         CHECK(retired.updates[0].outputs.status == core::MatchStatus::finished);
         CHECK(same_outputs(retired.updates[0].outputs, done_final.outputs));
         CHECK(retired.updates[0].meta.input_seq == done_final.input_seq);
+        CHECK(retired.updates[0].details ==
+              protocol::details_of(std::get<MatchSetup>(done[0].body)));
+        CHECK(retired.updates[0].details.known);  // a retired match still names its teams
         const auto live = snapshot(serve, 304);
         REQUIRE(live.updates.size() == 1);
         CHECK(live.updates[0].meta.input_seq == playing_now.input_seq);

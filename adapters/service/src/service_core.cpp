@@ -203,7 +203,7 @@ bool ServiceCore::keep_final_state(LiveMatch& m, const ServiceTime& now) {
     protocol::UpdateMeta meta = meta_of(m, now.steady);
     meta.publish_time_us = now.wall_us;
     try {
-        final_states_->keep(m.match.match_id(), encoder_.encode(meta, outputs_));
+        final_states_->keep(m.match.match_id(), encoder_.encode(meta, outputs_, m.match.setup()));
     } catch (const RecordLogError& e) {
         // Kept in memory (and in the log) until a write succeeds: still answerable either way.
         const std::uint64_t failed = ++counters_.final_state_write_failed;
