@@ -31,6 +31,17 @@ std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta,
     return {builder_.GetBufferPointer(), builder_.GetSize()};
 }
 
+std::span<const std::uint8_t> UpdateEncoder::encode(const UpdateMeta& meta,
+                                                    const core::Outputs& outputs,
+                                                    const MatchDetails& details) {
+    builder_.Clear();
+    flatbuffers::Offset<wire::MatchDetails> written = 0;
+    if (details.known) written = detail::write_details(builder_, details);
+    builder_.Finish(detail::write_update(builder_, meta, outputs, written),
+                    wire::UpdateIdentifier());
+    return {builder_.GetBufferPointer(), builder_.GetSize()};
+}
+
 MatchDetails details_of(const core::MatchSetup& setup) {
     return MatchDetails{true,
                         setup.home_name,

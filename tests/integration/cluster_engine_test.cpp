@@ -75,9 +75,9 @@ std::vector<bool> timestamp_bytes(const protocol::DecodedUpdate& update) {
     b.meta.receive_time_us = b.meta.publish_time_us = 0x0202'0202'0202'0202;
     b.meta.compute_ns = 0x0202'0202;
     protocol::UpdateEncoder encoder;
-    const auto first = encoder.encode(a.meta, a.outputs);
+    const auto first = encoder.encode(a.meta, a.outputs, a.details);
     const std::vector<std::uint8_t> kept(first.begin(), first.end());
-    const auto second = encoder.encode(b.meta, b.outputs);
+    const auto second = encoder.encode(b.meta, b.outputs, b.details);
     REQUIRE(second.size() == kept.size());
     std::vector<bool> mask(kept.size());
     for (std::size_t i = 0; i < kept.size(); ++i) mask[i] = kept[i] != second[i];
@@ -197,7 +197,8 @@ TEST_CASE(
             REQUIRE(decoded.ok());
             // The mask applies to the bytes as published: re-encoding them reproduces them.
             protocol::UpdateEncoder encoder;
-            const auto again = encoder.encode(decoded.value->meta, decoded.value->outputs);
+            const auto again =
+                encoder.encode(decoded.value->meta, decoded.value->outputs, decoded.value->details);
             REQUIRE(std::vector<std::uint8_t>(again.begin(), again.end()) == ours);
             const std::vector<bool> timestamps = timestamp_bytes(*decoded.value);
             // Two 8-byte times and a 4-byte duration: nothing else is left out of the comparison.

@@ -66,6 +66,10 @@ public:
     std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs);
     std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs,
                                          const core::MatchSetup& setup);
+    // The same with details as decoded (none written when `details.known` is false), so a
+    // decoded update re-encodes to the bytes it came from.
+    std::span<const std::uint8_t> encode(const UpdateMeta& meta, const core::Outputs& outputs,
+                                         const MatchDetails& details);
 
 private:
     flatbuffers::FlatBufferBuilder builder_;
