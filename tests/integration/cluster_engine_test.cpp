@@ -136,7 +136,7 @@ TEST_CASE(
     int stale = 0;
     for (const auto& [id, want] : expected) {
         kvEntry* entry = nullptr;
-        REQUIRE(kvStore_Get(&entry, latest.get(), cluster::latest_key(id).c_str()) == NATS_OK);
+        REQUIRE(kvStore_Get(&entry, latest.get(), cluster::match_key(id).c_str()) == NATS_OK);
         cluster::KvEntryHandle owned(entry);
         const auto decoded =
             protocol::decode_update({static_cast<const std::uint8_t*>(kvEntry_Value(entry)),

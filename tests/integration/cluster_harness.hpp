@@ -21,15 +21,17 @@ namespace liveprob::test {
 using Clock = std::chrono::steady_clock;
 inline constexpr int kLeaseMs = 1500;
 
-inline std::unique_ptr<ChildProcess> start_engine(const std::filesystem::path& dir,
-                                                  const NatsCluster& nats, const std::string& name,
-                                                  int lease_ms = kLeaseMs) {
-    return std::make_unique<ChildProcess>(
-        std::vector<std::string>{liveprob_binary().string(), "serve", "--cluster", nats.urls(),
-                                 "--cluster-engine-name", name, "--cluster-lease-ms",
-                                 std::to_string(lease_ms), "--tick-ms", "3600000", "--counters-ms",
-                                 "1000"},
-        dir / (name + ".log"));
+// `settings`: the service's options (by default no ticks, so every update is one a feed message
+// caused, and counters logged each second).
+inline std::unique_ptr<ChildProcess> start_engine(
+    const std::filesystem::path& dir, const NatsCluster& nats, const std::string& name,
+    int lease_ms = kLeaseMs,
+    const std::vector<std::string>& settings = {"--tick-ms", "3600000", "--counters-ms", "1000"}) {
+    std::vector<std::string> args{
+        liveprob_binary().string(), "serve", "--cluster",          nats.urls(),
+        "--cluster-engine-name",    name,    "--cluster-lease-ms", std::to_string(lease_ms)};
+    args.insert(args.end(), settings.begin(), settings.end());
+    return std::make_unique<ChildProcess>(args, dir / (name + ".log"));
 }
 
 inline void run_send(const std::filesystem::path& dir, const std::string& name,

@@ -95,7 +95,7 @@ TEST_CASE(
         const char* id = nullptr;
         natsMsgHeader_Get(raw, "Nats-Msg-Id", &id);
         if (std::string(natsMsg_GetSubject(raw)) !=
-                cluster::feed_subject(layout, cluster::partition_of(layout, header.match_id)) ||
+                cluster::feed_subject(layout, header.match_id) ||
             id == nullptr || cluster::feed_message_id(header) != id)
             ++misplaced;
         stored.insert(std::move(bytes));

@@ -10,8 +10,10 @@
 #include <mutex>
 
 #include "liveprob/cluster/cluster_setup.hpp"
+#include "liveprob/cluster/feed_purge_log.hpp"
 #include "liveprob/cluster/nats_client.hpp"
 #include "liveprob/cluster/partition_leases.hpp"
+#include "liveprob/cluster/retired_matches.hpp"
 #include "liveprob/service/host_clock.hpp"
 #include "liveprob/service/service_core.hpp"
 
@@ -61,12 +63,13 @@ struct ClusterEngine::Impl {
         std::uint64_t generation;
     };
     // A held partition: its own service core (the rules serve runs, with the stream in place of
-    // the journal: no record log, since a message is durable on a quorum before it arrives, and
-    // no acknowledgements, which the stream gave the feed) and the consumer that feeds it.
+    // the journal: a message is durable on a quorum before it arrives, so the record log only
+    // purges retired matches from the stream; no acknowledgements, which the stream gave the
+    // feed; the retired-match bucket as the final-state store) and the consumer that feeds it.
     struct Partition final : service::ServiceActions {
         Partition(Impl& e, std::uint32_t p, std::uint64_t g, service::CoreSettings settings)
-            : engine(e), partition(p), generation(g),
-              core(e.params, std::move(settings), e.clock, *this, nullptr) {}
+            : engine(e), partition(p), generation(g), log(e.quick_js.get(), e.options.layout),
+              core(e.params, std::move(settings), e.clock, *this, &log, &*e.retired) {}
         void publish_update(const protocol::UpdateMeta& meta,
                             std::span<const std::uint8_t> update) override {
             engine.publish_update(meta, update);
@@ -79,6 +82,7 @@ struct ClusterEngine::Impl {
         Impl& engine;
         std::uint32_t partition;
         std::uint64_t generation;
+        FeedPurgeLog log;
         service::ServiceCore core;
         SubscriptionHandle subscription;  // null until the partition could be opened
         // Messages that arrived while the lease was in doubt, applied in order once it is
@@ -99,6 +103,7 @@ struct ClusterEngine::Impl {
             try {
                 ensure_feed_stream(client.jetstream(), options.layout);
                 latest = ensure_latest_bucket(client.jetstream(), options.layout);
+                retired_bucket = ensure_retired_bucket(client.jetstream(), options.layout);
                 lease_bucket =
                     ensure_lease_bucket(client.jetstream(), options.layout, options.lease_time);
                 break;
@@ -124,6 +129,12 @@ struct ClusterEngine::Impl {
             opened = js_KeyValue(&bucket, quick_js.get(), options.layout.lease_bucket.c_str());
         check(opened, "lease bucket");
         quick_leases.reset(bucket);
+        opened = NATS_TIMEOUT;
+        for (int attempt = 0; attempt < 20 && opened != NATS_OK; ++attempt)
+            opened = js_KeyValue(&bucket, quick_js.get(), options.layout.retired_bucket.c_str());
+        check(opened, "retired-match bucket");
+        quick_retired.reset(bucket);
+        retired.emplace(quick_retired.get());
         leases.emplace(quick_leases.get(), options.layout, options.engine_name, options.lease_time);
         latest_prefix = fmt::format("$KV.{}.", options.layout.latest_bucket);
     }
@@ -163,7 +174,17 @@ struct ClusterEngine::Impl {
     // cluster that does not answer (an election) it fails and is tried again at the next
     // renewal; the lease is kept meanwhile.
     bool open(std::uint32_t p, Partition& part) {
-        const std::string subject = feed_subject(options.layout, p);
+        // Matches retired by any engine, known before this partition's messages are replayed:
+        // theirs are refused (and purged at the next compaction), not rebuilt.
+        try {
+            retired->reload();
+        } catch (const NatsError& e) {
+            ++counters.open_failed;
+            spdlog::warn("partition {}: cannot read the retired matches ({}); trying again", p,
+                         e.what());
+            return false;
+        }
+        const std::string subject = partition_subjects(options.layout, p);
         natsMsg* last = nullptr;
         jsErrCode code = static_cast<jsErrCode>(0);
         const natsStatus found =
@@ -256,6 +277,8 @@ struct ClusterEngine::Impl {
         const std::span<const std::uint8_t> bytes{
             reinterpret_cast<const std::uint8_t*>(natsMsg_GetData(message)),
             static_cast<std::size_t>(natsMsg_GetDataLength(message))};
+        if (const auto id = match_of_feed_subject(natsMsg_GetSubject(message)))
+            part.log.note(*id, bytes.size());
         if (part.caught_up) {
             (void)part.core.ingest(bytes);
             return;
@@ -290,7 +313,7 @@ struct ClusterEngine::Impl {
                                static_cast<int>(bytes.size()));
         // The latest state: a plain publish into the bucket's stream (a put nobody waits for;
         // the next update replaces it, and the feed stream can always rebuild it).
-        const std::string key = latest_prefix + latest_key(meta.match_id);
+        const std::string key = latest_prefix + match_key(meta.match_id);
         natsConnection_Publish(client.connection(), key.c_str(), bytes.data(),
                                static_cast<int>(bytes.size()));
     }
@@ -393,8 +416,11 @@ struct ClusterEngine::Impl {
     NatsClient client;
     KvStoreHandle latest;
     KvStoreHandle lease_bucket;
-    JsCtxHandle quick_js;        // short request timeout: the loop's own requests
-    KvStoreHandle quick_leases;  // the lease bucket through quick_js
+    KvStoreHandle retired_bucket;
+    JsCtxHandle quick_js;                   // short request timeout: the loop's own requests
+    KvStoreHandle quick_leases;             // the lease bucket through quick_js
+    KvStoreHandle quick_retired;            // the retired-match bucket through quick_js
+    std::optional<RetiredMatches> retired;  // shared by the partitions' cores
     std::optional<PartitionLeases> leases;
     std::string latest_prefix;
     std::map<std::uint32_t, std::unique_ptr<Partition>> partitions;

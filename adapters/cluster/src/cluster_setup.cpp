@@ -10,7 +10,8 @@ namespace {
 constexpr std::int64_t kNanosPerMilli = 1'000'000;
 
 std::string feed_description(const ClusterLayout& layout) {
-    return fmt::format("liveprob feed: {} partitions", layout.partitions);
+    // Names the subject scheme too: a stream of an older scheme is refused, not mis-read.
+    return fmt::format("liveprob feed: {} partitions, a subject per match", layout.partitions);
 }
 
 KvStoreHandle ensure_bucket(jsCtx* js, const std::string& bucket, const std::string& description,
@@ -47,7 +48,7 @@ void ensure_feed_stream(jsCtx* js, const ClusterLayout& layout) {
         if (existing != description) {
             throw LayoutMismatch(fmt::format(
                 "stream {} exists as \"{}\", not \"{}\": every sender and engine must use the "
-                "partition count the stream was made with",
+                "partition count (and subject scheme) the stream was made with",
                 layout.feed_stream, existing, description));
         }
         return;
@@ -67,8 +68,8 @@ void ensure_feed_stream(jsCtx* js, const ClusterLayout& layout) {
     config.Duplicates =
         std::chrono::duration_cast<std::chrono::milliseconds>(kDuplicateWindow).count() *
         kNanosPerMilli;
-    if (layout.retention_s > 0)
-        config.MaxAge = static_cast<std::int64_t>(layout.retention_s) * 1000 * kNanosPerMilli;
+    // No age limit: a live match's messages must all stay (a take-over rebuilds it from them);
+    // a retired match's are purged by its engine (feed_purge_log.hpp).
     jsStreamInfo* created = nullptr;
     code = static_cast<jsErrCode>(0);
     const natsStatus status = js_AddStream(&created, js, &config, nullptr, &code);
@@ -81,7 +82,13 @@ void ensure_feed_stream(jsCtx* js, const ClusterLayout& layout) {
 
 KvStoreHandle ensure_latest_bucket(jsCtx* js, const ClusterLayout& layout) {
     return ensure_bucket(js, layout.latest_bucket, "liveprob: latest update of each match",
-                         static_cast<std::int64_t>(layout.retention_s) * 1000 * kNanosPerMilli,
+                         static_cast<std::int64_t>(layout.keep_s) * 1000 * kNanosPerMilli,
+                         layout.replicas);
+}
+
+KvStoreHandle ensure_retired_bucket(jsCtx* js, const ClusterLayout& layout) {
+    return ensure_bucket(js, layout.retired_bucket, "liveprob: final update of each retired match",
+                         static_cast<std::int64_t>(layout.keep_s) * 1000 * kNanosPerMilli,
                          layout.replicas);
 }
 

@@ -83,7 +83,7 @@ void FeedPublisher::send(const core::MessageHeader& header, std::span<const std:
     while (waiting_.size() >= options_.window && !gave_up_) pump(std::chrono::milliseconds(50));
     if (gave_up_) return;
     const std::uint32_t partition = partition_of(layout_, header.match_id);
-    Waiting w{feed_subject(layout_, partition), feed_message_id(header),
+    Waiting w{feed_subject(layout_, header.match_id), feed_message_id(header),
               std::vector<std::uint8_t>(bytes.begin(), bytes.end()), Clock::now()};
     if (waiting_.empty()) last_progress_ = w.sent_at;  // silence counts from the first wait
     const std::uint64_t token = next_token_++;

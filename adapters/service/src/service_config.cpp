@@ -24,7 +24,7 @@ constexpr std::array<std::string_view, 6> kLogLevels = {"trace", "debug", "info"
                                                         "warn",  "error", "off"};
 
 // The one table of keys.
-const std::array<ConfigKey, 32> kKeys = {{
+const std::array<ConfigKey, 33> kKeys = {{
     {"ingest_endpoint", "--ingest", ConfigValue::endpoint, &S::ingest_endpoint,
      "ROUTER socket feeds send to (DEALER; acknowledged)"},
     {"publish_endpoint", "--publish", ConfigValue::endpoint, &S::publish_endpoint,
@@ -151,6 +151,10 @@ const std::array<ConfigKey, 32> kKeys = {{
     {"cluster_lease_ms", "--cluster-lease-ms", ConfigValue::whole, &S::cluster_lease_ms,
      "cluster mode: a partition's lease expires this long after its engine last renewed it (ms)",
      500, 600'000},
+    {"cluster_keep_s", "--cluster-keep-s", ConfigValue::whole, &S::cluster_keep_s,
+     "cluster mode: a match's latest state, and a retired match's final state, age out of their "
+     "buckets this long after their last write, when this engine makes the buckets (s); 0: never",
+     0, 31'536'000},
     {"cluster_engine_name",
      "--cluster-engine-name",
      ConfigValue::name,

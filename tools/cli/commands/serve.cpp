@@ -53,6 +53,7 @@ int run_cluster_engine(const service::ServiceConfig& config, const core::ModelPa
     options.servers = cluster::split_servers(config.cluster_servers);
     options.layout.partitions = config.cluster_partitions;
     options.layout.replicas = config.cluster_replicas;
+    options.layout.keep_s = config.cluster_keep_s;
     options.engine_name = config.cluster_engine_name.empty() ? cluster::default_engine_name()
                                                              : config.cluster_engine_name;
     options.lease_time = std::chrono::milliseconds(config.cluster_lease_ms);

@@ -1,8 +1,8 @@
 // Creates what the cluster mode needs in JetStream when it is missing, and checks it when it is
 // there: the feed stream (replicated, a duplicate window, the partition count recorded in its
-// description), the bucket of latest states and the bucket of leases. Every process (send and
-// each engine) calls it at start, so no separate set-up step is needed; a stream made with
-// another partition count is refused with a clear error rather than silently mis-routed.
+// description), the buckets of latest states, of retired matches' final states and of leases. Every
+// process (send and each engine) calls it at start, so no separate set-up step is needed; a stream
+// made with another partition count is refused with a clear error rather than silently mis-routed.
 #pragma once
 
 #include <chrono>
@@ -23,7 +23,9 @@ struct LayoutMismatch : NatsError {
 
 // Throws LayoutMismatch, or NatsError when the cluster does not answer (no quorum).
 void ensure_feed_stream(jsCtx* js, const ClusterLayout& layout);
+// Entries of these two age out `layout.keep_s` after they were last written.
 KvStoreHandle ensure_latest_bucket(jsCtx* js, const ClusterLayout& layout);
+KvStoreHandle ensure_retired_bucket(jsCtx* js, const ClusterLayout& layout);
 // `lease_time`: a lease not renewed for this long expires (the bucket's age limit).
 KvStoreHandle ensure_lease_bucket(jsCtx* js, const ClusterLayout& layout,
                                   std::chrono::milliseconds lease_time);

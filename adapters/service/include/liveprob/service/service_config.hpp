@@ -87,6 +87,9 @@ struct ServiceConfig {
     std::uint32_t cluster_partitions = 16;
     std::uint32_t cluster_replicas = 3;
     std::uint32_t cluster_lease_ms = 5000;
+    // Entries of the latest-state and retired-match buckets age out this long after their last
+    // write (s); 0: kept for ever.
+    std::uint32_t cluster_keep_s = 604'800;
     std::string cluster_engine_name;  // empty: host name and process id
 
     bool curve_enabled() const noexcept { return !curve_secret_key_file.empty(); }
