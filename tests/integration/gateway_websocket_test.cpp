@@ -285,7 +285,7 @@ TEST_CASE("plain HTTP serves the page, the match state and the timeline", "[gate
     }));
     CHECK(has(
         http_get(gateway.port(), "/api/timeline?match=4").body,
-        R"({"kind":"timeline","match_id":4,"points":[[2,2701000,0.5,0.25,0.25,0,0,0,0],[2,2702000,0.5,0.25,0.25,1,0,0,0]]})"));
+        R"({"kind":"timeline","match_id":4,"points":[[2,2701000,0.5,0.25,0.25,0,0,0,0,null,null],[2,2702000,0.5,0.25,0.25,1,0,0,0,null,null]]})"));
     CHECK(http_get(gateway.port(), "/api/timeline?match=99").status == 404);
     CHECK(http_get(gateway.port(), "/../CMakeLists.txt").status == 404);
     CHECK(http_get(gateway.port(), "/api/matches", http::verb::post).status == 405);

@@ -113,13 +113,7 @@ TEST_CASE("tap, the gateway and the Python client print an update in one JSON fo
     setup.format.extra_time = true;
     setup.format.shootout = true;
     stack.send(feed.next(setup, MatchClock{}));
-    stack.send(feed.start(Period::first_half, 0.0));
-    stack.send(feed.goal(Side::away, Period::first_half, 30.0));
-    stack.send(feed.end(Period::first_half, 46.0));
-    stack.send(feed.start(Period::second_half, 45.0));
-    stack.send(feed.goal(Side::home, Period::second_half, 80.0));
-    stack.send(feed.end(Period::second_half, 93.0));
-    stack.send(feed.start(Period::extra_first, 90.0));
+    for (const auto& m : feed.level_into_extra_time()) stack.send(m);
     stack.send(feed.end(Period::extra_first, 105.0));
     stack.send(feed.start(Period::extra_second, 105.0));
     stack.send(feed.end(Period::extra_second, 120.0));

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdint>
 #include <utility>
+#include <vector>
 
 #include "liveprob/core/messages.hpp"
 
@@ -55,6 +56,20 @@ public:
     }
     core::InboundMessage whistle(core::Period p, double minute) {
         return next(core::FinalWhistle{}, at_minute(p, minute));
+    }
+
+    // A knock-out level 1-1 after 90 minutes (away at 30', home at 80'; one and three minutes
+    // of stoppage), up to the start of extra time.
+    std::vector<core::InboundMessage> level_into_extra_time() {
+        using core::Period;
+        using core::Side;
+        return {start(Period::first_half, 0.0),
+                goal(Side::away, Period::first_half, 30.0),
+                end(Period::first_half, 46.0),
+                start(Period::second_half, 45.0),
+                goal(Side::home, Period::second_half, 80.0),
+                end(Period::second_half, 93.0),
+                start(Period::extra_first, 90.0)};
     }
 
     std::uint64_t last_seq() const noexcept { return next_seq_ - 1; }

@@ -73,10 +73,11 @@ inline HttpAnswer http_request(const std::string& host_port, const std::string& 
 }
 
 // A WebSocket client on 127.0.0.1 whose every operation runs for at most its limit (run_for).
+// `target`: the path asked for (the gateway's /feed unless told).
 class WebSocketClient {
 public:
     explicit WebSocketClient(std::uint16_t port, std::optional<std::string> origin = std::nullopt,
-                             int receive_buffer = 0)
+                             int receive_buffer = 0, const std::string& target = "/feed")
         : ws_(io_) {
         namespace http = boost::beast::http;
         auto& socket = boost::beast::get_lowest_layer(ws_).socket();
@@ -90,7 +91,7 @@ public:
                 if (origin) r.set(http::field::origin, *origin);
             }));
         handshake_error_ = run([&](auto done) {
-            ws_.async_handshake(response_, fmt::format("127.0.0.1:{}", port), "/feed", done);
+            ws_.async_handshake(response_, fmt::format("127.0.0.1:{}", port), target, done);
         });
     }
     boost::beast::error_code handshake_error() const { return handshake_error_; }

@@ -10,7 +10,8 @@ TimelinePoint point_of(const core::Outputs& o) {
                          o.p_home,         o.p_draw,
                          o.p_away,         o.home_goals,
                          o.away_goals,     o.home_reds,
-                         o.away_reds};
+                         o.away_reds,      o.has_advance,
+                         o.p_advance_home, o.p_advance_away};
 }
 bool same_score_and_cards(const TimelinePoint& a, const TimelinePoint& b) {
     return a.home_goals == b.home_goals && a.away_goals == b.away_goals &&
@@ -104,8 +105,10 @@ std::optional<std::string> LatestUpdates::render_timeline_json(std::uint64_t mat
             .value(p.home_goals)
             .value(p.away_goals)
             .value(static_cast<unsigned>(p.home_reds))
-            .value(static_cast<unsigned>(p.away_reds))
-            .end_array();
+            .value(static_cast<unsigned>(p.away_reds));
+        if (p.has_advance) json.value(p.p_advance_home).value(p.p_advance_away);
+        else json.null().null();
+        json.end_array();
     }
     json.end_array().end_object();
     return out;

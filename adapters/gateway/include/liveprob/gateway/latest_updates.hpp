@@ -25,6 +25,10 @@ struct TimelinePoint {
     std::uint16_t away_goals = 0;
     std::uint8_t home_reds = 0;
     std::uint8_t away_reds = 0;
+    // To advance, in formats that need a winner (the page draws it from extra time on).
+    bool has_advance = false;
+    double p_advance_home = 0.0;
+    double p_advance_away = 0.0;
 };
 
 using Frame = std::shared_ptr<const std::string>;
@@ -64,7 +68,8 @@ public:
     // their retention ends (a page keeps showing a final result for a while).
     std::string render_state_json() const;
     // {"match_id":7,"points":[[period,clock_ms,p_home,p_draw,p_away,home_goals,away_goals,
-    //  home_reds,away_reds],...]} or nothing for an unknown match.
+    //  home_reds,away_reds,advance_home,advance_away],...]} (advance null where the format needs
+    //  no winner) or nothing for an unknown match.
     std::optional<std::string> render_timeline_json(std::uint64_t match_id) const;
 
     std::size_t match_count() const noexcept { return matches_.size(); }
