@@ -69,4 +69,14 @@ TEST_CASE("replay of demo streams from files gives the same report on 1 and 3 th
         CHECK(text.str().find(key) != std::string::npos);
     }
     CHECK(std::filesystem::file_size(dir / "report" / "index.html") > 1000);
+    std::ifstream html(dir / "report" / "index.html");
+    std::stringstream page;
+    page << html.rdbuf();
+    // Readers see words, and every chart has a y-axis title or percentages.
+    for (const char* words : {"flat timing, no state effects", "pre-match forecast, held",
+                              "mean RPS", "observed", "100%", "gambling advertising"}) {
+        INFO(words);
+        CHECK(page.str().find(words) != std::string::npos);
+    }
+    CHECK(page.str().find("<small>uniform_timing_no_state</small>") == std::string::npos);
 }

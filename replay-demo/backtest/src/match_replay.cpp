@@ -91,12 +91,14 @@ double minutes_of(const core::MatchClock& clock) {
 
 void mark(Timeline& timeline, const core::InboundMessage& m) {
     const double minute = minutes_of(m.header.clock);
+    const core::Period period = m.header.clock.period;
     if (const auto* goal = std::get_if<core::Goal>(&m.body)) {
-        timeline.marks.push_back({minute, TimelineMark::Kind::goal, goal->side});
+        timeline.marks.push_back({minute, TimelineMark::Kind::goal, goal->side, period});
     } else if (const auto* red = std::get_if<core::RedCard>(&m.body)) {
-        timeline.marks.push_back({minute, TimelineMark::Kind::red_card, red->side});
+        timeline.marks.push_back({minute, TimelineMark::Kind::red_card, red->side, period});
     } else if (std::holds_alternative<core::GoalCancelled>(m.body)) {
-        timeline.marks.push_back({minute, TimelineMark::Kind::goal_cancelled, core::Side::home});
+        timeline.marks.push_back(
+            {minute, TimelineMark::Kind::goal_cancelled, core::Side::home, period});
     }
 }
 
@@ -142,7 +144,13 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
         out.problem = e.what();
         return out;
     }
-    if (choices.keep_timeline) out.timeline = Timeline{setup.home_name, setup.away_name, {}, {}};
+    if (choices.keep_timeline)
+        out.timeline = Timeline{setup.home_name,
+                                setup.away_name,
+                                {},
+                                {},
+                                setup.format.half_minutes,
+                                setup.format.extra_half_minutes};
 
     auto evaluate = [&]() -> const core::Outputs& {
         const core::Outputs& o = model->outputs();
@@ -168,7 +176,7 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
     // Kick-off: the pre-match forecast, which the fixed-prior baseline keeps for every bucket.
     record_bucket(0);
     const scoring::Forecast prior = forecast_of(model->outputs());
-    if (out.timeline) out.timeline->points.push_back({0.0, prior});
+    if (out.timeline) out.timeline->points.push_back({0.0, prior, core::Period::pre_match});
 
     int next_bucket = 1;
     core::MatchClock last_heard{core::Period::pre_match, 0};  // the last message's clock
@@ -198,8 +206,9 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
             }
             record_bucket(next_bucket++);
             if (out.timeline)
-                out.timeline->points.push_back(
-                    {minutes_of(model->priced_clock()), forecast_of(model->outputs())});
+                out.timeline->points.push_back({minutes_of(model->priced_clock()),
+                                                forecast_of(model->outputs()),
+                                                model->priced_clock().period});
         }
         last_heard = m.header.clock;
         const auto verdict = model->apply(m).verdict;
@@ -217,8 +226,9 @@ MatchReplay replay_match(const std::vector<core::InboundMessage>& messages,
             mark(*out.timeline, m);
             if (model->outputs().status != core::MatchStatus::finished &&
                 model->outputs().status != core::MatchStatus::shootout) {
-                out.timeline->points.push_back(
-                    {minutes_of(m.header.clock), forecast_of(model->outputs())});
+                out.timeline->points.push_back({minutes_of(m.header.clock),
+                                                forecast_of(model->outputs()),
+                                                m.header.clock.period});
             }
         }
     }

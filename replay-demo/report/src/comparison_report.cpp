@@ -5,6 +5,7 @@
 #include <cmath>
 #include <string_view>
 
+#include "forecaster_labels.hpp"
 #include "html_text.hpp"
 #include "liveprob/fit/calendar.hpp"
 
@@ -104,7 +105,8 @@ std::string group_table(const Evaluation& e, const std::vector<backtest::GroupEv
         if (e.columns[c] == "independent_poisson" || e.columns[c] == "elo_reference")
             against.push_back(c);
     std::string out =
-        fmt::format("<table><tr><th>{}</th><th>matches</th><th>against</th>", html_escape(what));
+        fmt::format("<div class=\"wide\"><table><tr><th>{}</th><th>matches</th><th>against</th>",
+                    html_escape(what));
     for (int b = 0; b < scoring::kBuckets; ++b)
         out += fmt::format("<th>{}</th>", scoring::bucket_label(b));
     out += "</tr>\n";
@@ -117,13 +119,13 @@ std::string group_table(const Evaluation& e, const std::vector<backtest::GroupEv
                                    against.size(), html_escape(g.group),
                                    g.too_small ? " <small>(n too small to tell apart)</small>" : "",
                                    against.size(), g.matches);
-            out += fmt::format("<td>{}</td>", html_escape(e.columns[c]));
+            out += fmt::format("<td>{}</td>", html_escape(forecaster_label(e.columns[c])));
             for (int b = 0; b < scoring::kBuckets; ++b)
                 out += difference_cell(g.buckets[static_cast<std::size_t>(b)].model_against[c]);
             out += "</tr>\n";
         }
     }
-    return out + "</table>\n";
+    return out + "</table></div>\n";
 }
 
 }  // namespace
@@ -212,10 +214,12 @@ std::string comparison_html(const Evaluation& e) {
         for (const auto& w : e.warnings) out += "<li>" + html_escape(w) + "</li>";
         out += "</ul></div>\n";
     }
-    out += "<table><tr><th>minute</th><th>n</th>";
-    for (const auto& c : e.columns) out += fmt::format("<th>RPS<br><small>{}</small></th>", c);
+    out += "<div class=\"wide\"><table><tr><th>minute</th><th>n</th>";
+    for (const auto& c : e.columns)
+        out += fmt::format("<th>RPS<br><small>{}</small></th>", html_escape(forecaster_label(c)));
     for (std::size_t c = 1; c < e.columns.size(); ++c)
-        out += fmt::format("<th>model vs<br><small>{}</small></th>", html_escape(e.columns[c]));
+        out += fmt::format("<th>model vs<br><small>{}</small></th>",
+                           html_escape(forecaster_label(e.columns[c])));
     out += "</tr>\n";
     for (int b = 0; b < scoring::kBuckets; ++b) {
         const auto& bucket = e.buckets[static_cast<std::size_t>(b)];
@@ -227,14 +231,15 @@ std::string comparison_html(const Evaluation& e) {
             out += difference_cell(bucket.model_against[c]);
         out += "</tr>\n";
     }
-    out += "</table>\n";
+    out += "</table></div>\n";
     out += fmt::format(
         "<h3>Expected calibration error</h3><p>Each forecaster's ECE, and in brackets the ECE a "
         "perfectly calibrated forecaster shows on the same forecasts at the same n (outcomes "
         "drawn from the forecasts themselves, {} draws: mean / 95th percentile). An ECE inside "
-        "that range is what chance alone gives.</p><table><tr><th>minute</th>",
+        "that range is what chance alone gives.</p><div class=\"wide\"><table><tr><th>minute</th>",
         e.settings.calibration_draws);
-    for (const auto& c : e.columns) out += fmt::format("<th>{}</th>", html_escape(c));
+    for (const auto& c : e.columns)
+        out += fmt::format("<th>{}</th>", html_escape(forecaster_label(c)));
     out += "</tr>\n";
     for (int b = 0; b < scoring::kBuckets; ++b) {
         out += fmt::format("<tr><td>{}</td>", scoring::bucket_label(b));
@@ -248,7 +253,7 @@ std::string comparison_html(const Evaluation& e) {
         out += "</tr>\n";
     }
     out +=
-        "</table>\n<h3>By competition</h3><p>The model against the references, relative RPS "
+        "</table></div>\n<h3>By competition</h3><p>The model against the references, relative RPS "
         "difference in % with its interval; competitions with fewer matches are pooled.</p>\n";
     out += group_table(e, e.by_competition, "competition");
     out += "<h3>By year</h3>\n" + group_table(e, e.by_year, "year");
@@ -257,20 +262,22 @@ std::string comparison_html(const Evaluation& e) {
 
 std::string inputs_html(const RunInputs& inputs) {
     std::string out = fmt::format(
-        "<h2>Inputs</h2><p>Program version {}. Command: <code>{}</code></p><table><tr><th>role"
+        "<h2>Inputs</h2><p>Program version {}. Command: <code>{}</code></p><div "
+        "class=\"wide\"><table><tr><th>role"
         "</th><th>file</th><th>SHA-256</th></tr>\n",
         html_escape(inputs.program_version), html_escape(inputs.command_line));
     for (const auto& f : inputs.files)
         out += fmt::format("<tr><td>{}</td><td>{}</td><td><code>{}</code></td></tr>\n",
                            html_escape(f.role), html_escape(f.path), f.sha256);
-    return out + "</table>\n";
+    return out + "</table></div>\n";
 }
 
 std::string matches_html(const backtest::ScoredTable& table, std::size_t rows) {
     std::string out = fmt::format(
         "<h2>Matches</h2><p>Every scored match with every forecaster's forecasts: <a "
         "href=\"matches.csv\">matches.csv</a> ({} rows). The first {} here: home / draw / away "
-        "of the model at each minute.</p><table><tr><th>date</th><th>competition</th>"
+        "of the model at each minute.</p><div "
+        "class=\"wide\"><table><tr><th>date</th><th>competition</th>"
         "<th>match</th><th>score</th>",
         table.rows.size(), std::min(rows, table.rows.size()));
     for (int b = 0; b < scoring::kBuckets; ++b)
@@ -288,7 +295,7 @@ std::string matches_html(const backtest::ScoredTable& table, std::size_t rows) {
         }
         out += "</tr>\n";
     }
-    return out + "</table>\n";
+    return out + "</table></div>\n";
 }
 
 }  // namespace liveprob::report

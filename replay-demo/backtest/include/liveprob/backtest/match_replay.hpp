@@ -55,21 +55,27 @@ struct ReferenceMeans {
 scoring::Forecast independent_poisson_outcome(const std::array<int, 2>& score, double home_mean,
                                               double away_mean);
 
+// A chart places a minute by its period: stoppage runs past the period's nominal end on the
+// running clock (45:00 + 2:13 is 47.2), and must not be drawn over the next period's start.
 struct TimelinePoint {
     double minute = 0.0;           // running match clock in minutes
     scoring::Forecast forecast{};  // full model
+    core::Period period = core::Period::pre_match;
 };
 
 struct TimelineMark {
     double minute = 0.0;
     enum class Kind : std::uint8_t { goal, goal_cancelled, red_card } kind = Kind::goal;
     core::Side side = core::Side::home;
+    core::Period period = core::Period::pre_match;
 };
 
 struct Timeline {
     std::string home_name, away_name;
     std::vector<TimelinePoint> points;
     std::vector<TimelineMark> marks;
+    std::uint16_t half_minutes = 45;  // the format's, for placing each period on a chart
+    std::uint16_t extra_half_minutes = 15;
 };
 
 enum class ReplayFate : std::uint8_t {
