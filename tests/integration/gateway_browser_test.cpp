@@ -4,7 +4,8 @@
 // names, the to-advance bar, the shoot-out and its winner, a clock in stoppage, a time axis that
 // never runs backwards. Screenshots at 390 px and 1920 px are kept as test artefacts (paths
 // printed) and neither width overflows sideways. Then serve is killed and the page must show
-// every match stale within the gateway's silence limit; ?match=ID shows one match alone.
+// every match stale within the gateway's silence limit; ?match=ID shows one match alone. A
+// match whose own feed goes silent in play is marked stale on its card, and fresh once it speaks.
 #include <catch2/catch.hpp>
 
 #include <fmt/format.h>
@@ -262,4 +263,31 @@ TEST_CASE("the page shows what the engine published, in a real browser",
                         "document.getElementById('feed-state').dataset.state === 'lost'"));
     CHECK(page.evaluate("document.querySelector('.match').dataset.matchId") == "103");
     CHECK(page.evaluate(in_card(103, ".decision", "dataset.winner")) == "home");
+}
+
+TEST_CASE(
+    "in a real browser, a match is marked stale while serve says its feed is silent, and fresh "
+    "after",
+    "[gateway][browser][sockets]") {
+    REQUIRE(std::filesystem::exists(test::kChromium));
+    const auto dir = test::scratch_dir("gateway-browser-feed-stale");
+    // Ticks every 300 ms re-publish the match; past 1 s of feed silence in play they say so.
+    test::LiveStack stack(dir, 300, {"--feed-stale-s", "1"});
+    const std::uint16_t port = stack.start_gateway();
+    test::FeedBuilder feed(201);
+    stack.send(feed.next(setup_of("Marsh End", "Tollgate", 1.4, 1.2), MatchClock{}));
+    stack.send(feed.start(Period::first_half, 0.0));
+    stack.send(feed.goal(Side::home, Period::first_half, 3.0));
+    REQUIRE(stack.await_update(201, feed.last_seq()));
+
+    test::DevtoolsPage page(dir, fmt::format("http://127.0.0.1:{}/?match=201", port));
+    const std::string feed_silent =
+        R"((document.querySelector('[data-match-id="201"]') || {dataset: {stale: 'x'}}).dataset.stale)";
+    REQUIRE(page.wait_until(feed_silent + " === 'feed'", 15s));
+    CHECK(page.evaluate(in_card(201, ".stale")) == "stale: match feed silent");
+    CHECK(page.evaluate("document.getElementById('feed-state').dataset.state") == "live");
+    // The feed speaks again: the next update vouches for the match and the mark goes.
+    stack.send(feed.shot(Side::away, 0.1, Period::first_half, 4.0));
+    REQUIRE(page.wait_until(feed_silent + " === ''", 15s));
+    CHECK(page.evaluate(in_card(201, ".stale", "hidden")) == "true");
 }
