@@ -262,6 +262,9 @@ struct ExtraTimeScratch {
     // P(home advances | k jumps from level), shoot-out included
     std::array<double, kMaxJumps> value{};
     std::array<double, kMaxJumps> counts{};
+    // The extra-time weights for a few consecutive regulation jump counts at once.
+    static constexpr std::size_t kBlock = 4;
+    std::array<std::array<double, kMaxJumps>, kBlock> block{};
 };
 
 AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, const ClassRates& rates,
@@ -311,13 +314,45 @@ AdvanceSplit extra_time_after_level(std::span<const double> level_by_jumps, cons
     for (std::size_t k = 0; k < span; ++k) ks[k] = static_cast<double>(k);
     for (std::size_t k = 0; k + 1 < span; ++k)
         p[k + 1] = p[k] * (first.shape + ks[k]) / (ks[k] + 1.0) * q;
-    for (std::size_t n = 0; n < level_by_jumps.size(); ++n) {
-        if (n > 0) {
-            const double shape = first.shape + static_cast<double>(n - 1);  // A + n - 1
-            const double base = (1.0 - q) / shape;
-            for (std::size_t k = 0; k < span; ++k) p[k] *= (shape + ks[k]) * base;
+    // P_n from P_{n-1}.
+    auto advance = [&](const double* from, double* to, std::size_t n) {
+        const double shape = first.shape + static_cast<double>(n - 1);  // A + n - 1
+        const double base = (1.0 - q) / shape;
+        for (std::size_t k = 0; k < span; ++k) to[k] = from[k] * ((shape + ks[k]) * base);
+    };
+    add(level_by_jumps[0], p, span);
+    // Each n's sums over k run in order (their rounding is part of the published figures), so
+    // four consecutive n are summed side by side: independent chains the processor overlaps
+    // instead of one chain waiting on each addition.
+    constexpr std::size_t kBlock = ExtraTimeScratch::kBlock;
+    const std::size_t levels = level_by_jumps.size();
+    const double* prev = p;
+    std::size_t n = 1;
+    for (; n + kBlock <= levels; n += kBlock) {
+        std::array<double*, kBlock> rows{};
+        for (std::size_t b = 0; b < kBlock; ++b) {
+            rows[b] = x.block[b].data();
+            advance(b == 0 ? prev : rows[b - 1], rows[b], n + b);
         }
-        add(level_by_jumps[n], p, span);
+        std::array<double, kBlock> home{}, total{};
+        for (std::size_t k = 0; k < span; ++k) {
+            const double value = x.value[k];
+            for (std::size_t b = 0; b < kBlock; ++b) {
+                home[b] += rows[b][k] * value;
+                total[b] += rows[b][k];
+            }
+        }
+        for (std::size_t b = 0; b < kBlock; ++b) {
+            out.home += level_by_jumps[n + b] * home[b];
+            out.away += level_by_jumps[n + b] * (total[b] - home[b]);
+        }
+        prev = rows[kBlock - 1];
+    }
+    for (std::size_t b = 0; n < levels; ++n, ++b) {  // the last few, one at a time
+        double* row = x.block[b].data();
+        advance(prev, row, n);
+        add(level_by_jumps[n], row, span);
+        prev = row;
     }
     return out;
 }

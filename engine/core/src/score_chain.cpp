@@ -71,27 +71,94 @@ private:
     std::array<double, kSlots> stay_{}, from_below_{}, from_above_{}, now_{};
 };
 
-constexpr std::size_t kStepWidth = kGridSize + 2;  // ScoreChain's plane width (checked in add())
+// Where ScoreChain's planes put their cells (score_chain.hpp; checked in add()).
+constexpr std::size_t kStepStride = 24;
+constexpr std::size_t kStepLeft = 4;
+constexpr std::size_t kVector = 4;  // cells per chunk: one AVX2 vector
+constexpr std::size_t kChunks = kGridSize / kVector;
 
 // One jump (number n >= 1) of the uniformized chain over the plane, accumulating the new
-// distribution with weight w. The hot loop of the whole engine: one branch-free pass, so that
-// it vectorizes. Rows past n cannot hold mass yet and are left alone; within a row every cell
-// is computed (a shorter, ragged range would cost more in loop overhead than it saves).
+// distribution with weight w. The hot loop of the whole engine. After n jumps only the cells
+// with i + j <= n can hold mass (each jump adds one goal or none), so row i is computed in
+// whole chunks of four cells up to column min(n - i, kGrid - 1): every chunk starts on a
+// 32-byte boundary and the row's loop has no remainder. Cells past the triangle inside a
+// chunk read only zeros and stay exactly zero. A cell's three coefficients are its diagonal's
+// (stay, and the home and away probabilities of the cells that send to it: the diagonals
+// either side), read from the 33-entry tables at the row's offset.
+// The overflow buckets (row and column kGrid) can only receive mass from the 16th jump on;
+// they keep everything (stay 1) and send nothing, so their update is v + p · (the cell that
+// sends), written unfused: the products and sums the general formula would round, no more.
 // Rounding is the same on every machine, so a replay reproduces live figures to the last bit:
-// the fused multiply-adds are written out (std::fma is exactly rounded wherever it runs), and
-// the loop has a fast clone (fast_clones.hpp) beside the baseline, where std::fma is a library
-// call: correct, identical, several times slower.
+// the fused multiply-adds are written out (std::fma is exactly rounded wherever it runs; the
+// build contracts nothing else), and the loop has a fast clone (fast_clones.hpp) beside the
+// baseline, where std::fma is a library call: correct, identical, several times slower.
 LIVEPROB_FAST_CLONES
-void uniformized_step(const double* __restrict stay, const double* __restrict from_home,
-                      const double* __restrict from_away, const double* __restrict v,
+void uniformized_step(const double* __restrict stay, const double* __restrict home,
+                      const double* __restrict away, const double* __restrict v,
                       double* __restrict nv, double* __restrict acc, double w, std::size_t n) {
-    constexpr std::size_t width = kStepWidth;
-    const std::size_t end = (std::min(n, kGridSize) + 2) * width;
-    for (std::size_t x = width; x < end; ++x) {
-        const double y =
-            std::fma(stay[x], v[x], std::fma(from_home[x], v[x - width], from_away[x] * v[x - 1]));
+    constexpr std::size_t stride = kStepStride;
+    const std::size_t grid_rows = std::min(n, kGridSize - 1) + 1;
+    for (std::size_t i = 0; i < grid_rows; ++i) {
+        const std::size_t row = (i + 1) * stride + kStepLeft;
+        const std::size_t cells = std::min((n - i) / kVector + 1, kChunks) * kVector;
+        // Diagonal of cell (i, j): j - i + kGrid; the cell above lies one diagonal up, the
+        // cell to the left one down.
+        const double* s = stay + (kGridSize - i);
+        const double* h = home + (kGridSize + 1 - i);
+        const double* a = away + (kGridSize - 1 - i);
+        const double* vr = v + row;
+        const double* up = vr - stride;
+        double* nr = nv + row;
+        double* ar = acc + row;
+        for (std::size_t j = 0; j < cells; ++j) {
+            const double y = std::fma(s[j], vr[j], std::fma(h[j], up[j], a[j] * vr[j - 1]));
+            nr[j] = y;
+            ar[j] = std::fma(w, y, ar[j]);
+        }
+    }
+    if (n < kGridSize) return;
+    // Column j == kGrid, rows i <= n - kGrid: an away goal from (i, kGrid - 1).
+    const std::size_t reach = std::min(n - kGridSize + 1, kGridSize);
+    for (std::size_t i = 0; i < reach; ++i) {
+        const std::size_t x = (i + 1) * stride + kStepLeft + kGridSize;
+        const double y = v[x] + away[2 * kGridSize - 1 - i] * v[x - 1];
         nv[x] = y;
         acc[x] = std::fma(w, y, acc[x]);
+    }
+    // Row i == kGrid, columns j <= n - kGrid: a home goal from (kGrid - 1, j).
+    const std::size_t last = (kGridSize + 1) * stride + kStepLeft;
+    for (std::size_t j = 0; j < reach; ++j) {
+        const std::size_t x = last + j;
+        const double y = v[x] + home[j + 1] * v[x - stride];
+        nv[x] = y;
+        acc[x] = std::fma(w, y, acc[x]);
+    }
+}
+
+// The passes of difference_values (below): values[n] is u_n at `start`, u_{n+1} = M u_n with
+// M the difference chain's one-jump matrix (rows `stay`, `up`, `down`). Only the start's value
+// is read, so u_n is needed only within (last n) - n slots of the start: each pass covers a
+// narrower range. A fast clone like the chain step's; nothing here is fused (the build
+// contracts nothing), so both clones round alike.
+LIVEPROB_FAST_CLONES
+void backward_passes(const double* __restrict stay, const double* __restrict up,
+                     const double* __restrict down, double* __restrict u,
+                     double* __restrict next, std::size_t start, std::size_t slots,
+                     double* __restrict values, std::size_t count) {
+    auto step = [&](const double* __restrict from, double* __restrict to, std::size_t reach) {
+        const std::size_t lo = start > reach + 1 ? start - reach : 1;
+        const std::size_t hi = std::min(start + reach, slots - 2);
+        for (std::size_t x = lo; x <= hi; ++x) {
+            to[x] = stay[x] * from[x] + up[x] * from[x + 1] + down[x] * from[x - 1];
+        }
+    };
+    const std::size_t last = count == 0 ? 0 : count - 1;
+    for (std::size_t n = 0; n < count; ++n) {
+        if (n > 0) {
+            if (n % 2 == 1) step(u, next, last - n);
+            else step(next, u, last - n);
+        }
+        values[n] = (n % 2 == 1 ? next : u)[start];
     }
 }
 
@@ -127,30 +194,14 @@ void ScoreChain::solve(const ClassRates& rates, int start_diff, double exposure,
 
 void ScoreChain::set_step_probabilities(const ClassRates& rates, int start_diff) {
     const StepProbabilities p(rates, rates.max_total());
-    // By m = j - i + kGrid (0 .. 2 kGrid), the diagonal a cell lies on: the home side's goal
-    // difference there is start_diff + kGrid - m.
-    constexpr std::size_t kDiagonals = 2 * kGridSize + 1;
-    std::array<double, kDiagonals> stay{}, home{}, away{};
+    // Diagonal m = j - i + kGrid: the home side's goal difference there is
+    // start_diff + kGrid - m.
     for (std::size_t m = 0; m < kDiagonals; ++m) {
         const auto c = at(diff_class(start_diff + kGrid - static_cast<int>(m)));
-        stay[m] = p.stay[c];
-        home[m] = p.home[c];
-        away[m] = p.away[c];
+        stay_[m] = p.stay[c];
+        home_[m] = p.home[c];
+        away_[m] = p.away[c];
     }
-    // Row i holds diagonals m = kGrid - i .. 2 kGrid - i, in order: contiguous copies.
-    for (std::size_t i = 0; i <= kGridSize; ++i) {
-        const std::size_t m0 = kGridSize - i;
-        double* s_row = &stay_[(i + 1) * kWidth + 1];
-        double* h_row = &from_home_[(i + 1) * kWidth + 1];
-        double* a_row = &from_away_[(i + 1) * kWidth + 1];
-        std::copy_n(&stay[m0], kGridSize + 1, s_row);
-        // From (i - 1, j) by a home goal (diagonal m + 1), from (i, j - 1) by an away goal
-        // (diagonal m - 1), only from grid cells: overflow buckets send nothing.
-        if (i > 0) std::copy_n(&home[m0 + 1], kGridSize, h_row);
-        if (i < kGridSize) std::copy_n(&away[m0], kGridSize, a_row + 1);
-        s_row[kGridSize] = 1.0;  // column j == kGrid: overflow bucket
-    }
-    std::fill_n(&stay_[(kGridSize + 1) * kWidth + 1], kGridSize + 1, 1.0);  // row i == kGrid
 }
 
 std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpCounts& counts,
@@ -165,44 +216,52 @@ std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpC
         if (trace) level_[level_count_++] = level_k == 0 ? weight : 0.0;
         return 1;
     }
-    static_assert(kWidth == kStepWidth);
+    static_assert(kStride == kStepStride && kLeft == kStepLeft && kStride >= kLeft + kGrid + 1);
     const std::size_t jumps = jump_weights(counts, weight, weights_);
     set_step_probabilities(rates, start_diff);
 
-    // Cells not yet reachable must read zero: clear the planes (a few kilobytes) rather than
-    // track what an earlier solve left behind.
-    a_.fill(0.0);
-    b_.fill(0.0);
-    sum_.fill(0.0);
-    // Where the level diagonal's cells (j = i - level_k) lie in a plane.
-    std::array<std::size_t, kGridSize + 1> level_at{};
+    // Cells not yet reachable must read zero: clear the rows this solve's jumps can reach (a
+    // few kilobytes) rather than track what an earlier solve left behind. Rows past them are
+    // neither read nor written below (they hold no mass).
+    const std::size_t rows = std::min(jumps, kGridSize + 1) + 1;  // plane rows 0 .. rows - 1
+    std::fill_n(a_.begin(), rows * kStride, 0.0);
+    std::fill_n(b_.begin(), rows * kStride, 0.0);
+    std::fill_n(sum_.begin(), rows * kStride, 0.0);
+    // Where the level diagonal's cells (j = i - level_k) lie in a plane, by rising i, and how
+    // many jumps reach each (i + j): after n jumps only a prefix of them can hold mass.
+    std::array<std::size_t, kGridSize + 1> level_at{}, level_reached_after{};
     std::size_t level_cells = 0;
-    for (int i = 0; trace && i <= kGrid; ++i) {
+    for (int i = 0; trace && at(i) + 1 < rows; ++i) {
         const int j = i - level_k;
-        if (j >= 0 && j <= kGrid) level_at[level_cells++] = (at(i) + 1) * kWidth + at(j) + 1;
+        if (j < 0 || j > kGrid) continue;
+        level_at[level_cells] = cell_at(at(i), at(j));
+        level_reached_after[level_cells++] = at(i + j);
     }
+    std::size_t level_reached = 0;  // level cells that can hold mass now
     Plane* now = &a_;
     Plane* next = &b_;
-    (*now)[kWidth + 1] = 1.0;  // (0, 0)
-    sum_[kWidth + 1] = weights_[0];
+    (*now)[cell_at(0, 0)] = 1.0;
+    sum_[cell_at(0, 0)] = weights_[0];
     if (trace) level_[level_count_++] = level_k == 0 ? weights_[0] : 0.0;
 
     for (std::size_t n = 1; n < jumps; ++n) {
         const double w = weights_[n];
-        uniformized_step(stay_.data(), from_home_.data(), from_away_.data(), now->data(),
+        uniformized_step(stay_.data(), home_.data(), away_.data(), now->data(),
                          next->data(), sum_.data(), w, n);
         if (trace) {
             const double* nv = next->data();
-            double level_mass = 0.0;
-            for (std::size_t c = 0; c < level_cells; ++c) level_mass += nv[level_at[c]];
+            while (level_reached < level_cells && level_reached_after[level_reached] <= n)
+                ++level_reached;
+            double level_mass = 0.0;  // the cells past the prefix hold exact zeros
+            for (std::size_t c = 0; c < level_reached; ++c) level_mass += nv[level_at[c]];
             level_[level_count_++] = w * level_mass;
         }
         std::swap(now, next);
     }
 
     // Back to the grid and its overflow buckets.
-    for (std::size_t i = 0; i <= kGridSize; ++i) {
-        const double* row = &sum_[(i + 1) * kWidth + 1];
+    for (std::size_t i = 0; i + 1 < rows; ++i) {
+        const double* row = &sum_[cell_at(i, 0)];
         if (i == kGridSize) {
             for (std::size_t j = 0; j < kGridSize; ++j) out.home_overflow[j] += row[j];
             continue;
@@ -235,23 +294,8 @@ void difference_values(const ClassRates& rates, int start_diff, double level_val
         const int tie = start_diff + d;
         u[slot(d)] = tie > 0 ? 1.0 : tie == 0 ? level_value : 0.0;
     }
-    // Only the start's value is read, so u_n is needed only within (last n) - n slots of the
-    // start: each pass covers a narrower range.
-    const std::size_t last = out.empty() ? 0 : out.size() - 1;
-    auto step = [&](const double* __restrict from, double* __restrict to, std::size_t reach) {
-        const std::size_t lo = slot(0) > reach + 1 ? slot(0) - reach : 1;
-        const std::size_t hi = std::min(slot(0) + reach, at(kSlots) - 2);
-        for (std::size_t x = lo; x <= hi; ++x) {
-            to[x] = stay[x] * from[x] + up[x] * from[x + 1] + down[x] * from[x - 1];
-        }
-    };
-    for (std::size_t n = 0; n < out.size(); ++n) {
-        if (n > 0) {
-            if (n % 2 == 1) step(u.data(), next.data(), last - n);
-            else step(next.data(), u.data(), last - n);
-        }
-        out[n] = (n % 2 == 1 ? next : u)[slot(0)];
-    }
+    backward_passes(stay.data(), up.data(), down.data(), u.data(), next.data(), slot(0),
+                    at(kSlots), out.data(), out.size());
 }
 
 DifferenceOutcome solve_difference(const ClassRates& rates, int start_diff, double exposure) {

@@ -66,21 +66,27 @@ public:
     std::span<const double> level_trace() const noexcept { return {level_.data(), level_count_}; }
 
 private:
-    // Cells by rows of home goals added: cell (i, j) at row i + 1, column j + 1 of a plane;
-    // row 0 and column 0 stay empty so that the first row's and column's neighbours read zero
-    // (a row's column 0 also follows the previous row's last cell). Row i == kGrid and
-    // column j == kGrid are the overflow buckets (absorbing). Per cell, the step keeps
-    // `stay_` of its own mass and receives `from_home_` of the cell above (a home goal) and
-    // `from_away_` of the cell to its left (an away goal); so one step is a single
-    // branch-free pass over the plane.
-    static constexpr std::size_t kWidth = kGrid + 2;  // column 0 empty, then j = 0 .. kGrid
+    // Cells by rows of home goals added: cell (i, j) at row i + 1, column j + kLeft of a plane.
+    // Row 0 and the columns left of kLeft stay zero, so that the first row's and column's
+    // neighbours read zero; a row is kStride doubles (a multiple of 32 bytes), so every row's
+    // grid cells j = 0 .. kGrid - 1 start on a 32-byte boundary and fill four vectors of four.
+    // Row i == kGrid and column j == kGrid hold the overflow buckets (absorbing).
+    static constexpr std::size_t kLeft = 4;
+    static constexpr std::size_t kStride = 24;
     static constexpr std::size_t kRows = kGrid + 2;
-    using Plane = std::array<double, kRows * kWidth>;
+    using Plane = std::array<double, kRows * kStride>;
+    static constexpr std::size_t cell_at(std::size_t i, std::size_t j) {
+        return (i + 1) * kStride + kLeft + j;
+    }
+    // Per-jump probabilities by the diagonal m = j - i + kGrid (0 .. 2 kGrid) a cell lies on: a
+    // cell's class, hence its coefficients, depends on its diagonal alone.
+    static constexpr std::size_t kDiagonals = 2 * kGrid + 1;
+    using Diagonals = std::array<double, kDiagonals>;
     void set_step_probabilities(const ClassRates& rates, int start_diff);
 
-    alignas(64) Plane stay_{};
-    alignas(64) Plane from_home_{};
-    alignas(64) Plane from_away_{};
+    Diagonals stay_{};
+    Diagonals home_{};
+    Diagonals away_{};
     alignas(64) Plane a_{};
     alignas(64) Plane b_{};
     alignas(64) Plane sum_{};
