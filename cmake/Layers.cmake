@@ -61,7 +61,7 @@ liveprob_layer(datasets   FOLDER adapters/datasets    USES files protocol fit co
 liveprob_layer(service    FOLDER adapters/service     USES monitoring transport files system protocol core PRIVATE_LINKS zmq asio simdjson fmt spdlog threads)
 liveprob_layer(clients    FOLDER adapters/clients     USES transport system protocol core                LINKS zmq PRIVATE_LINKS fmt threads)
 liveprob_layer(cluster    FOLDER adapters/cluster     USES service system protocol core                  LINKS nats PRIVATE_LINKS fmt spdlog threads)
-liveprob_layer(gateway    FOLDER adapters/gateway     USES monitoring transport system protocol core    PRIVATE_LINKS zmq asio beast simdjson fmt spdlog)
+liveprob_layer(gateway    FOLDER adapters/gateway     USES cluster monitoring transport system protocol core PRIVATE_LINKS zmq asio beast simdjson fmt spdlog)
 liveprob_layer(scoring    FOLDER replay-demo/scoring)
 liveprob_layer(backtest   FOLDER replay-demo/backtest USES scoring protocol fit core                     PRIVATE_LINKS fmt threads)
 liveprob_layer(report     FOLDER replay-demo/report   USES backtest scoring protocol fit                 PRIVATE_LINKS fmt)

@@ -24,6 +24,7 @@
 #include "liveprob/system/wall_clock.hpp"
 #include "liveprob/transport/reactor_socket.hpp"
 #include "liveprob/transport/topics.hpp"
+#include "nats_intake.hpp"
 #include "update_intake.hpp"
 #include "websocket_session.hpp"
 
@@ -73,6 +74,7 @@ struct Gateway::Impl {
     void apply(const GatewayUpdate& update);
     void drain_snapshot(zmq::socket_t& socket);
     void heard_upstream();
+    void upstream_alive();
     void watch_upstream();
     void keep_house();
     void shut_down();
@@ -81,7 +83,8 @@ struct Gateway::Impl {
     asio::io_context io{1};
     zmq::context_t zmq_context{1};
     tcp::acceptor acceptor{io};
-    std::optional<transport::ReactorSocket> feed;
+    std::optional<transport::ReactorSocket> feed;      // serve's PUB socket, or
+    std::optional<NatsIntake> nats;                    // the cluster's match subjects
     std::optional<transport::ReactorSocket> snapshot;  // DEALER to serve's snapshot socket
     asio::signal_set signals{io};
     asio::steady_timer stop_timer{io};
@@ -91,7 +94,8 @@ struct Gateway::Impl {
 
 Gateway::Impl::Impl(GatewayConfig config) : hub(make_hub(std::move(config))) {
     const GatewayConfig& c = hub.config;
-    if (c.feed_endpoint.empty()) throw std::runtime_error("no feed endpoint to subscribe to");
+    if (c.feed_endpoint.empty() && c.nats_servers.empty())
+        throw std::runtime_error("no feed endpoint to subscribe to");
     boost::system::error_code ec;
     const auto address = asio::ip::make_address(c.listen_address, ec);
     if (ec) throw std::runtime_error("bad listen address '" + c.listen_address + "'");
@@ -103,6 +107,14 @@ Gateway::Impl::Impl(GatewayConfig config) : hub(make_hub(std::move(config))) {
     if (ec) {
         throw std::runtime_error(fmt::format("cannot listen on {}:{}: {}", c.listen_address,
                                              c.listen_port, ec.message()));
+    }
+
+    if (!c.nats_servers.empty()) {
+        nats.emplace(c.nats_servers, io, [this](const std::vector<std::uint8_t>& payload) {
+            heard_upstream();
+            take(payload);
+        });
+        return;
     }
 
     zmq::socket_t subscriber(zmq_context, zmq::socket_type::sub);
@@ -209,6 +221,10 @@ void Gateway::Impl::drain_snapshot(zmq::socket_t& socket) {
 
 void Gateway::Impl::heard_upstream() {
     ++hub.counters.upstream_messages;
+    upstream_alive();
+}
+
+void Gateway::Impl::upstream_alive() {
     hub.last_upstream = std::chrono::steady_clock::now();
     if (hub.upstream == Upstream::live) return;
     if (hub.upstream == Upstream::lost)
@@ -225,6 +241,9 @@ void Gateway::Impl::watch_upstream() {
         std::max(hub.config.upstream_silence_limit / 4, std::chrono::milliseconds(10)));
     upstream_timer.async_wait([this](boost::system::error_code ec) {
         if (ec) return;
+        // The cluster publishes no counters on NATS: a quiet cluster is told from a lost one by
+        // the connection (its client reconnects to another node on its own).
+        if (nats && nats->connected()) upstream_alive();
         const auto now = std::chrono::steady_clock::now();
         if (hub.upstream == Upstream::live &&
             now - hub.last_upstream > hub.config.upstream_silence_limit) {
@@ -268,7 +287,8 @@ void Gateway::Impl::shut_down() {
     signals.cancel(ignored);
     upstream_timer.cancel();
     housekeeping_timer.cancel();
-    feed->stop();
+    if (feed) feed->stop();
+    if (nats) nats->stop();
     if (snapshot) snapshot->stop();
     const std::vector<WebSocketSession*> open(hub.clients.begin(), hub.clients.end());
     for (WebSocketSession* client : open) client->close_going_away();
@@ -284,7 +304,11 @@ std::uint16_t Gateway::port() const noexcept { return impl_->acceptor.local_endp
 
 void Gateway::run(bool handle_signals) {
     Impl& g = *impl_;
-    g.feed->start([&g](zmq::socket_t& socket) { g.drain_feed(socket); });
+    if (g.feed) g.feed->start([&g](zmq::socket_t& socket) { g.drain_feed(socket); });
+    // Subscribed first (in the constructor), then the latest states read: an entry older than
+    // an update that arrived meanwhile is skipped as stale.
+    if (g.nats)
+        spdlog::info("gateway: {} latest states from the cluster", g.nats->read_latest_states());
     if (g.snapshot) {
         // Subscribed first, then asked: whatever is published meanwhile is newer than the
         // snapshot's entries, which the latest updates then skip as stale.

@@ -8,6 +8,7 @@
 #include <string>
 
 #include "command_registry.hpp"
+#include "liveprob/cluster/cluster_layout.hpp"
 #include "liveprob/files/endpoints_file.hpp"
 #include "liveprob/gateway/gateway.hpp"
 #include "liveprob/monitoring/log_format.hpp"
@@ -21,6 +22,7 @@ struct GatewayOptions {
     GatewayConfig config;
     std::string port_file;
     std::string serve_endpoints;
+    std::string cluster_servers;
     std::uint64_t idle_timeout_ms = 60'000;
     std::uint64_t handshake_timeout_ms = 10'000;
     std::uint64_t upstream_silence_ms = 12'000;
@@ -44,8 +46,9 @@ void read_serve_endpoints(const std::string& path, GatewayConfig& config) {
 int run_gateway(GatewayOptions& options) {
     GatewayConfig& config = options.config;
     if (!options.serve_endpoints.empty()) read_serve_endpoints(options.serve_endpoints, config);
-    if (config.feed_endpoint.empty())
-        throw liveprob::cli::UsageError("give --feed or --serve-endpoints");
+    config.nats_servers = liveprob::cluster::split_servers(options.cluster_servers);
+    if (config.feed_endpoint.empty() == config.nats_servers.empty())
+        throw liveprob::cli::UsageError("give --feed or --serve-endpoints, or --cluster");
     if (config.web_dir.empty()) config.web_dir = liveprob::gateway::default_web_dir();
     if (config.send_queue_cap == 0)
         throw liveprob::cli::UsageError("--queue-cap must be at least 1");
@@ -80,6 +83,9 @@ const liveprob::cli::Registration registration{
                         "snapshot endpoint: ask it for every live match at start");
          app.add_option("--serve-endpoints", options->serve_endpoints,
                         "serve's endpoints file (publish= and snapshot= lines)");
+         app.add_option("--cluster", options->cluster_servers,
+                        "instead of serve: nats:// URLs of a NATS cluster (comma-separated); "
+                        "updates from its match subjects and latest-state bucket");
          app.add_option("--address", c.listen_address, "address to listen on")
              ->capture_default_str();
          app.add_option("--port", c.listen_port, "port to listen on (0: any free port)")

@@ -17,6 +17,10 @@ struct GatewayConfig {
     // Optional `serve` snapshot endpoint: asked for every live match at start and whenever an
     // update sequence gap shows that something was missed.
     std::string snapshot_endpoint;
+    // Instead of serve: `nats://host:port` URLs of a NATS cluster whose engines (`serve
+    // --cluster`) publish on the match subjects; the gateway subscribes to all of them and, at
+    // start, reads the latest-state bucket for the matches already under way (docs/cluster.md).
+    std::vector<std::string> nats_servers;
 
     std::string listen_address = "127.0.0.1";
     std::uint16_t listen_port = 0;  // 0 = an ephemeral port (see Gateway::port())
