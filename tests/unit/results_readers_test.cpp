@@ -71,6 +71,16 @@ TEST_CASE("a fixture not yet played (NA, NA) is skipped and counted, not an erro
     CHECK(read.matches.size() == 1);
 }
 
+TEST_CASE("a row whose tournament is Friendly is marked a friendly, other rows are not",
+          "[import]") {
+    const auto path = results_file(
+        "friendly", "2001-03-02,Millbrook,Stonegate,0,0,Friendly,Mill,Millbrook,FALSE\n");
+    const auto read = read_international_results(path);
+    REQUIRE(read.matches.size() == 2);
+    CHECK_FALSE(read.matches[0].friendly);
+    CHECK(read.matches[1].friendly);
+}
+
 TEST_CASE("the project's results CSV: a bad row named by line, or skipped and counted",
           "[import]") {
     const auto path = liveprob::test::scratch_dir("results-readers-project") / "r.csv";

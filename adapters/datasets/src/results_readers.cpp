@@ -152,6 +152,7 @@ InternationalRows read_international_rows(const std::string& path, BadRows bad) 
                 throw BadRow(fmt::format("neutral '{}' is not TRUE/FALSE", at(c_neutral)));
             r.result.neutral = *neutral;
             r.competition = at(c_tournament);
+            r.result.friendly = r.competition == "Friendly";
             r.line = line;
             if (filter.first_time(r.result)) {
                 out.rows.push_back(std::move(r));

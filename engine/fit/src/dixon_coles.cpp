@@ -178,8 +178,10 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
     for (const auto& m : matches) {
         if (o.as_of_day && m.day >= *o.as_of_day) continue;  // never the future
         if (m.home_goals < 0 || m.away_goals < 0 || m.home == m.away) continue;
-        const double w = std::exp(-o.xi * (reference_day - m.day));
-        if (w < o.min_weight) continue;
+        const double decay = std::exp(-o.xi * (reference_day - m.day));
+        if (decay < o.min_weight) continue;
+        const double w = decay * (m.friendly ? o.friendly_weight : 1.0);
+        if (w <= 0.0) continue;
         const int h = team(m.home), a = team(m.away);
         games.push_back({h, a, m.home_goals, m.away_goals, m.neutral, w,
                          log_factorial(m.home_goals) + log_factorial(m.away_goals)});
@@ -243,7 +245,7 @@ Ratings fit_ratings(std::span<const MatchResult> matches, const RatingsFitOption
             static_cast<int>(group_size.size()), n - largest_group->second));
     }
 
-    RatingNewtonSystem solver(std::move(games), n, precision);
+    RatingNewtonSystem solver(std::move(games), n, precision, o.level_precision);
     NewtonOutcome outcome = newton(solver, t, rho, o);
     int iterations = outcome.iterations;
     if (warm && !outcome.converged) {  // a warm start is only a hint: start again from cold

@@ -18,8 +18,9 @@ TauSlopes tau_slopes(const RatingGame& g, double lambda, double nu, double rho) 
 }
 
 RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams,
-                                       Eigen::VectorXd precision)
-    : games_(std::move(games)), n_(teams), precision_(std::move(precision)) {
+                                       Eigen::VectorXd precision, double level_precision)
+    : games_(std::move(games)), n_(teams), precision_(std::move(precision)),
+      level_precision_(level_precision) {
     // Every (attacker, defender) pair that occurs, numbered in attacker order through an
     // n × n table (n is at most a few hundred teams).
     const auto n = static_cast<std::size_t>(n_);
@@ -29,6 +30,8 @@ RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams,
         table[static_cast<std::size_t>(g.home) * n + static_cast<std::size_t>(g.away)] = kPresent;
         table[static_cast<std::size_t>(g.away) * n + static_cast<std::size_t>(g.home)] = kPresent;
     }
+    if (level_precision_ > 0.0)
+        for (std::size_t i = 0; i < n; ++i) table[i * n + i] = kPresent;
     pair_start_.assign(n + 1, 0);
     for (std::size_t i = 0; i < n; ++i) {
         pair_start_[i] = static_cast<int>(pair_attacker_.size());
@@ -50,6 +53,8 @@ RatingNewtonSystem::RatingNewtonSystem(std::vector<RatingGame> games, int teams,
         away_pair_.push_back(
             table[static_cast<std::size_t>(g.away) * n + static_cast<std::size_t>(g.home)]);
     }
+    if (level_precision_ > 0.0)
+        for (std::size_t i = 0; i < n; ++i) self_pair_.push_back(table[i * n + i]);
 }
 
 double RatingNewtonSystem::eta_home(const RatingParams& t, const RatingGame& g) const {
@@ -69,9 +74,11 @@ double RatingNewtonSystem::log_likelihood(const RatingParams& t, double rho, boo
         if (rho != 0.0) term += std::log(dixon_coles_tau(g.x, g.y, lh, la, rho));
         ll += g.w * term;
     }
-    if (penalised)
+    if (penalised) {
         ll -= 0.5 *
               (precision_.array() * (t.attack.array().square() + t.defence.array().square())).sum();
+        ll -= 0.5 * level_precision_ * (t.attack - t.defence).squaredNorm();
+    }
     return ll;
 }
 
@@ -109,6 +116,16 @@ bool RatingNewtonSystem::assemble(const RatingParams& t, double rho) {
     g_a_ = -precision_.cwiseProduct(t.attack);
     g_y_ = Eigen::VectorXd::Zero(m);
     g_y_.head(n_) = -precision_.cwiseProduct(t.defence);
+    // The level penalty q/2·(a_i − d_i)²: information q·[[1, −1], [−1, 1]] on (a_i, d_i), entered
+    // like one more game side of team i against itself.
+    for (int i = 0; i < static_cast<int>(self_pair_.size()); ++i) {
+        const double excess = level_precision_ * (t.attack[i] - t.defence[i]);
+        g_a_[i] -= excess;
+        g_y_[i] += excess;
+        a_diag_[i] += level_precision_;
+        k_(i, i) += level_precision_;
+        pair_value_[self_pair_[static_cast<std::size_t>(i)]] -= level_precision_;
+    }
     for (std::size_t k = 0; k < games_.size(); ++k) {
         const RatingGame& g = games_[k];
         const double lh = std::exp(eta_home(t, g)), la = std::exp(eta_away(t, g));

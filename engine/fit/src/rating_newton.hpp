@@ -1,10 +1,12 @@
 // The Newton system of the Dixon–Coles rating fit (private to the engine).
 //
 // Parameters: attack a[0..n), defence d[0..n), intercept μ, home advantage h, with the
-// constraints Σa = 0 and Σd = 0 and a Gaussian penalty of precision p_i on a_i and d_i (the
-// shrinkage of teams with few matches). The information matrix has a diagonal attack block A,
-// an attack–(defence, μ, h) block B that is sparse (one entry per pair of teams that met) and a
-// (defence, μ, h) block K. A Newton step solves the constrained system
+// constraints Σa = 0 and Σd = 0, a Gaussian penalty of precision p_i on a_i and d_i (the
+// shrinkage of teams with few matches) and one of precision q on every team's goal level a_i − d_i
+// (how open its matches are, as opposed to how strong it is, a_i + d_i: the level shrinkage). The
+// level penalty couples a_i with d_i: it enters B as the pair (i, i). The information matrix has a
+// diagonal attack block A, an attack–(defence, μ, h) block B that is sparse (one entry per pair of
+// teams that met) and a (defence, μ, h) block K. A Newton step solves the constrained system
 //
 //     [ H  Cᵀ ] [Δ]   [g]
 //     [ C  0  ] [ν] = [0]       H = [[A, B], [Bᵀ, K]],  C = the two sum-to-zero rows,
@@ -45,7 +47,8 @@ TauSlopes tau_slopes(const RatingGame& g, double lambda, double nu, double rho);
 
 class RatingNewtonSystem {
 public:
-    RatingNewtonSystem(std::vector<RatingGame> games, int teams, Eigen::VectorXd precision);
+    RatingNewtonSystem(std::vector<RatingGame> games, int teams, Eigen::VectorXd precision,
+                       double level_precision = 0.0);
 
     // Weighted log-likelihood with −log y! and τ; `penalised` subtracts the shrinkage penalty.
     double log_likelihood(const RatingParams& t, double rho, bool penalised) const;
@@ -82,11 +85,13 @@ private:
     std::vector<RatingGame> games_;
     int n_;
     Eigen::VectorXd precision_;
+    double level_precision_ = 0.0;
     // Sparse structure: pair k is (attacker pair_attacker_[k], defender pair_defender_[k]);
     // each game side adds to one pair. Pairs are grouped by attacker: pairs of attacker i are
     // [pair_start_[i], pair_start_[i + 1]).
     std::vector<int> pair_attacker_, pair_defender_, pair_start_;
     std::vector<int> home_pair_, away_pair_;  // per game: the pair of each side's scoring
+    std::vector<int> self_pair_;              // per team: the pair (i, i) of the level penalty
     bool has_home_term_ = false;              // some match is not at a neutral venue
 
     // Assembled at the last point.

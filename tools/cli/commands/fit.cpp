@@ -28,6 +28,7 @@ struct FitOptions {
     bool low_score_correction = false;
     double min_matches = 6.0;
     double shrink_precision = 2.0;
+    liveprob::cli::RatingModelSettings rating_model;
     liveprob::datasets::BadRows bad_rows = liveprob::datasets::BadRows::fail;
 };
 
@@ -43,6 +44,7 @@ int run_fit(const FitOptions& o) {
     options.fit_rho = o.low_score_correction;
     options.min_matches = o.min_matches;
     options.shrink_precision = o.shrink_precision;
+    o.rating_model.apply_to(options);
     options.min_weight = liveprob::cli::kMinMatchWeight;
 
     const auto aliases = o.aliases.empty() ? std::map<std::string, std::string>{}
@@ -97,6 +99,7 @@ const liveprob::cli::Registration registration{
                         "teams with fewer weighted matches are shrunk");
          app.add_option("--shrink-precision", o->shrink_precision,
                         "prior precision for shrunk teams");
+         liveprob::cli::add_rating_model_options(app, o->rating_model);
          app.add_option("--aliases", o->aliases,
                         "CSV feed_name,rating_name applied to the results' names");
          liveprob::cli::add_bad_rows_flag(app, o->bad_rows);

@@ -43,9 +43,16 @@ struct FitInplayOptions {
     std::string base_params;
     std::string out;
     double half_life_days = 730.0;
-    double timing_half_life_days = 0.0;
-    bool fit_dispersion = true;  // false: κ = ∞, the state multipliers fitted under plain Poisson
+    // The defaults are the choices the walk-forward backtests made at three cuts
+    // (replay-demo/README.md, "Choices made out of sample"): goal minutes weighted by a 4-year
+    // half-life, and no strength dispersion.
+    double timing_half_life_days = 1461.0;
+    bool fit_dispersion = false;  // false: κ = ∞, the state multipliers fitted under plain Poisson
+    // false: the score-state multipliers held at 1. Fitted under priors whose goal levels are
+    // shrunk (the rating default), they made every held-out period worse (replay-demo/README.md).
+    bool fit_score_states = false;
     double min_matches = 6.0;
+    liveprob::cli::RatingModelSettings rating_model;
     int extra_time_from_year = 1970;
     datasets::BadRows bad_rows = datasets::BadRows::fail;
 };
@@ -91,6 +98,10 @@ int run_fit_inplay(const FitInplayOptions& o) {
     if (o.half_life_days < 0.0) throw UsageError("--half-life must be 0 (no decay) or positive");
     if (o.timing_half_life_days < 0.0)
         throw UsageError("--timing-half-life must be 0 (no decay) or positive");
+    if (o.fit_dispersion && !o.fit_score_states)
+        throw UsageError(
+            "--dispersion fit is fitted jointly with the score states: give "
+            "--score-states fit too");
     const fs::path dir(o.international_dir);
     // Every international match with complete goal records (no coverage filter: a goalless
     // match is left out below, and those with goals are conditioned on having one).
@@ -151,6 +162,7 @@ int run_fit_inplay(const FitInplayOptions& o) {
     liveprob::backtest::WalkForwardOptions wf;
     wf.fit.xi = o.half_life_days > 0.0 ? std::log(2.0) / o.half_life_days : 0.0;
     wf.fit.min_matches = o.min_matches;
+    o.rating_model.apply_to(wf.fit);
     wf.fit.min_weight = liveprob::cli::kMinMatchWeight;
     wf.fit.standard_errors = false;
     wf.schedule = liveprob::backtest::RefitSchedule::month;
@@ -193,11 +205,17 @@ int run_fit_inplay(const FitInplayOptions& o) {
         ++(championship ? extra_time_championship : extra_time_international);
     }
 
-    // 4. Score-state multipliers and κ, jointly.
-    fit::ScoreStateFitOptions state_options;
-    state_options.fit_dispersion = o.fit_dispersion;
-    const auto states = fit::fit_score_state(samples.regulation, state_options);
-    if (!states.converged) throw std::runtime_error("the score-state fit did not converge");
+    // 4. Score-state multipliers and κ, jointly (or both held: multipliers 1, κ = ∞).
+    fit::ScoreStateFit states;
+    if (o.fit_score_states) {
+        fit::ScoreStateFitOptions state_options;
+        state_options.fit_dispersion = o.fit_dispersion;
+        states = fit::fit_score_state(samples.regulation, state_options);
+        if (!states.converged) throw std::runtime_error("the score-state fit did not converge");
+    } else {
+        states.effects = {1.0, 1.0, 1.0};
+        states.kappa = std::numeric_limits<double>::infinity();
+    }
     params.score_state = states.effects;
     params.kappa = states.kappa;
 
@@ -220,8 +238,8 @@ int run_fit_inplay(const FitInplayOptions& o) {
     // Sources and standard errors, beside the values.
     const std::string priors_text = fmt::format(
         "priors from ratings refitted monthly on the results before each "
-        "month (half-life {} days)",
-        o.half_life_days);
+        "month (half-life {} days, goal-level precision {}, friendly weight {})",
+        o.half_life_days, o.rating_model.level_precision, o.rating_model.friendly_weight);
     const std::string timing_text = fmt::format(
         "fitted by fit-inplay: multinomial likelihood of {} regulation goal "
         "minutes (international{}, {}){}",
@@ -270,15 +288,21 @@ int run_fit_inplay(const FitInplayOptions& o) {
                          : "plain Poisson likelihood (kappa held at infinity)",
         samples.regulation.size(), span_of_years(samples.first_day, samples.last_day), priors_text);
     for (const char* key : {"score_state.leading", "score_state.level", "score_state.trailing"})
-        notes.sources[key] = states_text;
+        notes.sources[key] = o.fit_score_states
+                                 ? states_text
+                                 : std::string(
+                                       "held at 1 (fit-inplay --score-states none): chosen "
+                                       "by walk-forward backtests (replay-demo/README.md)");
     notes.sources["kappa"] = o.fit_dispersion
                                  ? states_text
                                  : std::string(
                                        "held at infinity (fit-inplay --dispersion none): chosen "
                                        "by walk-forward backtests (replay-demo/README.md)");
-    notes.standard_errors["score_state.leading"] = states.leading_se;
-    notes.standard_errors["score_state.level"] = states.level_se;
-    notes.standard_errors["score_state.trailing"] = states.trailing_se;
+    if (o.fit_score_states) {
+        notes.standard_errors["score_state.leading"] = states.leading_se;
+        notes.standard_errors["score_state.level"] = states.level_se;
+        notes.standard_errors["score_state.trailing"] = states.trailing_se;
+    }
     if (std::isfinite(states.kappa)) notes.standard_errors["kappa"] = states.kappa_se;
     notes.sources["timing.extra_time_factor"] = fmt::format(
         "fitted by fit-inplay: time to the first extra-time goal in {} matches level after "
@@ -333,9 +357,12 @@ int run_fit_inplay(const FitInplayOptions& o) {
     row("timing.second_half_end", params.timing.second_half_end, timing.second_half_end_se);
     row("timing.stoppage_factor", params.timing.stoppage_factor,
         stoppage ? stoppage->factor_se : timing.stoppage_factor_se);
-    row("score_state.leading", states.effects.leading, states.leading_se);
-    row("score_state.level", states.effects.level, states.level_se);
-    row("score_state.trailing", states.effects.trailing, states.trailing_se);
+    auto state_se = [&](double se) {
+        return o.fit_score_states ? std::optional<double>(se) : std::nullopt;
+    };
+    row("score_state.leading", states.effects.leading, state_se(states.leading_se), "held");
+    row("score_state.level", states.effects.level, state_se(states.level_se), "held");
+    row("score_state.trailing", states.effects.trailing, state_se(states.trailing_se), "held");
     if (std::isfinite(states.kappa)) row("kappa", states.kappa, states.kappa_se);
     else
         std::cout << fmt::format("{:<28} {:>9} {:>9}\n", "kappa", "infinity",
@@ -347,15 +374,18 @@ int run_fit_inplay(const FitInplayOptions& o) {
         kicks.edge_fitted ? std::optional<double>(kicks.edge_se) : std::nullopt);
     std::cout << fmt::format(
         "second-half share: data {:.4f}, fitted {:.4f} (se {:.4f})\n"
-        "score states: {} matches, {} goals{}\n"
+        "score states: {}\n"
         "extra time: {} matches, first goal in {} (model expects {:.1f})\n"
         "shoot-outs: first kicker won {} of {} (model {:.4f}); {} tallies with {} kicks scored; {} "
         "name only the "
         "winner (no information)\nwrote {}\n",
         timing.data_second_half_share, timing.second_half_share, timing.second_half_share_se,
-        states.sides / 2, states.goals,
-        states.dispersion_at_bound ? " (no dispersion found: kappa = infinity)" : "", extra.matches,
-        extra.first_goals, extra.expected_first_goals, kicks.first_kicker_wins,
+        o.fit_score_states
+            ? fmt::format(
+                  "{} matches, {} goals{}", states.sides / 2, states.goals,
+                  states.dispersion_at_bound ? " (no dispersion found: kappa = infinity)" : "")
+            : std::string("held at 1 (--score-states none)"),
+        extra.matches, extra.first_goals, extra.expected_first_goals, kicks.first_kicker_wins,
         kicks.with_first_kicker, kicks.first_kicker_win_probability, kicks.with_tally,
         kicks.tally_kicks_scored, kicks.uninformative, o.out);
     return liveprob::cli::kExitOk;
@@ -381,13 +411,21 @@ const liveprob::cli::Registration registration{
                         "time-decay half-life in days of the prior ratings");
          app.add_option_function<std::string>(
                 "--dispersion", [o](const std::string& v) { o->fit_dispersion = v == "fit"; },
-                "fit: the strength dispersion kappa fitted jointly with the state multipliers "
-                "(default); none: kappa = infinity, the multipliers fitted under plain Poisson")
+                "fit: the strength dispersion kappa fitted jointly with the state multipliers; "
+                "none (the default, chosen out of sample): kappa = infinity, the multipliers "
+                "fitted under plain Poisson")
+             ->check(CLI::IsMember({"fit", "none"}));
+         app.add_option_function<std::string>(
+                "--score-states", [o](const std::string& v) { o->fit_score_states = v == "fit"; },
+                "fit: the score-state multipliers (leading, level, trailing) fitted; none (the "
+                "default, chosen out of sample): held at 1 (needs --dispersion none)")
              ->check(CLI::IsMember({"fit", "none"}));
          app.add_option("--timing-half-life", o->timing_half_life_days,
                         "time-decay half-life in days of the goal-minute weights of the timing "
-                        "profile (0: every goal alike)");
+                        "profile (0: every goal alike)")
+             ->capture_default_str();
          liveprob::cli::add_bad_rows_flag(app, o->bad_rows);
+         liveprob::cli::add_rating_model_options(app, o->rating_model);
          app.add_option(
              "--min-matches", o->min_matches,
              "a match is used only when both sides have this many weighted earlier matches");

@@ -52,6 +52,7 @@ struct ImportOptions {
     double coverage = 0.9;
     double min_matches = 6.0;
     double shrink_precision = 2.0;
+    RatingModelSettings rating_model;
     std::string from, to;
     std::string aliases;
     datasets::BadRows bad_rows = datasets::BadRows::fail;
@@ -289,6 +290,7 @@ int run_import(const ImportOptions& o) {
     backtest::WalkForwardOptions wf;
     wf.fit.min_matches = o.min_matches;
     wf.fit.shrink_precision = o.shrink_precision;
+    o.rating_model.apply_to(wf.fit);
     wf.fit.min_weight = kMinMatchWeight;
     wf.fit.standard_errors = false;
     wf.schedule =
@@ -405,6 +407,7 @@ const Registration registration{{
         sub.add_option("--shrink-precision", o->shrink_precision,
                        "rating fit: prior precision for shrunk teams")
             ->capture_default_str();
+        add_rating_model_options(sub, o->rating_model);
         sub.add_option("--from", o->from,
                        "import matches on or after this date (the fits still use all before)");
         sub.add_option("--to", o->to, "import matches before this date");

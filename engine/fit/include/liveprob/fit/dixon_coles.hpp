@@ -72,6 +72,14 @@ struct RatingsFitOptions {
     // precision `shrink_precision` on attack and defence (toward the average, 0) and a warning.
     double min_matches = 0.0;
     double shrink_precision = 2.0;
+    // Every team's goal level a − d (how many goals its matches hold, apart from who wins them)
+    // gets a Gaussian prior of this precision toward the average; its strength a + d does not.
+    // 0 = no level shrinkage. The precision is in the units of the Poisson information: n
+    // weighted matches at about λ goals a side carry about n·λ/2 of information on a − d (a
+    // national side at a two-year half-life: about 25 · 1.3 / 2 ≈ 16).
+    double level_precision = 0.0;
+    // A friendly's likelihood weight relative to a competitive match (on top of the decay).
+    double friendly_weight = 1.0;
     double min_weight = 1e-6;  // decayed matches lighter than this are left out
     int max_iterations = 100;
     double tolerance = 1e-11;  // largest Newton step at convergence

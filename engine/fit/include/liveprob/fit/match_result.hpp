@@ -12,6 +12,9 @@ struct MatchResult {
     int home_goals = 0;
     int away_goals = 0;
     bool neutral = false;  // neutral venue: no home advantage term
+    // The source calls it a friendly (the international results' tournament "Friendly"): sides
+    // often field a changed team, so it may tell less about strength (RatingsFitOptions).
+    bool friendly = false;
 };
 
 }  // namespace liveprob::fit
