@@ -136,6 +136,43 @@ TEST_CASE("between messages, the interpolated outputs stay within 1e-12 of the e
     CHECK(interpolated * 2 > ticks);
 }
 
+TEST_CASE("a clock sync keeps the interpolation window, a goal starts a new one",
+          "[interpolation]") {
+    MatchSetup setup;
+    setup.prior = PriorMeans{1.5, 1.1};
+    const ModelParams params;
+    Match exact(7, setup, params);
+    Match drifting(7, setup, params);
+    drifting.set_clock_interpolation(true);
+    liveprob::test::FeedBuilder feed(7);
+    auto apply = [&](const InboundMessage& m) {
+        REQUIRE(exact.apply(m).verdict == Verdict::accepted);
+        REQUIRE(drifting.apply(m).verdict == Verdict::accepted);
+    };
+    Outputs a;
+    Outputs b;
+    auto tick = [&](std::uint32_t second) {
+        const MatchClock at{Period::first_half, second * 1'000};
+        REQUIRE(exact.advance_to(at));
+        REQUIRE(drifting.advance_to(at));
+        exact.price_into(a);
+        drifting.price_into(b);
+        REQUIRE(largest_difference(a, b) <= kTolerance);
+    };
+    apply(feed.start(Period::first_half, 0.0));
+    // 13 node solves and the check, one per tick: from the 15th tick on the window prices.
+    for (std::uint32_t s = 1; s <= 15; ++s) tick(s);
+    REQUIRE_FALSE(same_bits(a, b));
+
+    apply(feed.next(ClockSync{true}, liveprob::test::at_minute(Period::first_half, 20.0 / 60)));
+    tick(21);
+    CHECK_FALSE(same_bits(a, b));  // still interpolated: the sync moved only the clock
+
+    apply(feed.goal(Side::home, Period::first_half, 25.0 / 60));
+    tick(26);
+    CHECK(same_bits(a, b));  // a new window: exact while it fills
+}
+
 TEST_CASE("a window that spans a kink of the timing profile fails its check and is not used",
           "[interpolation]") {
     // A first half at 1-0 from 40:00 to 47:00: across the nominal end at 45:00 the rate turns

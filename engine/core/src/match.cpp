@@ -86,6 +86,7 @@ ApplyResult Match::apply(const InboundMessage& message) {
     EventBody event = *event_of(message.body);  // screen() refused setups
 
     if (pos == log_.end()) {  // the usual case: newest in feed order, folded in place
+        const PricingInputs before = pricing_inputs();
         log_.push_back(LoggedMessage{message.header, std::move(event), RejectReason::none});
         const RejectReason outcome = fold_entry(log_.size() - 1);
         if (outcome != RejectReason::none) {
@@ -93,7 +94,12 @@ ApplyResult Match::apply(const InboundMessage& message) {
             return {Verdict::rejected, outcome};
         }
         counters_.accepted += 1;
-        anchor_clock();
+        // A message that moved only the clock (a clock sync) keeps a window that is ready: its
+        // solves priced the same state, and the exposure the message folded in is the stretch
+        // up to its clock under that state (equal up to the rounding of one addition). A
+        // window still filling starts again: its remaining nodes may lie before the new anchor.
+        const bool clock_only = pricing_inputs() == before && interpolant_ && interpolant_->ready();
+        anchor_clock(!clock_only);
         return {Verdict::accepted, RejectReason::none};
     }
 
@@ -243,10 +249,19 @@ PricingState Match::pricing_state_at(MatchClock clock) const {
     return ps;
 }
 
-void Match::anchor_clock() noexcept {
+void Match::anchor_clock(bool pricing_moved) noexcept {
     priced_clock_ = state_.clock;  // every change of the fold re-anchors to the feed's clock
     outputs_stale_ = true;
-    fold_epoch_ += 1;
+    if (pricing_moved) fold_epoch_ += 1;
+}
+
+Match::PricingInputs Match::pricing_inputs() const noexcept {
+    return {state_.status,           state_.status_before_abandonment,
+            state_.period,           state_.period_running,
+            state_.clock_running,    state_.regulation_goals,
+            state_.extra_time_goals, state_.reds,
+            state_.announced_stoppage, state_.shootout,
+            state_.xg,               state_.xg_reported};
 }
 
 void Match::price_into(Outputs& out) const {

@@ -29,6 +29,7 @@
 #include <array>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <vector>
 
 #include "liveprob/core/match_state.hpp"
@@ -96,7 +97,8 @@ public:
     // a polynomial in the clock through exact solves at the nodes of a window that stops at
     // the next kink of the timing profile (every output within 1e-12 of the exact solve; see
     // clock_interpolant.hpp). While a window fills, each call prices exactly and solves one
-    // node more, so no call does more than two solves. About 29 KB per match while on. Off by
+    // node more, so no call does more than two solves. A clock sync keeps a ready window; any
+    // message that changes what the model reads apart from the clock starts a new one. About 29 KB per match while on. Off by
     // default: the exact path is the reference, the same bits on every processor.
     void set_clock_interpolation(bool on);
     [[nodiscard]] bool clock_interpolation() const noexcept { return interpolant_ != nullptr; }
@@ -142,7 +144,26 @@ private:
     RejectReason fold_entry(std::size_t index);
     // Re-folds the log after its entries from `changed` on were inserted or changed.
     void refold_from(std::size_t changed);
-    void anchor_clock() noexcept;
+    // Re-anchors the priced clock to the fold's after a change of the fold; `pricing_moved`
+    // false when the change moved nothing the model reads but the clock (a clock sync) and the
+    // interpolation window is ready, so that it stays in use.
+    void anchor_clock(bool pricing_moved = true) noexcept;
+    // What the model reads from the fold state apart from the clock and the exposure so far
+    // (which a message folded in order only brings up to its clock under the same state).
+    struct PricingInputs {
+        MatchStatus status;
+        MatchStatus status_before_abandonment;
+        Period period;
+        bool period_running;
+        bool clock_running;
+        std::array<int, 2> regulation_goals, extra_time_goals, reds;
+        std::array<std::optional<int>, 5> announced_stoppage;
+        ShootoutTally shootout;
+        std::array<double, 2> xg;
+        bool xg_reported;
+        friend bool operator==(const PricingInputs&, const PricingInputs&) = default;
+    };
+    PricingInputs pricing_inputs() const noexcept;
     void count_rejection(RejectReason reason) noexcept;
     // The model's input for the current state with the clock at `clock` (in play: a reading of
     // the current period at or after the anchor).
@@ -168,7 +189,9 @@ private:
     MatchCounters counters_;
     mutable std::unique_ptr<Outputs> outputs_;  // outputs()'s buffer, allocated on first use
     mutable bool outputs_stale_ = true;
-    std::uint64_t fold_epoch_ = 0;  // counts changes of the fold: an interpolant's key
+    // Counts changes of the fold that move pricing other than through the clock: an
+    // interpolant's key.
+    std::uint64_t fold_epoch_ = 0;
     mutable std::unique_ptr<ClockInterpolant> interpolant_;  // set_clock_interpolation(true)
 };
 

@@ -41,7 +41,8 @@ public:
     static constexpr double kCheckTolerance = 5e-13;
 
     // Starts a window over [from_ms, to_ms] of `period` for the fold state `epoch` (any change
-    // of the fold starts a new one). Allocation-free.
+    // of the fold that moves pricing other than through the clock starts a new one; a clock
+    // sync does not once the window is ready). Allocation-free.
     void begin(std::uint64_t epoch, Period period, std::uint32_t from_ms, std::uint32_t to_ms);
 
     // Whether the current window was started for this state and holds this clock reading.
