@@ -3,8 +3,8 @@
 // mixture, extra time and shoot-out to price) tick once a second through the second half, each
 // tick advancing the clock and pricing into the service's one buffer. Every tick is timed, so
 // the figures are per match per tick: median and tails, and the mean, which carries the window
-// solves (amortised). Argument 2: seconds between feed messages per match (0: none; a message
-// starts a new window, as a busy feed's clock syncs do).
+// solves (amortised). Argument 2: seconds between clock syncs per match (0: none; a sync keeps
+// a ready window and restarts one still filling).
 //   liveprob_bench_tick_repricing --benchmark_repetitions=3 --benchmark_report_aggregates_only=true
 #include <benchmark/benchmark.h>
 
