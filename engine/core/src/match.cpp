@@ -256,12 +256,18 @@ void Match::anchor_clock(bool pricing_moved) noexcept {
 }
 
 Match::PricingInputs Match::pricing_inputs() const noexcept {
-    return {state_.status,           state_.status_before_abandonment,
-            state_.period,           state_.period_running,
-            state_.clock_running,    state_.regulation_goals,
-            state_.extra_time_goals, state_.reds,
-            state_.announced_stoppage, state_.shootout,
-            state_.xg,               state_.xg_reported};
+    return {state_.status,
+            state_.status_before_abandonment,
+            state_.period,
+            state_.period_running,
+            state_.clock_running,
+            state_.regulation_goals,
+            state_.extra_time_goals,
+            state_.reds,
+            state_.announced_stoppage,
+            state_.shootout,
+            state_.xg,
+            state_.xg_reported};
 }
 
 void Match::price_into(Outputs& out) const {

@@ -142,9 +142,9 @@ void uniformized_step(const double* __restrict stay, const double* __restrict ho
 // contracts nothing), so both clones round alike.
 LIVEPROB_FAST_CLONES
 void backward_passes(const double* __restrict stay, const double* __restrict up,
-                     const double* __restrict down, double* __restrict u,
-                     double* __restrict next, std::size_t start, std::size_t slots,
-                     double* __restrict values, std::size_t count) {
+                     const double* __restrict down, double* __restrict u, double* __restrict next,
+                     std::size_t start, std::size_t slots, double* __restrict values,
+                     std::size_t count) {
     auto step = [&](const double* __restrict from, double* __restrict to, std::size_t reach) {
         const std::size_t lo = start > reach + 1 ? start - reach : 1;
         const std::size_t hi = std::min(start + reach, slots - 2);
@@ -246,8 +246,8 @@ std::size_t ScoreChain::add(const ClassRates& rates, int start_diff, const JumpC
 
     for (std::size_t n = 1; n < jumps; ++n) {
         const double w = weights_[n];
-        uniformized_step(stay_.data(), home_.data(), away_.data(), now->data(),
-                         next->data(), sum_.data(), w, n);
+        uniformized_step(stay_.data(), home_.data(), away_.data(), now->data(), next->data(),
+                         sum_.data(), w, n);
         if (trace) {
             const double* nv = next->data();
             while (level_reached < level_cells && level_reached_after[level_reached] <= n)
@@ -294,8 +294,8 @@ void difference_values(const ClassRates& rates, int start_diff, double level_val
         const int tie = start_diff + d;
         u[slot(d)] = tie > 0 ? 1.0 : tie == 0 ? level_value : 0.0;
     }
-    backward_passes(stay.data(), up.data(), down.data(), u.data(), next.data(), slot(0),
-                    at(kSlots), out.data(), out.size());
+    backward_passes(stay.data(), up.data(), down.data(), u.data(), next.data(), slot(0), at(kSlots),
+                    out.data(), out.size());
 }
 
 DifferenceOutcome solve_difference(const ClassRates& rates, int start_diff, double exposure) {

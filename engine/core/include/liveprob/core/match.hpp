@@ -98,8 +98,9 @@ public:
     // the next kink of the timing profile (every output within 1e-12 of the exact solve; see
     // clock_interpolant.hpp). While a window fills, each call prices exactly and solves one
     // node more, so no call does more than two solves. A clock sync keeps a ready window; any
-    // message that changes what the model reads apart from the clock starts a new one. About 29 KB per match while on. Off by
-    // default: the exact path is the reference, the same bits on every processor.
+    // message that changes what the model reads apart from the clock starts a new one. About 29 KB
+    // per match while on. Off by default: the exact path is the reference, the same bits on every
+    // processor.
     void set_clock_interpolation(bool on);
     [[nodiscard]] bool clock_interpolation() const noexcept { return interpolant_ != nullptr; }
 
