@@ -45,7 +45,8 @@ using liveprob::test::HttpAnswer;
 
 HttpAnswer http_get(std::uint16_t port, const std::string& target,
                     http::verb verb = http::verb::get) {
-    return liveprob::test::http_request("127.0.0.1", port, target, verb);
+    return liveprob::test::http_request("127.0.0.1", port, target,
+                                        std::string(http::to_string(verb)));
 }
 
 using liveprob::test::eventually;
