@@ -102,13 +102,21 @@ struct ShownFigures {
 // The full-time figures in the card of `match_id` in the page's DOM.
 ShownFigures shown_for(const std::string& dom, std::uint64_t match_id) {
     ShownFigures shown;
-    const std::regex card(fmt::format(
-        R"re(<section class="match" data-match-id="{}" data-update-seq="(\d+)"[^>]*>([\s\S]*?)</section>)re",
-        match_id));
-    std::smatch m;
-    if (!std::regex_search(dom, m, card)) return shown;
-    shown.update_seq = m[1];
-    const std::string body = m[2];
+    // Found by plain search: a regular expression spanning the whole card recurses once per
+    // character in libstdc++ and overflows the stack under the address sanitizer.
+    const std::string opening =
+        fmt::format(R"(<section class="match" data-match-id="{}" data-update-seq=")", match_id);
+    const auto start = dom.find(opening);
+    if (start == std::string::npos) return shown;
+    const auto seq_start = start + opening.size();
+    const auto seq_end = dom.find('"', seq_start);
+    const auto body_start = dom.find('>', seq_end);
+    const auto body_end = dom.find("</section>", body_start);
+    if (seq_end == std::string::npos || body_start == std::string::npos ||
+        body_end == std::string::npos)
+        return shown;
+    shown.update_seq = dom.substr(seq_start, seq_end - seq_start);
+    const std::string body = dom.substr(body_start + 1, body_end - body_start - 1);
     for (const char* side : {"home", "draw", "away"}) {
         const std::regex figure(
             fmt::format(R"re(<dd class="p full-{}" data-value="([^"]+)">([^<]*)</dd>)re", side));
